@@ -1,0 +1,8 @@
+//! sheaf: descriptive-statistics summaries of a workbook, from a recipe.
+//!
+//! The crate is laid out in the order a run goes through it:
+//! `recipe` (parse and check the recipe), `load` (read the data),
+//! `eval` (evaluate the recipe over the columns), `stats` (the pure
+//! statistics every figure comes from) and `write` (the result workbook).
+
+pub mod stats;

@@ -1,0 +1,153 @@
+//! Seeded bootstrap percentile intervals for the mean and the median.
+//!
+//! Each resample draws n indexes into the sorted values with replacement.
+//! Counting how often each index was drawn gives the resample's sum and,
+//! by walking the counts in order, its median, with no sort per resample.
+//! The generator is written here (SplitMix64, Steele, Lea and Flood 2014)
+//! so the same seed gives the same interval on every machine and version.
+
+use super::quantile::{QuantileMethod, quantile_sorted};
+use super::sample::Sample;
+use super::summation::Neumaier;
+use super::undefined::{Stat, need};
+
+pub const DEFAULT_RESAMPLES: usize = 2000;
+/// Fixed so that reruns on the same data agree to the last digit.
+pub const DEFAULT_SEED: u64 = 0x5EAF_2026;
+
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Interval {
+    pub low: f64,
+    pub high: f64,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct BootstrapIntervals {
+    pub mean: Interval,
+    pub median: Interval,
+    pub resamples: usize,
+    pub level: f64,
+    pub seed: u64,
+}
+
+struct SplitMix64(u64);
+
+impl SplitMix64 {
+    fn next(&mut self) -> u64 {
+        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
+        let mut z = self.0;
+        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+        z ^ (z >> 31)
+    }
+
+    /// Uniform in 0..n without modulo bias (Lemire 2019, multiply and reject).
+    fn below(&mut self, n: u64) -> u64 {
+        let threshold = n.wrapping_neg() % n;
+        loop {
+            let wide = u128::from(self.next()) * u128::from(n);
+            if (wide as u64) >= threshold {
+                return (wide >> 64) as u64;
+            }
+        }
+    }
+}
+
+/// Percentile intervals at `level` (0.95 for 95%): the (1-level)/2 and
+/// (1+level)/2 quantiles (type 7) of the resampled means and medians.
+pub fn bootstrap_intervals(sample: &Sample, resamples: usize, level: f64, seed: u64) -> Stat<BootstrapIntervals> {
+    need(sample.count(), 1)?;
+    need(resamples, 2)?;
+    let sorted = sample.sorted();
+    let n = sorted.len();
+    let mut rng = SplitMix64(seed);
+    let mut counts = vec![0u32; n];
+    let mut means = Vec::with_capacity(resamples);
+    let mut medians = Vec::with_capacity(resamples);
+    for _ in 0..resamples {
+        counts.fill(0);
+        for _ in 0..n {
+            counts[rng.below(n as u64) as usize] += 1;
+        }
+        let mut sum = Neumaier::default();
+        for (&x, &c) in sorted.iter().zip(&counts) {
+            if c > 0 {
+                sum.add(x * f64::from(c));
+            }
+        }
+        means.push(sum.total() / n as f64);
+        medians.push(median_from_counts(sorted, &counts));
+    }
+    let interval = |mut stats: Vec<f64>| -> Stat<Interval> {
+        stats.sort_unstable_by(f64::total_cmp);
+        let method = QuantileMethod::HyndmanFan(7);
+        Ok(Interval {
+            low: quantile_sorted(&stats, (1.0 - level) / 2.0, method)?,
+            high: quantile_sorted(&stats, (1.0 + level) / 2.0, method)?,
+        })
+    };
+    Ok(BootstrapIntervals { mean: interval(means)?, median: interval(medians)?, resamples, level, seed })
+}
+
+/// The median of a resample given how often each sorted value was drawn.
+fn median_from_counts(sorted: &[f64], counts: &[u32]) -> f64 {
+    let n = sorted.len();
+    // 0-based ranks of the middle one or two values of the resample.
+    let (lower_rank, upper_rank) = ((n - 1) / 2, n / 2);
+    let mut seen = 0usize;
+    let mut lower = None;
+    for (&x, &c) in sorted.iter().zip(counts) {
+        seen += c as usize;
+        if lower.is_none() && seen > lower_rank {
+            lower = Some(x);
+        }
+        if seen > upper_rank {
+            let lower = lower.unwrap_or(x);
+            return lower / 2.0 + x / 2.0;
+        }
+    }
+    unreachable!("counts add up to n")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn generator_is_uniform_enough_and_in_range() {
+        let mut rng = SplitMix64(1);
+        let mut hits = [0usize; 7];
+        for _ in 0..70_000 {
+            hits[rng.below(7) as usize] += 1;
+        }
+        // Each cell expects 10,000; 4 sd of a binomial is about 370.
+        assert!(hits.iter().all(|&h| (9_600..10_400).contains(&h)), "{hits:?}");
+    }
+
+    #[test]
+    fn median_from_counts_matches_the_resample() {
+        let sorted = [1.0, 2.0, 4.0, 8.0];
+        // Resample 1, 1, 4, 8 -> median (1 + 4) / 2.
+        assert_eq!(median_from_counts(&sorted, &[2, 0, 1, 1]), 2.5);
+        // Resample 2, 2, 2, 8 -> median 2.
+        assert_eq!(median_from_counts(&sorted, &[0, 3, 0, 1]), 2.0);
+        assert_eq!(median_from_counts(&[5.0, 6.0, 7.0], &[0, 0, 3]), 7.0);
+    }
+
+    #[test]
+    fn same_seed_same_interval() {
+        let s = Sample::from_values((1..=50).map(|i| f64::from(i * i % 17)));
+        let a = bootstrap_intervals(&s, 500, 0.95, DEFAULT_SEED).unwrap();
+        let b = bootstrap_intervals(&s, 500, 0.95, DEFAULT_SEED).unwrap();
+        assert_eq!(a, b);
+        let c = bootstrap_intervals(&s, 500, 0.95, DEFAULT_SEED + 1).unwrap();
+        assert_ne!(a.mean, c.mean);
+    }
+
+    #[test]
+    fn constant_data_gives_a_point_interval() {
+        let s = Sample::from_values([3.0; 20]);
+        let b = bootstrap_intervals(&s, 100, 0.95, 7).unwrap();
+        assert_eq!((b.mean.low, b.mean.high, b.median.low, b.median.high), (3.0, 3.0, 3.0, 3.0));
+    }
+}

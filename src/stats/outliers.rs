@@ -1,0 +1,99 @@
+//! Tukey's fences and the modified z-scores of Iglewicz and Hoaglin.
+
+use super::order::{iqr, median, quartile};
+use super::quantile::QuantileMethod;
+use super::sample::Sample;
+use super::undefined::{Stat, Undefined};
+
+/// 0.6745 = Phi^-1(3/4), as in Iglewicz and Hoaglin (1993): makes the
+/// modified z-score comparable to an ordinary z-score for normal data.
+pub const MODIFIED_Z_CONSTANT: f64 = 0.6745;
+/// Iglewicz and Hoaglin (1993) recommend flagging |M| > 3.5.
+pub const MODIFIED_Z_CUTOFF: f64 = 3.5;
+
+/// Tukey's (1977) fences Q1 - k IQR and Q3 + k IQR.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Fences {
+    pub low: f64,
+    pub high: f64,
+}
+
+pub fn fences(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<Fences> {
+    if !(k.is_finite() && k >= 0.0) {
+        return Err(Undefined::BadArgument(format!("the fence factor must be 0 or more, not {k}")));
+    }
+    let spread = iqr(sample, method)?;
+    Ok(Fences {
+        low: quartile(sample, 1, method)? - k * spread,
+        high: quartile(sample, 3, method)? + k * spread,
+    })
+}
+
+/// Values strictly beyond the fences, as indexes into `sample.values()`.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Outliers {
+    pub fences: Fences,
+    pub low: Vec<usize>,
+    pub high: Vec<usize>,
+}
+
+impl Outliers {
+    pub fn count(&self) -> usize {
+        self.low.len() + self.high.len()
+    }
+}
+
+pub fn outliers(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<Outliers> {
+    let fences = fences(sample, k, method)?;
+    let mut low = Vec::new();
+    let mut high = Vec::new();
+    for (i, &x) in sample.values().iter().enumerate() {
+        if x < fences.low {
+            low.push(i);
+        } else if x > fences.high {
+            high.push(i);
+        }
+    }
+    Ok(Outliers { fences, low, high })
+}
+
+/// M_i = 0.6745 (x_i - median) / MAD for every value, in the sample's order.
+pub fn modified_z_scores(sample: &Sample) -> Stat<Vec<f64>> {
+    let centre = median(sample)?;
+    let spread = super::order::mad(sample, false)?;
+    if spread == 0.0 {
+        return Err(Undefined::ZeroMad);
+    }
+    Ok(sample.values().iter().map(|x| MODIFIED_Z_CONSTANT * (x - centre) / spread).collect())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Hand-checked: 1..10 and 100. hf7: Q1 = 3.5, Q3 = 8.5, IQR = 5,
+    // fences -4 and 16 at k = 1.5, -11.5 and 23.5 at k = 3.
+    #[test]
+    fn fences_and_outliers_from_the_definition() {
+        let s = Sample::from_values((1..=10).map(f64::from).chain([100.0]));
+        let o = outliers(&s, 1.5, QuantileMethod::default()).unwrap();
+        assert_eq!(o.fences, Fences { low: -4.0, high: 16.0 });
+        assert_eq!((o.low.clone(), o.high.clone()), (vec![], vec![10]));
+        assert_eq!(fences(&s, 3.0, QuantileMethod::default()), Ok(Fences { low: -11.5, high: 23.5 }));
+        // Tukey's own fences use hinges: depth 3.5 -> 3.5 and 8.5 here too.
+        assert_eq!(fences(&s, 1.5, QuantileMethod::Hinges), Ok(Fences { low: -4.0, high: 16.0 }));
+    }
+
+    // Hand-checked: median 6, |x - 6| = 5 4 3 2 1 0 1 2 3 4 94 -> MAD 3,
+    // so M(100) = 0.6745 * 94 / 3 = 21.134... and M(1) = -1.124...
+    #[test]
+    fn modified_z_scores_from_the_definition() {
+        let s = Sample::from_values((1..=10).map(f64::from).chain([100.0]));
+        let z = modified_z_scores(&s).unwrap();
+        assert!((z[10] - 0.6745 * 94.0 / 3.0).abs() < 1e-12);
+        assert!((z[0] + 0.6745 * 5.0 / 3.0).abs() < 1e-12);
+        assert_eq!(z.iter().filter(|m| m.abs() > MODIFIED_Z_CUTOFF).count(), 1);
+        let flat = Sample::from_values([1.0, 1.0, 1.0, 9.0]);
+        assert_eq!(modified_z_scores(&flat), Err(Undefined::ZeroMad));
+    }
+}

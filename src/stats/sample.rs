@@ -1,0 +1,155 @@
+//! One column's non-missing values, with the shared sort and moments cached.
+
+use std::sync::OnceLock;
+
+use super::moments::Moments;
+use super::summation::Neumaier;
+use super::undefined::{Stat, Undefined, need};
+
+/// The numeric values of one column (or one group of it), with the count of
+/// cells that were missing. Order statistics share one sorted copy and shape
+/// statistics share one pass of central moments; both are made on first use.
+#[derive(Debug)]
+pub struct Sample {
+    values: Vec<f64>,
+    /// For each value, its index in the column it came from (for cell addresses).
+    positions: Vec<u32>,
+    missing: usize,
+    sorted: OnceLock<Vec<f64>>,
+    moments: OnceLock<Moments>,
+}
+
+impl Sample {
+    /// Takes a column with gaps. `None` and non-finite numbers count as missing.
+    pub fn from_column(column: impl IntoIterator<Item = Option<f64>>) -> Sample {
+        let mut values = Vec::new();
+        let mut positions = Vec::new();
+        let mut missing = 0;
+        for (i, cell) in column.into_iter().enumerate() {
+            match cell {
+                Some(x) if x.is_finite() => {
+                    values.push(x);
+                    positions.push(i as u32);
+                }
+                _ => missing += 1,
+            }
+        }
+        Sample::build(values, positions, missing)
+    }
+
+    /// Takes values that are all present. Non-finite numbers count as missing.
+    pub fn from_values(values: impl IntoIterator<Item = f64>) -> Sample {
+        Sample::from_column(values.into_iter().map(Some))
+    }
+
+    fn build(values: Vec<f64>, positions: Vec<u32>, missing: usize) -> Sample {
+        Sample { values, positions, missing, sorted: OnceLock::new(), moments: OnceLock::new() }
+    }
+
+    /// Values in the order they were given.
+    pub fn values(&self) -> &[f64] {
+        &self.values
+    }
+
+    /// For each value, the index of its cell in the column it was built from.
+    pub fn positions(&self) -> &[u32] {
+        &self.positions
+    }
+
+    /// Values in ascending order; sorted once, on first use.
+    pub fn sorted(&self) -> &[f64] {
+        self.sorted.get_or_init(|| {
+            let mut sorted = self.values.clone();
+            sorted.sort_unstable_by(f64::total_cmp);
+            sorted
+        })
+    }
+
+    /// Central moments; computed once, on first use.
+    pub fn moments(&self) -> Stat<&Moments> {
+        need(self.count(), 1)?;
+        Ok(self.moments.get_or_init(|| Moments::of(&self.values)))
+    }
+
+    pub fn count(&self) -> usize {
+        self.values.len()
+    }
+
+    pub fn missing(&self) -> usize {
+        self.missing
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.values.is_empty()
+    }
+
+    pub fn sum(&self) -> f64 {
+        Neumaier::of(self.values.iter().copied())
+    }
+
+    pub fn min(&self) -> Stat {
+        self.extreme(|a, b| a.min(b))
+    }
+
+    pub fn max(&self) -> Stat {
+        self.extreme(|a, b| a.max(b))
+    }
+
+    fn extreme(&self, pick: fn(f64, f64) -> f64) -> Stat {
+        // The sorted copy, if it already exists, answers without a pass.
+        if let Some(sorted) = self.sorted.get() {
+            return match (sorted.first(), sorted.last()) {
+                (Some(&lo), Some(&hi)) => Ok(if pick(lo, hi) == lo { lo } else { hi }),
+                _ => Err(Undefined::NoValues),
+            };
+        }
+        self.values.iter().copied().reduce(pick).ok_or(Undefined::NoValues)
+    }
+
+    pub fn range(&self) -> Stat {
+        Ok(self.max()? - self.min()?)
+    }
+
+    /// True when every value is the same (shape statistics are undefined then).
+    pub fn is_constant(&self) -> bool {
+        match (self.min(), self.max()) {
+            (Ok(lo), Ok(hi)) => lo == hi,
+            _ => false,
+        }
+    }
+
+    pub fn mean(&self) -> Stat {
+        Ok(self.moments()?.mean)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn gaps_and_non_finite_values_count_as_missing() {
+        let s = Sample::from_column([Some(2.0), None, Some(f64::NAN), Some(5.0), Some(f64::INFINITY)]);
+        assert_eq!(s.count(), 2);
+        assert_eq!(s.missing(), 3);
+        assert_eq!(s.positions(), &[0, 3]);
+        assert_eq!(s.sum(), 7.0);
+    }
+
+    #[test]
+    fn empty_sample_has_no_extremes() {
+        let s = Sample::from_values([]);
+        assert_eq!(s.min(), Err(Undefined::NoValues));
+        assert_eq!(s.range(), Err(Undefined::NoValues));
+        assert_eq!(s.mean(), Err(Undefined::NoValues));
+    }
+
+    #[test]
+    fn extremes_agree_before_and_after_sorting() {
+        let s = Sample::from_values([3.0, -1.0, 7.5, 2.0]);
+        assert_eq!((s.min(), s.max()), (Ok(-1.0), Ok(7.5)));
+        let _ = s.sorted();
+        assert_eq!((s.min(), s.max()), (Ok(-1.0), Ok(7.5)));
+        assert_eq!(s.range(), Ok(8.5));
+    }
+}
