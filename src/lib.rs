@@ -5,4 +5,5 @@
 //! `eval` (evaluate the recipe over the columns), `stats` (the pure
 //! statistics every figure comes from) and `write` (the result workbook).
 
+pub mod recipe;
 pub mod stats;

@@ -1,0 +1,89 @@
+//! The recipe language: lines, the nom parser, the checker, the printer.
+//!
+//! `parse` turns recipe text into a [`Recipe`] tree plus every syntax error
+//! it found (a bad line is reported and parsing goes on at the next);
+//! `check` resolves names and shapes, with the data's headers when known.
+//! The normative grammar is `grammar/sheaf.peg`.
+
+pub mod ast;
+mod check;
+pub mod diagnostic;
+mod expr;
+pub mod functions;
+mod lines;
+pub mod pretty;
+mod statement;
+mod suggest;
+mod syntax;
+
+pub use ast::Recipe;
+pub use check::BIN_RULES;
+pub use diagnostic::{Diagnostic, render_all};
+pub use suggest::closest;
+pub use syntax::{KEYWORDS, MAX_CHAIN, MAX_NESTING};
+
+/// Deepest expression tree accepted; deeper ones are refused with an error
+/// rather than risking the stack in later passes.
+pub const MAX_DEPTH: usize = 256;
+
+#[derive(Debug)]
+pub struct Parsed {
+    pub recipe: Recipe,
+    /// Syntax errors and, when the syntax is clean, checker errors.
+    pub diagnostics: Vec<Diagnostic>,
+}
+
+impl Parsed {
+    pub fn is_ok(&self) -> bool {
+        self.diagnostics.is_empty()
+    }
+}
+
+/// Parses recipe text; reports every line that could not be read.
+pub fn parse(source: &str) -> Parsed {
+    syntax::with_source(source, || {
+        let (lines, mut diagnostics) = lines::split_lines(source);
+        let recipe = statement::parse_lines(&lines, &mut diagnostics);
+        for e in expressions(&recipe) {
+            if e.depth() > MAX_DEPTH {
+                diagnostics.push(
+                    Diagnostic::new(e.span, format!("this expression nests more than {MAX_DEPTH} levels deep"))
+                        .with_help("split it into steps with `let`"),
+                );
+            }
+        }
+        diagnostics.sort_by_key(|d| d.span.start);
+        Parsed { recipe, diagnostics }
+    })
+}
+
+/// Parses and, if the syntax is clean, checks names and shapes.
+/// `headers` are the data's column names, when the data is at hand.
+pub fn parse_and_check(source: &str, headers: Option<&[String]>) -> Parsed {
+    let mut parsed = parse(source);
+    if parsed.is_ok() {
+        parsed.diagnostics = check::check(&parsed.recipe, headers);
+        parsed.diagnostics.sort_by_key(|d| d.span.start);
+    }
+    parsed
+}
+
+/// Every top-level expression of the recipe.
+fn expressions(recipe: &Recipe) -> Vec<&ast::Expr> {
+    use ast::StatementKind::*;
+    let mut found = Vec::new();
+    for s in &recipe.statements {
+        match &s.kind {
+            Let { value, .. } => found.push(value),
+            RowsWhere(e) => found.push(e),
+            Panel { filter, .. } => found.extend(filter),
+            Figures { filter, figures, .. } => {
+                found.extend(filter);
+                found.extend(figures.iter().map(|f| &f.value));
+            }
+            Check { condition, .. } => found.push(condition),
+            Title(_) | Input { .. } | Histogram { .. } | Boxplot { .. } => {}
+        }
+    }
+    found
+}

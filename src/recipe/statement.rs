@@ -1,0 +1,360 @@
+//! Statement parsers (nom), one line each, and the grouping of indented
+//! body lines under `panel` and `figures` headers.
+
+use nom::Parser;
+use nom::character::complete::{char, digit1, space0};
+
+use super::ast::*;
+use super::diagnostic::Diagnostic;
+use super::expr::expression;
+use super::lines::Line;
+use super::syntax::*;
+
+/// Turns a plain no-match of `parser` into "expected WHAT, found ...".
+fn need<'a, T>(input: &'a str, what: &str, parser: impl FnOnce(&'a str) -> PResult<'a, T>) -> PResult<'a, T> {
+    parser(input).map_err(|e| match e {
+        nom::Err::Error(_) => {
+            let at = input.trim_start();
+            nom::Err::Failure(SyntaxError {
+                offset: offset_of(at),
+                message: format!("expected {what}, found {}", describe(next_token(at))),
+                help: None,
+            })
+        }
+        other => other,
+    })
+}
+
+/// The rest of the line must be empty.
+fn end_of_line<'a>(input: &'a str, what_else: &str) -> PResult<'a, ()> {
+    let (rest, _) = space0(input)?;
+    if rest.is_empty() {
+        return Ok((rest, ()));
+    }
+    failure(rest, format!("unexpected {} here; expected {what_else}", describe(next_token(rest))), None)
+}
+
+fn spanned_string(input: &str) -> PResult<'_, Spanned<String>> {
+    let start = input.trim_start();
+    let (rest, value) = string_literal(input)?;
+    Ok((rest, Spanned { value, span: span_between(start, rest) }))
+}
+
+/// A column: bare identifier (not a keyword) or braced header text.
+pub fn column(input: &str) -> PResult<'_, ColumnRef> {
+    let (input, _) = space0(input)?;
+    if input.starts_with('{') {
+        let (rest, name) = braced_name(input)?;
+        return Ok((rest, ColumnRef { name: name.to_string(), braced: true, span: span_between(input, rest) }));
+    }
+    let (rest, name) = identifier(input)?;
+    if KEYWORDS.contains(&name) {
+        return no_match(input);
+    }
+    Ok((rest, ColumnRef { name: name.to_string(), braced: false, span: span_between(input, rest) }))
+}
+
+/// `a, b, c`; stops before a `,` that is followed by `stop_before` (a keyword).
+fn column_list<'a>(input: &'a str, stop_before: Option<&'static str>) -> PResult<'a, Vec<ColumnRef>> {
+    let (mut rest, first) = need(input, "a column name", column)?;
+    let mut columns = vec![first];
+    while let Ok((after_comma, _)) = ws(char::<&str, SyntaxError>(',')).parse(rest) {
+        if stop_before.is_some_and(|word| keyword(word)(after_comma).is_ok()) {
+            break;
+        }
+        let (after, next) = need(after_comma, "a column name after `,`", column)?;
+        columns.push(next);
+        rest = after;
+    }
+    Ok((rest, columns))
+}
+
+fn optional_per<'a>(input: &'a str, stop_before: Option<&'static str>) -> PResult<'a, Vec<ColumnRef>> {
+    match keyword("per")(input) {
+        Ok((rest, _)) => column_list(rest, stop_before),
+        Err(_) => Ok((input, Vec::new())),
+    }
+}
+
+fn optional_where(input: &str) -> PResult<'_, Option<Expr>> {
+    match keyword("where")(input) {
+        Ok((rest, _)) => need(rest, "a condition after `where`", expression).map(|(r, e)| (r, Some(e))),
+        Err(_) => Ok((input, None)),
+    }
+}
+
+fn block_colon(input: &str) -> PResult<'_, ()> {
+    let (rest, _) = space0(input)?;
+    match rest.strip_prefix(':') {
+        Some(rest) => end_of_line(rest, "the end of the line after `:`"),
+        None => failure(rest, format!("expected `per`, `where` or `:` to end the block header, found {}", describe(next_token(rest))), None),
+    }
+}
+
+fn title(input: &str) -> PResult<'_, StatementKind> {
+    let (rest, text) = need(input, "the title in double quotes", spanned_string)?;
+    let (rest, _) = end_of_line(rest, "the end of the line after the title")?;
+    Ok((rest, StatementKind::Title(text)))
+}
+
+fn input_statement(input: &str) -> PResult<'_, StatementKind> {
+    let (mut sheet, mut header_row) = (None, None);
+    let mut rest = input;
+    loop {
+        let (after, word) = need(rest, "`sheet \"NAME\"` or `header row N`", |i| ws(identifier).parse(i))?;
+        rest = match word {
+            "sheet" => {
+                let (after, name) = need(after, "the sheet name in double quotes", spanned_string)?;
+                sheet = Some(name);
+                after
+            }
+            "header" => {
+                let (after, _) = need(after, "`row` after `header`", keyword("row"))?;
+                let (after, _) = space0(after)?;
+                let (after_digits, digits) = need(after, "the header row number", digit1)?;
+                match digits.parse::<u32>() {
+                    Ok(n) if n >= 1 => header_row = Some(Spanned { value: n, span: span_between(after, after_digits) }),
+                    _ => return failure(after, "the header row is counted from 1", Some("write `header row 1` for the first row")),
+                }
+                after_digits
+            }
+            other => {
+                let at = rest.trim_start();
+                return failure(at, format!("unknown input setting `{other}`"), Some("write `sheet \"NAME\"` and/or `header row N`, separated by a comma"));
+            }
+        };
+        match ws(char::<&str, SyntaxError>(',')).parse(rest) {
+            Ok((after, _)) => rest = after,
+            Err(_) => break,
+        }
+    }
+    let (rest, _) = end_of_line(rest, "`,` and another input setting, or the end of the line")?;
+    Ok((rest, StatementKind::Input { sheet, header_row }))
+}
+
+fn let_statement(input: &str) -> PResult<'_, StatementKind> {
+    let (rest, _) = space0(input)?;
+    let start = rest;
+    let (rest, name) = need(rest, "the name of the new column", identifier)?;
+    if KEYWORDS.contains(&name) {
+        return failure(start, format!("`{name}` is a keyword and cannot name a column"), Some("choose another name"));
+    }
+    let name = Spanned { value: name.to_string(), span: span_between(start, rest) };
+    let (rest, _) = space0(rest)?;
+    let Some(rest) = rest.strip_prefix('=').filter(|r| !r.starts_with('=')) else {
+        return failure(rest, format!("expected `=` after the name, found {}", describe(next_token(rest))), Some("write `let name = expression`"));
+    };
+    let (rest, value) = need(rest, "an expression after `=`", expression)?;
+    let (rest, _) = end_of_line(rest, "an operator or the end of the line")?;
+    Ok((rest, StatementKind::Let { name, value }))
+}
+
+fn rows_statement(input: &str) -> PResult<'_, StatementKind> {
+    let (rest, _) = need(input, "`where` after `rows`", keyword("where"))?;
+    let (rest, condition) = need(rest, "a condition after `rows where`", expression)?;
+    let (rest, _) = end_of_line(rest, "an operator or the end of the line")?;
+    Ok((rest, StatementKind::RowsWhere(condition)))
+}
+
+fn panel_header(input: &str) -> PResult<'_, StatementKind> {
+    let (rest, name) = need(input, "the panel's name in double quotes", spanned_string)?;
+    let (rest, _) = need(rest, "`of` and the columns to summarise", keyword("of"))?;
+    let (rest, columns) = column_list(rest, None)?;
+    let (rest, per) = optional_per(rest, None)?;
+    let (rest, filter) = optional_where(rest)?;
+    let (rest, _) = block_colon(rest)?;
+    Ok((rest, StatementKind::Panel { name, columns, per, filter }))
+}
+
+fn figures_header(input: &str) -> PResult<'_, StatementKind> {
+    let (rest, name) = need(input, "the name of the figures block in double quotes", spanned_string)?;
+    let (rest, per) = optional_per(rest, None)?;
+    let (rest, filter) = optional_where(rest)?;
+    let (rest, _) = block_colon(rest)?;
+    Ok((rest, StatementKind::Figures { name, per, filter, figures: Vec::new() }))
+}
+
+fn figure_line(input: &str) -> PResult<'_, Figure> {
+    let (rest, _) = space0(input)?;
+    let start = rest;
+    let (rest, name) = need(rest, "a figure as `name = expression`", identifier)?;
+    let name = Spanned { value: name.to_string(), span: span_between(start, rest) };
+    let (rest, _) = space0(rest)?;
+    let Some(rest) = rest.strip_prefix('=').filter(|r| !r.starts_with('=')) else {
+        return failure(rest, format!("expected `=` after the figure's name, found {}", describe(next_token(rest))), Some("write `name = expression`"));
+    };
+    let (rest, value) = need(rest, "an expression after `=`", expression)?;
+    let (rest, _) = end_of_line(rest, "an operator or the end of the line")?;
+    Ok((rest, Figure { name, value }))
+}
+
+fn check_statement(input: &str) -> PResult<'_, StatementKind> {
+    let (rest, name) = need(input, "the check's name in double quotes", spanned_string)?;
+    let (after, level) = need(rest, "`warn` or `fail`", |i| ws(identifier).parse(i))?;
+    let level = match level {
+        "warn" => CheckLevel::Warn,
+        "fail" => CheckLevel::Fail,
+        other => return failure(rest.trim_start(), format!("expected `warn` or `fail`, found `{other}`"), Some("`warn` marks the run, `fail` also makes it exit with status 1")),
+    };
+    let (rest, per) = optional_per(after, None)?;
+    let (rest, _) = space0(rest)?;
+    let Some(rest) = rest.strip_prefix(':') else {
+        return failure(rest, format!("expected `per` or `:` before the condition, found {}", describe(next_token(rest))), None);
+    };
+    let (rest, condition) = need(rest, "the condition to check after `:`", expression)?;
+    let (rest, _) = end_of_line(rest, "an operator or the end of the line")?;
+    Ok((rest, StatementKind::Check { name, level, per, condition }))
+}
+
+fn histogram_statement(input: &str) -> PResult<'_, StatementKind> {
+    let (rest, column) = need(input, "the column to draw", column)?;
+    let (rest, per) = optional_per(rest, Some("bins"))?;
+    let mut bins = None;
+    let mut rest = rest;
+    if let Ok((after_comma, _)) = ws(char::<&str, SyntaxError>(',')).parse(rest) {
+        let (after, _) = need(after_comma, "`bins` after `,`", keyword("bins"))?;
+        let (after, _) = space0(after)?;
+        let start = after;
+        let (after, value) = if after.starts_with(|c: char| c.is_ascii_digit()) {
+            let (after, digits) = digit1(after)?;
+            match digits.parse::<u32>() {
+                Ok(n) if n >= 1 => (after, Bins::Count(n)),
+                _ => return failure(start, "the number of bins must be a whole number from 1", None),
+            }
+        } else {
+            let (after, word) = need(after, "a bin rule (sturges, scott, freedman_diaconis) or a number", identifier)?;
+            (after, Bins::Rule(word.to_string()))
+        };
+        bins = Some(Spanned { value, span: span_between(start, after) });
+        rest = after;
+    }
+    let (rest, _) = end_of_line(rest, "`per`, `, bins ...` or the end of the line")?;
+    Ok((rest, StatementKind::Histogram { column, per, bins }))
+}
+
+fn boxplot_statement(input: &str) -> PResult<'_, StatementKind> {
+    let (rest, column) = need(input, "the column to draw", column)?;
+    let (rest, per) = optional_per(rest, None)?;
+    let (rest, _) = end_of_line(rest, "`per` or the end of the line")?;
+    Ok((rest, StatementKind::Boxplot { column, per }))
+}
+
+pub const STATEMENT_WORDS: &[&str] = &["title", "input", "let", "rows", "panel", "figures", "check", "histogram", "boxplot"];
+
+fn statement_line(input: &str) -> PResult<'_, StatementKind> {
+    let (rest, word) = match identifier(input) {
+        Ok(found) => found,
+        Err(_) => {
+            let help = if input.starts_with('=') { Some("a recipe line starts with a statement word, such as `let` or `figures`") } else { None };
+            return failure(input, format!("expected a statement, found {}", describe(next_token(input))), help);
+        }
+    };
+    match word {
+        "title" => title(rest),
+        "input" => input_statement(rest),
+        "let" => let_statement(rest),
+        "rows" => rows_statement(rest),
+        "panel" => panel_header(rest),
+        "figures" => figures_header(rest),
+        "check" => check_statement(rest),
+        "histogram" => histogram_statement(rest),
+        "boxplot" => boxplot_statement(rest),
+        other => {
+            let suggestion = super::suggest::closest(other, STATEMENT_WORDS.iter().copied());
+            let help = match suggestion {
+                Some(s) => format!("did you mean `{s}`? statements are: {}", STATEMENT_WORDS.join(", ")),
+                None => format!("statements are: {}", STATEMENT_WORDS.join(", ")),
+            };
+            failure(input, format!("unknown statement `{other}`"), Some(&help))
+        }
+    }
+}
+
+fn to_diagnostic(error: nom::Err<SyntaxError>, line: &Line) -> Diagnostic {
+    let e = match error {
+        nom::Err::Error(e) | nom::Err::Failure(e) => e,
+        nom::Err::Incomplete(_) => SyntaxError { offset: line.offset, message: String::new(), help: None },
+    };
+    let token_len = {
+        let local = e.offset.saturating_sub(line.offset).min(line.text.len());
+        next_token(&line.text[local..]).len()
+    };
+    let message = if e.message.is_empty() { "this line could not be read".to_string() } else { e.message };
+    let mut d = Diagnostic::new(Span::new(e.offset, e.offset + token_len), message);
+    if let Some(help) = e.help {
+        d = d.with_help(help);
+    }
+    d
+}
+
+fn parse_with<T>(line: &Line, parser: impl FnOnce(&str) -> PResult<'_, T>) -> Result<T, Diagnostic> {
+    parser(line.text).map(|(_, v)| v).map_err(|e| to_diagnostic(e, line))
+}
+
+/// Parses the lines; a bad line is reported and parsing goes on at the next.
+pub fn parse_lines(lines: &[Line], diagnostics: &mut Vec<Diagnostic>) -> Recipe {
+    let mut recipe = Recipe::default();
+    let mut i = 0;
+    while i < lines.len() {
+        let line = &lines[i];
+        i += 1;
+        if line.indent > 0 {
+            diagnostics.push(
+                Diagnostic::new(line.span(), "this line is indented but no block is open")
+                    .with_help("only the lines under a `figures` or `panel` header are indented; start statements at the margin"),
+            );
+            continue;
+        }
+        let mut statement = match parse_with(line, statement_line) {
+            Ok(kind) => Statement { kind, span: line.span() },
+            Err(d) => {
+                diagnostics.push(d);
+                // Skip the body of a header that failed, so it is not reported line by line.
+                while i < lines.len() && lines[i].indent > 0 {
+                    i += 1;
+                }
+                continue;
+            }
+        };
+        let body_start = i;
+        while i < lines.len() && lines[i].indent > 0 {
+            i += 1;
+        }
+        let body = &lines[body_start..i];
+        match &mut statement.kind {
+            StatementKind::Figures { figures, .. } => {
+                for body_line in body {
+                    match parse_with(body_line, figure_line) {
+                        Ok(figure) => figures.push(figure),
+                        Err(d) => diagnostics.push(d),
+                    }
+                }
+                if body.is_empty() {
+                    diagnostics.push(
+                        Diagnostic::new(line.span(), "this figures block has no figures")
+                            .with_help("indent lines of the form `name = expression` under it"),
+                    );
+                }
+            }
+            StatementKind::Panel { .. } => {
+                if let Some(first) = body.first() {
+                    diagnostics.push(
+                        Diagnostic::new(first.span(), "a panel takes no lines under it")
+                            .with_help("the panel's columns and groups go on its header line; use a `figures` block for figures of your own"),
+                    );
+                }
+            }
+            _ => {
+                if let Some(first) = body.first() {
+                    let help = "only `figures` and `panel` headers (ending in `:`) take indented lines";
+                    diagnostics.push(Diagnostic::new(first.span(), "this line is indented but no block is open").with_help(help));
+                }
+            }
+        }
+        if let Some(last) = body.last() {
+            statement.span = statement.span.to(last.span());
+        }
+        recipe.statements.push(statement);
+    }
+    recipe
+}
