@@ -5,5 +5,7 @@
 //! `eval` (evaluate the recipe over the columns), `stats` (the pure
 //! statistics every figure comes from) and `write` (the result workbook).
 
+pub mod format;
+pub mod load;
 pub mod recipe;
 pub mod stats;

@@ -1,0 +1,63 @@
+//! Numbers and dates as text, for the terminal, JSON keys and group labels.
+
+/// The shortest text that reads back as exactly the same number:
+/// `3`, `0.1`, `1e-7`, `-2.5`.
+pub fn shortest(x: f64) -> String {
+    if x == 0.0 {
+        return "0".to_string();
+    }
+    let plain = format!("{x}");
+    let scientific = format!("{x:e}");
+    if scientific.len() < plain.len() { scientific } else { plain }
+}
+
+/// A spreadsheet date serial (days since 1899-12-30) as `YYYY-MM-DD`,
+/// with `hh:mm:ss` when it has a time of day.
+pub fn date(serial: f64) -> String {
+    let days = serial.floor();
+    let (y, m, d) = civil_from_days(days as i64 - 25569); // 25569 = 1970-01-01
+    let seconds = ((serial - days) * 86400.0).round() as i64;
+    if seconds == 0 {
+        format!("{y:04}-{m:02}-{d:02}")
+    } else {
+        format!("{y:04}-{m:02}-{d:02} {:02}:{:02}:{:02}", seconds / 3600, seconds / 60 % 60, seconds % 60)
+    }
+}
+
+/// Days since 1970-01-01 to a proleptic Gregorian date (Hinnant's algorithm).
+fn civil_from_days(z: i64) -> (i64, u32, u32) {
+    let z = z + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z.rem_euclid(146_097);
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let y = yoe + era * 400;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let d = (doy - (153 * mp + 2) / 5 + 1) as u32;
+    let m = if mp < 10 { mp + 3 } else { mp - 9 } as u32;
+    (if m <= 2 { y + 1 } else { y }, m, d)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn shortest_round_trips() {
+        for x in [3.0, 0.1, 1e-7, -2.5, 123456789.125, 1e300, f64::MIN_POSITIVE, 0.30000000000000004] {
+            assert_eq!(shortest(x).parse::<f64>().unwrap(), x);
+        }
+        assert_eq!(shortest(3.0), "3");
+        assert_eq!(shortest(1e-7), "1e-7");
+        assert_eq!(shortest(0.25), "0.25");
+    }
+
+    #[test]
+    fn dates_from_serials() {
+        // Serial 45931 is 2025-10-01 (day counts checked by hand from 1970-01-01 = 25569).
+        assert_eq!(date(25569.0), "1970-01-01");
+        assert_eq!(date(45931.0), "2025-10-01");
+        assert_eq!(date(45931.5), "2025-10-01 12:00:00");
+        assert_eq!(date(60.0), "1900-02-28");
+    }
+}

@@ -1,0 +1,146 @@
+//! CSV and TSV: delimiter and UTF-8 byte-order mark detected; each field
+//! typed as a number, or kept as text.
+
+use std::path::Path;
+
+use super::table::{Cell, Column, SourceInfo, Table, cell_address};
+use super::{LoadError, LoadOptions};
+
+/// The pseudo-sheet name of a CSV file: its name without the ending.
+pub fn sheet_name(path: &Path) -> String {
+    path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "data".into())
+}
+
+/// The most frequent of `,` `;` tab `|` in the first line, outside quotes.
+fn detect_delimiter(text: &str) -> u8 {
+    let first = text.lines().next().unwrap_or("");
+    let mut counts = [(b',', 0), (b';', 0), (b'\t', 0), (b'|', 0)];
+    let mut quoted = false;
+    for byte in first.bytes() {
+        if byte == b'"' {
+            quoted = !quoted;
+        } else if !quoted && let Some(entry) = counts.iter_mut().find(|(d, _)| *d == byte) {
+            entry.1 += 1;
+        }
+    }
+    counts.iter().max_by_key(|(_, n)| *n).filter(|(_, n)| *n > 0).map_or(b',', |(d, _)| *d)
+}
+
+/// A field as a cell: a number if it reads as one, otherwise text.
+pub fn parse_field(field: &str) -> Cell {
+    let trimmed = field.trim();
+    if trimmed.is_empty() {
+        return Cell::Blank;
+    }
+    match trimmed.parse::<f64>() {
+        Ok(x) if x.is_finite() && !trimmed.eq_ignore_ascii_case("nan") && !trimmed.to_ascii_lowercase().contains("inf") => Cell::Number(x),
+        _ => Cell::Text(field.to_string()),
+    }
+}
+
+pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<Table, LoadError> {
+    let path = source.path.clone();
+    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
+    let text = std::str::from_utf8(bytes).map_err(|e| {
+        let line = bytes[..e.valid_up_to()].iter().filter(|&&b| b == b'\n').count() + 1;
+        LoadError::Malformed { path: path.clone(), reason: format!("line {line} is not UTF-8 text; save the file as UTF-8 and run again") }
+    })?;
+    let sheet = sheet_name(Path::new(&path));
+    if options.sheet.as_ref().is_some_and(|s| s != &sheet) {
+        return Err(LoadError::NoSuchSheet { path, sheet: options.sheet.clone().unwrap(), available: format!("\"{sheet}\" (a CSV file has one sheet, named after the file)") });
+    }
+    let header_row = options.header_row.unwrap_or(1);
+    let mut reader = csv::ReaderBuilder::new()
+        .delimiter(detect_delimiter(text))
+        .has_headers(false)
+        .flexible(true)
+        .from_reader(text.as_bytes());
+    let mut records = Vec::new();
+    for result in reader.records() {
+        let record = result.map_err(|e| LoadError::Malformed { path: path.clone(), reason: e.to_string() })?;
+        records.push(record);
+    }
+    if records.is_empty() {
+        return Err(LoadError::EmptySheet { path, sheet });
+    }
+    if records.len() < header_row as usize {
+        return Err(LoadError::NoHeaderRow { path, sheet, row: header_row });
+    }
+    let body = &records[header_row as usize..];
+    let width = records.iter().map(|r| r.len()).max().unwrap_or(0);
+    let header = &records[header_row as usize - 1];
+    let mut grid: Vec<Vec<Cell>> = vec![Vec::with_capacity(body.len()); width];
+    for record in body {
+        for (c, column) in grid.iter_mut().enumerate() {
+            column.push(record.get(c).map_or(Cell::Blank, parse_field));
+        }
+    }
+    let names: Vec<String> = (0..width).map(|c| header.get(c).unwrap_or("").trim().to_string()).collect();
+    let columns = build_columns(&path, names, grid, header_row)?;
+    Ok(Table { source, sheet, header_row, columns, rows: body.len() })
+}
+
+/// Named columns from header names and cells, refusing blank and duplicate headers.
+pub fn build_columns(path: &str, names: Vec<String>, grid: Vec<Vec<Cell>>, header_row: u32) -> Result<Vec<Column>, LoadError> {
+    let mut columns: Vec<Column> = Vec::new();
+    for (index, (name, cells)) in names.into_iter().zip(grid).enumerate() {
+        let kind = Column::infer_kind(&cells);
+        if name.is_empty() {
+            if kind == super::table::ColumnKind::Empty {
+                continue;
+            }
+            return Err(LoadError::BlankHeader { path: path.to_string(), address: cell_address(index as u32, header_row as usize) });
+        }
+        if let Some(first) = columns.iter().find(|c| c.name == name) {
+            return Err(LoadError::DuplicateHeader {
+                path: path.to_string(),
+                name,
+                first: cell_address(first.sheet_column, header_row as usize),
+                second: cell_address(index as u32, header_row as usize),
+            });
+        }
+        columns.push(Column { name, sheet_column: index as u32, kind, cells });
+    }
+    Ok(columns)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn table(text: &str) -> Result<Table, LoadError> {
+        let source = SourceInfo::describe(Path::new("deliveries.csv"), text.as_bytes());
+        load(text.as_bytes(), source, &LoadOptions::default())
+    }
+
+    #[test]
+    fn delimiters_and_byte_order_mark() {
+        assert_eq!(detect_delimiter("a;b;c\n1;2;3"), b';');
+        assert_eq!(detect_delimiter("a\tb\n"), b'\t');
+        assert_eq!(detect_delimiter("\"x;y\",b\n"), b',');
+        let t = table("\u{feff}depot;weight\nNorth;2,5\nSouth;3\n").unwrap();
+        assert_eq!(t.headers(), ["depot", "weight"]);
+        assert_eq!(t.columns[1].cells, [Cell::Text("2,5".into()), Cell::Number(3.0)]);
+    }
+
+    #[test]
+    fn ragged_rows_are_padded_with_blanks_and_addressed() {
+        let t = table("depot,weight,note\nNorth,2\nSouth,n/a,x\n").unwrap();
+        let weight = t.column("weight").unwrap();
+        assert_eq!(weight.kind, super::super::ColumnKind::Number);
+        let issues = weight.issues();
+        assert_eq!(issues.len(), 1);
+        assert_eq!(t.address(weight, issues[0].row), "deliveries!B3");
+        assert_eq!(t.column("note").unwrap().cells[0], Cell::Blank);
+    }
+
+    #[test]
+    fn bad_headers_are_refused_with_their_cells() {
+        let e = table("a,a\n1,2\n").unwrap_err().to_string();
+        assert!(e.contains("\"a\" appears twice, at A1 and B1"), "{e}");
+        let e = table("a,,c\n1,2,3\n").unwrap_err().to_string();
+        assert!(e.contains("header B1 is blank"), "{e}");
+        assert!(table("a,,c\n1,,3\n").is_ok());
+        assert!(table("").unwrap_err().to_string().contains("is empty"));
+    }
+}

@@ -1,0 +1,77 @@
+//! Spreadsheet files through calamine: xlsx, xlsm, xls, xlsb, ods.
+
+use std::path::Path;
+
+use calamine::{Data, Reader, open_workbook_auto};
+
+use super::csv_file::build_columns;
+use super::table::{Cell, SourceInfo, Table};
+use super::{LoadError, LoadOptions};
+
+fn unreadable(path: &Path, e: impl std::fmt::Display) -> LoadError {
+    LoadError::Unreadable { path: path.display().to_string(), reason: e.to_string() }
+}
+
+pub fn sheet_names(path: &Path) -> Result<Vec<String>, LoadError> {
+    Ok(open_workbook_auto(path).map_err(|e| unreadable(path, e))?.sheet_names())
+}
+
+fn cell(data: &Data) -> Cell {
+    match data {
+        Data::Int(i) => Cell::Number(*i as f64),
+        Data::Float(x) if x.is_finite() => Cell::Number(*x),
+        Data::Float(_) => Cell::Error("#NUM!".into()),
+        Data::String(s) if s.trim().is_empty() => Cell::Blank,
+        Data::String(s) => Cell::Text(s.clone()),
+        Data::Bool(b) => Cell::Bool(*b),
+        Data::DateTime(d) if d.is_datetime() => Cell::Date(d.as_f64()),
+        Data::DateTime(d) => Cell::Number(d.as_f64()),
+        Data::DateTimeIso(s) | Data::DurationIso(s) => Cell::Text(s.clone()),
+        Data::Error(e) => Cell::Error(e.to_string()),
+        Data::Empty => Cell::Blank,
+    }
+}
+
+pub fn load(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table, LoadError> {
+    let shown = path.display().to_string();
+    let mut workbook = open_workbook_auto(path).map_err(|e| unreadable(path, e))?;
+    let names = workbook.sheet_names();
+    let sheet = match &options.sheet {
+        Some(wanted) => names.iter().find(|n| *n == wanted).cloned().ok_or_else(|| LoadError::NoSuchSheet {
+            path: shown.clone(),
+            sheet: wanted.clone(),
+            available: names.iter().map(|n| format!("\"{n}\"")).collect::<Vec<_>>().join(", "),
+        })?,
+        None => names.first().cloned().ok_or_else(|| LoadError::EmptySheet { path: shown.clone(), sheet: "(none)".into() })?,
+    };
+    let range = workbook.worksheet_range(&sheet).map_err(|e| unreadable(path, e))?;
+    let Some((top, left)) = range.start() else {
+        return Err(LoadError::EmptySheet { path: shown, sheet });
+    };
+    let header_row = options.header_row.unwrap_or(1);
+    // calamine's range starts at the first used cell; sheet rows are 1-based.
+    let header_index = header_row as i64 - 1 - i64::from(top);
+    if header_index < 0 || header_index as usize >= range.height() {
+        return Err(LoadError::NoHeaderRow { path: shown, sheet, row: header_row });
+    }
+    let header_index = header_index as usize;
+    let width = range.width() + left as usize;
+    let body_rows = range.height() - header_index - 1;
+    let mut names_in_sheet = vec![String::new(); width];
+    let mut grid: Vec<Vec<Cell>> = vec![vec![Cell::Blank; body_rows]; width];
+    for (r, row) in range.rows().enumerate().skip(header_index) {
+        for (c, data) in row.iter().enumerate() {
+            let column = c + left as usize;
+            if r == header_index {
+                names_in_sheet[column] = match data {
+                    Data::Empty => String::new(),
+                    other => other.to_string().trim().to_string(),
+                };
+            } else {
+                grid[column][r - header_index - 1] = cell(data);
+            }
+        }
+    }
+    let columns = build_columns(&shown, names_in_sheet, grid, header_row)?;
+    Ok(Table { source, sheet, header_row, columns, rows: body_rows })
+}
