@@ -5,6 +5,7 @@
 //! `eval` (evaluate the recipe over the columns), `stats` (the pure
 //! statistics every figure comes from) and `write` (the result workbook).
 
+pub mod eval;
 pub mod format;
 pub mod load;
 pub mod recipe;

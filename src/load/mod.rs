@@ -9,7 +9,7 @@ mod workbook;
 
 use std::path::Path;
 
-pub use table::{Cell, CellIssue, Column, ColumnKind, IssueKind, SourceInfo, Table, column_letters};
+pub use table::{Cell, CellIssue, Column, ColumnKind, IssueKind, SourceInfo, Table, column_letters, quote_sheet as table_sheet_ref};
 
 #[derive(Debug, thiserror::Error)]
 pub enum LoadError {

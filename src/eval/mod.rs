@@ -1,0 +1,396 @@
+//! Evaluation: the recipe over the loaded table. Statements are taken in
+//! order: `rows where` narrows the rows for everything below it, a `let`
+//! adds a column (its aggregates reduce over the rows kept at that point),
+//! and each block and check is evaluated per group. Groups appear in the
+//! order their first row appears in the data.
+
+mod aggregate;
+mod panel;
+mod value;
+
+use std::collections::HashMap;
+
+use crate::load::{IssueKind, Table};
+use crate::recipe::ast::{Bins, CheckLevel, ColumnRef, Expr, ExprKind, Recipe, StatementKind};
+use crate::stats::{self, BinRule, Histogram, Sample};
+
+pub use panel::{BoxSummary, Flagged, Influence, PANEL_LABELS, PanelEntry, Robustness, Status};
+pub use value::{One, Rows, Scope, Value};
+
+/// The label of a group whose key cell is blank.
+pub const BLANK_KEY: &str = "(blank)";
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct FigureRow {
+    pub group: Vec<String>,
+    pub rows: usize,
+    pub values: Vec<One>,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub enum Block {
+    Panel { name: String, keys: Vec<String>, entries: Vec<PanelEntry>, rows_used: usize },
+    Figures { name: String, keys: Vec<String>, names: Vec<String>, rows: Vec<FigureRow> },
+}
+
+impl Block {
+    pub fn name(&self) -> &str {
+        match self {
+            Block::Panel { name, .. } | Block::Figures { name, .. } => name,
+        }
+    }
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Outcome {
+    Pass,
+    Warn,
+    Fail,
+}
+
+impl Outcome {
+    pub fn word(self) -> &'static str {
+        match self {
+            Outcome::Pass => "pass",
+            Outcome::Warn => "warn",
+            Outcome::Fail => "fail",
+        }
+    }
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct CheckResult {
+    pub name: String,
+    pub level: CheckLevel,
+    pub condition: String,
+    /// None for the overall result.
+    pub group: Option<Vec<String>>,
+    /// The left side of the condition when it is a comparison, else the condition's value.
+    pub value: One,
+    pub limit: Option<One>,
+    pub outcome: Outcome,
+    /// Why a check could not be evaluated (it then counts as not passed).
+    pub note: Option<String>,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub enum Chart {
+    Histogram { column: String, group: Vec<String>, histogram: Histogram, rule: String },
+    Boxplot { column: String, boxes: Vec<(Vec<String>, BoxSummary)> },
+}
+
+/// A cell of the input that counted as missing, for the About sheet.
+#[derive(Debug, Clone, PartialEq)]
+pub struct MissingCell {
+    pub address: String,
+    pub column: String,
+    pub kind: IssueKind,
+    pub content: String,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct Results {
+    pub title: Option<String>,
+    pub blocks: Vec<Block>,
+    pub checks: Vec<CheckResult>,
+    pub charts: Vec<Chart>,
+    pub rows_read: usize,
+    /// Rows left out by `rows where`, with the reason.
+    pub rows_skipped: Vec<(String, usize)>,
+    pub missing_cells: Vec<MissingCell>,
+}
+
+impl Results {
+    pub fn failed(&self) -> bool {
+        self.checks.iter().any(|c| c.outcome == Outcome::Fail)
+    }
+}
+
+/// Group keys of each row in `rows`, and the groups in order of first appearance.
+fn groups(scope: &Scope, keys: &[ColumnRef]) -> Vec<(Vec<String>, Vec<usize>)> {
+    if keys.is_empty() {
+        return vec![(Vec::new(), scope.rows.to_vec())];
+    }
+    let columns: Vec<Rows> = keys.iter().map(|k| scope.column(&k.name)).collect();
+    let mut order: Vec<(Vec<String>, Vec<usize>)> = Vec::new();
+    let mut index: HashMap<Vec<String>, usize> = HashMap::new();
+    for (i, &row) in scope.rows.iter().enumerate() {
+        let key: Vec<String> = columns.iter().map(|c| text_of(c, i).unwrap_or_else(|| BLANK_KEY.to_string())).collect();
+        let slot = *index.entry(key.clone()).or_insert_with(|| {
+            order.push((key, Vec::new()));
+            order.len() - 1
+        });
+        order[slot].1.push(row);
+    }
+    order
+}
+
+fn text_of(rows: &Rows, i: usize) -> Option<String> {
+    match rows {
+        Rows::Texts(v) => v[i].clone(),
+        Rows::Numbers(v) => v[i].map(crate::format::shortest),
+        Rows::Truths(v) => v[i].map(|b| b.to_string()),
+    }
+}
+
+/// Rows of `scope` where `condition` holds; the others counted by reason.
+fn filter(scope: &Scope, condition: &Expr) -> (Vec<usize>, usize, usize) {
+    let truths = match scope.eval(condition) {
+        Value::Rows(rows) => value::truths(&rows),
+        Value::One(One::Truth(b)) => vec![Some(b); scope.rows.len()],
+        Value::One(_) => vec![None; scope.rows.len()],
+    };
+    let (mut kept, mut failed, mut unknown) = (Vec::new(), 0, 0);
+    for (i, t) in truths.into_iter().enumerate() {
+        match t {
+            Some(true) => kept.push(scope.rows[i]),
+            Some(false) => failed += 1,
+            None => unknown += 1,
+        }
+    }
+    (kept, failed, unknown)
+}
+
+fn columns_used(recipe: &Recipe) -> Vec<String> {
+    fn walk(e: &Expr, out: &mut Vec<String>) {
+        if let ExprKind::Column(c) = &e.kind {
+            out.push(c.name.clone());
+        }
+        for child in e.children() {
+            walk(child, out);
+        }
+    }
+    let mut out = Vec::new();
+    for s in &recipe.statements {
+        let mut refs: Vec<&ColumnRef> = Vec::new();
+        let mut exprs: Vec<&Expr> = Vec::new();
+        match &s.kind {
+            StatementKind::Let { value, .. } => exprs.push(value),
+            StatementKind::RowsWhere(e) => exprs.push(e),
+            StatementKind::Panel { columns, per, filter, .. } => {
+                refs.extend(columns.iter().chain(per));
+                exprs.extend(filter);
+            }
+            StatementKind::Figures { per, filter, figures, .. } => {
+                refs.extend(per);
+                exprs.extend(filter);
+                exprs.extend(figures.iter().map(|f| &f.value));
+            }
+            StatementKind::Check { per, condition, .. } => {
+                refs.extend(per);
+                exprs.push(condition);
+            }
+            StatementKind::Histogram { column, per, .. } | StatementKind::Boxplot { column, per } => {
+                refs.push(column);
+                refs.extend(per);
+            }
+            StatementKind::Title(_) | StatementKind::Input { .. } => {}
+        }
+        out.extend(refs.into_iter().map(|c| c.name.clone()));
+        for e in exprs {
+            walk(e, &mut out);
+        }
+    }
+    let mut seen = std::collections::HashSet::new();
+    out.retain(|n| seen.insert(n.clone()));
+    out
+}
+
+/// Evaluates a checked recipe over a table.
+pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
+    let mut lets = value::Lets::new();
+    let mut kept: Vec<usize> = (0..table.rows).collect();
+    let mut results = Results {
+        title: None,
+        blocks: Vec::new(),
+        checks: Vec::new(),
+        charts: Vec::new(),
+        rows_read: table.rows,
+        rows_skipped: Vec::new(),
+        missing_cells: Vec::new(),
+    };
+    for name in columns_used(recipe) {
+        if let Some(column) = table.column(&name) {
+            for issue in column.issues() {
+                results.missing_cells.push(MissingCell {
+                    address: table.address(column, issue.row),
+                    column: name.clone(),
+                    kind: issue.kind,
+                    content: issue.content,
+                });
+            }
+        }
+    }
+    for statement in &recipe.statements {
+        match &statement.kind {
+            StatementKind::Title(t) => results.title = Some(t.value.clone()),
+            StatementKind::Input { .. } => {}
+            StatementKind::Let { name, value: e } => {
+                let scope = Scope::new(table, &lets, &kept);
+                let full = widen(scope.eval(e), &kept, table.rows);
+                lets.insert(name.value.clone(), full);
+            }
+            StatementKind::RowsWhere(condition) => {
+                let scope = Scope::new(table, &lets, &kept);
+                let (now, failed, unknown) = filter(&scope, condition);
+                let text = crate::recipe::pretty::expr(condition);
+                if failed > 0 {
+                    results.rows_skipped.push((format!("rows where {text}: condition false"), failed));
+                }
+                if unknown > 0 {
+                    results.rows_skipped.push((format!("rows where {text}: condition could not be evaluated (missing value)"), unknown));
+                }
+                kept = now;
+            }
+            StatementKind::Panel { name, columns, per, filter: block_filter } => {
+                let rows = block_rows(table, &lets, &kept, block_filter);
+                let scope = Scope::new(table, &lets, &rows);
+                let mut entries = Vec::new();
+                for (group, group_rows) in groups(&scope, per) {
+                    let group_scope = Scope::new(table, &lets, &group_rows);
+                    for column in columns {
+                        let sample = group_scope.sample(&column_expr(column));
+                        let address = |i: usize| source_cell(table, &column.name, group_rows[sample.positions()[i] as usize]);
+                        entries.push(PanelEntry {
+                            group: group.clone(),
+                            column: column.name.clone(),
+                            figures: panel::panel_figures(&sample),
+                            robustness: panel::robustness(&sample, &address),
+                            sample_summary: panel::box_summary(&sample),
+                        });
+                    }
+                }
+                let keys = per.iter().map(|k| k.name.clone()).collect();
+                results.blocks.push(Block::Panel { name: name.value.clone(), keys, entries, rows_used: rows.len() });
+            }
+            StatementKind::Figures { name, per, filter: block_filter, figures } => {
+                let rows = block_rows(table, &lets, &kept, block_filter);
+                let scope = Scope::new(table, &lets, &rows);
+                let mut out = Vec::new();
+                for (group, group_rows) in groups(&scope, per) {
+                    let group_scope = Scope::new(table, &lets, &group_rows);
+                    let values = figures.iter().map(|f| one(group_scope.eval(&f.value))).collect();
+                    out.push(FigureRow { group, rows: group_rows.len(), values });
+                }
+                results.blocks.push(Block::Figures {
+                    name: name.value.clone(),
+                    keys: per.iter().map(|k| k.name.clone()).collect(),
+                    names: figures.iter().map(|f| f.name.value.clone()).collect(),
+                    rows: out,
+                });
+            }
+            StatementKind::Check { name, level, per, condition } => {
+                let scope = Scope::new(table, &lets, &kept);
+                results.checks.push(check(&scope, &name.value, *level, condition, None));
+                if !per.is_empty() {
+                    for (group, group_rows) in groups(&scope, per) {
+                        let group_scope = Scope::new(table, &lets, &group_rows);
+                        results.checks.push(check(&group_scope, &name.value, *level, condition, Some(group)));
+                    }
+                }
+            }
+            StatementKind::Histogram { column, per, bins } => {
+                let scope = Scope::new(table, &lets, &kept);
+                let rule = match bins.as_ref().map(|b| &b.value) {
+                    Some(Bins::Count(k)) => BinRule::Fixed(*k as usize),
+                    Some(Bins::Rule(word)) => BinRule::from_word(word).unwrap_or(BinRule::Sturges),
+                    None => BinRule::Sturges,
+                };
+                for (group, group_rows) in groups(&scope, per) {
+                    let group_scope = Scope::new(table, &lets, &group_rows);
+                    let sample = group_scope.sample(&column_expr(column));
+                    if let Ok(histogram) = stats::histogram(&sample, rule) {
+                        results.charts.push(Chart::Histogram { column: column.name.clone(), group, histogram, rule: rule.word() });
+                    }
+                }
+            }
+            StatementKind::Boxplot { column, per } => {
+                let scope = Scope::new(table, &lets, &kept);
+                let mut boxes = Vec::new();
+                for (group, group_rows) in groups(&scope, per) {
+                    let group_scope = Scope::new(table, &lets, &group_rows);
+                    if let Some(summary) = panel::box_summary(&group_scope.sample(&column_expr(column))) {
+                        boxes.push((group, summary));
+                    }
+                }
+                results.charts.push(Chart::Boxplot { column: column.name.clone(), boxes });
+            }
+        }
+    }
+    results
+}
+
+fn column_expr(column: &ColumnRef) -> Expr {
+    Expr { kind: ExprKind::Column(column.clone()), span: column.span }
+}
+
+/// The input cell of a table row in a data column; a `let` column names the row.
+fn source_cell(table: &Table, column: &str, row: usize) -> String {
+    match table.column(column) {
+        Some(c) => table.address(c, row),
+        None => format!("{}!row {} ({column})", crate::load::table_sheet_ref(&table.sheet), table.header_row as usize + 1 + row),
+    }
+}
+
+fn block_rows(table: &Table, lets: &value::Lets, kept: &[usize], condition: &Option<Expr>) -> Vec<usize> {
+    match condition {
+        None => kept.to_vec(),
+        Some(c) => filter(&Scope::new(table, lets, kept), c).0,
+    }
+}
+
+/// A value over `kept` rows spread to the whole table (missing elsewhere).
+fn widen(v: Value, kept: &[usize], total: usize) -> Rows {
+    let rows = match v {
+        Value::Rows(r) => r,
+        Value::One(One::Number(x)) => Rows::Numbers(vec![Some(x); kept.len()]),
+        Value::One(One::Truth(b)) => Rows::Truths(vec![Some(b); kept.len()]),
+        Value::One(One::Text(t)) => Rows::Texts(vec![Some(t); kept.len()]),
+        Value::One(_) => Rows::Numbers(vec![None; kept.len()]),
+    };
+    match rows {
+        Rows::Numbers(v) => {
+            let mut full = vec![None; total];
+            kept.iter().zip(v).for_each(|(&r, x)| full[r] = x);
+            Rows::Numbers(full)
+        }
+        Rows::Truths(v) => {
+            let mut full = vec![None; total];
+            kept.iter().zip(v).for_each(|(&r, x)| full[r] = x);
+            Rows::Truths(full)
+        }
+        Rows::Texts(v) => {
+            let mut full = vec![None; total];
+            kept.iter().zip(v).for_each(|(&r, x)| full[r] = x);
+            Rows::Texts(full)
+        }
+    }
+}
+
+fn one(v: Value) -> One {
+    match v {
+        Value::One(o) => o,
+        Value::Rows(_) => One::Undefined("a value per row, not per group".into()),
+    }
+}
+
+fn check(scope: &Scope, name: &str, level: CheckLevel, condition: &Expr, group: Option<Vec<String>>) -> CheckResult {
+    let verdict = one(scope.eval(condition));
+    let (value, limit) = match &condition.kind {
+        ExprKind::Binary { op, left, right } if op.is_comparison() => (one(scope.eval(left)), Some(one(scope.eval(right)))),
+        _ => (verdict.clone(), None),
+    };
+    let failing = if level == CheckLevel::Fail { Outcome::Fail } else { Outcome::Warn };
+    let (outcome, note) = match verdict {
+        One::Truth(true) => (Outcome::Pass, None),
+        One::Truth(false) => (failing, None),
+        One::Undefined(why) => (failing, Some(format!("could not be evaluated: {why}"))),
+        _ => (failing, Some("the condition is not true or false".into())),
+    };
+    CheckResult { name: name.to_string(), level, condition: crate::recipe::pretty::expr(condition), group, value, limit, outcome, note }
+}
+
+/// A sample of a data column over some rows, for callers outside evaluation (`calc`).
+pub fn sample_of(scope: &Scope, column: &str) -> Sample {
+    Sample::from_column(scope.column(column).numbers())
+}

@@ -1,0 +1,284 @@
+//! Values during evaluation and the row-by-row evaluation of expressions.
+//! A number used with a column is broadcast; missing cells stay missing
+//! through arithmetic; a result that is not a finite number is missing.
+
+use std::cell::RefCell;
+use std::collections::HashMap;
+use std::rc::Rc;
+
+use crate::load::{ColumnKind, Table};
+use crate::recipe::ast::{BinaryOp, Expr, ExprKind, UnaryOp};
+use crate::recipe::pretty;
+use crate::stats::Sample;
+
+use super::aggregate;
+
+/// A column's values over the rows being evaluated.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Rows {
+    Numbers(Vec<Option<f64>>),
+    Truths(Vec<Option<bool>>),
+    Texts(Vec<Option<String>>),
+}
+
+impl Rows {
+    pub fn len(&self) -> usize {
+        match self {
+            Rows::Numbers(v) => v.len(),
+            Rows::Truths(v) => v.len(),
+            Rows::Texts(v) => v.len(),
+        }
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// The numeric view: true/false count as 1/0, text as missing.
+    pub fn numbers(&self) -> Vec<Option<f64>> {
+        match self {
+            Rows::Numbers(v) => v.clone(),
+            Rows::Truths(v) => v.iter().map(|b| b.map(|b| f64::from(u8::from(b)))).collect(),
+            Rows::Texts(v) => vec![None; v.len()],
+        }
+    }
+
+    fn text_at(&self, i: usize) -> Option<String> {
+        match self {
+            Rows::Numbers(v) => v[i].map(crate::format::shortest),
+            Rows::Truths(v) => v[i].map(|b| b.to_string()),
+            Rows::Texts(v) => v[i].clone(),
+        }
+    }
+}
+
+/// One value per group.
+#[derive(Debug, Clone, PartialEq)]
+pub enum One {
+    Number(f64),
+    Truth(bool),
+    Text(String),
+    /// Several numbers: every tied mode.
+    List(Vec<f64>),
+    /// No value, and why ("no values", "constant column", ...).
+    Undefined(String),
+}
+
+impl One {
+    pub fn number(x: f64) -> One {
+        if x.is_finite() { One::Number(x) } else { One::Undefined("not a finite number (division by zero?)".into()) }
+    }
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub enum Value {
+    One(One),
+    Rows(Rows),
+}
+
+/// A `let` column over the whole table (rows outside its filter are missing).
+pub type Lets = HashMap<String, Rows>;
+
+/// What an expression is evaluated over: some rows of the table.
+pub struct Scope<'a> {
+    pub table: &'a Table,
+    pub lets: &'a Lets,
+    /// Table rows in this scope, ascending.
+    pub rows: &'a [usize],
+    /// Samples already built in this scope, by the printed argument, so a
+    /// column is sorted at most once however many order statistics use it.
+    samples: RefCell<HashMap<String, Rc<Sample>>>,
+}
+
+impl<'a> Scope<'a> {
+    pub fn new(table: &'a Table, lets: &'a Lets, rows: &'a [usize]) -> Scope<'a> {
+        Scope { table, lets, rows, samples: RefCell::new(HashMap::new()) }
+    }
+
+    /// The sample of an aggregate's column argument, built once per scope.
+    pub fn sample(&self, argument: &Expr) -> Rc<Sample> {
+        let key = pretty::expr(argument);
+        if let Some(s) = self.samples.borrow().get(&key) {
+            return Rc::clone(s);
+        }
+        let numbers = match self.eval(argument) {
+            Value::Rows(rows) => rows.numbers(),
+            Value::One(_) => Vec::new(),
+        };
+        let sample = Rc::new(Sample::from_column(numbers));
+        self.samples.borrow_mut().insert(key, Rc::clone(&sample));
+        sample
+    }
+
+    /// Table row of the i-th row of this scope.
+    pub fn table_row(&self, i: usize) -> usize {
+        self.rows[i]
+    }
+
+    pub fn column(&self, name: &str) -> Rows {
+        if let Some(rows) = self.lets.get(name) {
+            return pick(rows, self.rows);
+        }
+        let Some(column) = self.table.column(name) else {
+            return Rows::Numbers(vec![None; self.rows.len()]);
+        };
+        match column.kind {
+            ColumnKind::Text => Rows::Texts(self.rows.iter().map(|&r| column.text(r)).collect()),
+            ColumnKind::Bool => Rows::Truths(
+                self.rows.iter().map(|&r| match column.cells[r] {
+                    crate::load::Cell::Bool(b) => Some(b),
+                    _ => None,
+                }).collect(),
+            ),
+            _ => Rows::Numbers(self.rows.iter().map(|&r| column.number(r)).collect()),
+        }
+    }
+
+    pub fn eval(&self, e: &Expr) -> Value {
+        match &e.kind {
+            ExprKind::Number(x) => Value::One(One::Number(*x)),
+            ExprKind::Percent(x) => Value::One(One::Number(x / 100.0)),
+            ExprKind::Text(t) => Value::One(One::Text(t.clone())),
+            ExprKind::Column(c) => Value::Rows(self.column(&c.name)),
+            ExprKind::Call { function, args } => aggregate::call(self, &function.value, args),
+            ExprKind::Unary { op, operand } => unary(*op, self.eval(operand)),
+            ExprKind::Binary { op, left, right } => binary(*op, self.eval(left), self.eval(right), self.rows.len()),
+            ExprKind::If { condition, then, otherwise } => {
+                let n = self.rows.len();
+                let (c, t, o) = (self.eval(condition), self.eval(then), self.eval(otherwise));
+                if let (Value::One(c), Value::One(t), Value::One(o)) = (&c, &t, &o) {
+                    return Value::One(match c {
+                        One::Truth(true) => t.clone(),
+                        One::Truth(false) => o.clone(),
+                        One::Undefined(why) => One::Undefined(why.clone()),
+                        _ => One::Undefined("the condition is not true or false".into()),
+                    });
+                }
+                let (c, t, o) = (spread(c, n), spread(t, n), spread(o, n));
+                let truths = truths(&c);
+                if let (Rows::Texts(_), _) | (_, Rows::Texts(_)) = (&t, &o) {
+                    let values = (0..n).map(|i| match truths[i] {
+                        Some(true) => t.text_at(i),
+                        Some(false) => o.text_at(i),
+                        None => None,
+                    });
+                    return Value::Rows(Rows::Texts(values.collect()));
+                }
+                let (t, o) = (t.numbers(), o.numbers());
+                let values = (0..n).map(|i| match truths[i] {
+                    Some(true) => t[i],
+                    Some(false) => o[i],
+                    None => None,
+                });
+                Value::Rows(Rows::Numbers(values.collect()))
+            }
+        }
+    }
+}
+
+fn pick(rows: &Rows, at: &[usize]) -> Rows {
+    match rows {
+        Rows::Numbers(v) => Rows::Numbers(at.iter().map(|&r| v[r]).collect()),
+        Rows::Truths(v) => Rows::Truths(at.iter().map(|&r| v[r]).collect()),
+        Rows::Texts(v) => Rows::Texts(at.iter().map(|&r| v[r].clone()).collect()),
+    }
+}
+
+/// A single value repeated over n rows (broadcasting).
+fn spread(v: Value, n: usize) -> Rows {
+    match v {
+        Value::Rows(r) => r,
+        Value::One(One::Number(x)) => Rows::Numbers(vec![Some(x); n]),
+        Value::One(One::Truth(b)) => Rows::Truths(vec![Some(b); n]),
+        Value::One(One::Text(t)) => Rows::Texts(vec![Some(t); n]),
+        Value::One(_) => Rows::Numbers(vec![None; n]),
+    }
+}
+
+pub fn truths(rows: &Rows) -> Vec<Option<bool>> {
+    match rows {
+        Rows::Truths(v) => v.clone(),
+        Rows::Numbers(v) => v.iter().map(|x| x.map(|x| x != 0.0)).collect(),
+        Rows::Texts(v) => vec![None; v.len()],
+    }
+}
+
+fn unary(op: UnaryOp, v: Value) -> Value {
+    match (op, v) {
+        (UnaryOp::Negate, Value::One(One::Number(x))) => Value::One(One::Number(-x)),
+        (UnaryOp::Not, Value::One(One::Truth(b))) => Value::One(One::Truth(!b)),
+        (_, Value::One(One::Undefined(why))) => Value::One(One::Undefined(why)),
+        (_, Value::One(_)) => Value::One(One::Undefined("wrong kind of value".into())),
+        (UnaryOp::Negate, Value::Rows(r)) => Value::Rows(Rows::Numbers(r.numbers().into_iter().map(|x| x.map(|x| -x)).collect())),
+        (UnaryOp::Not, Value::Rows(r)) => Value::Rows(Rows::Truths(truths(&r).into_iter().map(|b| b.map(|b| !b)).collect())),
+    }
+}
+
+fn arithmetic(op: BinaryOp, a: f64, b: f64) -> f64 {
+    match op {
+        BinaryOp::Add => a + b,
+        BinaryOp::Subtract => a - b,
+        BinaryOp::Multiply => a * b,
+        BinaryOp::Divide => a / b,
+        BinaryOp::Power => a.powf(b),
+        _ => f64::NAN,
+    }
+}
+
+fn compare(op: BinaryOp, a: f64, b: f64) -> bool {
+    match op {
+        BinaryOp::Less => a < b,
+        BinaryOp::LessEqual => a <= b,
+        BinaryOp::Greater => a > b,
+        BinaryOp::GreaterEqual => a >= b,
+        BinaryOp::Equal => a == b,
+        _ => a != b,
+    }
+}
+
+fn one_binary(op: BinaryOp, a: &One, b: &One) -> One {
+    match (a, b) {
+        (One::Undefined(why), _) | (_, One::Undefined(why)) => One::Undefined(why.clone()),
+        (One::Number(x), One::Number(y)) if op.is_comparison() => One::Truth(compare(op, *x, *y)),
+        (One::Number(x), One::Number(y)) if !op.is_logical() => One::number(arithmetic(op, *x, *y)),
+        (One::Truth(x), One::Truth(y)) if op == BinaryOp::And => One::Truth(*x && *y),
+        (One::Truth(x), One::Truth(y)) if op == BinaryOp::Or => One::Truth(*x || *y),
+        (One::Truth(x), One::Truth(y)) if op == BinaryOp::Equal => One::Truth(x == y),
+        (One::Truth(x), One::Truth(y)) if op == BinaryOp::NotEqual => One::Truth(x != y),
+        (One::Text(x), One::Text(y)) if op == BinaryOp::Equal => One::Truth(x == y),
+        (One::Text(x), One::Text(y)) if op == BinaryOp::NotEqual => One::Truth(x != y),
+        _ => One::Undefined(format!("`{}` cannot combine these values", op.symbol())),
+    }
+}
+
+fn binary(op: BinaryOp, a: Value, b: Value, n: usize) -> Value {
+    if let (Value::One(x), Value::One(y)) = (&a, &b) {
+        return Value::One(one_binary(op, x, y));
+    }
+    let (a, b) = (spread(a, n), spread(b, n));
+    if op.is_logical() {
+        let (x, y) = (truths(&a), truths(&b));
+        let combined = x.iter().zip(&y).map(|(p, q)| match (op, p, q) {
+            // Kleene logic: false and missing is false; true or missing is true.
+            (BinaryOp::And, Some(false), _) | (BinaryOp::And, _, Some(false)) => Some(false),
+            (BinaryOp::Or, Some(true), _) | (BinaryOp::Or, _, Some(true)) => Some(true),
+            (_, Some(p), Some(q)) => Some(if op == BinaryOp::And { *p && *q } else { *p || *q }),
+            _ => None,
+        });
+        return Value::Rows(Rows::Truths(combined.collect()));
+    }
+    if matches!(op, BinaryOp::Equal | BinaryOp::NotEqual) && (matches!(a, Rows::Texts(_)) || matches!(b, Rows::Texts(_))) {
+        let equal = (0..n).map(|i| match (a.text_at(i), b.text_at(i)) {
+            (Some(x), Some(y)) => Some((x == y) == (op == BinaryOp::Equal)),
+            _ => None,
+        });
+        return Value::Rows(Rows::Truths(equal.collect()));
+    }
+    let (x, y) = (a.numbers(), b.numbers());
+    let pairs = x.iter().zip(&y);
+    if op.is_comparison() {
+        return Value::Rows(Rows::Truths(pairs.map(|(p, q)| Some(compare(op, (*p)?, (*q)?))).collect()));
+    }
+    let values = pairs.map(|(p, q)| Some(arithmetic(op, (*p)?, (*q)?)).filter(|r| r.is_finite()));
+    Value::Rows(Rows::Numbers(values.collect()))
+}
