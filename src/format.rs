@@ -11,6 +11,16 @@ pub fn shortest(x: f64) -> String {
     if scientific.len() < plain.len() { scientific } else { plain }
 }
 
+/// A number rounded to `digits` significant digits, for labels.
+pub fn rounded(x: f64, digits: i32) -> String {
+    if x == 0.0 || !x.is_finite() {
+        return shortest(x);
+    }
+    let magnitude = x.abs().log10().floor() as i32;
+    let scale = 10f64.powi(digits - 1 - magnitude);
+    shortest((x * scale).round() / scale)
+}
+
 /// A spreadsheet date serial (days since 1899-12-30) as `YYYY-MM-DD`,
 /// with `hh:mm:ss` when it has a time of day.
 pub fn date(serial: f64) -> String {
@@ -59,5 +69,22 @@ mod tests {
         assert_eq!(date(45931.0), "2025-10-01");
         assert_eq!(date(45931.5), "2025-10-01 12:00:00");
         assert_eq!(date(60.0), "1900-02-28");
+    }
+}
+
+/// Seconds since 1970 as `YYYY-MM-DD hh:mm:ss UTC`.
+pub fn timestamp(seconds: u64) -> String {
+    let days = (seconds / 86_400) as i64;
+    let (y, m, d) = civil_from_days(days);
+    let s = seconds % 86_400;
+    format!("{y:04}-{m:02}-{d:02} {:02}:{:02}:{:02} UTC", s / 3600, s / 60 % 60, s % 60)
+}
+
+#[cfg(test)]
+mod timestamp_tests {
+    #[test]
+    fn epoch_and_a_known_day() {
+        assert_eq!(super::timestamp(0), "1970-01-01 00:00:00 UTC");
+        assert_eq!(super::timestamp(86_400 * 365 + 3_661), "1971-01-01 01:01:01 UTC");
     }
 }

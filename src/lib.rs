@@ -5,8 +5,10 @@
 //! `eval` (evaluate the recipe over the columns), `stats` (the pure
 //! statistics every figure comes from) and `write` (the result workbook).
 
+pub mod cli;
 pub mod eval;
 pub mod format;
 pub mod load;
 pub mod recipe;
 pub mod stats;
+pub mod write;

@@ -1,4 +1,3 @@
-fn main() {
-    eprintln!("sheaf: the command line arrives with the end-to-end work; the statistics core is in the library");
-    std::process::exit(2);
+fn main() -> std::process::ExitCode {
+    sheaf::cli::main()
 }

@@ -151,15 +151,18 @@ fn filter(scope: &Scope, condition: &Expr) -> (Vec<usize>, usize, usize) {
     (kept, failed, unknown)
 }
 
-fn columns_used(recipe: &Recipe) -> Vec<String> {
-    fn walk(e: &Expr, out: &mut Vec<String>) {
-        if let ExprKind::Column(c) = &e.kind {
-            out.push(c.name.clone());
-        }
-        for child in e.children() {
-            walk(child, out);
-        }
+/// Column names an expression refers to, in order of appearance.
+fn collect_columns(e: &Expr, out: &mut Vec<String>) {
+    if let ExprKind::Column(c) = &e.kind {
+        out.push(c.name.clone());
     }
+    for child in e.children() {
+        collect_columns(child, out);
+    }
+}
+
+fn columns_used(recipe: &Recipe) -> Vec<String> {
+    let walk = collect_columns;
     let mut out = Vec::new();
     for s in &recipe.statements {
         let mut refs: Vec<&ColumnRef> = Vec::new();
@@ -199,6 +202,8 @@ fn columns_used(recipe: &Recipe) -> Vec<String> {
 /// Evaluates a checked recipe over a table.
 pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
     let mut lets = value::Lets::new();
+    // For each let, the data columns it is computed from (for source cells).
+    let mut sources: HashMap<String, Vec<String>> = HashMap::new();
     let mut kept: Vec<usize> = (0..table.rows).collect();
     let mut results = Results {
         title: None,
@@ -229,6 +234,18 @@ pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
                 let scope = Scope::new(table, &lets, &kept);
                 let full = widen(scope.eval(e), &kept, table.rows);
                 lets.insert(name.value.clone(), full);
+                let mut used = Vec::new();
+                collect_columns(e, &mut used);
+                let mut data_columns: Vec<String> = Vec::new();
+                for u in used {
+                    let behind = sources.get(&u).cloned().unwrap_or_else(|| vec![u]);
+                    for b in behind {
+                        if !data_columns.contains(&b) {
+                            data_columns.push(b);
+                        }
+                    }
+                }
+                sources.insert(name.value.clone(), data_columns);
             }
             StatementKind::RowsWhere(condition) => {
                 let scope = Scope::new(table, &lets, &kept);
@@ -250,7 +267,7 @@ pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
                     let group_scope = Scope::new(table, &lets, &group_rows);
                     for column in columns {
                         let sample = group_scope.sample(&column_expr(column));
-                        let address = |i: usize| source_cell(table, &column.name, group_rows[sample.positions()[i] as usize]);
+                        let address = |i: usize| source_cell(table, &sources, &column.name, group_rows[sample.positions()[i] as usize]);
                         entries.push(PanelEntry {
                             group: group.clone(),
                             column: column.name.clone(),
@@ -324,9 +341,14 @@ fn column_expr(column: &ColumnRef) -> Expr {
     Expr { kind: ExprKind::Column(column.clone()), span: column.span }
 }
 
-/// The input cell of a table row in a data column; a `let` column names the row.
-fn source_cell(table: &Table, column: &str, row: usize) -> String {
-    match table.column(column) {
+/// The input cell of a table row in a data column. A `let` computed from
+/// one data column points at that column's cell; from several, at the row.
+fn source_cell(table: &Table, sources: &HashMap<String, Vec<String>>, column: &str, row: usize) -> String {
+    let behind = match sources.get(column).map(Vec::as_slice) {
+        Some([only]) => only.as_str(),
+        _ => column,
+    };
+    match table.column(behind) {
         Some(c) => table.address(c, row),
         None => format!("{}!row {} ({column})", crate::load::table_sheet_ref(&table.sheet), table.header_row as usize + 1 + row),
     }

@@ -68,6 +68,44 @@ pub fn parse_and_check(source: &str, headers: Option<&[String]>) -> Parsed {
     parsed
 }
 
+/// Parses one expression on its own (for `sheaf calc`), and checks it
+/// against the data's headers as if it were `let value = EXPR`.
+pub fn parse_expression(source: &str, headers: Option<&[String]>) -> Result<ast::Expr, Vec<Diagnostic>> {
+    let parsed = syntax::with_source(source, || {
+        let text = source.trim_end();
+        let result = expr::expression(text).and_then(|(rest, e)| {
+            let rest_trimmed = rest.trim_start();
+            if rest_trimmed.is_empty() {
+                Ok(e)
+            } else {
+                syntax::failure(rest_trimmed, format!("unexpected {} here; expected an operator or the end", syntax::describe(syntax::next_token(rest_trimmed))), None).map(|(_, ())| e)
+            }
+        });
+        result.map_err(|err| match err {
+            nom::Err::Error(e) | nom::Err::Failure(e) => {
+                let message = if e.message.is_empty() { "expected an expression".to_string() } else { e.message };
+                let mut d = Diagnostic::new(ast::Span::new(e.offset, e.offset + 1), message);
+                if let Some(h) = e.help {
+                    d = d.with_help(h);
+                }
+                vec![d]
+            }
+            nom::Err::Incomplete(_) => vec![Diagnostic::new(ast::Span::default(), "incomplete expression")],
+        })
+    })?;
+    if parsed.depth() > MAX_DEPTH {
+        return Err(vec![Diagnostic::new(parsed.span, format!("this expression nests more than {MAX_DEPTH} levels deep"))]);
+    }
+    let recipe = Recipe {
+        statements: vec![ast::Statement {
+            kind: ast::StatementKind::Let { name: ast::Spanned { value: "sheaf calc value".into(), span: parsed.span }, value: parsed.clone() },
+            span: parsed.span,
+        }],
+    };
+    let problems = check::check(&recipe, headers);
+    if problems.is_empty() { Ok(parsed) } else { Err(problems) }
+}
+
 /// Every top-level expression of the recipe.
 fn expressions(recipe: &Recipe) -> Vec<&ast::Expr> {
     use ast::StatementKind::*;

@@ -1,0 +1,236 @@
+//! The command line: `run`, `validate`, `inspect`, `calc`. Exit status 0
+//! when all went well, 1 when a `fail` check failed, 2 for a bad recipe,
+//! bad data or bad usage (with a message naming the place and what to do).
+
+mod json;
+mod summary;
+
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+
+use crate::eval::{self, One, Scope, Value};
+use crate::load::{self, LoadOptions, Table};
+use crate::recipe::{self, ast::StatementKind};
+use crate::write::{self, RunInfo};
+
+#[derive(Parser, Debug)]
+#[command(
+    name = "sheaf",
+    version,
+    about = "The same descriptive-statistics summary from each month's workbook, from a recipe written once.",
+    after_help = "Examples:\n  sheaf run workbooks/depot-monthly.sheaf --data workbooks/depot-2026-10.xlsx --out october.xlsx\n  sheaf validate workbooks/depot-monthly.sheaf --data workbooks/depot-2026-10.xlsx\n  sheaf inspect workbooks/depot-2026-10.xlsx\n  sheaf calc 'percentile({Minutes late}, 90)' --data workbooks/depot-2026-10.xlsx"
+)]
+pub struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand, Debug)]
+enum Command {
+    /// Evaluate a recipe over a data file and write the result workbook.
+    Run {
+        /// The recipe (.sheaf).
+        recipe: PathBuf,
+        /// The data: .xlsx, .xlsm, .xls, .ods, .csv or .tsv.
+        #[arg(long)]
+        data: PathBuf,
+        /// Where to write the result (default: DATA's name with -summary.xlsx, in the current folder).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Also print every result as JSON on standard output.
+        #[arg(long)]
+        json: bool,
+        /// Replace the result file if it exists.
+        #[arg(long)]
+        force: bool,
+    },
+    /// Check a recipe; with --data, also that every column it names exists.
+    Validate {
+        recipe: PathBuf,
+        #[arg(long)]
+        data: Option<PathBuf>,
+    },
+    /// List a file's sheets and the columns of one: types, missing and text cells.
+    Inspect {
+        file: PathBuf,
+        #[arg(long)]
+        sheet: Option<String>,
+        #[arg(long = "header-row")]
+        header_row: Option<u32>,
+    },
+    /// Evaluate one expression over a data file; one value per line.
+    Calc {
+        expression: String,
+        #[arg(long)]
+        data: PathBuf,
+        #[arg(long)]
+        sheet: Option<String>,
+        #[arg(long = "header-row")]
+        header_row: Option<u32>,
+    },
+}
+
+/// A failure the user can act on; always exit status 2.
+struct Failure(String);
+
+impl<E: std::fmt::Display> From<E> for Failure {
+    fn from(e: E) -> Failure {
+        Failure(e.to_string())
+    }
+}
+
+pub fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        Command::Run { recipe, data, out, json, force } => run(&recipe, &data, out, json, force),
+        Command::Validate { recipe, data } => validate(&recipe, data.as_deref()),
+        Command::Inspect { file, sheet, header_row } => inspect(&file, LoadOptions { sheet, header_row }),
+        Command::Calc { expression, data, sheet, header_row } => calc(&expression, &data, LoadOptions { sheet, header_row }),
+    };
+    match result {
+        Ok(code) => code,
+        Err(Failure(message)) => {
+            eprintln!("{}", message.trim_end());
+            ExitCode::from(2)
+        }
+    }
+}
+
+fn read_recipe(path: &Path) -> Result<String, Failure> {
+    std::fs::read_to_string(path).map_err(|e| Failure(format!("{}: cannot read the recipe: {e}", path.display())))
+}
+
+/// Parses and checks a recipe; with a table, checks its columns too.
+fn checked_recipe(path: &Path, text: &str, headers: Option<&[String]>) -> Result<recipe::Recipe, Failure> {
+    let parsed = recipe::parse_and_check(text, headers);
+    if parsed.is_ok() {
+        return Ok(parsed.recipe);
+    }
+    let count = parsed.diagnostics.len();
+    let rendered = recipe::render_all(&parsed.diagnostics, &path.display().to_string(), text);
+    Err(Failure(format!("{rendered}\n{}: {count} problem{} in the recipe; nothing was written", path.display(), if count == 1 { "" } else { "s" })))
+}
+
+/// The `input` statement's settings.
+fn load_options(recipe: &recipe::Recipe) -> LoadOptions {
+    recipe
+        .statements
+        .iter()
+        .find_map(|s| match &s.kind {
+            StatementKind::Input { sheet, header_row } => Some(LoadOptions {
+                sheet: sheet.as_ref().map(|s| s.value.clone()),
+                header_row: header_row.as_ref().map(|h| h.value),
+            }),
+            _ => None,
+        })
+        .unwrap_or_default()
+}
+
+fn load_for(recipe_path: &Path, text: &str, data: &Path) -> Result<(recipe::Recipe, Table), Failure> {
+    let syntax_only = checked_recipe(recipe_path, text, None)?;
+    let table = load::load(data, &load_options(&syntax_only))?;
+    let recipe = checked_recipe(recipe_path, text, Some(&table.headers()))?;
+    Ok((recipe, table))
+}
+
+fn now() -> String {
+    // SHEAF_RUN_TIME fixes the recorded time, for byte-identical reruns in tests.
+    std::env::var("SHEAF_RUN_TIME").unwrap_or_else(|_| {
+        let seconds = std::time::SystemTime::now().duration_since(std::time::UNIX_EPOCH).map_or(0, |d| d.as_secs());
+        crate::format::timestamp(seconds)
+    })
+}
+
+fn default_out(data: &Path) -> PathBuf {
+    let stem = data.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "data".into());
+    PathBuf::from(format!("{stem}-summary.xlsx"))
+}
+
+fn run(recipe_path: &Path, data: &Path, out: Option<PathBuf>, as_json: bool, force: bool) -> Result<ExitCode, Failure> {
+    let text = read_recipe(recipe_path)?;
+    let (recipe, table) = load_for(recipe_path, &text, data)?;
+    let results = eval::evaluate(&recipe, &table);
+    let out = out.unwrap_or_else(|| default_out(data));
+    let run = RunInfo { recipe_path: recipe_path.display().to_string(), recipe_text: text, run_time: now(), version: env!("CARGO_PKG_VERSION").into() };
+    write::save(&results, &table, &run, &out, force)?;
+    let summary = summary::render(&results, &table, &out);
+    if as_json {
+        println!("{}", serde_json::to_string_pretty(&json::results(&results, &table, &run)).unwrap_or_default());
+        eprint!("{summary}");
+    } else {
+        print!("{summary}");
+    }
+    Ok(if results.failed() { ExitCode::from(1) } else { ExitCode::SUCCESS })
+}
+
+fn validate(recipe_path: &Path, data: Option<&Path>) -> Result<ExitCode, Failure> {
+    let text = read_recipe(recipe_path)?;
+    let recipe = match data {
+        Some(data) => load_for(recipe_path, &text, data)?.0,
+        None => checked_recipe(recipe_path, &text, None)?,
+    };
+    let against = data.map(|d| format!(", every column found in {}", d.display())).unwrap_or_default();
+    println!("{}: ok, {} statements{against}", recipe_path.display(), recipe.statements.len());
+    Ok(ExitCode::SUCCESS)
+}
+
+fn inspect(file: &Path, options: LoadOptions) -> Result<ExitCode, Failure> {
+    let sheets = load::sheet_names(file)?;
+    let table = load::load(file, &options)?;
+    println!("{}: {} bytes, SHA-256 {}", file.display(), table.source.size, table.source.sha256);
+    println!("sheets: {}", sheets.iter().map(|s| format!("\"{s}\"")).collect::<Vec<_>>().join(", "));
+    println!("sheet \"{}\", header row {}, {} data rows\n", table.sheet, table.header_row, table.rows);
+    let mut lines = vec![["column".to_string(), "cell".into(), "type".into(), "values".into(), "blank".into(), "text in numbers".into(), "errors".into(), "first problem cells".into()]];
+    for c in &table.columns {
+        let issues = c.issues();
+        let count = |k| issues.iter().filter(|i| i.kind == k).count().to_string();
+        let first: Vec<String> = issues.iter().filter(|i| i.kind != load::IssueKind::Blank).take(3).map(|i| table.address(c, i.row)).collect();
+        lines.push([
+            c.name.clone(),
+            load::column_letters(c.sheet_column),
+            c.kind.word().into(),
+            (table.rows - issues.len()).to_string(),
+            count(load::IssueKind::Blank),
+            count(load::IssueKind::TextInNumbers),
+            count(load::IssueKind::FormulaError),
+            first.join(" "),
+        ]);
+    }
+    print!("{}", summary::columns(&lines));
+    Ok(ExitCode::SUCCESS)
+}
+
+fn calc(expression: &str, data: &Path, options: LoadOptions) -> Result<ExitCode, Failure> {
+    let table = load::load(data, &options)?;
+    let headers = table.headers();
+    let expr = recipe::parse_expression(expression, Some(&headers))
+        .map_err(|d| Failure(recipe::render_all(&d, "expression", expression)))?;
+    let lets = Default::default();
+    let rows: Vec<usize> = (0..table.rows).collect();
+    let scope = Scope::new(&table, &lets, &rows);
+    let mut out = String::new();
+    let line = |v: &One| match v {
+        One::Number(x) => crate::format::shortest(*x),
+        One::Truth(b) => b.to_string(),
+        One::Text(t) => t.clone(),
+        One::List(v) => v.iter().map(|x| crate::format::shortest(*x)).collect::<Vec<_>>().join("\n"),
+        One::Undefined(why) => format!("no value: {why}"),
+    };
+    match scope.eval(&expr) {
+        Value::One(v) => out.push_str(&line(&v)),
+        Value::Rows(rows) => {
+            let n = rows.len();
+            let texts: Vec<String> = match rows {
+                eval::Rows::Numbers(v) => v.iter().map(|x| x.map_or("missing".into(), crate::format::shortest)).collect(),
+                eval::Rows::Truths(v) => v.iter().map(|x| x.map_or("missing".into(), |b| b.to_string())).collect(),
+                eval::Rows::Texts(v) => v.iter().map(|x| x.clone().unwrap_or_else(|| "missing".into())).collect(),
+            };
+            debug_assert_eq!(texts.len(), n);
+            out.push_str(&texts.join("\n"));
+        }
+    }
+    println!("{out}");
+    Ok(ExitCode::SUCCESS)
+}

@@ -1,0 +1,93 @@
+//! The About sheet: where every figure came from and how it was computed.
+
+use rust_xlsxwriter::{Workbook, XlsxError};
+
+use super::sheets::SheetNames;
+use super::style;
+use crate::eval::{Block, Results};
+use crate::load::Table;
+use crate::stats::{DEFAULT_RESAMPLES, DEFAULT_SEED};
+
+pub const DISCLAIMER: &str = "sheaf summarises data. Where a figure feeds a decision that can hurt someone (a safety limit, a product \
+release), it does not replace the rules and the qualified review that apply there.";
+
+pub const CONVENTIONS: &[&str] = &[
+    "Missing cells (blank, text in a numeric column, formula errors) are left out of every aggregate and counted; each is listed below with its cell.",
+    "Arithmetic with a missing cell gives a missing cell; a result that is not a finite number (division by zero) is missing.",
+    "variance and sd divide by n - 1 unless the recipe says population.",
+    "Quartiles, percentiles and IQR: Hyndman and Fan (1996) type 7 unless the recipe names another type or Tukey's hinges.",
+    "skewness = g1 = m3 / m2^1.5; adjusted gives G1 (Joanes and Gill 1998). kurtosis = b2 = m4 / m2^2; excess = b2 - 3; adjusted gives G2.",
+    "mad is the median absolute deviation; scaled multiplies it by 1.4826.",
+    "trimmed and winsorized means cut floor(a n) values at each end.",
+    "Tukey's fences: Q1 - k IQR and Q3 + k IQR, k = 1.5 unless given; outliers lie strictly beyond them.",
+    "Modified z-score: 0.6745 (x - median) / MAD, flagged above 3.5 (Iglewicz and Hoaglin 1993).",
+    "Groups appear in the order of their first row in the data; a blank key forms the group (blank).",
+    "A let column is computed over the rows kept at its line; its aggregates reduce over those rows, not per group.",
+];
+
+pub fn about(workbook: &mut Workbook, names: &mut SheetNames, results: &Results, table: &Table, run: &RunInfoRef) -> Result<(), XlsxError> {
+    let sheet = workbook.add_worksheet().set_name(names.claim("About"))?;
+    sheet.set_column_width(0, 30)?;
+    sheet.set_column_width(1, 90)?;
+    sheet.write_string_with_format(0, 0, results.title.as_deref().unwrap_or("sheaf result"), &style::title())?;
+    sheet.merge_range(1, 0, 1, 3, DISCLAIMER, &style::note())?;
+    sheet.set_row_height(1, 45)?;
+    let mut r = 3;
+    let mut pair = |label: &str, value: String| -> Result<(), XlsxError> {
+        sheet.write_string_with_format(r, 0, label, &rust_xlsxwriter::Format::new().set_bold())?;
+        sheet.write_string(r, 1, value)?;
+        r += 1;
+        Ok(())
+    };
+    pair("made by", format!("sheaf {}", run.version))?;
+    pair("time of run", run.run_time.clone())?;
+    pair("recipe", run.recipe_path.clone())?;
+    pair("input file", table.source.file_name.clone())?;
+    pair("input size (bytes)", table.source.size.to_string())?;
+    pair("input SHA-256", table.source.sha256.clone())?;
+    pair("sheet", table.sheet.clone())?;
+    pair("header row", table.header_row.to_string())?;
+    pair("rows read", results.rows_read.to_string())?;
+    for (reason, count) in &results.rows_skipped {
+        pair("rows skipped", format!("{count}: {reason}"))?;
+    }
+    for block in &results.blocks {
+        if let Block::Panel { name, rows_used, .. } = block {
+            pair("rows in panel", format!("{name}: {rows_used}"))?;
+        }
+    }
+    pair("bootstrap", format!("{DEFAULT_RESAMPLES} resamples, seed {DEFAULT_SEED}, 95% percentile intervals"))?;
+    for (i, c) in CONVENTIONS.iter().enumerate() {
+        pair(if i == 0 { "conventions" } else { "" }, c.to_string())?;
+    }
+    drop(pair);
+    r += 1;
+    sheet.write_string_with_format(r, 0, "cells counted as missing", &style::title())?;
+    r += 1;
+    let header = ["cell", "column", "why", "content"];
+    for (c, h) in header.iter().enumerate() {
+        sheet.write_string_with_format(r, c as u16, *h, &style::header())?;
+    }
+    r += 1;
+    if results.missing_cells.is_empty() {
+        sheet.write_string(r, 0, "none")?;
+        r += 1;
+    }
+    for m in &results.missing_cells {
+        sheet.write_string(r, 0, &m.address)?;
+        sheet.write_string(r, 1, &m.column)?;
+        sheet.write_string(r, 2, m.kind.words())?;
+        sheet.write_string(r, 3, &m.content)?;
+        r += 1;
+    }
+    r += 1;
+    sheet.write_string_with_format(r, 0, "recipe text", &style::title())?;
+    r += 1;
+    for line in run.recipe_text.lines() {
+        sheet.write_string(r, 1, line)?;
+        r += 1;
+    }
+    Ok(())
+}
+
+pub type RunInfoRef = super::RunInfo;

@@ -1,0 +1,85 @@
+//! The Charts sheet: native histogram (column) charts, one per group, and
+//! box-and-whisker charts drawn as a line chart whose up-down bars are the
+//! boxes (Q1 to Q3) and whose high-low lines are the whiskers.
+
+use rust_xlsxwriter::{Chart, ChartFormat, ChartMarker, ChartMarkerType, ChartType, Workbook, XlsxError};
+
+use super::sheets::{SheetNames, group_text};
+use super::style;
+use crate::eval::{Chart as ChartData, Results};
+use crate::format::rounded;
+
+const ROWS_PER_CHART: u32 = 18;
+
+pub fn charts(workbook: &mut Workbook, names: &mut SheetNames, results: &Results) -> Result<(), XlsxError> {
+    let sheet_name = names.claim("Charts");
+    let sheet = workbook.add_worksheet().set_name(&sheet_name)?;
+    sheet.write_string_with_format(0, 0, "Charts", &style::title())?;
+    sheet.write_string(1, 0, "Each chart's numbers stand beside it, so the chart can be checked and redrawn.")?;
+    sheet.set_column_width(0, 22)?;
+    let mut top: u32 = 3;
+    for chart in &results.charts {
+        match chart {
+            ChartData::Histogram { column, group, histogram, rule } => {
+                let title = format!("{column}, {} ({} bins, {rule})", group_text(group), histogram.counts.len());
+                sheet.write_string_with_format(top, 0, "bin", &style::header())?;
+                sheet.write_string_with_format(top, 1, "count", &style::header())?;
+                for (i, count) in histogram.counts.iter().enumerate() {
+                    let label = format!("{} to {}", rounded(histogram.edges[i], 4), rounded(histogram.edges[i + 1], 4));
+                    sheet.write_string(top + 1 + i as u32, 0, label)?;
+                    sheet.write_number(top + 1 + i as u32, 1, *count as f64)?;
+                }
+                let last = top + histogram.counts.len() as u32;
+                let mut c = Chart::new(ChartType::Column);
+                c.title().set_name(&title);
+                c.legend().set_hidden();
+                c.add_series()
+                    .set_categories((sheet_name.as_str(), top + 1, 0, last, 0))
+                    .set_values((sheet_name.as_str(), top + 1, 1, last, 1))
+                    .set_gap(0)
+                    .set_format(ChartFormat::new().set_solid_fill(rust_xlsxwriter::ChartSolidFill::new().set_color(style::HEADER_COLOUR)));
+                c.x_axis().set_name(column);
+                c.y_axis().set_name("count");
+                sheet.insert_chart(top, 3, &c)?;
+                top = (last + 2).max(top + ROWS_PER_CHART);
+            }
+            ChartData::Boxplot { column, boxes } => {
+                let labels = ["group", "Q1", "upper whisker", "lower whisker", "median", "Q3"];
+                for (j, l) in labels.iter().enumerate() {
+                    sheet.write_string_with_format(top, j as u16, *l, &style::header())?;
+                }
+                for (i, (group, b)) in boxes.iter().enumerate() {
+                    let r = top + 1 + i as u32;
+                    sheet.write_string(r, 0, group_text(group))?;
+                    for (j, x) in [b.q1, b.whisker_high, b.whisker_low, b.median, b.q3].into_iter().enumerate() {
+                        sheet.write_number(r, 1 + j as u16, x)?;
+                    }
+                }
+                if boxes.is_empty() {
+                    top += 3;
+                    continue;
+                }
+                let last = top + boxes.len() as u32;
+                let mut c = Chart::new(ChartType::Line);
+                c.title().set_name(&format!("{column}: quartile box, whiskers to the furthest values inside 1.5 IQR"));
+                c.legend().set_hidden();
+                for j in 1..=5u16 {
+                    let series = c
+                        .add_series()
+                        .set_categories((sheet_name.as_str(), top + 1, 0, last, 0))
+                        .set_values((sheet_name.as_str(), top + 1, j, last, j))
+                        .set_format(ChartFormat::new().set_no_line());
+                    if j == 4 {
+                        series.set_marker(ChartMarker::new().set_type(ChartMarkerType::LongDash).set_size(12));
+                    }
+                }
+                c.set_up_down_bars(true);
+                c.set_high_low_lines(true);
+                c.y_axis().set_name(column);
+                sheet.insert_chart(top, 7, &c)?;
+                top = (last + 2).max(top + ROWS_PER_CHART);
+            }
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,89 @@
+//! The result workbook: one sheet per panel and figures block, a robustness
+//! sheet per panel, Checks, Charts and About. Saved to a temporary file
+//! beside the target and renamed, so a crash never leaves half a workbook.
+
+mod about;
+mod charts;
+mod sheets;
+mod style;
+
+pub use sheets::group_text;
+
+use std::io::Write as _;
+use std::path::{Path, PathBuf};
+
+use rust_xlsxwriter::{DocProperties, Workbook};
+
+use crate::eval::Results;
+use crate::load::Table;
+
+/// What the About sheet records of the run besides the data.
+#[derive(Debug, Clone)]
+pub struct RunInfo {
+    pub recipe_path: String,
+    pub recipe_text: String,
+    /// When the run happened, as written on the About sheet (UTC).
+    pub run_time: String,
+    pub version: String,
+}
+
+#[derive(Debug, thiserror::Error)]
+pub enum WriteError {
+    #[error("{0} exists already; pass --force to replace it")]
+    Exists(String),
+    #[error("{0} is the input file; choose another --out")]
+    WouldOverwriteInput(String),
+    #[error("cannot write {path}: {reason}")]
+    Io { path: String, reason: String },
+    #[error("cannot build the workbook: {0}")]
+    Workbook(#[from] rust_xlsxwriter::XlsxError),
+}
+
+/// The workbook as bytes.
+pub fn workbook_bytes(results: &Results, table: &Table, run: &RunInfo) -> Result<Vec<u8>, WriteError> {
+    let mut workbook = Workbook::new();
+    workbook.set_properties(&DocProperties::new().set_title(results.title.clone().unwrap_or_else(|| "sheaf result".into())));
+    let mut names = sheets::SheetNames::default();
+    sheets::blocks(&mut workbook, &mut names, results)?;
+    sheets::checks(&mut workbook, &mut names, results)?;
+    charts::charts(&mut workbook, &mut names, results)?;
+    about::about(&mut workbook, &mut names, results, table, run)?;
+    Ok(workbook.save_to_buffer()?)
+}
+
+/// Writes the workbook to `out`: refuses to replace a file without `force`
+/// or to touch the input; writes a temporary file first, then renames it.
+pub fn save(results: &Results, table: &Table, run: &RunInfo, out: &Path, force: bool) -> Result<(), WriteError> {
+    let shown = out.display().to_string();
+    if same_file(out, Path::new(&table.source.path)) {
+        return Err(WriteError::WouldOverwriteInput(shown));
+    }
+    if out.exists() && !force {
+        return Err(WriteError::Exists(shown));
+    }
+    let bytes = workbook_bytes(results, table, run)?;
+    let io = |e: std::io::Error| WriteError::Io { path: shown.clone(), reason: e.to_string() };
+    let temporary = temporary_beside(out);
+    let result = (|| {
+        let mut file = std::fs::File::create(&temporary)?;
+        file.write_all(&bytes)?;
+        file.sync_all()?;
+        std::fs::rename(&temporary, out)
+    })();
+    if result.is_err() {
+        let _ = std::fs::remove_file(&temporary);
+    }
+    result.map_err(io)
+}
+
+fn temporary_beside(out: &Path) -> PathBuf {
+    let name = out.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_else(|| "result.xlsx".into());
+    out.with_file_name(format!(".{name}.{}.partial", std::process::id()))
+}
+
+fn same_file(a: &Path, b: &Path) -> bool {
+    match (a.canonicalize(), b.canonicalize()) {
+        (Ok(x), Ok(y)) => x == y,
+        _ => false,
+    }
+}
