@@ -58,6 +58,14 @@ pub fn check(recipe: &Recipe, headers: Option<&[String]>) -> Vec<Diagnostic> {
     checker.problems
 }
 
+/// Checks one expression on its own (for `sheaf calc`): any shape and a
+/// list are fine there, since every value is printed on its own line.
+pub fn check_expression(e: &Expr, headers: Option<&[String]>) -> Vec<Diagnostic> {
+    let mut checker = Checker { headers, lets: HashMap::new(), defining: None, problems: Vec::new() };
+    checker.expr(e);
+    checker.problems
+}
+
 impl Checker<'_> {
     fn report(&mut self, span: Span, message: impl Into<String>, help: Option<String>) {
         let mut d = Diagnostic::new(span, message);

@@ -68,8 +68,8 @@ pub fn parse_and_check(source: &str, headers: Option<&[String]>) -> Parsed {
     parsed
 }
 
-/// Parses one expression on its own (for `sheaf calc`), and checks it
-/// against the data's headers as if it were `let value = EXPR`.
+/// Parses one expression on its own (for `sheaf calc`) and checks its
+/// names and kinds against the data's headers.
 pub fn parse_expression(source: &str, headers: Option<&[String]>) -> Result<ast::Expr, Vec<Diagnostic>> {
     let parsed = syntax::with_source(source, || {
         let text = source.trim_end();
@@ -96,13 +96,7 @@ pub fn parse_expression(source: &str, headers: Option<&[String]>) -> Result<ast:
     if parsed.depth() > MAX_DEPTH {
         return Err(vec![Diagnostic::new(parsed.span, format!("this expression nests more than {MAX_DEPTH} levels deep"))]);
     }
-    let recipe = Recipe {
-        statements: vec![ast::Statement {
-            kind: ast::StatementKind::Let { name: ast::Spanned { value: "sheaf calc value".into(), span: parsed.span }, value: parsed.clone() },
-            span: parsed.span,
-        }],
-    };
-    let problems = check::check(&recipe, headers);
+    let problems = check::check_expression(&parsed, headers);
     if problems.is_empty() { Ok(parsed) } else { Err(problems) }
 }
 
