@@ -251,3 +251,20 @@ fn the_workbook_layout_matches_the_golden_record() {
     let expected = std::fs::read_to_string(&golden).expect("run once with SHEAF_BLESS=1 to create the golden record");
     assert_eq!(layout, expected, "the workbook layout changed; if deliberate, rerun with SHEAF_BLESS=1 and review the diff");
 }
+
+#[test]
+fn text_that_looks_like_a_formula_is_written_as_text() {
+    let dir = tempfile::tempdir().unwrap();
+    let csv = dir.path().join("keys.csv");
+    std::fs::write(&csv, "depot,weight_kg\n=1+1,2\n+SUM(A1),3\n@cmd,4\n-x,5\n").unwrap();
+    let recipe = dir.path().join("r.sheaf");
+    std::fs::write(&recipe, "figures \"W\" per depot:\n    w = mean(weight_kg)\n").unwrap();
+    let o = sheaf(&["run", recipe.to_str().unwrap(), "--data", csv.to_str().unwrap(), "--out", "k.xlsx"], dir.path());
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let grid = sheet(&dir.path().join("k.xlsx"), "W");
+    let keys: Vec<String> = grid.iter().skip(4).map(|r| s(&r[0])).collect();
+    assert_eq!(keys, ["=1+1", "+SUM(A1)", "@cmd", "-x"]);
+    for row in grid.iter().skip(4) {
+        assert!(matches!(row[0], Data::String(_)), "{:?}", row[0]);
+    }
+}
