@@ -34,6 +34,36 @@ pub fn date(serial: f64) -> String {
     }
 }
 
+/// An ISO 8601 date or date-time (`2026-10-01`, `2026-10-01T08:30:00`) as a
+/// spreadsheet serial; None when it is not one.
+pub fn serial_from_iso(text: &str) -> Option<f64> {
+    let (date, time) = text.split_once('T').unwrap_or((text, ""));
+    let mut parts = date.splitn(3, '-');
+    let (y, m, d): (i64, u32, u32) = (parts.next()?.parse().ok()?, parts.next()?.parse().ok()?, parts.next()?.parse().ok()?);
+    if !(1..=12).contains(&m) || !(1..=31).contains(&d) {
+        return None;
+    }
+    let mut seconds = 0.0;
+    if !time.is_empty() {
+        let mut t = time.trim_end_matches('Z').splitn(3, ':');
+        let (h, mi): (f64, f64) = (t.next()?.parse().ok()?, t.next()?.parse().ok()?);
+        let sec: f64 = t.next().map_or(Some(0.0), |s| s.parse().ok())?;
+        seconds = h * 3600.0 + mi * 60.0 + sec;
+    }
+    Some((days_from_civil(y, m, d) + 25569) as f64 + seconds / 86400.0)
+}
+
+/// A proleptic Gregorian date to days since 1970-01-01 (Hinnant's algorithm).
+fn days_from_civil(y: i64, m: u32, d: u32) -> i64 {
+    let y = if m <= 2 { y - 1 } else { y };
+    let era = y.div_euclid(400);
+    let yoe = y.rem_euclid(400);
+    let mp = i64::from((m + 9) % 12);
+    let doy = (153 * mp + 2) / 5 + i64::from(d) - 1;
+    let doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
+    era * 146_097 + doe - 719_468
+}
+
 /// Days since 1970-01-01 to a proleptic Gregorian date (Hinnant's algorithm).
 fn civil_from_days(z: i64) -> (i64, u32, u32) {
     let z = z + 719_468;
@@ -69,6 +99,10 @@ mod tests {
         assert_eq!(date(45931.0), "2025-10-01");
         assert_eq!(date(45931.5), "2025-10-01 12:00:00");
         assert_eq!(date(60.0), "1900-02-28");
+        assert_eq!(serial_from_iso("2025-10-01"), Some(45931.0));
+        assert_eq!(serial_from_iso("2025-10-01T12:00:00"), Some(45931.5));
+        assert_eq!(serial_from_iso("1970-01-01"), Some(25569.0));
+        assert_eq!(serial_from_iso("not a date"), None);
     }
 }
 

@@ -26,7 +26,8 @@ fn cell(data: &Data) -> Cell {
         Data::Bool(b) => Cell::Bool(*b),
         Data::DateTime(d) if d.is_datetime() => Cell::Date(d.as_f64()),
         Data::DateTime(d) => Cell::Number(d.as_f64()),
-        Data::DateTimeIso(s) | Data::DurationIso(s) => Cell::Text(s.clone()),
+        Data::DateTimeIso(s) => crate::format::serial_from_iso(s).map_or_else(|| Cell::Text(s.clone()), Cell::Date),
+        Data::DurationIso(s) => Cell::Text(s.clone()),
         Data::Error(e) => Cell::Error(e.to_string()),
         Data::Empty => Cell::Blank,
     }

@@ -1,6 +1,8 @@
 //! The Charts sheet: native histogram (column) charts, one per group, and
-//! box-and-whisker charts drawn as a line chart whose up-down bars are the
-//! boxes (Q1 to Q3) and whose high-low lines are the whiskers.
+//! box-and-whisker charts drawn as a stock chart whose up-down bars are the
+//! boxes (Q1 to Q3) and whose high-low lines are the whiskers, with the
+//! medians as marks from a combined line chart. (Checked by rendering the
+//! workbook with LibreOffice; Excel draws stock charts the same way.)
 
 use rust_xlsxwriter::{Chart, ChartFormat, ChartMarker, ChartMarkerType, ChartType, Workbook, XlsxError};
 
@@ -44,7 +46,7 @@ pub fn charts(workbook: &mut Workbook, names: &mut SheetNames, results: &Results
                 top = (last + 2).max(top + ROWS_PER_CHART);
             }
             ChartData::Boxplot { column, boxes } => {
-                let labels = ["group", "Q1", "upper whisker", "lower whisker", "median", "Q3"];
+                let labels = ["group", "Q1", "upper whisker", "lower whisker", "median", "Q3"]; // the stock chart reads columns 1, 2, 3, 5
                 for (j, l) in labels.iter().enumerate() {
                     sheet.write_string_with_format(top, j as u16, *l, &style::header())?;
                 }
@@ -60,19 +62,29 @@ pub fn charts(workbook: &mut Workbook, names: &mut SheetNames, results: &Results
                     continue;
                 }
                 let last = top + boxes.len() as u32;
-                let mut c = Chart::new(ChartType::Line);
+                // A stock chart (open = Q1, high, low, close = Q3): its up-down bars are the
+                // boxes and its high-low lines the whiskers; a line chart adds the medians.
+                let mut c = Chart::new(ChartType::Stock);
                 c.title().set_name(&format!("{column}: quartile box, whiskers to the furthest values inside 1.5 IQR"));
                 c.legend().set_hidden();
                 for j in 1..=5u16 {
-                    let series = c
-                        .add_series()
+                    if j == 4 {
+                        continue;
+                    }
+                    c.add_series()
                         .set_categories((sheet_name.as_str(), top + 1, 0, last, 0))
                         .set_values((sheet_name.as_str(), top + 1, j, last, j))
                         .set_format(ChartFormat::new().set_no_line());
-                    if j == 4 {
-                        series.set_marker(ChartMarker::new().set_type(ChartMarkerType::LongDash).set_size(12));
-                    }
                 }
+                let mut medians = Chart::new(ChartType::Line);
+                medians
+                    .add_series()
+                    .set_categories((sheet_name.as_str(), top + 1, 0, last, 0))
+                    .set_values((sheet_name.as_str(), top + 1, 4, last, 4))
+                    .set_name("median")
+                    .set_format(ChartFormat::new().set_no_line())
+                    .set_marker(ChartMarker::new().set_type(ChartMarkerType::LongDash).set_size(14));
+                c.combine(&medians);
                 c.set_up_down_bars(true);
                 c.set_high_low_lines(true);
                 c.y_axis().set_name(column);
