@@ -8,6 +8,7 @@
 pub mod cli;
 pub mod eval;
 pub mod format;
+pub mod history;
 pub mod load;
 pub mod recipe;
 pub mod stats;

@@ -73,7 +73,7 @@ fn the_demo_run_writes_every_sheet_and_its_figures_agree_with_the_core() {
     let dir = tempfile::tempdir().unwrap();
     let out = run_demo(dir.path());
     let wb = open_workbook_auto(&out).unwrap();
-    assert_eq!(wb.sheet_names(), ["Lateness", "Lateness robustness", "Service levels", "Heavy parcels", "Checks", "Charts", "About"]);
+    assert_eq!(wb.sheet_names(), ["Lateness", "Lateness robustness", "Service levels", "Heavy parcels", "Checks", "Charts", "About", "Record"]);
 
     // Recompute Harbour's lateness in hours by another path: the loader and the core directly.
     let table = load::load(&october(), &LoadOptions { sheet: Some("Deliveries".into()), header_row: None }).unwrap();
@@ -216,7 +216,7 @@ fn validate_checks_columns_against_the_data() {
     let dir = tempfile::tempdir().unwrap();
     let o = sheaf(&["validate", demo_recipe().to_str().unwrap(), "--data", october().to_str().unwrap()], dir.path());
     assert_eq!(o.status.code(), Some(0), "{}", text(&o));
-    assert!(text(&o).contains("ok, 12 statements, every column found"));
+    assert!(text(&o).contains("ok, 14 statements, every column found"));
 }
 
 /// The layout of the result: sheet names, each sheet's table header and

@@ -92,6 +92,7 @@ fn grammar_word_lists_match_the_parser() {
     let names = |kind| FUNCTIONS.iter().filter(|f| f.kind == kind).map(|f| f.name.to_string()).collect::<Vec<_>>();
     assert_eq!(grammar_list("aggregates"), names(FunctionKind::Aggregate), "aggregates");
     assert_eq!(grammar_list("row functions"), names(FunctionKind::Row), "row functions");
+    assert_eq!(grammar_list("comparisons"), names(FunctionKind::Comparison), "comparisons");
 
     // Every statement word of the grammar starts a statement the parser knows.
     for word in grammar_list("statements") {

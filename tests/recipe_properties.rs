@@ -92,6 +92,9 @@ fn statement() -> impl Strategy<Value = StatementKind> {
         (column(), keys.clone(), prop::option::of(prop_oneof![Just(Bins::Rule("sturges".into())), (1u32..99).prop_map(Bins::Count)]))
             .prop_map(|(column, per, bins)| StatementKind::Histogram { column, per, bins: bins.map(|value| Spanned { value, span: Span::default() }) }),
         (column(), keys).prop_map(|(column, per)| StatementKind::Boxplot { column, per }),
+        name().prop_map(StatementKind::Period),
+        (prop_oneof![Just(10.0), Just(2.5), 0.01f64..100.0], prop::bool::ANY)
+            .prop_map(|v| StatementKind::Drift(Spanned { value: v, span: Span::default() })),
     ]
 }
 

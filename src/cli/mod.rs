@@ -2,6 +2,7 @@
 //! when all went well, 1 when a `fail` check failed, 2 for a bad recipe,
 //! bad data or bad usage (with a message naming the place and what to do).
 
+mod batch;
 mod json;
 mod summary;
 
@@ -29,16 +30,22 @@ pub struct Cli {
 
 #[derive(Subcommand, Debug)]
 enum Command {
-    /// Evaluate a recipe over a data file and write the result workbook.
+    /// Evaluate a recipe over a data file (or every file a pattern matches) and write the results.
     Run {
         /// The recipe (.sheaf).
         recipe: PathBuf,
-        /// The data: .xlsx, .xlsm, .xls, .ods, .csv or .tsv.
+        /// The data: .xlsx, .xlsm, .xls, .ods, .csv or .tsv; or a quoted pattern such as 'monthly/*.xlsx'.
         #[arg(long)]
-        data: PathBuf,
+        data: String,
         /// Where to write the result (default: DATA's name with -summary.xlsx, in the current folder).
         #[arg(long)]
         out: Option<PathBuf>,
+        /// For a pattern: the folder for one result per file plus trend.xlsx.
+        #[arg(long = "out-dir")]
+        out_dir: Option<PathBuf>,
+        /// A previous sheaf result of the same recipe: adds a Changes sheet and feeds change(...).
+        #[arg(long)]
+        compare: Option<PathBuf>,
         /// Also print every result as JSON on standard output.
         #[arg(long)]
         json: bool,
@@ -84,7 +91,13 @@ impl<E: std::fmt::Display> From<E> for Failure {
 pub fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
-        Command::Run { recipe, data, out, json, force } => run(&recipe, &data, out, json, force),
+        Command::Run { recipe, data, out, out_dir, compare, json, force } => {
+            if batch::is_pattern(&data) || out_dir.is_some() {
+                batch::run(&recipe, &data, out_dir, force)
+            } else {
+                run(&recipe, Path::new(&data), out, compare.as_deref(), json, force)
+            }
+        }
         Command::Validate { recipe, data } => validate(&recipe, data.as_deref()),
         Command::Inspect { file, sheet, header_row } => inspect(&file, LoadOptions { sheet, header_row }),
         Command::Calc { expression, data, sheet, header_row } => calc(&expression, &data, LoadOptions { sheet, header_row }),
@@ -148,12 +161,30 @@ fn default_out(data: &Path) -> PathBuf {
     PathBuf::from(format!("{stem}-summary.xlsx"))
 }
 
-fn run(recipe_path: &Path, data: &Path, out: Option<PathBuf>, as_json: bool, force: bool) -> Result<ExitCode, Failure> {
+/// What the About and Record sheets say about a run.
+fn run_info(recipe_path: &Path, text: &str, recipe: &recipe::Recipe, data: &Path, previous: Option<crate::history::Record>) -> RunInfo {
+    RunInfo {
+        recipe_path: recipe_path.display().to_string(),
+        recipe_text: text.to_string(),
+        run_time: now(),
+        version: env!("CARGO_PKG_VERSION").into(),
+        fingerprint: crate::history::fingerprint(recipe),
+        period: crate::history::period_of(recipe, data),
+        previous,
+        drift: crate::history::drift_of(recipe),
+    }
+}
+
+fn run(recipe_path: &Path, data: &Path, out: Option<PathBuf>, compare: Option<&Path>, as_json: bool, force: bool) -> Result<ExitCode, Failure> {
     let text = read_recipe(recipe_path)?;
     let (recipe, table) = load_for(recipe_path, &text, data)?;
-    let results = eval::evaluate(&recipe, &table);
+    let previous = match compare {
+        Some(path) => Some(crate::history::Record::read(path, &crate::history::fingerprint(&recipe))?),
+        None => None,
+    };
+    let results = eval::evaluate_against(&recipe, &table, previous.as_ref().map(|p| p.previous_terms()));
     let out = out.unwrap_or_else(|| default_out(data));
-    let run = RunInfo { recipe_path: recipe_path.display().to_string(), recipe_text: text, run_time: now(), version: env!("CARGO_PKG_VERSION").into() };
+    let run = run_info(recipe_path, &text, &recipe, data, previous);
     write::save(&results, &table, &run, &out, force)?;
     let summary = summary::render(&results, &table, &out);
     if as_json {

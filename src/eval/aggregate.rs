@@ -54,7 +54,22 @@ pub fn call(scope: &Scope, name: &str, args: &[Expr]) -> Value {
     };
     match function.kind {
         FunctionKind::Row => row_function(scope, name, &args[0], &params),
+        FunctionKind::Comparison => Value::One(change(scope, &args[0])),
         FunctionKind::Aggregate => Value::One(aggregate(scope, name, args, &params)),
+    }
+}
+
+/// |now - before| / |before| for one value per group.
+fn change(scope: &Scope, arg: &Expr) -> One {
+    let now = match scope.eval(arg) {
+        Value::One(One::Number(x)) => x,
+        Value::One(One::Undefined(why)) => return One::Undefined(why),
+        _ => return One::Undefined("`change` needs one number per group".into()),
+    };
+    match scope.compare(crate::recipe::pretty::expr(arg), now) {
+        Ok(before) if before == 0.0 => One::Undefined("the previous value is zero".into()),
+        Ok(before) => One::number((now - before).abs() / before.abs()),
+        Err(why) => One::Undefined(why),
     }
 }
 

@@ -15,7 +15,7 @@ use crate::recipe::ast::{Bins, CheckLevel, ColumnRef, Expr, ExprKind, Recipe, St
 use crate::stats::{self, BinRule, Histogram, Sample};
 
 pub use panel::{BoxSummary, Flagged, Influence, PANEL_LABELS, PanelEntry, Robustness, Status};
-pub use value::{One, Rows, Scope, Value};
+pub use value::{Context, One, Previous, Rows, Scope, Term, Value};
 
 /// The label of a group whose key cell is blank.
 pub const BLANK_KEY: &str = "(blank)";
@@ -98,6 +98,8 @@ pub struct Results {
     /// Rows left out by `rows where`, with the reason.
     pub rows_skipped: Vec<(String, usize)>,
     pub missing_cells: Vec<MissingCell>,
+    /// Current values of every `change(...)` argument, for the next period.
+    pub terms: Vec<Term>,
 }
 
 impl Results {
@@ -187,7 +189,7 @@ fn columns_used(recipe: &Recipe) -> Vec<String> {
                 refs.push(column);
                 refs.extend(per);
             }
-            StatementKind::Title(_) | StatementKind::Input { .. } => {}
+            StatementKind::Title(_) | StatementKind::Input { .. } | StatementKind::Period(_) | StatementKind::Drift(_) => {}
         }
         out.extend(refs.into_iter().map(|c| c.name.clone()));
         for e in exprs {
@@ -199,8 +201,14 @@ fn columns_used(recipe: &Recipe) -> Vec<String> {
     out
 }
 
-/// Evaluates a checked recipe over a table.
+/// Evaluates a checked recipe over a table, with no previous period.
 pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
+    evaluate_against(recipe, table, None)
+}
+
+/// Evaluates a checked recipe over a table; `change(...)` compares with `previous`.
+pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previous>) -> Results {
+    let context = Context { previous, terms: Default::default() };
     let mut lets = value::Lets::new();
     // For each let, the data columns it is computed from (for source cells).
     let mut sources: HashMap<String, Vec<String>> = HashMap::new();
@@ -213,6 +221,7 @@ pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
         rows_read: table.rows,
         rows_skipped: Vec::new(),
         missing_cells: Vec::new(),
+        terms: Vec::new(),
     };
     for name in columns_used(recipe) {
         if let Some(column) = table.column(&name) {
@@ -229,7 +238,7 @@ pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
     for statement in &recipe.statements {
         match &statement.kind {
             StatementKind::Title(t) => results.title = Some(t.value.clone()),
-            StatementKind::Input { .. } => {}
+            StatementKind::Input { .. } | StatementKind::Period(_) | StatementKind::Drift(_) => {}
             StatementKind::Let { name, value: e } => {
                 let scope = Scope::new(table, &lets, &kept);
                 let full = widen(scope.eval(e), &kept, table.rows);
@@ -264,7 +273,7 @@ pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
                 let scope = Scope::new(table, &lets, &rows);
                 let mut entries = Vec::new();
                 for (group, group_rows) in groups(&scope, per) {
-                    let group_scope = Scope::new(table, &lets, &group_rows);
+                    let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     for column in columns {
                         let sample = group_scope.sample(&column_expr(column));
                         let address = |i: usize| source_cell(table, &sources, &column.name, group_rows[sample.positions()[i] as usize]);
@@ -285,7 +294,7 @@ pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
                 let scope = Scope::new(table, &lets, &rows);
                 let mut out = Vec::new();
                 for (group, group_rows) in groups(&scope, per) {
-                    let group_scope = Scope::new(table, &lets, &group_rows);
+                    let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     let values = figures.iter().map(|f| one(group_scope.eval(&f.value))).collect();
                     out.push(FigureRow { group, rows: group_rows.len(), values });
                 }
@@ -297,11 +306,11 @@ pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
                 });
             }
             StatementKind::Check { name, level, per, condition } => {
-                let scope = Scope::new(table, &lets, &kept);
+                let scope = Scope::new(table, &lets, &kept).grouped(&[], &context);
                 results.checks.push(check(&scope, &name.value, *level, condition, None));
                 if !per.is_empty() {
                     for (group, group_rows) in groups(&scope, per) {
-                        let group_scope = Scope::new(table, &lets, &group_rows);
+                        let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                         results.checks.push(check(&group_scope, &name.value, *level, condition, Some(group)));
                     }
                 }
@@ -314,7 +323,7 @@ pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
                     None => BinRule::Sturges,
                 };
                 for (group, group_rows) in groups(&scope, per) {
-                    let group_scope = Scope::new(table, &lets, &group_rows);
+                    let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     let sample = group_scope.sample(&column_expr(column));
                     if let Ok(histogram) = stats::histogram(&sample, rule) {
                         results.charts.push(Chart::Histogram { column: column.name.clone(), group, histogram, rule: rule.word() });
@@ -325,7 +334,7 @@ pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
                 let scope = Scope::new(table, &lets, &kept);
                 let mut boxes = Vec::new();
                 for (group, group_rows) in groups(&scope, per) {
-                    let group_scope = Scope::new(table, &lets, &group_rows);
+                    let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     if let Some(summary) = panel::box_summary(&group_scope.sample(&column_expr(column))) {
                         boxes.push((group, summary));
                     }
@@ -334,6 +343,10 @@ pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
             }
         }
     }
+    let mut terms = context.terms.into_inner();
+    let mut seen = std::collections::HashSet::new();
+    terms.retain(|t| seen.insert((t.expression.clone(), t.group.clone())));
+    results.terms = terms;
     results
 }
 

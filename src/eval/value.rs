@@ -79,12 +79,34 @@ pub enum Value {
 /// A `let` column over the whole table (rows outside its filter are missing).
 pub type Lets = HashMap<String, Rows>;
 
+/// Values of `change(...)` arguments in the previous period, by
+/// (printed expression, group text).
+pub type Previous = HashMap<(String, String), f64>;
+
+/// The current value of a `change(...)` argument in one group.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Term {
+    pub expression: String,
+    pub group: String,
+    pub value: f64,
+}
+
+/// What a run compares with, and the values it collects for the next run.
+#[derive(Debug, Default)]
+pub struct Context {
+    pub previous: Option<Previous>,
+    pub terms: RefCell<Vec<Term>>,
+}
+
 /// What an expression is evaluated over: some rows of the table.
 pub struct Scope<'a> {
     pub table: &'a Table,
     pub lets: &'a Lets,
     /// Table rows in this scope, ascending.
     pub rows: &'a [usize],
+    /// The group these rows form ("(all rows)" when ungrouped).
+    group: String,
+    context: Option<&'a Context>,
     /// Samples already built in this scope, by the printed argument, so a
     /// column is sorted at most once however many order statistics use it.
     samples: RefCell<HashMap<String, Rc<Sample>>>,
@@ -92,7 +114,23 @@ pub struct Scope<'a> {
 
 impl<'a> Scope<'a> {
     pub fn new(table: &'a Table, lets: &'a Lets, rows: &'a [usize]) -> Scope<'a> {
-        Scope { table, lets, rows, samples: RefCell::new(HashMap::new()) }
+        Scope { table, lets, rows, group: "(all rows)".into(), context: None, samples: RefCell::new(HashMap::new()) }
+    }
+
+    /// The same scope, as one group of a run with a comparison context.
+    pub fn grouped(mut self, group: &[String], context: &'a Context) -> Scope<'a> {
+        self.group = if group.is_empty() { "(all rows)".into() } else { group.join(" / ") };
+        self.context = Some(context);
+        self
+    }
+
+    /// Records the current value of a `change(...)` argument and returns its
+    /// previous value, if the run has one.
+    pub fn compare(&self, expression: String, now: f64) -> Result<f64, String> {
+        let Some(context) = self.context else { return Err("no previous period to compare with".into()) };
+        let previous = context.previous.as_ref().and_then(|p| p.get(&(expression.clone(), self.group.clone())).copied());
+        context.terms.borrow_mut().push(Term { expression, group: self.group.clone(), value: now });
+        previous.ok_or_else(|| "no previous period to compare with".to_string())
     }
 
     /// The sample of an aggregate's column argument, built once per scope.

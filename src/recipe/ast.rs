@@ -195,6 +195,11 @@ pub enum StatementKind {
     Figures { name: Spanned<String>, per: Vec<ColumnRef>, filter: Option<Expr>, figures: Vec<Figure> },
     Check { name: Spanned<String>, level: CheckLevel, per: Vec<ColumnRef>, condition: Expr },
     Histogram { column: ColumnRef, per: Vec<ColumnRef>, bins: Option<Spanned<Bins>> },
+    /// The period this data covers, when the file name does not say.
+    Period(Spanned<String>),
+    /// How large a relative change to the previous period is flagged: the
+    /// number as written and whether it was a percentage.
+    Drift(Spanned<(f64, bool)>),
     Boxplot { column: ColumnRef, per: Vec<ColumnRef> },
 }
 
@@ -268,6 +273,8 @@ impl Recipe {
                     column.span = zero;
                     clear_columns(per);
                 }
+                StatementKind::Period(p) => p.span = zero,
+                StatementKind::Drift(d) => d.span = zero,
             }
         }
         copy

@@ -78,7 +78,7 @@ impl Checker<'_> {
     fn statements(&mut self, recipe: &Recipe) {
         let mut blocks: HashSet<String> = HashSet::new();
         let mut checks: HashSet<String> = HashSet::new();
-        let (mut titles, mut inputs) = (0, 0);
+        let (mut titles, mut inputs, mut periods, mut drifts) = (0, 0, 0, 0);
         for statement in &recipe.statements {
             match &statement.kind {
                 StatementKind::Title(_) => {
@@ -91,6 +91,22 @@ impl Checker<'_> {
                     inputs += 1;
                     if inputs == 2 {
                         self.report(statement.span, "a second `input` statement", Some("put every input setting on one `input` line".into()));
+                    }
+                }
+                StatementKind::Period(_) => {
+                    periods += 1;
+                    if periods == 2 {
+                        self.report(statement.span, "a second `period`", Some("a recipe names one period; remove this line".into()));
+                    }
+                }
+                StatementKind::Drift(d) => {
+                    drifts += 1;
+                    if drifts == 2 {
+                        self.report(statement.span, "a second `drift`", Some("a recipe has one drift threshold; remove this line".into()));
+                    }
+                    let share = if d.value.1 { d.value.0 / 100.0 } else { d.value.0 };
+                    if share <= 0.0 {
+                        self.report(d.span, "the drift threshold must be above 0", Some("write a share of change, such as `drift 10%`".into()));
                     }
                 }
                 StatementKind::Let { name, value } => self.let_statement(name, value),
@@ -351,6 +367,14 @@ impl Checker<'_> {
             return None;
         }
         match function.kind {
+            FunctionKind::Comparison => {
+                if first.shape == Shape::Rows {
+                    self.report(args[0].span, format!("`{}` compares one value per group, but this is a value per row", function.name), Some("give it an aggregate, as in change(mean(x))".into()));
+                    return None;
+                }
+                self.operand(&args[0], first, Value::Number, &format!("`{}`", function.name))?;
+                Some(Typed { shape: Shape::One, value: Value::Number })
+            }
             FunctionKind::Row => {
                 self.operand(&args[0], first, Value::Number, &format!("`{}`", function.name))?;
                 Some(Typed { shape: first.shape, value: Value::Number })

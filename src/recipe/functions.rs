@@ -8,6 +8,8 @@ pub enum FunctionKind {
     Aggregate,
     /// Works row by row; a number in gives a number out.
     Row,
+    /// Compares one value with the same value in the previous period.
+    Comparison,
 }
 
 /// What an aggregate gives back.
@@ -91,6 +93,10 @@ pub const FUNCTIONS: &[Function] = &[
     Function { parameters: &[FENCE_K], options: METHODS, ..aggregate("outliers", "number of values beyond Tukey's fences (k = 1.5)") },
     Function { parameters: &[FENCE_K], options: METHODS, ..aggregate("fence_low", "Q1 - k IQR") },
     Function { parameters: &[FENCE_K], options: METHODS, ..aggregate("fence_high", "Q3 + k IQR") },
+    Function {
+        kind: FunctionKind::Comparison,
+        ..aggregate("change", "size of the relative change from the previous period: |now - before| / |before|")
+    },
     row("abs", "absolute value"),
     row("ln", "natural logarithm"),
     row("log10", "base-10 logarithm"),

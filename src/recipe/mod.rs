@@ -114,7 +114,7 @@ fn expressions(recipe: &Recipe) -> Vec<&ast::Expr> {
                 found.extend(figures.iter().map(|f| &f.value));
             }
             Check { condition, .. } => found.push(condition),
-            Title(_) | Input { .. } | Histogram { .. } | Boxplot { .. } => {}
+            Title(_) | Input { .. } | Histogram { .. } | Boxplot { .. } | Period(_) | Drift(_) => {}
         }
     }
     found

@@ -81,6 +81,8 @@ fn statement(out: &mut String, s: &Statement) {
             format!("histogram {}{}{bins}", column(c), per(keys))
         }
         StatementKind::Boxplot { column: c, per: keys } => format!("boxplot {}{}", column(c), per(keys)),
+        StatementKind::Period(p) => format!("period {}", quoted(&p.value)),
+        StatementKind::Drift(d) => format!("drift {}{}", number(d.value.0), if d.value.1 { "%" } else { "" }),
     };
     out.push_str(&line);
     out.push('\n');

@@ -239,7 +239,21 @@ fn boxplot_statement(input: &str) -> PResult<'_, StatementKind> {
     Ok((rest, StatementKind::Boxplot { column, per }))
 }
 
-pub const STATEMENT_WORDS: &[&str] = &["title", "input", "let", "rows", "panel", "figures", "check", "histogram", "boxplot"];
+pub const STATEMENT_WORDS: &[&str] = &["title", "input", "let", "rows", "panel", "figures", "check", "histogram", "boxplot", "period", "drift"];
+
+fn period_statement(input: &str) -> PResult<'_, StatementKind> {
+    let (rest, text) = need(input, "the period in double quotes, such as \"2026-10\"", spanned_string)?;
+    let (rest, _) = end_of_line(rest, "the end of the line after the period")?;
+    Ok((rest, StatementKind::Period(text)))
+}
+
+fn drift_statement(input: &str) -> PResult<'_, StatementKind> {
+    let start = input.trim_start();
+    let (rest, (value, percent)) = need(input, "the share of change to flag, such as 10%", number_literal)?;
+    let span = span_between(start, rest);
+    let (rest, _) = end_of_line(rest, "the end of the line after the drift threshold")?;
+    Ok((rest, StatementKind::Drift(Spanned { value: (value, percent), span })))
+}
 
 fn statement_line(input: &str) -> PResult<'_, StatementKind> {
     let (rest, word) = match identifier(input) {
@@ -259,6 +273,8 @@ fn statement_line(input: &str) -> PResult<'_, StatementKind> {
         "check" => check_statement(rest),
         "histogram" => histogram_statement(rest),
         "boxplot" => boxplot_statement(rest),
+        "period" => period_statement(rest),
+        "drift" => drift_statement(rest),
         other => {
             let suggestion = super::suggest::closest(other, STATEMENT_WORDS.iter().copied());
             let help = match suggestion {

@@ -47,6 +47,11 @@ pub fn about(workbook: &mut Workbook, names: &mut SheetNames, results: &Results,
     pair("input SHA-256", table.source.sha256.clone())?;
     pair("sheet", table.sheet.clone())?;
     pair("header row", table.header_row.to_string())?;
+    pair("period", run.period.as_ref().map_or("none: no date in the file name and no `period` in the recipe".to_string(), |p| p.explain()))?;
+    pair("recipe fingerprint", format!("{} (SHA-256 of the recipe's canonical text; --compare needs the same)", run.fingerprint))?;
+    if let Some(previous) = &run.previous {
+        pair("compared with", format!("period {}", previous.period.as_deref().unwrap_or("(unknown)")))?;
+    }
     pair("rows read", results.rows_read.to_string())?;
     for (reason, count) in &results.rows_skipped {
         pair("rows skipped", format!("{count}: {reason}"))?;

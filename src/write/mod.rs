@@ -3,6 +3,7 @@
 //! beside the target and renamed, so a crash never leaves half a workbook.
 
 mod about;
+mod changes;
 mod charts;
 mod sheets;
 mod style;
@@ -25,6 +26,13 @@ pub struct RunInfo {
     /// When the run happened, as written on the About sheet (UTC).
     pub run_time: String,
     pub version: String,
+    /// SHA-256 (first 12 bytes) of the recipe's canonical text.
+    pub fingerprint: String,
+    pub period: Option<crate::history::Period>,
+    /// The previous period's record, for the Changes sheet.
+    pub previous: Option<crate::history::Record>,
+    /// Relative change that flags a figure on the Changes sheet.
+    pub drift: f64,
 }
 
 #[derive(Debug, thiserror::Error)]
@@ -47,7 +55,11 @@ pub fn workbook_bytes(results: &Results, table: &Table, run: &RunInfo) -> Result
     sheets::blocks(&mut workbook, &mut names, results)?;
     sheets::checks(&mut workbook, &mut names, results)?;
     charts::charts(&mut workbook, &mut names, results)?;
+    if let Some(previous) = &run.previous {
+        changes::changes(&mut workbook, &mut names, results, run, previous)?;
+    }
     about::about(&mut workbook, &mut names, results, table, run)?;
+    changes::record(&mut workbook, &mut names, results, run)?;
     Ok(workbook.save_to_buffer()?)
 }
 

@@ -1,0 +1,32 @@
+//! Month over month: the record of every figure a result workbook keeps,
+//! the period a file covers, the comparison with the previous period and
+//! the trend workbook of a batch.
+
+mod period;
+mod record;
+mod trend;
+
+pub use period::{Period, PeriodSource, period_of};
+pub use record::{Entry, RECORD_SHEET, Record, RecordError, fingerprint};
+
+/// The block name under which `change(...)` arguments are recorded.
+pub fn record_term_block() -> &'static str {
+    record::TERM_BLOCK
+}
+pub use trend::{Move, largest_moves, trend_workbook};
+
+/// Relative change beyond which a figure is flagged when the recipe sets no
+/// `drift` (sheaf's default; common practice, not from a published source).
+pub const DEFAULT_DRIFT: f64 = 0.10;
+
+/// The recipe's `drift` as a share, or the default.
+pub fn drift_of(recipe: &crate::recipe::Recipe) -> f64 {
+    recipe
+        .statements
+        .iter()
+        .find_map(|s| match &s.kind {
+            crate::recipe::ast::StatementKind::Drift(d) => Some(if d.value.1 { d.value.0 / 100.0 } else { d.value.0 }),
+            _ => None,
+        })
+        .unwrap_or(DEFAULT_DRIFT)
+}

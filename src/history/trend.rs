@@ -1,0 +1,135 @@
+//! The trend workbook of a batch: every figure per period, the largest
+//! month-over-month moves, and line charts of the main figures.
+
+use std::collections::BTreeMap;
+
+use rust_xlsxwriter::{Chart, ChartType, Format, Workbook, XlsxError};
+
+use super::record::{Record, TERM_BLOCK};
+
+/// A figure's change between two consecutive periods.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Move {
+    pub block: String,
+    pub group: String,
+    pub name: String,
+    pub from: String,
+    pub to: String,
+    pub before: f64,
+    pub after: f64,
+}
+
+impl Move {
+    pub fn relative(&self) -> Option<f64> {
+        (self.before != 0.0).then(|| (self.after - self.before) / self.before.abs())
+    }
+}
+
+/// Moves between consecutive periods, largest relative change first.
+pub fn largest_moves(records: &[(String, Record)]) -> Vec<Move> {
+    let mut moves = Vec::new();
+    for pair in records.windows(2) {
+        let ((from, before), (to, after)) = (&pair[0], &pair[1]);
+        for e in after.entries.iter().filter(|e| e.block != TERM_BLOCK) {
+            if let Some(b) = before.find(&e.block, &e.group, &e.name) {
+                moves.push(Move { block: e.block.clone(), group: e.group.clone(), name: e.name.clone(), from: from.clone(), to: to.clone(), before: b, after: e.value });
+            }
+        }
+    }
+    moves.sort_by(|a, b| {
+        let size = |m: &Move| m.relative().map_or(-1.0, f64::abs);
+        size(b).total_cmp(&size(a))
+    });
+    moves
+}
+
+/// Figures drawn over time: each panel column's mean and median, and every
+/// figure of a figures block.
+fn charted(name: &str, is_panel: bool) -> bool {
+    !is_panel || name.ends_with(" mean") || name.ends_with(" median")
+}
+
+pub fn trend_workbook(records: &[(String, Record)], panel_blocks: &[String]) -> Result<Vec<u8>, XlsxError> {
+    let mut workbook = Workbook::new();
+    let bold = Format::new().set_bold();
+    let header = |sheet: &mut rust_xlsxwriter::Worksheet, labels: &[&str]| -> Result<(), XlsxError> {
+        for (c, l) in labels.iter().enumerate() {
+            sheet.write_string_with_format(0, c as u16, *l, &bold)?;
+            sheet.set_column_width(c as u16, 18)?;
+        }
+        sheet.set_freeze_panes(1, 0)?;
+        Ok(())
+    };
+
+    let sheet = workbook.add_worksheet().set_name("Trend")?;
+    header(sheet, &["period", "block", "group", "figure", "value"])?;
+    let mut r = 1u32;
+    for (period, record) in records {
+        for e in record.entries.iter().filter(|e| e.block != TERM_BLOCK) {
+            sheet.write_string(r, 0, period)?;
+            sheet.write_string(r, 1, &e.block)?;
+            sheet.write_string(r, 2, &e.group)?;
+            sheet.write_string(r, 3, &e.name)?;
+            sheet.write_number(r, 4, e.value)?;
+            r += 1;
+        }
+    }
+    sheet.autofilter(0, 0, r.max(1) - 1, 4)?;
+
+    let sheet = workbook.add_worksheet().set_name("Largest moves")?;
+    header(sheet, &["block", "group", "figure", "from", "to", "before", "after", "change", "relative change"])?;
+    let moves = largest_moves(records);
+    for (i, m) in moves.iter().take(200).enumerate() {
+        let r = 1 + i as u32;
+        for (c, t) in [&m.block, &m.group, &m.name, &m.from, &m.to].into_iter().enumerate() {
+            sheet.write_string(r, c as u16, t)?;
+        }
+        sheet.write_number(r, 5, m.before)?;
+        sheet.write_number(r, 6, m.after)?;
+        sheet.write_number(r, 7, m.after - m.before)?;
+        match m.relative() {
+            Some(x) => sheet.write_number_with_format(r, 8, x, &Format::new().set_num_format("0.0%"))?,
+            None => sheet.write_string(r, 8, "before was 0")?,
+        };
+    }
+    sheet.autofilter(0, 0, moves.len().clamp(1, 200) as u32, 8)?;
+
+    // One chart per (block, figure): periods down, groups across.
+    let sheet_name = "Trend charts";
+    let sheet = workbook.add_worksheet().set_name(sheet_name)?;
+    let mut series: BTreeMap<(String, String), BTreeMap<String, BTreeMap<String, f64>>> = BTreeMap::new();
+    for (period, record) in records {
+        for e in record.entries.iter().filter(|e| e.block != TERM_BLOCK && charted(&e.name, panel_blocks.contains(&e.block))) {
+            series.entry((e.block.clone(), e.name.clone())).or_default().entry(e.group.clone()).or_default().insert(period.clone(), e.value);
+        }
+    }
+    let periods: Vec<&String> = records.iter().map(|(p, _)| p).collect();
+    let mut top = 0u32;
+    for ((block, name), groups) in &series {
+        sheet.write_string_with_format(top, 0, format!("{block}: {name}"), &bold)?;
+        sheet.write_string_with_format(top + 1, 0, "period", &bold)?;
+        for (i, p) in periods.iter().enumerate() {
+            sheet.write_string(top + 2 + i as u32, 0, *p)?;
+        }
+        let mut chart = Chart::new(ChartType::Line);
+        chart.title().set_name(&format!("{block}: {name}"));
+        let last = top + 1 + periods.len() as u32;
+        for (j, (group, values)) in groups.iter().enumerate() {
+            let c = 1 + j as u16;
+            sheet.write_string_with_format(top + 1, c, group, &bold)?;
+            for (i, p) in periods.iter().enumerate() {
+                if let Some(v) = values.get(*p) {
+                    sheet.write_number(top + 2 + i as u32, c, *v)?;
+                }
+            }
+            chart
+                .add_series()
+                .set_name((sheet_name, top + 1, c))
+                .set_categories((sheet_name, top + 2, 0, last, 0))
+                .set_values((sheet_name, top + 2, c, last, c));
+        }
+        sheet.insert_chart(top, (groups.len() + 2) as u16, &chart)?;
+        top = (last + 2).max(top + 16);
+    }
+    workbook.save_to_buffer()
+}
