@@ -57,10 +57,10 @@ pub fn run(recipe_path: &Path, pattern: &str, out_dir: Option<PathBuf>, force: b
     let outcomes: Vec<Result<(Recipe, Done), (PathBuf, String)>> = paths
         .par_iter()
         .map(|path| {
-            let result = one_file(recipe_path, &text, &syntax, path).map(|(recipe, table)| {
-                let results = eval::evaluate(&recipe, &table);
+            let result = one_file(recipe_path, &text, &syntax, path).and_then(|(recipe, table)| {
+                let results = eval::evaluate(&recipe, &table).map_err(|e| format!("{}: {e}", path.display()))?;
                 let period = history::period_of(&recipe, path).map_or_else(|| path.file_stem().unwrap_or_default().to_string_lossy().into_owned(), |p| p.label);
-                (recipe, Done { path: path.clone(), period, table, results })
+                Ok((recipe, Done { path: path.clone(), period, table, results }))
             });
             bar.inc(1);
             bar.set_message(path.file_name().unwrap_or_default().to_string_lossy().into_owned());
@@ -85,7 +85,10 @@ pub fn run(recipe_path: &Path, pattern: &str, out_dir: Option<PathBuf>, force: b
     let mut infos = Vec::new();
     for (recipe, d) in &mut done {
         if uses_change(recipe) && previous.is_some() {
-            d.results = eval::evaluate_against(recipe, &d.table, previous.as_ref().map(Record::previous_terms));
+            // The same rows were grouped without error above, so this cannot fail.
+            if let Ok(again) = eval::evaluate_against(recipe, &d.table, previous.as_ref().map(Record::previous_terms)) {
+                d.results = again;
+            }
         }
         let info = run_info(recipe_path, &text, recipe, &d.path, previous.clone());
         let record = Record::from_results(&d.results, info.fingerprint.clone(), Some(d.period.clone()));

@@ -52,6 +52,9 @@ enum Command {
         /// Replace the result file if it exists.
         #[arg(long)]
         force: bool,
+        /// Print how long loading, evaluating and writing took (on standard error).
+        #[arg(long)]
+        timings: bool,
     },
     /// Check a recipe; with --data, also that every column it names exists.
     Validate {
@@ -91,11 +94,11 @@ impl<E: std::fmt::Display> From<E> for Failure {
 pub fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
-        Command::Run { recipe, data, out, out_dir, compare, json, force } => {
+        Command::Run { recipe, data, out, out_dir, compare, json, force, timings } => {
             if batch::is_pattern(&data) || out_dir.is_some() {
                 batch::run(&recipe, &data, out_dir, force)
             } else {
-                run(&recipe, Path::new(&data), out, compare.as_deref(), json, force)
+                run(&recipe, Path::new(&data), out, compare.as_deref(), json, force, timings)
             }
         }
         Command::Validate { recipe, data } => validate(&recipe, data.as_deref()),
@@ -175,17 +178,26 @@ fn run_info(recipe_path: &Path, text: &str, recipe: &recipe::Recipe, data: &Path
     }
 }
 
-fn run(recipe_path: &Path, data: &Path, out: Option<PathBuf>, compare: Option<&Path>, as_json: bool, force: bool) -> Result<ExitCode, Failure> {
+#[allow(clippy::too_many_arguments)]
+fn run(recipe_path: &Path, data: &Path, out: Option<PathBuf>, compare: Option<&Path>, as_json: bool, force: bool, timings: bool) -> Result<ExitCode, Failure> {
+    let started = std::time::Instant::now();
     let text = read_recipe(recipe_path)?;
     let (recipe, table) = load_for(recipe_path, &text, data)?;
+    let loaded = std::time::Instant::now();
     let previous = match compare {
         Some(path) => Some(crate::history::Record::read(path, &crate::history::fingerprint(&recipe))?),
         None => None,
     };
-    let results = eval::evaluate_against(&recipe, &table, previous.as_ref().map(|p| p.previous_terms()));
+    let results = eval::evaluate_against(&recipe, &table, previous.as_ref().map(|p| p.previous_terms()))?;
+    let evaluated = std::time::Instant::now();
     let out = out.unwrap_or_else(|| default_out(data));
     let run = run_info(recipe_path, &text, &recipe, data, previous);
     write::save(&results, &table, &run, &out, force)?;
+    if timings {
+        let written = std::time::Instant::now();
+        let ms = |a: std::time::Instant, b: std::time::Instant| (b - a).as_secs_f64() * 1000.0;
+        eprintln!("timings: load {:.1} ms, evaluate {:.1} ms, write {:.1} ms", ms(started, loaded), ms(loaded, evaluated), ms(evaluated, written));
+    }
     let summary = summary::render(&results, &table, &out);
     if as_json {
         println!("{}", serde_json::to_string_pretty(&json::results(&results, &table, &run)).unwrap_or_default());

@@ -108,10 +108,20 @@ impl Results {
     }
 }
 
+/// Most groups one block may form; more would make sheets no one can read
+/// (and a panel with robustness per group would run for hours).
+pub const MAX_GROUPS: usize = 100_000;
+
+#[derive(Debug, thiserror::Error)]
+pub enum EvalError {
+    #[error("`per {keys}` makes more than {MAX_GROUPS} groups; group by a column with fewer distinct values")]
+    TooManyGroups { keys: String },
+}
+
 /// Group keys of each row in `rows`, and the groups in order of first appearance.
-fn groups(scope: &Scope, keys: &[ColumnRef]) -> Vec<(Vec<String>, Vec<usize>)> {
+fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<usize>)>, EvalError> {
     if keys.is_empty() {
-        return vec![(Vec::new(), scope.rows.to_vec())];
+        return Ok(vec![(Vec::new(), scope.rows.to_vec())]);
     }
     let columns: Vec<Rows> = keys.iter().map(|k| scope.column(&k.name)).collect();
     let mut order: Vec<(Vec<String>, Vec<usize>)> = Vec::new();
@@ -122,9 +132,12 @@ fn groups(scope: &Scope, keys: &[ColumnRef]) -> Vec<(Vec<String>, Vec<usize>)> {
             order.push((key, Vec::new()));
             order.len() - 1
         });
+        if order.len() > MAX_GROUPS {
+            return Err(EvalError::TooManyGroups { keys: keys.iter().map(|k| k.name.clone()).collect::<Vec<_>>().join(", ") });
+        }
         order[slot].1.push(row);
     }
-    order
+    Ok(order)
 }
 
 fn text_of(rows: &Rows, i: usize) -> Option<String> {
@@ -202,12 +215,12 @@ fn columns_used(recipe: &Recipe) -> Vec<String> {
 }
 
 /// Evaluates a checked recipe over a table, with no previous period.
-pub fn evaluate(recipe: &Recipe, table: &Table) -> Results {
+pub fn evaluate(recipe: &Recipe, table: &Table) -> Result<Results, EvalError> {
     evaluate_against(recipe, table, None)
 }
 
 /// Evaluates a checked recipe over a table; `change(...)` compares with `previous`.
-pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previous>) -> Results {
+pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previous>) -> Result<Results, EvalError> {
     let context = Context { previous, terms: Default::default() };
     let mut lets = value::Lets::new();
     // For each let, the data columns it is computed from (for source cells).
@@ -272,7 +285,7 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
                 let rows = block_rows(table, &lets, &kept, block_filter);
                 let scope = Scope::new(table, &lets, &rows);
                 let mut entries = Vec::new();
-                for (group, group_rows) in groups(&scope, per) {
+                for (group, group_rows) in groups(&scope, per)? {
                     let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     for column in columns {
                         let sample = group_scope.sample(&column_expr(column));
@@ -293,7 +306,7 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
                 let rows = block_rows(table, &lets, &kept, block_filter);
                 let scope = Scope::new(table, &lets, &rows);
                 let mut out = Vec::new();
-                for (group, group_rows) in groups(&scope, per) {
+                for (group, group_rows) in groups(&scope, per)? {
                     let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     let values = figures.iter().map(|f| one(group_scope.eval(&f.value))).collect();
                     out.push(FigureRow { group, rows: group_rows.len(), values });
@@ -309,7 +322,7 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
                 let scope = Scope::new(table, &lets, &kept).grouped(&[], &context);
                 results.checks.push(check(&scope, &name.value, *level, condition, None));
                 if !per.is_empty() {
-                    for (group, group_rows) in groups(&scope, per) {
+                    for (group, group_rows) in groups(&scope, per)? {
                         let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                         results.checks.push(check(&group_scope, &name.value, *level, condition, Some(group)));
                     }
@@ -322,7 +335,7 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
                     Some(Bins::Rule(word)) => BinRule::from_word(word).unwrap_or(BinRule::Sturges),
                     None => BinRule::Sturges,
                 };
-                for (group, group_rows) in groups(&scope, per) {
+                for (group, group_rows) in groups(&scope, per)? {
                     let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     let sample = group_scope.sample(&column_expr(column));
                     if let Ok(histogram) = stats::histogram(&sample, rule) {
@@ -333,7 +346,7 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
             StatementKind::Boxplot { column, per } => {
                 let scope = Scope::new(table, &lets, &kept);
                 let mut boxes = Vec::new();
-                for (group, group_rows) in groups(&scope, per) {
+                for (group, group_rows) in groups(&scope, per)? {
                     let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     if let Some(summary) = panel::box_summary(&group_scope.sample(&column_expr(column))) {
                         boxes.push((group, summary));
@@ -347,7 +360,7 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
     let mut seen = std::collections::HashSet::new();
     terms.retain(|t| seen.insert((t.expression.clone(), t.group.clone())));
     results.terms = terms;
-    results
+    Ok(results)
 }
 
 fn column_expr(column: &ColumnRef) -> Expr {

@@ -34,7 +34,7 @@ pub fn parse_field(field: &str) -> Cell {
     }
     match trimmed.parse::<f64>() {
         Ok(x) if x.is_finite() && !trimmed.eq_ignore_ascii_case("nan") && !trimmed.to_ascii_lowercase().contains("inf") => Cell::Number(x),
-        _ => Cell::Text(field.to_string()),
+        _ => Cell::from_text(field),
     }
 }
 
@@ -83,6 +83,7 @@ pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<T
 /// Named columns from header names and cells, refusing blank and duplicate headers.
 pub fn build_columns(path: &str, names: Vec<String>, grid: Vec<Vec<Cell>>, header_row: u32) -> Result<Vec<Column>, LoadError> {
     let mut columns: Vec<Column> = Vec::new();
+    let mut seen: std::collections::HashMap<String, u32> = std::collections::HashMap::new();
     for (index, (name, cells)) in names.into_iter().zip(grid).enumerate() {
         let kind = Column::infer_kind(&cells);
         if name.is_empty() {
@@ -91,14 +92,15 @@ pub fn build_columns(path: &str, names: Vec<String>, grid: Vec<Vec<Cell>>, heade
             }
             return Err(LoadError::BlankHeader { path: path.to_string(), address: cell_address(index as u32, header_row as usize) });
         }
-        if let Some(first) = columns.iter().find(|c| c.name == name) {
+        if let Some(&first) = seen.get(&name) {
             return Err(LoadError::DuplicateHeader {
                 path: path.to_string(),
                 name,
-                first: cell_address(first.sheet_column, header_row as usize),
+                first: cell_address(first, header_row as usize),
                 second: cell_address(index as u32, header_row as usize),
             });
         }
+        seen.insert(name.clone(), index as u32);
         columns.push(Column { name, sheet_column: index as u32, kind, cells });
     }
     Ok(columns)

@@ -39,6 +39,24 @@ pub enum Cell {
     Error(String),
 }
 
+/// Spreadsheet error values; a cell holding one as text (a CSV export, a
+/// cached formula result) counts as a formula error, not as text.
+pub const ERROR_CODES: &[&str] = &["#DIV/0!", "#N/A", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#NULL!", "#SPILL!", "#CALC!", "#GETTING_DATA"];
+
+impl Cell {
+    /// Text as a cell: blank, a spreadsheet error code, or text.
+    pub fn from_text(text: &str) -> Cell {
+        let trimmed = text.trim();
+        if trimmed.is_empty() {
+            Cell::Blank
+        } else if ERROR_CODES.contains(&trimmed) {
+            Cell::Error(trimmed.to_string())
+        } else {
+            Cell::Text(text.to_string())
+        }
+    }
+}
+
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum ColumnKind {
     Number,

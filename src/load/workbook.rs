@@ -21,8 +21,7 @@ fn cell(data: &Data) -> Cell {
         Data::Int(i) => Cell::Number(*i as f64),
         Data::Float(x) if x.is_finite() => Cell::Number(*x),
         Data::Float(_) => Cell::Error("#NUM!".into()),
-        Data::String(s) if s.trim().is_empty() => Cell::Blank,
-        Data::String(s) => Cell::Text(s.clone()),
+        Data::String(s) => Cell::from_text(s),
         Data::Bool(b) => Cell::Bool(*b),
         Data::DateTime(d) if d.is_datetime() => Cell::Date(d.as_f64()),
         Data::DateTime(d) => Cell::Number(d.as_f64()),
@@ -33,7 +32,44 @@ fn cell(data: &Data) -> Cell {
     }
 }
 
+/// Most bytes the parts of a zipped workbook (xlsx, ods) may unpack to, and
+/// the largest unpacking ratio of a big part: beyond either it is refused
+/// as a likely zip bomb before calamine inflates anything.
+pub const MAX_UNPACKED: u64 = 4 << 30;
+const MAX_RATIO: u64 = 200;
+const RATIO_CHECKED_ABOVE: u64 = 64 << 20;
+
+fn refuse_zip_bombs(path: &Path) -> Result<(), LoadError> {
+    let Ok(file) = std::fs::File::open(path) else { return Ok(()) };
+    let mut head = [0u8; 4];
+    if std::io::Read::read_exact(&mut &file, &mut head).is_err() || &head != b"PK\x03\x04" {
+        return Ok(()); // not a zip (xls is an OLE file): calamine judges it
+    }
+    let mut archive = zip::ZipArchive::new(file).map_err(|e| unreadable(path, format!("the file is not a complete workbook ({e})")))?;
+    let mut total = 0u64;
+    for i in 0..archive.len() {
+        let Ok(entry) = archive.by_index_raw(i) else { continue };
+        let (packed, unpacked) = (entry.compressed_size().max(1), entry.size());
+        total = total.saturating_add(unpacked);
+        if unpacked > RATIO_CHECKED_ABOVE && unpacked / packed > MAX_RATIO {
+            return Err(unreadable(path, format!("part {} would unpack {} times its size ({unpacked} bytes); refused as a likely zip bomb", entry.name().unwrap_or_default(), unpacked / packed)));
+        }
+    }
+    if total > MAX_UNPACKED {
+        return Err(unreadable(path, format!("the workbook would unpack to {total} bytes, more than the {MAX_UNPACKED} sheaf reads")));
+    }
+    Ok(())
+}
+
 pub fn load(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table, LoadError> {
+    refuse_zip_bombs(path)?;
+    // A damaged file must end in an error, never a crash, even if the
+    // reading library trips over it.
+    std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| read(path, source, options)))
+        .unwrap_or_else(|_| Err(unreadable(path, "the workbook is damaged and could not be read; open and save it again, or export it as CSV")))
+}
+
+fn read(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table, LoadError> {
     let shown = path.display().to_string();
     let mut workbook = open_workbook_auto(path).map_err(|e| unreadable(path, e))?;
     let names = workbook.sheet_names();

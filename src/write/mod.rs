@@ -50,7 +50,14 @@ pub enum WriteError {
 /// The workbook as bytes.
 pub fn workbook_bytes(results: &Results, table: &Table, run: &RunInfo) -> Result<Vec<u8>, WriteError> {
     let mut workbook = Workbook::new();
-    workbook.set_properties(&DocProperties::new().set_title(results.title.clone().unwrap_or_else(|| "sheaf result".into())));
+    let mut properties = DocProperties::new().set_title(results.title.clone().unwrap_or_else(|| "sheaf result".into()));
+    // The file's own creation time is the recorded run time, so a rerun with
+    // the same SHEAF_RUN_TIME is byte for byte the same workbook.
+    let iso = run.run_time.trim_end_matches(" UTC").replacen(' ', "T", 1);
+    if let Some(created) = crate::format::serial_from_iso(&iso).and_then(|serial| rust_xlsxwriter::ExcelDateTime::from_serial_datetime(serial).ok()) {
+        properties = properties.set_creation_datetime(&created);
+    }
+    workbook.set_properties(&properties);
     let mut names = sheets::SheetNames::default();
     sheets::blocks(&mut workbook, &mut names, results)?;
     sheets::checks(&mut workbook, &mut names, results)?;
