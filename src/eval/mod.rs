@@ -10,6 +10,8 @@ mod value;
 
 use std::collections::HashMap;
 
+use rayon::prelude::*;
+
 use crate::load::{IssueKind, Table};
 use crate::recipe::ast::{Bins, CheckLevel, ColumnRef, Expr, ExprKind, Recipe, StatementKind};
 use crate::stats::{self, BinRule, Histogram, Sample};
@@ -284,21 +286,29 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
             StatementKind::Panel { name, columns, per, filter: block_filter } => {
                 let rows = block_rows(table, &lets, &kept, block_filter);
                 let scope = Scope::new(table, &lets, &rows);
-                let mut entries = Vec::new();
+                // Gather each (group, column) sample, then compute the panels in
+                // parallel: they are independent and the robustness checks dominate.
+                let mut jobs = Vec::new();
                 for (group, group_rows) in groups(&scope, per)? {
                     let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     for column in columns {
-                        let sample = group_scope.sample(&column_expr(column));
-                        let address = |i: usize| source_cell(table, &sources, &column.name, group_rows[sample.positions()[i] as usize]);
-                        entries.push(PanelEntry {
-                            group: group.clone(),
-                            column: column.name.clone(),
-                            figures: panel::panel_figures(&sample),
-                            robustness: panel::robustness(&sample, &address),
-                            sample_summary: panel::box_summary(&sample),
-                        });
+                        let sample = Sample::from_column(group_scope.column(&column.name).numbers());
+                        jobs.push((group.clone(), column.name.clone(), sample, group_rows.clone()));
                     }
                 }
+                let entries: Vec<PanelEntry> = jobs
+                    .par_iter()
+                    .map(|(group, column, sample, group_rows)| {
+                        let address = |i: usize| source_cell(table, &sources, column, group_rows[sample.positions()[i] as usize]);
+                        PanelEntry {
+                            group: group.clone(),
+                            column: column.clone(),
+                            figures: panel::panel_figures(sample),
+                            robustness: panel::robustness(sample, &address),
+                            sample_summary: panel::box_summary(sample),
+                        }
+                    })
+                    .collect();
                 let keys = per.iter().map(|k| k.name.clone()).collect();
                 results.blocks.push(Block::Panel { name: name.value.clone(), keys, entries, rows_used: rows.len() });
             }

@@ -12,6 +12,16 @@ use super::summation::Neumaier;
 use super::undefined::{Stat, need};
 
 pub const DEFAULT_RESAMPLES: usize = 2000;
+/// Draws one interval may cost: above this, fewer resamples are taken
+/// (never fewer than [`MIN_RESAMPLES`]), so a column of 10^6 values does
+/// not take minutes. The robustness sheet states the count used.
+pub const DRAW_BUDGET: usize = 20_000_000;
+pub const MIN_RESAMPLES: usize = 200;
+
+/// Resamples for a column of n values under the draw budget.
+pub fn resamples_for(n: usize) -> usize {
+    (DRAW_BUDGET / n.max(1)).clamp(MIN_RESAMPLES, DEFAULT_RESAMPLES)
+}
 /// Fixed so that reruns on the same data agree to the last digit.
 pub const DEFAULT_SEED: u64 = 0x5EAF_2026;
 
@@ -75,7 +85,8 @@ pub fn bootstrap_intervals(sample: &Sample, resamples: usize, level: f64, seed: 
                 sum.add(x * f64::from(c));
             }
         }
-        means.push(sum.total() / n as f64);
+        // A mean lies within the data's range; rounding of c x / n must not push it out.
+        means.push((sum.total() / n as f64).clamp(sorted[0], sorted[n - 1]));
         medians.push(median_from_counts(sorted, &counts));
     }
     let interval = |mut stats: Vec<f64>| -> Stat<Interval> {

@@ -6,7 +6,7 @@ use super::sheets::SheetNames;
 use super::style;
 use crate::eval::{Block, Results};
 use crate::load::Table;
-use crate::stats::{DEFAULT_RESAMPLES, DEFAULT_SEED};
+use crate::stats::{DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET, MIN_RESAMPLES};
 
 pub const DISCLAIMER: &str = "sheaf summarises data. Where a figure feeds a decision that can hurt someone (a safety limit, a product \
 release), it does not replace the rules and the qualified review that apply there.";
@@ -61,7 +61,7 @@ pub fn about(workbook: &mut Workbook, names: &mut SheetNames, results: &Results,
             pair("rows in panel", format!("{name}: {rows_used}"))?;
         }
     }
-    pair("bootstrap", format!("{DEFAULT_RESAMPLES} resamples, seed {DEFAULT_SEED}, 95% percentile intervals"))?;
+    pair("bootstrap", format!("{DEFAULT_RESAMPLES} resamples (fewer for columns over {} values: {DRAW_BUDGET} draws at most, never under {MIN_RESAMPLES} resamples), seed {DEFAULT_SEED}, 95% percentile intervals", DRAW_BUDGET / DEFAULT_RESAMPLES))?;
     for (i, c) in CONVENTIONS.iter().enumerate() {
         pair(if i == 0 { "conventions" } else { "" }, c.to_string())?;
     }

@@ -6,7 +6,7 @@ use rust_xlsxwriter::{Workbook, Worksheet, XlsxError};
 
 use super::style::{self, write_one};
 use crate::eval::{Block, Flagged, One, PANEL_LABELS, PanelEntry, Results};
-use crate::stats::{DEFAULT_RESAMPLES, DEFAULT_SEED};
+use crate::stats::{DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET};
 
 /// Sheet names in use, so every new one is unique and at most 31 characters.
 #[derive(Default)]
@@ -38,7 +38,7 @@ fn robustness_note() -> String {
 fences (type 7 quartiles), each with its source cell. 'Without' recomputes mean, sd and skewness leaving out the 1.5 IQR outliers. \
 Leave-one-out: the largest change in the mean and in the sd that removing one value causes, and its cell. Modified z-scores \
 0.6745 (x - median) / MAD above 3.5 (Iglewicz and Hoaglin 1993). Bootstrap: 95% percentile intervals from {DEFAULT_RESAMPLES} \
-resamples, seed {DEFAULT_SEED}, so reruns agree. Status: warn for values beyond the 3 IQR fences, modified z above 3.5 or a \
+resamples ({DRAW_BUDGET} draws at most for long columns; the 'resamples' column says how many), seed {DEFAULT_SEED}, so reruns agree. Status: warn for values beyond the 3 IQR fences, modified z above 3.5 or a \
 mean-median gap above 0.5 sd; note for 1.5 IQR outliers, kurtosis above 3, a gap above 0.25 sd or fewer than 3 values \
 (thresholds are common practice, not from a published source)."
     )
@@ -111,7 +111,7 @@ pub const ROBUSTNESS_LABELS: &[&str] = &[
     "status", "reason", "gap in sd", "gap in IQR", "outliers 1.5 IQR", "1.5 IQR cells", "outliers 3 IQR", "3 IQR cells",
     "mean without", "mean change", "sd without", "sd change", "skewness without", "skewness change",
     "largest mean change (one value)", "its cell", "largest sd change (one value)", "its cell (sd)", "modified z above 3.5", "modified z cells",
-    "kurtosis above 3", "mean 95% low", "mean 95% high", "median 95% low", "median 95% high",
+    "kurtosis above 3", "mean 95% low", "mean 95% high", "median 95% low", "median 95% high", "resamples",
 ];
 
 fn cells(list: &[Flagged]) -> String {
@@ -169,8 +169,9 @@ fn robustness_sheet(sheet: &mut Worksheet, name: &str, keys: &[String], entries:
                 for x in [bi.mean.low, bi.mean.high, bi.median.low, bi.median.high] {
                     values.push((One::Number(x), false));
                 }
+                values.push((One::Number(bi.resamples as f64), true));
             }
-            Err(why) => (0..4).for_each(|_| values.push((One::Undefined(why.clone()), false))),
+            Err(why) => (0..5).for_each(|_| values.push((One::Undefined(why.clone()), false))),
         }
         for (j, (value, whole)) in values.iter().enumerate() {
             write_one(sheet, r, c + 2 + j as u16, value, *whole)?;
