@@ -181,7 +181,11 @@ pub fn robustness(s: &Sample, address: &dyn Fn(usize) -> String) -> Robustness {
     let outliers_wide = wide.as_ref().map(|o| flag(&[o.low.clone(), o.high.clone()].concat())).unwrap_or_default();
     let outliers_far = far.as_ref().map(|o| flag(&[o.low.clone(), o.high.clone()].concat())).unwrap_or_default();
     let kept: Vec<f64> = match &wide {
-        Some(o) => s.values().iter().enumerate().filter(|(i, _)| !o.low.contains(i) && !o.high.contains(i)).map(|(_, x)| *x).collect(),
+        Some(o) => {
+            let mut out = vec![false; s.count()];
+            o.low.iter().chain(&o.high).for_each(|&i| out[i] = true);
+            s.values().iter().zip(&out).filter(|(_, gone)| !**gone).map(|(x, _)| *x).collect()
+        }
         None => Vec::new(),
     };
     let trimmed = Sample::from_values(kept);

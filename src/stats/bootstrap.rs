@@ -16,7 +16,7 @@ pub const DEFAULT_RESAMPLES: usize = 2000;
 /// (never fewer than [`MIN_RESAMPLES`]), so a column of 10^6 values does
 /// not take minutes. The robustness sheet states the count used.
 pub const DRAW_BUDGET: usize = 20_000_000;
-pub const MIN_RESAMPLES: usize = 200;
+pub const MIN_RESAMPLES: usize = 100;
 
 /// Resamples for a column of n values under the draw budget.
 pub fn resamples_for(n: usize) -> usize {
@@ -52,8 +52,14 @@ impl SplitMix64 {
     }
 
     /// Uniform in 0..n without modulo bias (Lemire 2019, multiply and reject).
+    #[cfg(test)]
     fn below(&mut self, n: u64) -> u64 {
-        let threshold = n.wrapping_neg() % n;
+        self.below_with(n, n.wrapping_neg() % n)
+    }
+
+    /// As `below`, with the rejection threshold (2^64 mod n) computed once by the caller.
+    #[inline]
+    fn below_with(&mut self, n: u64, threshold: u64) -> u64 {
         loop {
             let wide = u128::from(self.next()) * u128::from(n);
             if (wide as u64) >= threshold {
@@ -74,20 +80,16 @@ pub fn bootstrap_intervals(sample: &Sample, resamples: usize, level: f64, seed: 
     let mut counts = vec![0u32; n];
     let mut means = Vec::with_capacity(resamples);
     let mut medians = Vec::with_capacity(resamples);
+    let threshold = (n as u64).wrapping_neg() % n as u64;
     for _ in 0..resamples {
         counts.fill(0);
         for _ in 0..n {
-            counts[rng.below(n as u64) as usize] += 1;
+            counts[rng.below_with(n as u64, threshold) as usize] += 1;
         }
-        let mut sum = Neumaier::default();
-        for (&x, &c) in sorted.iter().zip(&counts) {
-            if c > 0 {
-                sum.add(x * f64::from(c));
-            }
-        }
+        let (sum, median) = sum_and_median(sorted, &counts);
         // A mean lies within the data's range; rounding of c x / n must not push it out.
-        means.push((sum.total() / n as f64).clamp(sorted[0], sorted[n - 1]));
-        medians.push(median_from_counts(sorted, &counts));
+        means.push((sum / n as f64).clamp(sorted[0], sorted[n - 1]));
+        medians.push(median);
     }
     let interval = |mut stats: Vec<f64>| -> Stat<Interval> {
         stats.sort_unstable_by(f64::total_cmp);
@@ -100,7 +102,30 @@ pub fn bootstrap_intervals(sample: &Sample, resamples: usize, level: f64, seed: 
     Ok(BootstrapIntervals { mean: interval(means)?, median: interval(medians)?, resamples, level, seed })
 }
 
+/// The sum (compensated) and the median of a resample, in one pass over the counts.
+fn sum_and_median(sorted: &[f64], counts: &[u32]) -> (f64, f64) {
+    let n = sorted.len();
+    let (lower_rank, upper_rank) = ((n - 1) / 2, n / 2);
+    let (mut seen, mut lower, mut median) = (0usize, None, None);
+    let mut sum = Neumaier::default();
+    for (&x, &c) in sorted.iter().zip(counts) {
+        if c == 0 {
+            continue;
+        }
+        sum.add(x * f64::from(c));
+        seen += c as usize;
+        if lower.is_none() && seen > lower_rank {
+            lower = Some(x);
+        }
+        if median.is_none() && seen > upper_rank {
+            median = Some(lower.unwrap_or(x) / 2.0 + x / 2.0);
+        }
+    }
+    (sum.total(), median.unwrap_or(f64::NAN))
+}
+
 /// The median of a resample given how often each sorted value was drawn.
+#[cfg(test)]
 fn median_from_counts(sorted: &[f64], counts: &[u32]) -> f64 {
     let n = sorted.len();
     // 0-based ranks of the middle one or two values of the resample.
@@ -143,6 +168,16 @@ mod tests {
         // Resample 2, 2, 2, 8 -> median 2.
         assert_eq!(median_from_counts(&sorted, &[0, 3, 0, 1]), 2.0);
         assert_eq!(median_from_counts(&[5.0, 6.0, 7.0], &[0, 0, 3]), 7.0);
+    }
+
+    #[test]
+    fn one_pass_agrees_with_the_two_steps() {
+        let sorted = [1.0, 2.0, 4.0, 8.0, 9.5];
+        for counts in [[2, 0, 1, 1, 1], [0, 0, 0, 0, 5], [1, 1, 1, 1, 1], [0, 3, 0, 2, 0]] {
+            let (sum, median) = sum_and_median(&sorted, &counts);
+            let direct: f64 = sorted.iter().zip(counts).map(|(x, c)| x * f64::from(c)).sum();
+            assert_eq!((sum, median), (direct, median_from_counts(&sorted, &counts)));
+        }
     }
 
     #[test]

@@ -82,14 +82,14 @@ pub fn about(workbook: &mut Workbook, names: &mut SheetNames, results: &Results,
         sheet.write_string(r, 0, &m.address)?;
         sheet.write_string(r, 1, &m.column)?;
         sheet.write_string(r, 2, m.kind.words())?;
-        sheet.write_string(r, 3, &m.content)?;
+        sheet.write_string(r, 3, style::fit(&m.content))?;
         r += 1;
     }
     r += 1;
     sheet.write_string_with_format(r, 0, "recipe text", &style::title())?;
     r += 1;
     for line in run.recipe_text.lines() {
-        sheet.write_string(r, 1, line)?;
+        sheet.write_string(r, 1, style::fit(line))?;
         r += 1;
     }
     Ok(())

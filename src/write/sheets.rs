@@ -84,7 +84,7 @@ pub fn blocks(workbook: &mut Workbook, names: &mut SheetNames, results: &Results
 
 fn write_group(sheet: &mut Worksheet, row: u32, group: &[String]) -> Result<(), XlsxError> {
     for (c, key) in group.iter().enumerate() {
-        sheet.write_string(row, c as u16, key)?;
+        sheet.write_string(row, c as u16, style::fit(key))?;
     }
     Ok(())
 }
@@ -114,8 +114,15 @@ pub const ROBUSTNESS_LABELS: &[&str] = &[
     "kurtosis above 3", "mean 95% low", "mean 95% high", "median 95% low", "median 95% high", "resamples",
 ];
 
+/// Cells listed in one spreadsheet cell; the rest are counted, not listed.
+const LISTED_CELLS: usize = 100;
+
 fn cells(list: &[Flagged]) -> String {
-    list.iter().map(|f| format!("{} ({})", f.address, crate::format::shortest(f.value))).collect::<Vec<_>>().join(", ")
+    let mut text = list.iter().take(LISTED_CELLS).map(|f| format!("{} ({})", f.address, crate::format::shortest(f.value))).collect::<Vec<_>>().join(", ");
+    if list.len() > LISTED_CELLS {
+        text.push_str(&format!(" and {} more (see the About sheet's missing cells and the JSON output for all)", list.len() - LISTED_CELLS));
+    }
+    text
 }
 
 fn robustness_sheet(sheet: &mut Worksheet, name: &str, keys: &[String], entries: &[PanelEntry]) -> Result<(), XlsxError> {

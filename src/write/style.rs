@@ -47,7 +47,7 @@ pub fn write_one(sheet: &mut Worksheet, row: u32, col: u16, value: &One, whole: 
     match value {
         One::Number(x) => sheet.write_number_with_format(row, col, *x, &if whole { count() } else { number() }).map(|_| ()),
         One::Truth(b) => sheet.write_boolean(row, col, *b).map(|_| ()),
-        One::Text(t) => sheet.write_string(row, col, t).map(|_| ()),
+        One::Text(t) => sheet.write_string(row, col, fit(t)).map(|_| ()),
         One::List(v) if v.len() == 1 => sheet.write_number_with_format(row, col, v[0], &number()).map(|_| ()),
         One::List(v) => {
             let text = v.iter().map(|x| crate::format::shortest(*x)).collect::<Vec<_>>().join("; ");
@@ -55,6 +55,18 @@ pub fn write_one(sheet: &mut Worksheet, row: u32, col: u16, value: &One, whole: 
         }
         One::Undefined(why) => sheet.write_string_with_format(row, col, why, &reason()).map(|_| ()),
     }
+}
+
+/// Most characters a spreadsheet cell holds.
+pub const CELL_LIMIT: usize = 32_767;
+
+/// Text cut to what one cell holds, saying so when it was cut.
+pub fn fit(text: &str) -> String {
+    if text.chars().count() <= CELL_LIMIT {
+        return text.to_string();
+    }
+    let mark = " ... (cut: a cell holds 32,767 characters)";
+    text.chars().take(CELL_LIMIT - mark.len()).collect::<String>() + mark
 }
 
 /// A table header row with filter buttons, frozen above the data.
