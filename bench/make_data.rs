@@ -3,26 +3,16 @@
 //! Run: cargo run --release --example bench_data -- bench/data
 use std::io::{BufWriter, Write};
 
+use sheaf::stats::SplitMix64;
 use rust_xlsxwriter::Workbook;
 
-struct Rng(u64);
-
-impl Rng {
-    fn uniform(&mut self) -> f64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
-    }
-}
 
 const GROUPS: [&str; 5] = ["North", "Harbour", "Ridge", "Valley", "Airport"];
 const COLUMNS: [&str; 6] = ["minutes_late", "weight_kg", "distance_km", "stops", "fuel_l", "parcel_value"];
 
-fn row(rng: &mut Rng) -> (usize, [f64; 6]) {
+fn row(rng: &mut SplitMix64) -> (usize, [f64; 6]) {
     let g = (rng.uniform() * 5.0) as usize % 5;
-    let e = |r: &mut Rng| -(r.uniform().max(1e-12)).ln();
+    let e = |r: &mut SplitMix64| -(r.uniform().max(1e-12)).ln();
     let values = [
         (e(rng) * 8.0 - 2.0 + g as f64).round(),
         ((2.0 + 20.0 * rng.uniform() * rng.uniform()) * 100.0).round() / 100.0,
@@ -37,7 +27,7 @@ fn row(rng: &mut Rng) -> (usize, [f64; 6]) {
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let dir = std::env::args().nth(1).unwrap_or_else(|| "bench/data".into());
     std::fs::create_dir_all(&dir)?;
-    let mut rng = Rng(2026);
+    let mut rng = SplitMix64(2026);
     let mut csv = BufWriter::new(std::fs::File::create(format!("{dir}/deliveries-1m.csv"))?);
     writeln!(csv, "depot,{}", COLUMNS.join(","))?;
     for _ in 0..1_000_000 {

@@ -2,19 +2,9 @@
 //! courier company's deliveries (every number is made up), with a few
 //! typed-in outliers, a blank cell and a text cell among the numbers.
 //! Run: cargo run --example make_demo
+use sheaf::stats::SplitMix64;
 use rust_xlsxwriter::{ExcelDateTime, Format, Workbook};
 
-struct Rng(u64);
-
-impl Rng {
-    fn next(&mut self) -> f64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
-    }
-}
 
 fn round(x: f64, digits: i32) -> f64 {
     let scale = 10f64.powi(digits);
@@ -22,7 +12,7 @@ fn round(x: f64, digits: i32) -> f64 {
 }
 
 fn month(year: u16, month: u8, seed: u64) -> Result<(), rust_xlsxwriter::XlsxError> {
-    let mut rng = Rng(seed);
+    let mut rng = SplitMix64(seed);
     let mut workbook = Workbook::new();
     let sheet = workbook.add_worksheet().set_name("Deliveries")?;
     let bold = Format::new().set_bold();
@@ -34,11 +24,11 @@ fn month(year: u16, month: u8, seed: u64) -> Result<(), rust_xlsxwriter::XlsxErr
     let mut row = 1u32;
     for i in 0..240 {
         let (depot, late_scale, weight_scale) = depots[i % 3];
-        let u = rng.next();
+        let u = rng.uniform();
         let status = if u < 0.06 { "cancelled" } else if u < 0.10 { "returned" } else { "delivered" };
         // Lateness: mostly small, skewed right (sum of two exponentials), in minutes.
-        let late = round(-late_scale * (rng.next().max(1e-12).ln() + rng.next().max(1e-12).ln()) - 3.0, 1);
-        let weight = round(weight_scale * (2.0 + 18.0 * rng.next() * rng.next() + 4.0 * rng.next()), 2);
+        let late = round(-late_scale * (rng.uniform().max(1e-12).ln() + rng.uniform().max(1e-12).ln()) - 3.0, 1);
+        let weight = round(weight_scale * (2.0 + 18.0 * rng.uniform() * rng.uniform() + 4.0 * rng.uniform()), 2);
         let day = 1 + (i % 28) as u8;
         sheet.write_string(row, 0, format!("P{year}{month:02}-{i:04}"))?;
         sheet.write_string(row, 1, depot)?;

@@ -39,15 +39,22 @@ pub struct BootstrapIntervals {
     pub seed: u64,
 }
 
-struct SplitMix64(u64);
+/// A small, fixed pseudo-random generator (SplitMix64), so seeded results
+/// are the same on every machine; also used by the demo and benchmark data.
+pub struct SplitMix64(pub u64);
 
 impl SplitMix64 {
-    fn next(&mut self) -> u64 {
+    pub fn next(&mut self) -> u64 {
         self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
         let mut z = self.0;
         z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
         z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
         z ^ (z >> 31)
+    }
+
+    /// Uniform in [0, 1).
+    pub fn uniform(&mut self) -> f64 {
+        (self.next() >> 11) as f64 / (1u64 << 53) as f64
     }
 
     /// Uniform in 0..n without modulo bias (Lemire 2019, multiply and reject).

@@ -17,7 +17,7 @@ mod sample;
 mod summation;
 mod undefined;
 
-pub use bootstrap::{BootstrapIntervals, Interval, bootstrap_intervals, resamples_for, DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET, MIN_RESAMPLES};
+pub use bootstrap::{SplitMix64, BootstrapIntervals, Interval, bootstrap_intervals, resamples_for, DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET, MIN_RESAMPLES};
 pub use histogram::{BinRule, Histogram, binned_mode, histogram, MAX_BINS};
 pub use moments::{Denominator, Moments};
 pub use order::{bowley, iqr, mad, median, modes, quartile, trimmed_mean, winsorized_mean, MAD_NORMAL_SCALE};
