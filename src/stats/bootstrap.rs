@@ -44,7 +44,7 @@ pub struct BootstrapIntervals {
 pub struct SplitMix64(pub u64);
 
 impl SplitMix64 {
-    pub fn next(&mut self) -> u64 {
+    pub fn next_u64(&mut self) -> u64 {
         self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
         let mut z = self.0;
         z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
@@ -54,7 +54,7 @@ impl SplitMix64 {
 
     /// Uniform in [0, 1).
     pub fn uniform(&mut self) -> f64 {
-        (self.next() >> 11) as f64 / (1u64 << 53) as f64
+        (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
     }
 
     /// Uniform in 0..n without modulo bias (Lemire 2019, multiply and reject).
@@ -67,7 +67,7 @@ impl SplitMix64 {
     #[inline]
     fn below_with(&mut self, n: u64, threshold: u64) -> u64 {
         loop {
-            let wide = u128::from(self.next()) * u128::from(n);
+            let wide = u128::from(self.next_u64()) * u128::from(n);
             if (wide as u64) >= threshold {
                 return (wide >> 64) as u64;
             }

@@ -65,7 +65,6 @@ pub fn about(workbook: &mut Workbook, names: &mut SheetNames, results: &Results,
     for (i, c) in CONVENTIONS.iter().enumerate() {
         pair(if i == 0 { "conventions" } else { "" }, c.to_string())?;
     }
-    drop(pair);
     r += 1;
     sheet.write_string_with_format(r, 0, "cells counted as missing", &style::title())?;
     r += 1;
