@@ -288,17 +288,19 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
                 let scope = Scope::new(table, &lets, &rows);
                 // Gather each (group, column) sample, then compute the panels in
                 // parallel: they are independent and the robustness checks dominate.
+                let all_groups = groups(&scope, per)?;
                 let mut jobs = Vec::new();
-                for (group, group_rows) in groups(&scope, per)? {
-                    let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
+                for (g, (group, group_rows)) in all_groups.iter().enumerate() {
+                    let group_scope = Scope::new(table, &lets, group_rows).grouped(group, &context);
                     for column in columns {
                         let sample = Sample::from_column(group_scope.column(&column.name).numbers());
-                        jobs.push((group.clone(), column.name.clone(), sample, group_rows.clone()));
+                        jobs.push((g, column.name.clone(), sample));
                     }
                 }
                 let entries: Vec<PanelEntry> = jobs
                     .par_iter()
-                    .map(|(group, column, sample, group_rows)| {
+                    .map(|(g, column, sample)| {
+                        let (group, group_rows) = &all_groups[*g];
                         let address = |i: usize| source_cell(table, &sources, column, group_rows[sample.positions()[i] as usize]);
                         PanelEntry {
                             group: group.clone(),

@@ -55,29 +55,44 @@ pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<T
         .has_headers(false)
         .flexible(true)
         .from_reader(text.as_bytes());
-    let mut records = Vec::new();
-    for result in reader.records() {
-        let record = result.map_err(|e| LoadError::Malformed { path: path.clone(), reason: e.to_string() })?;
-        records.push(record);
-    }
-    if records.is_empty() {
-        return Err(LoadError::EmptySheet { path, sheet });
-    }
-    if records.len() < header_row as usize {
-        return Err(LoadError::NoHeaderRow { path, sheet, row: header_row });
-    }
-    let body = &records[header_row as usize..];
-    let width = records.iter().map(|r| r.len()).max().unwrap_or(0);
-    let header = &records[header_row as usize - 1];
-    let mut grid: Vec<Vec<Cell>> = vec![Vec::with_capacity(body.len()); width];
-    for record in body {
+    // Stream the records into columns: only the header rows are kept whole.
+    let mut header: Option<csv::StringRecord> = None;
+    let mut grid: Vec<Vec<Cell>> = Vec::new();
+    let (mut seen, mut body_rows) = (0usize, 0usize);
+    let mut record = csv::StringRecord::new();
+    loop {
+        match reader.read_record(&mut record) {
+            Ok(false) => break,
+            Ok(true) => {}
+            Err(e) => return Err(LoadError::Malformed { path: path.clone(), reason: e.to_string() }),
+        }
+        seen += 1;
+        if seen < header_row as usize {
+            continue;
+        }
+        if seen == header_row as usize {
+            grid = vec![Vec::new(); record.len()];
+            header = Some(record.clone());
+            continue;
+        }
+        if record.len() > grid.len() {
+            grid.resize(record.len(), vec![Cell::Blank; body_rows]);
+        }
         for (c, column) in grid.iter_mut().enumerate() {
             column.push(record.get(c).map_or(Cell::Blank, parse_field));
         }
+        body_rows += 1;
     }
+    if seen == 0 {
+        return Err(LoadError::EmptySheet { path, sheet });
+    }
+    let Some(header) = header else {
+        return Err(LoadError::NoHeaderRow { path, sheet, row: header_row });
+    };
+    let width = grid.len();
     let names: Vec<String> = (0..width).map(|c| header.get(c).unwrap_or("").trim().to_string()).collect();
     let columns = build_columns(&path, names, grid, header_row)?;
-    Ok(Table { source, sheet, header_row, columns, rows: body.len() })
+    Ok(Table { source, sheet, header_row, columns, rows: body_rows })
 }
 
 /// Named columns from header names and cells, refusing blank and duplicate headers.
