@@ -3,12 +3,18 @@
 //! Run: cargo run --release --example bench_data -- bench/data
 use std::io::{BufWriter, Write};
 
-use sheaf::stats::SplitMix64;
 use rust_xlsxwriter::Workbook;
-
+use sheaf::stats::SplitMix64;
 
 const GROUPS: [&str; 5] = ["North", "Harbour", "Ridge", "Valley", "Airport"];
-const COLUMNS: [&str; 6] = ["minutes_late", "weight_kg", "distance_km", "stops", "fuel_l", "parcel_value"];
+const COLUMNS: [&str; 6] = [
+    "minutes_late",
+    "weight_kg",
+    "distance_km",
+    "stops",
+    "fuel_l",
+    "parcel_value",
+];
 
 fn row(rng: &mut SplitMix64) -> (usize, [f64; 6]) {
     let g = (rng.uniform() * 5.0) as usize % 5;
@@ -25,14 +31,20 @@ fn row(rng: &mut SplitMix64) -> (usize, [f64; 6]) {
 }
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
-    let dir = std::env::args().nth(1).unwrap_or_else(|| "bench/data".into());
+    let dir = std::env::args()
+        .nth(1)
+        .unwrap_or_else(|| "bench/data".into());
     std::fs::create_dir_all(&dir)?;
     let mut rng = SplitMix64(2026);
     let mut csv = BufWriter::new(std::fs::File::create(format!("{dir}/deliveries-1m.csv"))?);
     writeln!(csv, "depot,{}", COLUMNS.join(","))?;
     for _ in 0..1_000_000 {
         let (g, v) = row(&mut rng);
-        writeln!(csv, "{},{},{},{},{},{},{}", GROUPS[g], v[0], v[1], v[2], v[3], v[4], v[5])?;
+        writeln!(
+            csv,
+            "{},{},{},{},{},{},{}",
+            GROUPS[g], v[0], v[1], v[2], v[3], v[4], v[5]
+        )?;
     }
     csv.flush()?;
     let mut workbook = Workbook::new();

@@ -8,11 +8,15 @@ fn main() {
     };
     let source = std::fs::read_to_string(path).expect("readable recipe");
     let headers = args[1..].to_vec();
-    let parsed = sheaf::recipe::parse_and_check(&source, (!headers.is_empty()).then_some(&headers[..]));
+    let parsed =
+        sheaf::recipe::parse_and_check(&source, (!headers.is_empty()).then_some(&headers[..]));
     if parsed.is_ok() {
         print!("{}", sheaf::recipe::pretty::recipe(&parsed.recipe));
     } else {
-        eprint!("{}", sheaf::recipe::render_all(&parsed.diagnostics, path, &source));
+        eprint!(
+            "{}",
+            sheaf::recipe::render_all(&parsed.diagnostics, path, &source)
+        );
         std::process::exit(2);
     }
 }

@@ -8,7 +8,11 @@ pub fn shortest(x: f64) -> String {
     }
     let plain = format!("{x}");
     let scientific = format!("{x:e}");
-    if scientific.len() < plain.len() { scientific } else { plain }
+    if scientific.len() < plain.len() {
+        scientific
+    } else {
+        plain
+    }
 }
 
 /// A number rounded to `digits` significant digits, for labels.
@@ -30,7 +34,12 @@ pub fn date(serial: f64) -> String {
     if seconds == 0 {
         format!("{y:04}-{m:02}-{d:02}")
     } else {
-        format!("{y:04}-{m:02}-{d:02} {:02}:{:02}:{:02}", seconds / 3600, seconds / 60 % 60, seconds % 60)
+        format!(
+            "{y:04}-{m:02}-{d:02} {:02}:{:02}:{:02}",
+            seconds / 3600,
+            seconds / 60 % 60,
+            seconds % 60
+        )
     }
 }
 
@@ -39,7 +48,11 @@ pub fn date(serial: f64) -> String {
 pub fn serial_from_iso(text: &str) -> Option<f64> {
     let (date, time) = text.split_once('T').unwrap_or((text, ""));
     let mut parts = date.splitn(3, '-');
-    let (y, m, d): (i64, u32, u32) = (parts.next()?.parse().ok()?, parts.next()?.parse().ok()?, parts.next()?.parse().ok()?);
+    let (y, m, d): (i64, u32, u32) = (
+        parts.next()?.parse().ok()?,
+        parts.next()?.parse().ok()?,
+        parts.next()?.parse().ok()?,
+    );
     if !(1..=12).contains(&m) || !(1..=31).contains(&d) {
         return None;
     }
@@ -84,7 +97,16 @@ mod tests {
 
     #[test]
     fn shortest_round_trips() {
-        for x in [3.0, 0.1, 1e-7, -2.5, 123456789.125, 1e300, f64::MIN_POSITIVE, 0.30000000000000004] {
+        for x in [
+            3.0,
+            0.1,
+            1e-7,
+            -2.5,
+            123456789.125,
+            1e300,
+            f64::MIN_POSITIVE,
+            0.30000000000000004,
+        ] {
             assert_eq!(shortest(x).parse::<f64>().unwrap(), x);
         }
         assert_eq!(shortest(3.0), "3");
@@ -111,7 +133,12 @@ pub fn timestamp(seconds: u64) -> String {
     let days = (seconds / 86_400) as i64;
     let (y, m, d) = civil_from_days(days);
     let s = seconds % 86_400;
-    format!("{y:04}-{m:02}-{d:02} {:02}:{:02}:{:02} UTC", s / 3600, s / 60 % 60, s % 60)
+    format!(
+        "{y:04}-{m:02}-{d:02} {:02}:{:02}:{:02} UTC",
+        s / 3600,
+        s / 60 % 60,
+        s % 60
+    )
 }
 
 #[cfg(test)]
@@ -119,6 +146,9 @@ mod timestamp_tests {
     #[test]
     fn epoch_and_a_known_day() {
         assert_eq!(super::timestamp(0), "1970-01-01 00:00:00 UTC");
-        assert_eq!(super::timestamp(86_400 * 365 + 3_661), "1971-01-01 01:01:01 UTC");
+        assert_eq!(
+            super::timestamp(86_400 * 365 + 3_661),
+            "1971-01-01 01:01:01 UTC"
+        );
     }
 }

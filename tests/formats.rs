@@ -13,7 +13,10 @@ fn path(relative: &str) -> PathBuf {
 fn xlsx_ods_and_xls_load_alike() {
     let options = LoadOptions::default();
     let xlsx = load::load(&path("workbooks/depot-2026-10.xlsx"), &options).unwrap();
-    for other in ["tests/fixtures/depot-2026-10.ods", "tests/fixtures/depot-2026-10.xls"] {
+    for other in [
+        "tests/fixtures/depot-2026-10.ods",
+        "tests/fixtures/depot-2026-10.xls",
+    ] {
         let t = load::load(&path(other), &options).unwrap();
         assert_eq!(t.sheet, "Deliveries", "{other}");
         assert_eq!(t.headers(), xlsx.headers(), "{other}");
@@ -22,7 +25,9 @@ fn xlsx_ods_and_xls_load_alike() {
             assert_eq!(a.kind, b.kind, "{other} {}", a.name);
             for (row, (x, y)) in a.cells.iter().zip(&b.cells).enumerate() {
                 let same = match (x, y) {
-                    (Cell::Number(p), Cell::Number(q)) | (Cell::Date(p), Cell::Date(q)) => (p - q).abs() < 1e-9,
+                    (Cell::Number(p), Cell::Number(q)) | (Cell::Date(p), Cell::Date(q)) => {
+                        (p - q).abs() < 1e-9
+                    }
                     _ => x == y,
                 };
                 assert!(same, "{other} {} row {row}: {x:?} vs {y:?}", a.name);
@@ -33,8 +38,29 @@ fn xlsx_ods_and_xls_load_alike() {
 
 #[test]
 fn a_missing_sheet_names_the_ones_there() {
-    let e = load::load(&path("tests/fixtures/depot-2026-10.ods"), &LoadOptions { sheet: Some("Sheet9".into()), header_row: None }).unwrap_err();
-    assert!(e.to_string().contains("no sheet named \"Sheet9\"; the sheets are: \"Deliveries\""), "{e}");
-    let e = load::load(&path("workbooks/depot-2026-10.xlsx"), &LoadOptions { sheet: None, header_row: Some(500) }).unwrap_err();
-    assert!(e.to_string().contains("row 500 cannot be the header row"), "{e}");
+    let e = load::load(
+        &path("tests/fixtures/depot-2026-10.ods"),
+        &LoadOptions {
+            sheet: Some("Sheet9".into()),
+            header_row: None,
+        },
+    )
+    .unwrap_err();
+    assert!(
+        e.to_string()
+            .contains("no sheet named \"Sheet9\"; the sheets are: \"Deliveries\""),
+        "{e}"
+    );
+    let e = load::load(
+        &path("workbooks/depot-2026-10.xlsx"),
+        &LoadOptions {
+            sheet: None,
+            header_row: Some(500),
+        },
+    )
+    .unwrap_err();
+    assert!(
+        e.to_string().contains("row 500 cannot be the header row"),
+        "{e}"
+    );
 }

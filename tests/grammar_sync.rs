@@ -47,7 +47,12 @@ fn guide_examples_parse_and_check() {
     assert!(examples.len() >= 2);
     for example in examples {
         let parsed = recipe::parse_and_check(&example, None);
-        assert!(parsed.is_ok(), "{}\n{}", example, recipe::render_all(&parsed.diagnostics, "guide", &example));
+        assert!(
+            parsed.is_ok(),
+            "{}\n{}",
+            example,
+            recipe::render_all(&parsed.diagnostics, "guide", &example)
+        );
     }
 }
 
@@ -57,7 +62,10 @@ fn guide_counter_examples_are_refused() {
     let refused = fenced_blocks(&guide, "invalid");
     assert!(refused.len() >= 3);
     for example in refused {
-        assert!(!recipe::parse_and_check(&example, None).is_ok(), "accepted:\n{example}");
+        assert!(
+            !recipe::parse_and_check(&example, None).is_ok(),
+            "accepted:\n{example}"
+        );
     }
 }
 
@@ -70,7 +78,11 @@ fn workbook_recipes_parse_and_check() {
         if path.extension().is_some_and(|e| e == "sheaf") {
             let text = std::fs::read_to_string(&path).unwrap();
             let parsed = recipe::parse_and_check(&text, None);
-            assert!(parsed.is_ok(), "{}", recipe::render_all(&parsed.diagnostics, &path.display().to_string(), &text));
+            assert!(
+                parsed.is_ok(),
+                "{}",
+                recipe::render_all(&parsed.diagnostics, &path.display().to_string(), &text)
+            );
             seen += 1;
         }
     }
@@ -86,27 +98,66 @@ fn grammar_word_lists_match_the_parser() {
     assert_eq!(keywords, ours, "keywords");
 
     let rules = grammar_list("bin rules");
-    assert_eq!(rules, recipe::BIN_RULES.iter().map(|s| s.to_string()).collect::<Vec<_>>(), "bin rules");
+    assert_eq!(
+        rules,
+        recipe::BIN_RULES
+            .iter()
+            .map(|s| s.to_string())
+            .collect::<Vec<_>>(),
+        "bin rules"
+    );
 
     use sheaf::recipe::functions::FunctionKind;
-    let names = |kind| FUNCTIONS.iter().filter(|f| f.kind == kind).map(|f| f.name.to_string()).collect::<Vec<_>>();
-    assert_eq!(grammar_list("aggregates"), names(FunctionKind::Aggregate), "aggregates");
-    assert_eq!(grammar_list("row functions"), names(FunctionKind::Row), "row functions");
-    assert_eq!(grammar_list("comparisons"), names(FunctionKind::Comparison), "comparisons");
+    let names = |kind| {
+        FUNCTIONS
+            .iter()
+            .filter(|f| f.kind == kind)
+            .map(|f| f.name.to_string())
+            .collect::<Vec<_>>()
+    };
+    assert_eq!(
+        grammar_list("aggregates"),
+        names(FunctionKind::Aggregate),
+        "aggregates"
+    );
+    assert_eq!(
+        grammar_list("row functions"),
+        names(FunctionKind::Row),
+        "row functions"
+    );
+    assert_eq!(
+        grammar_list("comparisons"),
+        names(FunctionKind::Comparison),
+        "comparisons"
+    );
 
     // Every statement word of the grammar starts a statement the parser knows.
     for word in grammar_list("statements") {
         let parsed = recipe::parse(&format!("{word}\n"));
         let message = &parsed.diagnostics[0].message;
-        assert!(!message.starts_with("unknown statement"), "`{word}`: {message}");
+        assert!(
+            !message.starts_with("unknown statement"),
+            "`{word}`: {message}"
+        );
     }
-    assert!(recipe::parse("tally \"x\"\n").diagnostics[0].message.starts_with("unknown statement"));
+    assert!(
+        recipe::parse("tally \"x\"\n").diagnostics[0]
+            .message
+            .starts_with("unknown statement")
+    );
 }
 
 #[test]
 fn grammar_limits_match_the_parser() {
     let grammar = read("grammar/sheaf.peg");
-    for (limit, value) in [("nests at most", recipe::MAX_NESTING), ("at most", recipe::MAX_CHAIN), ("at most", recipe::MAX_DEPTH)] {
-        assert!(grammar.contains(&format!("{limit} {value}")), "grammar/sheaf.peg does not state the limit {value}");
+    for (limit, value) in [
+        ("nests at most", recipe::MAX_NESTING),
+        ("at most", recipe::MAX_CHAIN),
+        ("at most", recipe::MAX_DEPTH),
+    ] {
+        assert!(
+            grammar.contains(&format!("{limit} {value}")),
+            "grammar/sheaf.peg does not state the limit {value}"
+        );
     }
 }

@@ -9,7 +9,8 @@ use proptest::prelude::*;
 use sheaf::load::{self, Cell, LoadOptions};
 
 fn demo() -> Vec<u8> {
-    std::fs::read(PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("workbooks/depot-2026-10.xlsx")).unwrap()
+    std::fs::read(PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("workbooks/depot-2026-10.xlsx"))
+        .unwrap()
 }
 
 fn write(dir: &Path, name: &str, bytes: &[u8]) -> PathBuf {
@@ -19,7 +20,10 @@ fn write(dir: &Path, name: &str, bytes: &[u8]) -> PathBuf {
 }
 
 fn error_of(path: &Path) -> String {
-    load::load(path, &LoadOptions::default()).map(|_| ()).unwrap_err().to_string()
+    load::load(path, &LoadOptions::default())
+        .map(|_| ())
+        .unwrap_err()
+        .to_string()
 }
 
 #[test]
@@ -43,7 +47,8 @@ fn truncated_and_random_workbooks_are_refused() {
 fn a_zip_bomb_is_refused_before_it_is_inflated() {
     let dir = tempfile::tempdir().unwrap();
     let mut zip = zip::ZipWriter::new(std::io::Cursor::new(Vec::new()));
-    let stored = zip::write::SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
+    let stored =
+        zip::write::SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
     zip.start_file("[Content_Types].xml", stored).unwrap();
     zip.write_all(b"<Types/>").unwrap();
     zip.start_file("xl/worksheets/sheet1.xml", stored).unwrap();
@@ -64,9 +69,16 @@ fn a_zip_bomb_is_refused_before_it_is_inflated() {
 #[test]
 fn csv_with_mixed_encodings_names_the_line() {
     let dir = tempfile::tempdir().unwrap();
-    let path = write(dir.path(), "mixed.csv", b"depot,weight\nNorth,2\nM\xfcnster,3\n");
+    let path = write(
+        dir.path(),
+        "mixed.csv",
+        b"depot,weight\nNorth,2\nM\xfcnster,3\n",
+    );
     let e = error_of(&path);
-    assert!(e.contains("mixed.csv") && e.contains("line 3 is not UTF-8"), "{e}");
+    assert!(
+        e.contains("mixed.csv") && e.contains("line 3 is not UTF-8"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -89,7 +101,13 @@ fn error_values_count_as_formula_errors_with_their_cells() {
     let sheet = workbook.add_worksheet();
     sheet.write_string(0, 0, "weight_kg").unwrap();
     sheet.write_number(1, 0, 2.0).unwrap();
-    sheet.write_formula(2, 0, rust_xlsxwriter::Formula::new("=1/0").set_result("#DIV/0!")).unwrap();
+    sheet
+        .write_formula(
+            2,
+            0,
+            rust_xlsxwriter::Formula::new("=1/0").set_result("#DIV/0!"),
+        )
+        .unwrap();
     sheet.write_number(3, 0, 4.0).unwrap();
     workbook.save(&path).unwrap();
     let t = load::load(&path, &LoadOptions::default()).unwrap();
@@ -111,14 +129,29 @@ fn a_million_group_keys_end_in_a_clear_error() {
         text.push_str(&format!("k{i},{}\n", i % 7));
     }
     let data = write(dir.path(), "keys.csv", text.as_bytes());
-    let recipe = write(dir.path(), "r.sheaf", b"figures \"F\" per key:\n    m = mean(x)\n");
+    let recipe = write(
+        dir.path(),
+        "r.sheaf",
+        b"figures \"F\" per key:\n    m = mean(x)\n",
+    );
     let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
-        .args(["run", recipe.to_str().unwrap(), "--data", data.to_str().unwrap(), "--out", "o.xlsx"])
+        .args([
+            "run",
+            recipe.to_str().unwrap(),
+            "--data",
+            data.to_str().unwrap(),
+            "--out",
+            "o.xlsx",
+        ])
         .current_dir(dir.path())
         .output()
         .unwrap();
     assert_eq!(o.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&o.stderr).contains("more than 100000 groups"), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(
+        String::from_utf8_lossy(&o.stderr).contains("more than 100000 groups"),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
     assert!(!dir.path().join("o.xlsx").exists());
 }
 
@@ -129,7 +162,14 @@ fn reruns_are_byte_for_byte_identical() {
     let mut outputs = Vec::new();
     for name in ["a.xlsx", "b.xlsx"] {
         let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
-            .args(["run", root.join("workbooks/depot-monthly.sheaf").to_str().unwrap(), "--data", root.join("workbooks/depot-2026-10.xlsx").to_str().unwrap(), "--out", name])
+            .args([
+                "run",
+                root.join("workbooks/depot-monthly.sheaf").to_str().unwrap(),
+                "--data",
+                root.join("workbooks/depot-2026-10.xlsx").to_str().unwrap(),
+                "--out",
+                name,
+            ])
             .env("SHEAF_RUN_TIME", "2026-11-01 09:00:00 UTC")
             .current_dir(dir.path())
             .output()
@@ -138,7 +178,10 @@ fn reruns_are_byte_for_byte_identical() {
         outputs.push(std::fs::read(dir.path().join(name)).unwrap());
         std::thread::sleep(std::time::Duration::from_millis(1100));
     }
-    assert!(outputs[0] == outputs[1], "two runs with the same recorded time differ");
+    assert!(
+        outputs[0] == outputs[1],
+        "two runs with the same recorded time differ"
+    );
 }
 
 proptest! {

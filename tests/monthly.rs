@@ -14,16 +14,29 @@ fn root() -> PathBuf {
 }
 
 fn sheaf(args: &[&str], dir: &Path) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_sheaf")).args(args).current_dir(dir).env("SHEAF_RUN_TIME", "2026-11-01 09:00:00 UTC").output().unwrap()
+    Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .args(args)
+        .current_dir(dir)
+        .env("SHEAF_RUN_TIME", "2026-11-01 09:00:00 UTC")
+        .output()
+        .unwrap()
 }
 
 fn text(o: &Output) -> String {
-    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
+    format!(
+        "{}{}",
+        String::from_utf8_lossy(&o.stdout),
+        String::from_utf8_lossy(&o.stderr)
+    )
 }
 
 fn cells(path: &Path, sheet: &str) -> Vec<Vec<Data>> {
     let mut wb = open_workbook_auto(path).unwrap();
-    wb.worksheet_range(sheet).unwrap().rows().map(|r| r.to_vec()).collect()
+    wb.worksheet_range(sheet)
+        .unwrap()
+        .rows()
+        .map(|r| r.to_vec())
+        .collect()
 }
 
 /// The demo months copied into `dir/months`, so a batch can add files beside them.
@@ -31,13 +44,20 @@ fn months_in(dir: &Path) -> PathBuf {
     let months = dir.join("months");
     std::fs::create_dir_all(&months).unwrap();
     for m in MONTHS {
-        std::fs::copy(root().join(format!("workbooks/{m}.xlsx")), months.join(format!("{m}.xlsx"))).unwrap();
+        std::fs::copy(
+            root().join(format!("workbooks/{m}.xlsx")),
+            months.join(format!("{m}.xlsx")),
+        )
+        .unwrap();
     }
     months
 }
 
 fn recipe() -> String {
-    root().join("workbooks/depot-monthly.sheaf").display().to_string()
+    root()
+        .join("workbooks/depot-monthly.sheaf")
+        .display()
+        .to_string()
 }
 
 #[test]
@@ -45,7 +65,10 @@ fn a_batch_reproduces_single_runs_chained_by_compare() {
     let dir = tempfile::tempdir().unwrap();
     let months = months_in(dir.path());
     let pattern = format!("{}/depot-*.xlsx", months.display());
-    let o = sheaf(&["run", &recipe(), "--data", &pattern, "--out-dir", "batch"], dir.path());
+    let o = sheaf(
+        &["run", &recipe(), "--data", &pattern, "--out-dir", "batch"],
+        dir.path(),
+    );
     assert_eq!(o.status.code(), Some(0), "{}", text(&o));
 
     // The same months one by one, each compared with the one before.
@@ -53,7 +76,14 @@ fn a_batch_reproduces_single_runs_chained_by_compare() {
     for m in MONTHS {
         let data = months.join(format!("{m}.xlsx"));
         let out = dir.path().join(format!("single-{m}.xlsx"));
-        let mut args = vec!["run".to_string(), recipe(), "--data".into(), data.display().to_string(), "--out".into(), out.display().to_string()];
+        let mut args = vec![
+            "run".to_string(),
+            recipe(),
+            "--data".into(),
+            data.display().to_string(),
+            "--out".into(),
+            out.display().to_string(),
+        ];
         if let Some(p) = &previous {
             args.extend(["--compare".into(), p.display().to_string()]);
         }
@@ -62,9 +92,17 @@ fn a_batch_reproduces_single_runs_chained_by_compare() {
         assert_eq!(o.status.code(), Some(0), "{}", text(&o));
         let batch = dir.path().join(format!("batch/{m}-summary.xlsx"));
         let names = open_workbook_auto(&out).unwrap().sheet_names();
-        assert_eq!(names, open_workbook_auto(&batch).unwrap().sheet_names(), "{m}");
+        assert_eq!(
+            names,
+            open_workbook_auto(&batch).unwrap().sheet_names(),
+            "{m}"
+        );
         for sheet in names.iter().filter(|n| *n != "About") {
-            assert_eq!(cells(&out, sheet), cells(&batch, sheet), "{m}: sheet {sheet} differs between batch and single run");
+            assert_eq!(
+                cells(&out, sheet),
+                cells(&batch, sheet),
+                "{m}: sheet {sheet} differs between batch and single run"
+            );
         }
         previous = Some(out);
     }
@@ -75,23 +113,55 @@ fn trend_rows_equal_the_single_file_figures() {
     let dir = tempfile::tempdir().unwrap();
     let months = months_in(dir.path());
     let pattern = format!("{}/depot-*.xlsx", months.display());
-    assert_eq!(sheaf(&["run", &recipe(), "--data", &pattern, "--out-dir", "out"], dir.path()).status.code(), Some(0));
+    assert_eq!(
+        sheaf(
+            &["run", &recipe(), "--data", &pattern, "--out-dir", "out"],
+            dir.path()
+        )
+        .status
+        .code(),
+        Some(0)
+    );
     let trend = cells(&dir.path().join("out/trend.xlsx"), "Trend");
     let mut checked = 0;
     for m in MONTHS {
         let period = &m["depot-".len()..];
         let single = dir.path().join(format!("{m}.xlsx"));
-        let o = sheaf(&["run", &recipe(), "--data", &months.join(format!("{m}.xlsx")).display().to_string(), "--out", &single.display().to_string()], dir.path());
+        let o = sheaf(
+            &[
+                "run",
+                &recipe(),
+                "--data",
+                &months.join(format!("{m}.xlsx")).display().to_string(),
+                "--out",
+                &single.display().to_string(),
+            ],
+            dir.path(),
+        );
         assert_eq!(o.status.code(), Some(0), "{}", text(&o));
         // The panel sheet of the single run against the trend rows of its period.
         let panel = cells(&single, "Lateness");
-        let header = panel.iter().find(|r| r[0].to_string() == "depot").unwrap().clone();
-        for row in panel.iter().skip_while(|r| r[0].to_string() != "depot").skip(1) {
+        let header = panel
+            .iter()
+            .find(|r| r[0].to_string() == "depot")
+            .unwrap()
+            .clone();
+        for row in panel
+            .iter()
+            .skip_while(|r| r[0].to_string() != "depot")
+            .skip(1)
+        {
             for label in ["mean", "median", "sd", "IQR"] {
                 let c = header.iter().position(|h| h.to_string() == label).unwrap();
                 let name = format!("{} {label}", row[1]);
-                let found = trend.iter().find(|t| t[0].to_string() == period && t[1].to_string() == "Lateness" && t[2].to_string() == row[0].to_string() && t[3].to_string() == name);
-                let found = found.unwrap_or_else(|| panic!("no trend row for {period} {name} {}", row[0]));
+                let found = trend.iter().find(|t| {
+                    t[0].to_string() == period
+                        && t[1].to_string() == "Lateness"
+                        && t[2].to_string() == row[0].to_string()
+                        && t[3].to_string() == name
+                });
+                let found =
+                    found.unwrap_or_else(|| panic!("no trend row for {period} {name} {}", row[0]));
                 assert_eq!(found[4], row[c], "{period} {name}");
                 checked += 1;
             }
@@ -106,19 +176,36 @@ fn trend_rows_equal_the_single_file_figures() {
 fn a_corrupt_file_is_named_and_the_rest_complete() {
     let dir = tempfile::tempdir().unwrap();
     let months = months_in(dir.path());
-    std::fs::write(months.join("depot-2026-11.xlsx"), b"PK\x03\x04 this is not a workbook").unwrap();
+    std::fs::write(
+        months.join("depot-2026-11.xlsx"),
+        b"PK\x03\x04 this is not a workbook",
+    )
+    .unwrap();
     let pattern = format!("{}/depot-*.xlsx", months.display());
-    let o = sheaf(&["run", &recipe(), "--data", &pattern, "--out-dir", "out"], dir.path());
+    let o = sheaf(
+        &["run", &recipe(), "--data", &pattern, "--out-dir", "out"],
+        dir.path(),
+    );
     assert_eq!(o.status.code(), Some(2), "{}", text(&o));
     let t = text(&o);
-    assert!(t.contains("skipped") && t.contains("depot-2026-11.xlsx"), "{t}");
+    assert!(
+        t.contains("skipped") && t.contains("depot-2026-11.xlsx"),
+        "{t}"
+    );
     assert!(t.contains("1 of 4 files could not be summarised"), "{t}");
     for m in MONTHS {
-        assert!(dir.path().join(format!("out/{m}-summary.xlsx")).exists(), "{m}");
+        assert!(
+            dir.path().join(format!("out/{m}-summary.xlsx")).exists(),
+            "{m}"
+        );
     }
     let trend = cells(&dir.path().join("out/trend.xlsx"), "Trend");
-    let periods: std::collections::BTreeSet<String> = trend.iter().skip(1).map(|r| r[0].to_string()).collect();
-    assert_eq!(periods.into_iter().collect::<Vec<_>>(), ["2026-08", "2026-09", "2026-10"]);
+    let periods: std::collections::BTreeSet<String> =
+        trend.iter().skip(1).map(|r| r[0].to_string()).collect();
+    assert_eq!(
+        periods.into_iter().collect::<Vec<_>>(),
+        ["2026-08", "2026-09", "2026-10"]
+    );
 }
 
 #[test]
@@ -128,7 +215,14 @@ fn compare_feeds_change_and_refuses_another_recipe() {
     let sept = dir.path().join("sept.xlsx");
     let recipe_path = recipe();
     let run = |data: &str, out: &Path, extra: &[&str]| {
-        let mut args = vec!["run", recipe_path.as_str(), "--data", data, "--out", out.to_str().unwrap()];
+        let mut args = vec![
+            "run",
+            recipe_path.as_str(),
+            "--data",
+            data,
+            "--out",
+            out.to_str().unwrap(),
+        ];
         args.extend_from_slice(extra);
         sheaf(&args, dir.path())
     };
@@ -142,26 +236,78 @@ fn compare_feeds_change_and_refuses_another_recipe() {
     // change(share(...)) per depot = |now - before| / |before| from the two Record sheets.
     let record = |p: &Path| cells(p, "Record");
     let term = |rows: &[Vec<Data>], group: &str| -> f64 {
-        let r = rows.iter().find(|r| r[0].to_string() == "(compared values)" && r[1].to_string() == group).unwrap();
-        match r[3] { Data::Float(x) => x, _ => panic!() }
+        let r = rows
+            .iter()
+            .find(|r| r[0].to_string() == "(compared values)" && r[1].to_string() == group)
+            .unwrap();
+        match r[3] {
+            Data::Float(x) => x,
+            _ => panic!(),
+        }
     };
     let checks = cells(&oct, "Checks");
     for depot in ["North", "Harbour", "Ridge"] {
         let (before, now) = (term(&record(&sept), depot), term(&record(&oct), depot));
-        let row = checks.iter().find(|r| r[0].to_string() == "steady on-time share" && r[2].to_string() == depot).unwrap();
-        let value = match row[4] { Data::Float(x) => x, ref other => panic!("{other:?}") };
-        assert!((value - (now - before).abs() / before.abs()).abs() < 1e-12, "{depot}");
+        let row = checks
+            .iter()
+            .find(|r| r[0].to_string() == "steady on-time share" && r[2].to_string() == depot)
+            .unwrap();
+        let value = match row[4] {
+            Data::Float(x) => x,
+            ref other => panic!("{other:?}"),
+        };
+        assert!(
+            (value - (now - before).abs() / before.abs()).abs() < 1e-12,
+            "{depot}"
+        );
     }
     let changes = cells(&oct, "Changes");
-    assert!(changes.iter().any(|r| r.len() > 7 && r[7].to_string() == "moved"), "some figure moves more than the 15% drift");
+    assert!(
+        changes
+            .iter()
+            .any(|r| r.len() > 7 && r[7].to_string() == "moved"),
+        "some figure moves more than the 15% drift"
+    );
 
     // A result of another recipe is refused with a clear message.
     let other = dir.path().join("other.sheaf");
     std::fs::write(&other, "figures \"F\":\n    m = mean(weight_kg)\n").unwrap();
-    let o = sheaf(&["run", other.to_str().unwrap(), "--data", &oct_data, "--out", "x.xlsx", "--compare", sept.to_str().unwrap()], dir.path());
+    let o = sheaf(
+        &[
+            "run",
+            other.to_str().unwrap(),
+            "--data",
+            &oct_data,
+            "--out",
+            "x.xlsx",
+            "--compare",
+            sept.to_str().unwrap(),
+        ],
+        dir.path(),
+    );
     assert_eq!(o.status.code(), Some(2));
-    assert!(text(&o).contains("was made by a different recipe"), "{}", text(&o));
-    let o = sheaf(&["run", &recipe(), "--data", &oct_data, "--out", "y.xlsx", "--compare", &oct_data], dir.path());
+    assert!(
+        text(&o).contains("was made by a different recipe"),
+        "{}",
+        text(&o)
+    );
+    let o = sheaf(
+        &[
+            "run",
+            &recipe(),
+            "--data",
+            &oct_data,
+            "--out",
+            "y.xlsx",
+            "--compare",
+            &oct_data,
+        ],
+        dir.path(),
+    );
     assert_eq!(o.status.code(), Some(2));
-    assert!(text(&o).contains("not a sheaf result workbook"), "{}", text(&o));
+    assert!(
+        text(&o).contains("not a sheaf result workbook"),
+        "{}",
+        text(&o)
+    );
 }

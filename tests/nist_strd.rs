@@ -25,14 +25,21 @@ fn lre(computed: f64, certified: f64) -> f64 {
         return 16.0;
     }
     let err = (computed - certified).abs();
-    if certified == 0.0 { -err.log10() } else { -(err / certified.abs()).log10() }
+    if certified == 0.0 {
+        -err.log10()
+    } else {
+        -(err / certified.abs()).log10()
+    }
 }
 
 /// NumAcc2-4 construction: the first value is BASE.2, then BASE.1 and BASE.3
 /// alternate 500 times each (1001 values).
 fn num_acc(base: &str) -> Vec<f64> {
     let mut values = vec![format!("{base}.2").parse().unwrap()];
-    let (low, high): (f64, f64) = (format!("{base}.1").parse().unwrap(), format!("{base}.3").parse().unwrap());
+    let (low, high): (f64, f64) = (
+        format!("{base}.1").parse().unwrap(),
+        format!("{base}.3").parse().unwrap(),
+    );
     for _ in 0..500 {
         values.push(low);
         values.push(high);
@@ -85,10 +92,17 @@ fn pi_digits(count: usize) -> Vec<u8> {
 fn exact_sd_of_doubles(values: &[f64]) -> f64 {
     let bits = values
         .iter()
-        .map(|&x| (0..1075).find(|&k| (x * 2f64.powi(k)).fract() == 0.0).unwrap())
+        .map(|&x| {
+            (0..1075)
+                .find(|&k| (x * 2f64.powi(k)).fract() == 0.0)
+                .unwrap()
+        })
         .max()
         .unwrap();
-    let scaled: Vec<i128> = values.iter().map(|&x| (x * 2f64.powi(bits)) as i128).collect();
+    let scaled: Vec<i128> = values
+        .iter()
+        .map(|&x| (x * 2f64.powi(bits)) as i128)
+        .collect();
     let n = scaled.len() as i128;
     let sum: i128 = scaled.iter().sum();
     let sum_sq: i128 = scaled.iter().map(|x| x * x).sum();
@@ -99,15 +113,27 @@ fn exact_sd_of_doubles(values: &[f64]) -> f64 {
 fn check(name: &str, values: &[f64], mean: f64, sd: f64, sd_digits_required: f64) {
     let s = Sample::from_values(values.iter().copied());
     let (m, d) = (s.mean().unwrap(), s.sd(Denominator::Sample).unwrap());
-    assert!(lre(m, mean) >= 13.0, "{name}: mean {m} has LRE {:.1} against {mean}", lre(m, mean));
-    assert!(lre(d, sd) >= sd_digits_required, "{name}: sd {d} has LRE {:.1} against {sd}", lre(d, sd));
+    assert!(
+        lre(m, mean) >= 13.0,
+        "{name}: mean {m} has LRE {:.1} against {mean}",
+        lre(m, mean)
+    );
+    assert!(
+        lre(d, sd) >= sd_digits_required,
+        "{name}: sd {d} has LRE {:.1} against {sd}",
+        lre(d, sd)
+    );
 }
 
 #[test]
 fn pi_digits_come_out_right() {
     // The first 50 digits and the six 9s that start at the 762nd decimal.
     let digits = pi_digits(5000);
-    let text: String = digits.iter().take(50).map(|d| char::from(b'0' + d)).collect();
+    let text: String = digits
+        .iter()
+        .take(50)
+        .map(|d| char::from(b'0' + d))
+        .collect();
     assert_eq!(text, "31415926535897932384626433832795028841971693993751");
     assert_eq!(&digits[762..768], &[9; 6]);
     assert_eq!(digits.len(), 5000);
@@ -116,7 +142,13 @@ fn pi_digits_come_out_right() {
 #[test]
 fn num_acc_1() {
     // Certified: mean 10000002, sd 1 (values 10000001, 10000003, 10000002).
-    check("NumAcc1", &[10000001.0, 10000003.0, 10000002.0], 10000002.0, 1.0, 13.0);
+    check(
+        "NumAcc1",
+        &[10000001.0, 10000003.0, 10000002.0],
+        10000002.0,
+        1.0,
+        13.0,
+    );
 }
 
 #[test]
@@ -129,13 +161,17 @@ fn num_acc_2() {
 #[test]
 fn num_acc_3_and_4() {
     // Certified: mean 1000000.2 and 10000000.2, sd 0.1 for both.
-    for (name, base, certified_mean, representable_digits) in
-        [("NumAcc3", "1000000", 1000000.2, 9.0), ("NumAcc4", "10000000", 10000000.2, 8.0)]
-    {
+    for (name, base, certified_mean, representable_digits) in [
+        ("NumAcc3", "1000000", 1000000.2, 9.0),
+        ("NumAcc4", "10000000", 10000000.2, 8.0),
+    ] {
         let values = num_acc(base);
         let exact = exact_sd_of_doubles(&values);
         // How far the stored doubles themselves are from the decimal data.
-        assert!(lre(exact, 0.1) >= representable_digits, "{name}: exact sd {exact}");
+        assert!(
+            lre(exact, 0.1) >= representable_digits,
+            "{name}: exact sd {exact}"
+        );
         check(name, &values, certified_mean, exact, 13.0);
         check(name, &values, certified_mean, 0.1, representable_digits);
     }
@@ -147,9 +183,14 @@ fn the_textbook_one_pass_formula_fails_num_acc_4() {
     // cancels catastrophically at this offset.
     let values = num_acc("10000000");
     let n = values.len() as f64;
-    let (sum, sum_sq) = values.iter().fold((0.0, 0.0), |(s, q), x| (s + x, q + x * x));
+    let (sum, sum_sq) = values
+        .iter()
+        .fold((0.0, 0.0), |(s, q), x| (s + x, q + x * x));
     let naive = ((sum_sq - sum * sum / n) / (n - 1.0)).abs().sqrt();
-    assert!(lre(naive, exact_sd_of_doubles(&values)) < 13.0, "naive sd {naive}");
+    assert!(
+        lre(naive, exact_sd_of_doubles(&values)) < 13.0,
+        "naive sd {naive}"
+    );
 }
 
 /// NIST's PiDigits file is not exactly the first 5000 digits of pi: its
@@ -172,6 +213,9 @@ fn pi_digits_dataset() {
     let sum_sq: i64 = digits.iter().map(|&d| i64::from(d).pow(2)).sum();
     assert_eq!(sum, 22674, "4.5348 * 5000");
     let exact_sd = (((5000 * sum_sq - sum * sum) as f64) / (5000.0 * 4999.0)).sqrt();
-    assert!(lre(exact_sd, 2.86733906028871) >= 14.0, "exact sd {exact_sd}");
+    assert!(
+        lre(exact_sd, 2.86733906028871) >= 14.0,
+        "exact sd {exact_sd}"
+    );
     check("PiDigits", &values, 4.5348, 2.86733906028871, 13.0);
 }

@@ -25,23 +25,42 @@ fn magnitude(values: &[f64]) -> f64 {
 
 fn location(s: &Sample) -> Vec<Stat> {
     let hf7 = QuantileMethod::default();
-    vec![s.mean(), median(s), quartile(s, 1, hf7), quartile(s, 3, hf7), s.min(), s.max(), trimmed_mean(s, 0.1)]
+    vec![
+        s.mean(),
+        median(s),
+        quartile(s, 1, hf7),
+        quartile(s, 3, hf7),
+        s.min(),
+        s.max(),
+        trimmed_mean(s, 0.1),
+    ]
 }
 
 fn spread(s: &Sample) -> Vec<Stat> {
     let hf7 = QuantileMethod::default();
-    vec![s.sd(Denominator::Sample), iqr(s, hf7), mad(s, false), s.range()]
+    vec![
+        s.sd(Denominator::Sample),
+        iqr(s, hf7),
+        mad(s, false),
+        s.range(),
+    ]
 }
 
 /// Shape statistics are ratios of nearly equal quantities; near-constant
 /// data may only be compared when the spread is not dominated by rounding.
 fn shape(s: &Sample) -> Vec<Stat> {
-    vec![s.skewness(false), s.kurtosis(false), s.excess_kurtosis(true), bowley(s, QuantileMethod::default())]
+    vec![
+        s.skewness(false),
+        s.kurtosis(false),
+        s.excess_kurtosis(true),
+        bowley(s, QuantileMethod::default()),
+    ]
 }
 
 fn well_spread(values: &[f64]) -> bool {
     let s = Sample::from_values(values.iter().copied());
-    s.sd(Denominator::Population).is_ok_and(|sd| sd > 1e-3 * magnitude(values).max(1.0))
+    s.sd(Denominator::Population)
+        .is_ok_and(|sd| sd > 1e-3 * magnitude(values).max(1.0))
         && iqr(&s, QuantileMethod::default()).is_ok_and(|q| q > 1e-3 * magnitude(values).max(1.0))
 }
 
@@ -132,15 +151,22 @@ fn bootstrap_mean_interval_has_the_textbook_width() {
     // A deterministic, roughly normal sample: sums of 12 uniforms minus 6.
     let mut state = 42u64;
     let mut uniform = || {
-        state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+        state = state
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
         (state >> 11) as f64 / (1u64 << 53) as f64
     };
-    let values: Vec<f64> = (0..400).map(|_| (0..12).map(|_| uniform()).sum::<f64>() - 6.0).collect();
+    let values: Vec<f64> = (0..400)
+        .map(|_| (0..12).map(|_| uniform()).sum::<f64>() - 6.0)
+        .collect();
     let s = Sample::from_values(values);
     let b = bootstrap_intervals(&s, DEFAULT_RESAMPLES, 0.95, DEFAULT_SEED).unwrap();
     let textbook = 1.96 * s.sd(Denominator::Sample).unwrap() / 20.0;
     let half = (b.mean.high - b.mean.low) / 2.0;
-    assert!((half / textbook - 1.0).abs() < 0.1, "half-width {half} vs {textbook}");
+    assert!(
+        (half / textbook - 1.0).abs() < 0.1,
+        "half-width {half} vs {textbook}"
+    );
     let mean = s.mean().unwrap();
     assert!(b.mean.low < mean && mean < b.mean.high);
 }

@@ -8,95 +8,503 @@ const HEADERS: &[&str] = &["Minutes late", "weight_kg", "status", "depot", "regi
 /// (recipe, check with the headers?, part of the message, line, column)
 const CASES: &[(&str, bool, &str, usize, usize)] = &[
     // Statements and layout.
-    ("chek \"c\" warn: 1 < 2\n", false, "unknown statement `chek`", 1, 1),
+    (
+        "chek \"c\" warn: 1 < 2\n",
+        false,
+        "unknown statement `chek`",
+        1,
+        1,
+    ),
     ("= mean(weight_kg)\n", false, "expected a statement", 1, 1),
-    ("title Depot\n", false, "expected the title in double quotes", 1, 7),
-    ("title \"Depot\" \"again\"\n", false, "unexpected `\"`", 1, 15),
+    (
+        "title Depot\n",
+        false,
+        "expected the title in double quotes",
+        1,
+        7,
+    ),
+    (
+        "title \"Depot\" \"again\"\n",
+        false,
+        "unexpected `\"`",
+        1,
+        15,
+    ),
     ("title \"Depot\n", false, "this string is not closed", 1, 7),
-    ("title \"a\"\ntitle \"b\"\n", false, "a second `title`", 2, 1),
-    ("  let x = 1\n", false, "indented but no block is open", 1, 3),
-    ("let x = 1\n    y = 2\n", false, "indented but no block is open", 2, 5),
+    (
+        "title \"a\"\ntitle \"b\"\n",
+        false,
+        "a second `title`",
+        2,
+        1,
+    ),
+    (
+        "  let x = 1\n",
+        false,
+        "indented but no block is open",
+        1,
+        3,
+    ),
+    (
+        "let x = 1\n    y = 2\n",
+        false,
+        "indented but no block is open",
+        2,
+        5,
+    ),
     ("figures \"F\" per depot:\n", false, "has no figures", 1, 1),
-    ("panel \"P\" of weight_kg:\n    n = count(weight_kg)\n", false, "a panel takes no lines", 2, 5),
-    ("let x = 1\n\tlet y = 2\n", false, "a tab in the indentation", 2, 1),
+    (
+        "panel \"P\" of weight_kg:\n    n = count(weight_kg)\n",
+        false,
+        "a panel takes no lines",
+        2,
+        5,
+    ),
+    (
+        "let x = 1\n\tlet y = 2\n",
+        false,
+        "a tab in the indentation",
+        2,
+        1,
+    ),
     // input
-    ("input sheet Deliveries\n", false, "expected the sheet name in double quotes", 1, 13),
+    (
+        "input sheet Deliveries\n",
+        false,
+        "expected the sheet name in double quotes",
+        1,
+        13,
+    ),
     ("input header row 0\n", false, "counted from 1", 1, 18),
-    ("input header 1\n", false, "expected `row` after `header`", 1, 14),
-    ("input page \"x\"\n", false, "unknown input setting `page`", 1, 7),
+    (
+        "input header 1\n",
+        false,
+        "expected `row` after `header`",
+        1,
+        14,
+    ),
+    (
+        "input page \"x\"\n",
+        false,
+        "unknown input setting `page`",
+        1,
+        7,
+    ),
     // let
-    ("let = 3\n", false, "expected the name of the new column", 1, 5),
+    (
+        "let = 3\n",
+        false,
+        "expected the name of the new column",
+        1,
+        5,
+    ),
     ("let x 3\n", false, "expected `=` after the name", 1, 7),
     ("let x == 3\n", false, "expected `=` after the name", 1, 7),
     ("let per = 3\n", false, "`per` is a keyword", 1, 5),
     ("let x = x + 1\n", false, "`let x` refers to itself", 1, 9),
-    ("let x = 1\nlet x = 2\n", false, "`x` is defined twice", 2, 5),
-    ("let weight_kg = 2\n", true, "already a column of the data", 1, 5),
+    (
+        "let x = 1\nlet x = 2\n",
+        false,
+        "`x` is defined twice",
+        2,
+        5,
+    ),
+    (
+        "let weight_kg = 2\n",
+        true,
+        "already a column of the data",
+        1,
+        5,
+    ),
     // Expressions.
-    ("let x = weight_kg * 2 +\n", false, "expected a value after `+`", 1, 24),
-    ("let x = (weight_kg * 2\n", false, "expected `)` to close the `(`", 1, 23),
-    ("let x = weight_kg weight_kg\n", false, "unexpected `weight_kg`", 1, 19),
-    ("let x = weight_kg = 3\n", false, "a single `=` does not compare", 1, 19),
-    ("let x = weight_kg <> 3\n", false, "`<>` is not an operator", 1, 19),
-    ("let x = 1 < weight_kg < 3\n", false, "comparisons do not chain", 1, 23),
-    ("let x = if weight_kg > 3 then 1\n", false, "every `if` needs an `else`", 1, 32),
-    ("let x = if weight_kg > 3 1 else 2\n", false, "expected `then`", 1, 26),
-    ("let x = 12abc\n", false, "a number runs into other characters", 1, 11),
-    ("let x = {Minutes late\n", false, "column name in braces is not closed", 1, 9),
+    (
+        "let x = weight_kg * 2 +\n",
+        false,
+        "expected a value after `+`",
+        1,
+        24,
+    ),
+    (
+        "let x = (weight_kg * 2\n",
+        false,
+        "expected `)` to close the `(`",
+        1,
+        23,
+    ),
+    (
+        "let x = weight_kg weight_kg\n",
+        false,
+        "unexpected `weight_kg`",
+        1,
+        19,
+    ),
+    (
+        "let x = weight_kg = 3\n",
+        false,
+        "a single `=` does not compare",
+        1,
+        19,
+    ),
+    (
+        "let x = weight_kg <> 3\n",
+        false,
+        "`<>` is not an operator",
+        1,
+        19,
+    ),
+    (
+        "let x = 1 < weight_kg < 3\n",
+        false,
+        "comparisons do not chain",
+        1,
+        23,
+    ),
+    (
+        "let x = if weight_kg > 3 then 1\n",
+        false,
+        "every `if` needs an `else`",
+        1,
+        32,
+    ),
+    (
+        "let x = if weight_kg > 3 1 else 2\n",
+        false,
+        "expected `then`",
+        1,
+        26,
+    ),
+    (
+        "let x = 12abc\n",
+        false,
+        "a number runs into other characters",
+        1,
+        11,
+    ),
+    (
+        "let x = {Minutes late\n",
+        false,
+        "column name in braces is not closed",
+        1,
+        9,
+    ),
     ("let x = {} * 2\n", false, "empty column name", 1, 9),
-    ("let x = weight_kg and 3\n", false, "`and` needs a condition here, not a number", 1, 23),
-    ("let x = status * 2\nlet y = \"a\" * 2\n", false, "`*` needs a number here, not a text", 2, 9),
-    ("let x = if weight_kg > 1 then 1 else \"a\"\n", false, "different kinds of value", 1, 9),
+    (
+        "let x = weight_kg and 3\n",
+        false,
+        "`and` needs a condition here, not a number",
+        1,
+        23,
+    ),
+    (
+        "let x = status * 2\nlet y = \"a\" * 2\n",
+        false,
+        "`*` needs a number here, not a text",
+        2,
+        9,
+    ),
+    (
+        "let x = if weight_kg > 1 then 1 else \"a\"\n",
+        false,
+        "different kinds of value",
+        1,
+        9,
+    ),
     ("let x = = 3\n", false, "does not start with `=`", 1, 9),
     ("let x = \"a\\q\"\n", false, "unknown escape", 1, 11),
-    ("let x = mean(weight_kg A1:B3)\n", false, "expected `,` or `)`", 1, 24),
+    (
+        "let x = mean(weight_kg A1:B3)\n",
+        false,
+        "expected `,` or `)`",
+        1,
+        24,
+    ),
     ("let x = mean(A1:B3)\n", false, "not cell ranges", 1, 16),
     ("let x = then + 1\n", false, "`then` is a keyword", 1, 9),
     // Functions.
-    ("let x = meen(weight_kg)\n", false, "unknown function `meen`", 1, 9),
-    ("let x = percentile(weight_kg)\n", false, "`percentile` takes 2 to 3 arguments, got 1", 1, 9),
-    ("let x = mean(weight_kg, 2)\n", false, "`mean` takes 1 argument, got 2", 1, 9),
-    ("let x = variance(weight_kg, populaton)\n", false, "unknown option `populaton` for `variance`", 1, 29),
-    ("let x = percentile(weight_kg, 150)\n", false, "the `p` of `percentile` must be from 0 to 100", 1, 31),
-    ("let x = percentile(weight_kg, 90%)\n", false, "without `%`", 1, 31),
-    ("let x = trimmed_mean(weight_kg, 60%)\n", false, "below 50%", 1, 33),
-    ("let x = quartile(weight_kg, 1.5)\n", false, "a whole number from 0 to 4", 1, 29),
-    ("let x = binned_mode(weight_kg, 0)\n", false, "a whole number from 1 to 1000", 1, 32),
-    ("let x = percentile(weight_kg, weight_kg)\n", false, "must be one number", 1, 31),
-    ("let x = mean(mean(weight_kg))\n", false, "its argument is already one value", 1, 14),
-    ("let x = mean(3)\n", false, "its argument is already one value", 1, 14),
-    ("let x = share(3 * weight_kg)\n", false, "`share` needs a condition here, not a number", 1, 15),
-    ("let x = modes(weight_kg) + 1\n", false, "a list of values", 1, 9),
-    ("let x = sd(weight_kg, hinges)\n", false, "unknown option `hinges` for `sd`", 1, 23),
-    ("let x = quartile(weight_kg, hinges, 1)\n", false, "the option word comes last", 1, 37),
-    ("let x = abs(weight_kg, scaled)\n", false, "`abs` takes 1 argument, got 2", 1, 9),
+    (
+        "let x = meen(weight_kg)\n",
+        false,
+        "unknown function `meen`",
+        1,
+        9,
+    ),
+    (
+        "let x = percentile(weight_kg)\n",
+        false,
+        "`percentile` takes 2 to 3 arguments, got 1",
+        1,
+        9,
+    ),
+    (
+        "let x = mean(weight_kg, 2)\n",
+        false,
+        "`mean` takes 1 argument, got 2",
+        1,
+        9,
+    ),
+    (
+        "let x = variance(weight_kg, populaton)\n",
+        false,
+        "unknown option `populaton` for `variance`",
+        1,
+        29,
+    ),
+    (
+        "let x = percentile(weight_kg, 150)\n",
+        false,
+        "the `p` of `percentile` must be from 0 to 100",
+        1,
+        31,
+    ),
+    (
+        "let x = percentile(weight_kg, 90%)\n",
+        false,
+        "without `%`",
+        1,
+        31,
+    ),
+    (
+        "let x = trimmed_mean(weight_kg, 60%)\n",
+        false,
+        "below 50%",
+        1,
+        33,
+    ),
+    (
+        "let x = quartile(weight_kg, 1.5)\n",
+        false,
+        "a whole number from 0 to 4",
+        1,
+        29,
+    ),
+    (
+        "let x = binned_mode(weight_kg, 0)\n",
+        false,
+        "a whole number from 1 to 1000",
+        1,
+        32,
+    ),
+    (
+        "let x = percentile(weight_kg, weight_kg)\n",
+        false,
+        "must be one number",
+        1,
+        31,
+    ),
+    (
+        "let x = mean(mean(weight_kg))\n",
+        false,
+        "its argument is already one value",
+        1,
+        14,
+    ),
+    (
+        "let x = mean(3)\n",
+        false,
+        "its argument is already one value",
+        1,
+        14,
+    ),
+    (
+        "let x = share(3 * weight_kg)\n",
+        false,
+        "`share` needs a condition here, not a number",
+        1,
+        15,
+    ),
+    (
+        "let x = modes(weight_kg) + 1\n",
+        false,
+        "a list of values",
+        1,
+        9,
+    ),
+    (
+        "let x = sd(weight_kg, hinges)\n",
+        false,
+        "unknown option `hinges` for `sd`",
+        1,
+        23,
+    ),
+    (
+        "let x = quartile(weight_kg, hinges, 1)\n",
+        false,
+        "the option word comes last",
+        1,
+        37,
+    ),
+    (
+        "let x = abs(weight_kg, scaled)\n",
+        false,
+        "`abs` takes 1 argument, got 2",
+        1,
+        9,
+    ),
     // Blocks, checks, charts.
-    ("figures \"F\":\n    m = weight_kg * 2\n", false, "a figure must be one value per group", 2, 9),
-    ("figures \"F\":\n    m = mean(weight_kg)\n    m = sd(weight_kg)\n", false, "a second figure named `m`", 3, 5),
-    ("figures \"F\":\n    m = mean(weight_kg)\nfigures \"F\":\n    s = sd(weight_kg)\n", false, "a second block named \"F\"", 3, 9),
-    ("figures \"A/B\":\n    m = mean(weight_kg)\n", false, "cannot contain `/`", 1, 9),
-    ("figures \"This block name is far too long for a sheet\":\n    m = mean(weight_kg)\n", false, "at most 31 characters", 1, 9),
-    ("figures \"F\" per depot\n    m = mean(weight_kg)\n", false, "expected `per`, `where` or `:`", 1, 22),
-    ("figures \"F\" where:\n    m = mean(weight_kg)\n", false, "expected a condition after `where`", 1, 18),
-    ("figures \"F\":\n    mean(weight_kg)\n", false, "expected `=` after the figure's name", 2, 9),
+    (
+        "figures \"F\":\n    m = weight_kg * 2\n",
+        false,
+        "a figure must be one value per group",
+        2,
+        9,
+    ),
+    (
+        "figures \"F\":\n    m = mean(weight_kg)\n    m = sd(weight_kg)\n",
+        false,
+        "a second figure named `m`",
+        3,
+        5,
+    ),
+    (
+        "figures \"F\":\n    m = mean(weight_kg)\nfigures \"F\":\n    s = sd(weight_kg)\n",
+        false,
+        "a second block named \"F\"",
+        3,
+        9,
+    ),
+    (
+        "figures \"A/B\":\n    m = mean(weight_kg)\n",
+        false,
+        "cannot contain `/`",
+        1,
+        9,
+    ),
+    (
+        "figures \"This block name is far too long for a sheet\":\n    m = mean(weight_kg)\n",
+        false,
+        "at most 31 characters",
+        1,
+        9,
+    ),
+    (
+        "figures \"F\" per depot\n    m = mean(weight_kg)\n",
+        false,
+        "expected `per`, `where` or `:`",
+        1,
+        22,
+    ),
+    (
+        "figures \"F\" where:\n    m = mean(weight_kg)\n",
+        false,
+        "expected a condition after `where`",
+        1,
+        18,
+    ),
+    (
+        "figures \"F\":\n    mean(weight_kg)\n",
+        false,
+        "expected `=` after the figure's name",
+        2,
+        9,
+    ),
     ("panel \"P\" weight_kg:\n", false, "expected `of`", 1, 11),
-    ("panel \"P\" of weight_kg, :\n", false, "expected a column name after `,`", 1, 25),
-    ("check \"c\" maybe: 1 < 2\n", false, "expected `warn` or `fail`", 1, 11),
-    ("check \"c\" warn 1 < 2\n", false, "expected `per` or `:`", 1, 16),
-    ("check \"c\" warn: weight_kg > 0\n", false, "one true/false value per group", 1, 17),
-    ("check \"c\" warn: mean(weight_kg)\n", false, "a check needs a condition, not a number", 1, 17),
-    ("check \"c\" warn: 1 < 2\ncheck \"c\" fail: 2 < 3\n", false, "a second check named \"c\"", 2, 7),
-    ("histogram weight_kg, bins scot\n", false, "unknown bin rule `scot`", 1, 27),
-    ("histogram weight_kg, bins 0\n", false, "a whole number from 1", 1, 27),
-    ("histogram weight_kg, colour red\n", false, "expected `bins` after `,`", 1, 22),
+    (
+        "panel \"P\" of weight_kg, :\n",
+        false,
+        "expected a column name after `,`",
+        1,
+        25,
+    ),
+    (
+        "check \"c\" maybe: 1 < 2\n",
+        false,
+        "expected `warn` or `fail`",
+        1,
+        11,
+    ),
+    (
+        "check \"c\" warn 1 < 2\n",
+        false,
+        "expected `per` or `:`",
+        1,
+        16,
+    ),
+    (
+        "check \"c\" warn: weight_kg > 0\n",
+        false,
+        "one true/false value per group",
+        1,
+        17,
+    ),
+    (
+        "check \"c\" warn: mean(weight_kg)\n",
+        false,
+        "a check needs a condition, not a number",
+        1,
+        17,
+    ),
+    (
+        "check \"c\" warn: 1 < 2\ncheck \"c\" fail: 2 < 3\n",
+        false,
+        "a second check named \"c\"",
+        2,
+        7,
+    ),
+    (
+        "histogram weight_kg, bins scot\n",
+        false,
+        "unknown bin rule `scot`",
+        1,
+        27,
+    ),
+    (
+        "histogram weight_kg, bins 0\n",
+        false,
+        "a whole number from 1",
+        1,
+        27,
+    ),
+    (
+        "histogram weight_kg, colour red\n",
+        false,
+        "expected `bins` after `,`",
+        1,
+        22,
+    ),
     ("boxplot\n", false, "expected the column to draw", 1, 8),
-    ("rows weight_kg > 3\n", false, "expected `where` after `rows`", 1, 6),
-    ("rows where weight_kg * 2\n", false, "`rows where` needs a condition", 1, 12),
+    (
+        "rows weight_kg > 3\n",
+        false,
+        "expected `where` after `rows`",
+        1,
+        6,
+    ),
+    (
+        "rows where weight_kg * 2\n",
+        false,
+        "`rows where` needs a condition",
+        1,
+        12,
+    ),
     // Columns, once the headers are known.
-    ("let x = wieght_kg * 2\n", true, "no column named `wieght_kg`", 1, 9),
-    ("let x = {Minutes lat} * 2\n", true, "no column named `Minutes lat`", 1, 9),
-    ("panel \"P\" of weight_kg per depto:\n", true, "no column named `depto`", 1, 28),
-    ("boxplot parcel_count\n", true, "no column named `parcel_count`", 1, 9),
+    (
+        "let x = wieght_kg * 2\n",
+        true,
+        "no column named `wieght_kg`",
+        1,
+        9,
+    ),
+    (
+        "let x = {Minutes lat} * 2\n",
+        true,
+        "no column named `Minutes lat`",
+        1,
+        9,
+    ),
+    (
+        "panel \"P\" of weight_kg per depto:\n",
+        true,
+        "no column named `depto`",
+        1,
+        28,
+    ),
+    (
+        "boxplot parcel_count\n",
+        true,
+        "no column named `parcel_count`",
+        1,
+        9,
+    ),
 ];
 
 #[test]
@@ -106,28 +514,45 @@ fn every_malformed_recipe_is_refused_where_and_how_expected() {
     let mut wrong = Vec::new();
     for (source, with_headers, message, line, column) in CASES {
         let parsed = recipe::parse_and_check(source, with_headers.then_some(&headers[..]));
-        let found = parsed
-            .diagnostics
-            .iter()
-            .find(|d| d.message.contains(message) || d.help.as_deref().is_some_and(|h| h.contains(message)));
+        let found = parsed.diagnostics.iter().find(|d| {
+            d.message.contains(message) || d.help.as_deref().is_some_and(|h| h.contains(message))
+        });
         match found {
             Some(d) if d.line_column(source) == (*line, *column) => {}
             _ => wrong.push(format!(
                 "{source:?}: wanted {message:?} at {line}:{column}, got {:?}",
-                parsed.diagnostics.iter().map(|d| (d.message.clone(), d.line_column(source))).collect::<Vec<_>>()
+                parsed
+                    .diagnostics
+                    .iter()
+                    .map(|d| (d.message.clone(), d.line_column(source)))
+                    .collect::<Vec<_>>()
             )),
         }
     }
-    assert!(wrong.is_empty(), "{} of {} cases differ:\n{}", wrong.len(), CASES.len(), wrong.join("\n"));
+    assert!(
+        wrong.is_empty(),
+        "{} of {} cases differ:\n{}",
+        wrong.len(),
+        CASES.len(),
+        wrong.join("\n")
+    );
 }
 
 #[test]
 fn unknown_columns_get_the_closest_header_suggested() {
     let headers: Vec<String> = HEADERS.iter().map(|s| s.to_string()).collect();
-    let cases = [("let x = wieght_kg\n", "did you mean `weight_kg`?"), ("let x = {minutes late}\n", "did you mean `{Minutes late}`?"), ("let x = Depot\n", "did you mean `depot`?")];
+    let cases = [
+        ("let x = wieght_kg\n", "did you mean `weight_kg`?"),
+        ("let x = {minutes late}\n", "did you mean `{Minutes late}`?"),
+        ("let x = Depot\n", "did you mean `depot`?"),
+    ];
     for (source, help) in cases {
         let parsed = recipe::parse_and_check(source, Some(&headers));
-        assert_eq!(parsed.diagnostics[0].help.as_deref(), Some(help), "{source}");
+        assert_eq!(
+            parsed.diagnostics[0].help.as_deref(),
+            Some(help),
+            "{source}"
+        );
     }
 }
 
@@ -135,7 +560,11 @@ fn unknown_columns_get_the_closest_header_suggested() {
 fn several_bad_lines_are_reported_in_one_pass() {
     let source = "title \"ok\"\nlet a = 1 +\nlet b = (2\nfigures \"F\":\n    m = \nboxplot\n";
     let parsed = recipe::parse(source);
-    let lines: Vec<usize> = parsed.diagnostics.iter().map(|d| d.line_column(source).0).collect();
+    let lines: Vec<usize> = parsed
+        .diagnostics
+        .iter()
+        .map(|d| d.line_column(source).0)
+        .collect();
     assert_eq!(lines, [2, 3, 5, 6]);
 }
 
@@ -156,13 +585,26 @@ fn deep_nesting_is_refused_not_overflowed() {
     for depth in [65, 1_000, 10_000] {
         let source = format!("let x = {}1{}\n", "(".repeat(depth), ")".repeat(depth));
         let parsed = recipe::parse(&source);
-        assert!(parsed.diagnostics.iter().any(|d| d.message.contains("nests more than 64 levels")), "depth {depth}");
+        assert!(
+            parsed
+                .diagnostics
+                .iter()
+                .any(|d| d.message.contains("nests more than 64 levels")),
+            "depth {depth}"
+        );
     }
-    for source in [format!("let x = {}1\n", "-".repeat(10_000)), format!("let x = {}1 > 0\n", "not ".repeat(10_000))] {
+    for source in [
+        format!("let x = {}1\n", "-".repeat(10_000)),
+        format!("let x = {}1 > 0\n", "not ".repeat(10_000)),
+    ] {
         assert!(!recipe::parse(&source).is_ok());
     }
     let long_chain = format!("let x = 1{}\n", " + 1".repeat(10_000));
-    assert!(recipe::parse(&long_chain).diagnostics[0].message.contains("more than 100 terms"));
+    assert!(
+        recipe::parse(&long_chain).diagnostics[0]
+            .message
+            .contains("more than 100 terms")
+    );
     let fine = format!("let x = {}1{}\n", "(".repeat(60), ")".repeat(60));
     assert!(recipe::parse(&fine).is_ok());
 }

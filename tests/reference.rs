@@ -18,9 +18,13 @@ use std::path::Path;
 use sheaf::stats::*;
 
 fn dataset(name: &str) -> Sample {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join(format!("tests/reference/datasets/{name}.csv"));
+    let path =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join(format!("tests/reference/datasets/{name}.csv"));
     let text = std::fs::read_to_string(&path).unwrap();
-    let values = text.lines().filter(|l| !l.starts_with('#') && !l.trim().is_empty()).skip(1);
+    let values = text
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.trim().is_empty())
+        .skip(1);
     Sample::from_values(values.map(|v| v.trim().parse::<f64>().unwrap()))
 }
 
@@ -97,8 +101,15 @@ fn expected() -> Table {
         .filter(|l| !l.starts_with('#'))
         .map(|line| {
             let mut fields = line.split('\t');
-            let (data, name, values) = (fields.next().unwrap(), fields.next().unwrap(), fields.next().unwrap());
-            ((data.to_string(), name.to_string()), values.split(',').map(|v| v.parse().unwrap()).collect())
+            let (data, name, values) = (
+                fields.next().unwrap(),
+                fields.next().unwrap(),
+                fields.next().unwrap(),
+            );
+            (
+                (data.to_string(), name.to_string()),
+                values.split(',').map(|v| v.parse().unwrap()).collect(),
+            )
         })
         .collect()
 }
@@ -112,7 +123,11 @@ fn every_statistic_matches_numpy_and_scipy() {
         let sample = samples.entry(data.clone()).or_insert_with(|| dataset(data));
         let ours = sheaf_value(sample, name);
         let agrees = |reference: &[f64], relative| {
-            ours.len() == reference.len() && ours.iter().zip(reference).all(|(a, b)| within(*a, *b, relative))
+            ours.len() == reference.len()
+                && ours
+                    .iter()
+                    .zip(reference)
+                    .all(|(a, b)| within(*a, *b, relative))
         };
         if agrees(theirs, 1e-12) {
             continue;
@@ -122,14 +137,29 @@ fn every_statistic_matches_numpy_and_scipy() {
         // to 1e-13, a gap to scipy of up to 1e-9 is scipy's, not ours.
         let exact = table.get(&(data.clone(), format!("exact_{name}")));
         if exact.is_some_and(|exact| agrees(exact, 1e-13)) && agrees(theirs, 1e-9) {
-            eprintln!("note: {data} {name}: sheaf matches the exact value; scipy is off by {:e}", (ours[0] - theirs[0]).abs());
+            eprintln!(
+                "note: {data} {name}: sheaf matches the exact value; scipy is off by {:e}",
+                (ours[0] - theirs[0]).abs()
+            );
             continue;
         }
-        failures.push(format!("{data} {name}: sheaf {ours:?}, reference {theirs:?}"));
+        failures.push(format!(
+            "{data} {name}: sheaf {ours:?}, reference {theirs:?}"
+        ));
     }
-    assert!(failures.is_empty(), "{} of {} differ:\n{}", failures.len(), table.len(), failures.join("\n"));
+    assert!(
+        failures.is_empty(),
+        "{} of {} differ:\n{}",
+        failures.len(),
+        table.len(),
+        failures.join("\n")
+    );
     // 4 datasets x (11 basic + 9 x 14 quantile + the rest) figures.
-    assert!(table.len() > 600, "only {} reference figures were read", table.len());
+    assert!(
+        table.len() > 600,
+        "only {} reference figures were read",
+        table.len()
+    );
 }
 
 #[test]
@@ -137,6 +167,11 @@ fn exact_moments_hold_to_thirteen_digits() {
     let table = expected();
     for ((data, name), exact) in table.iter().filter(|((_, n), _)| n.starts_with("exact_")) {
         let ours = sheaf_value(&dataset(data), name);
-        assert!(within(ours[0], exact[0], 1e-13), "{data} {name}: sheaf {}, exact {}", ours[0], exact[0]);
+        assert!(
+            within(ours[0], exact[0], 1e-13),
+            "{data} {name}: sheaf {}, exact {}",
+            ours[0],
+            exact[0]
+        );
     }
 }

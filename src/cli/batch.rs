@@ -25,9 +25,15 @@ struct Done {
     results: Results,
 }
 
-fn one_file(recipe_path: &Path, text: &str, syntax: &Recipe, path: &Path) -> Result<(Recipe, Table), String> {
+fn one_file(
+    recipe_path: &Path,
+    text: &str,
+    syntax: &Recipe,
+    path: &Path,
+) -> Result<(Recipe, Table), String> {
     let table = load::load(path, &load_options(syntax)).map_err(|e| e.to_string())?;
-    let recipe = checked_recipe(recipe_path, text, Some(&table.headers())).map_err(|Failure(m)| m)?;
+    let recipe =
+        checked_recipe(recipe_path, text, Some(&table.headers())).map_err(|Failure(m)| m)?;
     Ok((recipe, table))
 }
 
@@ -35,35 +41,78 @@ fn uses_change(recipe: &Recipe) -> bool {
     recipe::pretty::recipe(recipe).contains("change(")
 }
 
-pub fn run(recipe_path: &Path, pattern: &str, out_dir: Option<PathBuf>, force: bool) -> Result<ExitCode, Failure> {
+pub fn run(
+    recipe_path: &Path,
+    pattern: &str,
+    out_dir: Option<PathBuf>,
+    force: bool,
+) -> Result<ExitCode, Failure> {
     let Some(out_dir) = out_dir else {
-        return Err(Failure(format!("--data '{pattern}' names several files; give --out-dir DIR for their results")));
+        return Err(Failure(format!(
+            "--data '{pattern}' names several files; give --out-dir DIR for their results"
+        )));
     };
     let text = read_recipe(recipe_path)?;
     let syntax = checked_recipe(recipe_path, &text, None)?;
-    let mut paths: Vec<PathBuf> = glob::glob(pattern).map_err(|e| Failure(format!("--data '{pattern}': {e}")))?.filter_map(Result::ok).collect();
+    let mut paths: Vec<PathBuf> = glob::glob(pattern)
+        .map_err(|e| Failure(format!("--data '{pattern}': {e}")))?
+        .filter_map(Result::ok)
+        .collect();
     paths.sort();
     if paths.is_empty() {
         return Err(Failure(format!("--data '{pattern}' matches no file")));
     }
-    std::fs::create_dir_all(&out_dir).map_err(|e| Failure(format!("{}: cannot create the folder: {e}", out_dir.display())))?;
+    std::fs::create_dir_all(&out_dir).map_err(|e| {
+        Failure(format!(
+            "{}: cannot create the folder: {e}",
+            out_dir.display()
+        ))
+    })?;
     let trend_path = out_dir.join("trend.xlsx");
     if trend_path.exists() && !force {
-        return Err(Failure(format!("{} exists already; pass --force to replace it", trend_path.display())));
+        return Err(Failure(format!(
+            "{} exists already; pass --force to replace it",
+            trend_path.display()
+        )));
     }
 
     let bar = ProgressBar::new(paths.len() as u64);
-    bar.set_style(ProgressStyle::with_template("{bar:30} {pos}/{len} {msg}").unwrap_or_else(|_| ProgressStyle::default_bar()));
+    bar.set_style(
+        ProgressStyle::with_template("{bar:30} {pos}/{len} {msg}")
+            .unwrap_or_else(|_| ProgressStyle::default_bar()),
+    );
     let outcomes: Vec<Result<(Recipe, Done), (PathBuf, String)>> = paths
         .par_iter()
         .map(|path| {
             let result = one_file(recipe_path, &text, &syntax, path).and_then(|(recipe, table)| {
-                let results = eval::evaluate(&recipe, &table).map_err(|e| format!("{}: {e}", path.display()))?;
-                let period = history::period_of(&recipe, path).map_or_else(|| path.file_stem().unwrap_or_default().to_string_lossy().into_owned(), |p| p.label);
-                Ok((recipe, Done { path: path.clone(), period, table, results }))
+                let results = eval::evaluate(&recipe, &table)
+                    .map_err(|e| format!("{}: {e}", path.display()))?;
+                let period = history::period_of(&recipe, path).map_or_else(
+                    || {
+                        path.file_stem()
+                            .unwrap_or_default()
+                            .to_string_lossy()
+                            .into_owned()
+                    },
+                    |p| p.label,
+                );
+                Ok((
+                    recipe,
+                    Done {
+                        path: path.clone(),
+                        period,
+                        table,
+                        results,
+                    },
+                ))
             });
             bar.inc(1);
-            bar.set_message(path.file_name().unwrap_or_default().to_string_lossy().into_owned());
+            bar.set_message(
+                path.file_name()
+                    .unwrap_or_default()
+                    .to_string_lossy()
+                    .into_owned(),
+            );
             result.map_err(|e| (path.clone(), e))
         })
         .collect();
@@ -86,12 +135,17 @@ pub fn run(recipe_path: &Path, pattern: &str, out_dir: Option<PathBuf>, force: b
     for (recipe, d) in &mut done {
         if uses_change(recipe) && previous.is_some() {
             // The same rows were grouped without error above, so this cannot fail.
-            if let Ok(again) = eval::evaluate_against(recipe, &d.table, previous.as_ref().map(Record::previous_terms)) {
+            if let Ok(again) = eval::evaluate_against(
+                recipe,
+                &d.table,
+                previous.as_ref().map(Record::previous_terms),
+            ) {
                 d.results = again;
             }
         }
         let info = run_info(recipe_path, &text, recipe, &d.path, previous.clone());
-        let record = Record::from_results(&d.results, info.fingerprint.clone(), Some(d.period.clone()));
+        let record =
+            Record::from_results(&d.results, info.fingerprint.clone(), Some(d.period.clone()));
         records.push((d.period.clone(), record.clone()));
         previous = Some(record);
         infos.push(info);
@@ -102,7 +156,9 @@ pub fn run(recipe_path: &Path, pattern: &str, out_dir: Option<PathBuf>, force: b
         .zip(infos.par_iter())
         .map(|((_, d), info)| {
             let out = out_dir.join(default_out(&d.path));
-            crate::write::save(&d.results, &d.table, info, &out, force).map(|_| out).map_err(|e| (d.path.clone(), e.to_string()))
+            crate::write::save(&d.results, &d.table, info, &out, force)
+                .map(|_| out)
+                .map_err(|e| (d.path.clone(), e.to_string()))
         })
         .collect();
     let mut lines = Vec::new();
@@ -111,18 +167,50 @@ pub fn run(recipe_path: &Path, pattern: &str, out_dir: Option<PathBuf>, force: b
         match w {
             Ok(out) => {
                 fail_checks |= d.results.failed();
-                let fails = d.results.checks.iter().filter(|c| c.outcome == eval::Outcome::Fail).count();
-                lines.push(format!("{}  {}  -> {}{}", d.period, d.path.display(), out.display(), if fails > 0 { format!("  ({fails} failed checks)") } else { String::new() }));
+                let fails = d
+                    .results
+                    .checks
+                    .iter()
+                    .filter(|c| c.outcome == eval::Outcome::Fail)
+                    .count();
+                lines.push(format!(
+                    "{}  {}  -> {}{}",
+                    d.period,
+                    d.path.display(),
+                    out.display(),
+                    if fails > 0 {
+                        format!("  ({fails} failed checks)")
+                    } else {
+                        String::new()
+                    }
+                ));
             }
             Err((path, e)) => failed.push((path.clone(), e.clone())),
         }
     }
-    let panels: Vec<String> = done.first().map(|(_, d)| d.results.blocks.iter().filter(|b| matches!(b, eval::Block::Panel { .. })).map(|b| b.name().to_string()).collect()).unwrap_or_default();
+    let panels: Vec<String> = done
+        .first()
+        .map(|(_, d)| {
+            d.results
+                .blocks
+                .iter()
+                .filter(|b| matches!(b, eval::Block::Panel { .. }))
+                .map(|b| b.name().to_string())
+                .collect()
+        })
+        .unwrap_or_default();
     if !records.is_empty() {
-        let bytes = history::trend_workbook(&records, &panels).map_err(|e| Failure(e.to_string()))?;
+        let bytes =
+            history::trend_workbook(&records, &panels).map_err(|e| Failure(e.to_string()))?;
         let partial = out_dir.join(format!(".trend.xlsx.{}.partial", std::process::id()));
-        std::fs::write(&partial, bytes).and_then(|_| std::fs::rename(&partial, &trend_path)).map_err(|e| Failure(format!("{}: {e}", trend_path.display())))?;
-        lines.push(format!("trend over {} periods -> {}", records.len(), trend_path.display()));
+        std::fs::write(&partial, bytes)
+            .and_then(|_| std::fs::rename(&partial, &trend_path))
+            .map_err(|e| Failure(format!("{}: {e}", trend_path.display())))?;
+        lines.push(format!(
+            "trend over {} periods -> {}",
+            records.len(),
+            trend_path.display()
+        ));
     }
     for l in &lines {
         println!("{l}");
@@ -131,7 +219,11 @@ pub fn run(recipe_path: &Path, pattern: &str, out_dir: Option<PathBuf>, force: b
         eprintln!("skipped {}: {}", path.display(), e.trim_end());
     }
     Ok(if !failed.is_empty() {
-        eprintln!("{} of {} files could not be summarised; the others were written", failed.len(), paths.len());
+        eprintln!(
+            "{} of {} files could not be summarised; the others were written",
+            failed.len(),
+            paths.len()
+        );
         ExitCode::from(2)
     } else if fail_checks {
         ExitCode::from(1)

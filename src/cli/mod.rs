@@ -94,16 +94,42 @@ impl<E: std::fmt::Display> From<E> for Failure {
 pub fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
-        Command::Run { recipe, data, out, out_dir, compare, json, force, timings } => {
+        Command::Run {
+            recipe,
+            data,
+            out,
+            out_dir,
+            compare,
+            json,
+            force,
+            timings,
+        } => {
             if batch::is_pattern(&data) || out_dir.is_some() {
                 batch::run(&recipe, &data, out_dir, force)
             } else {
-                run(&recipe, Path::new(&data), out, compare.as_deref(), json, force, timings)
+                run(
+                    &recipe,
+                    Path::new(&data),
+                    out,
+                    compare.as_deref(),
+                    json,
+                    force,
+                    timings,
+                )
             }
         }
         Command::Validate { recipe, data } => validate(&recipe, data.as_deref()),
-        Command::Inspect { file, sheet, header_row } => inspect(&file, LoadOptions { sheet, header_row }),
-        Command::Calc { expression, data, sheet, header_row } => calc(&expression, &data, LoadOptions { sheet, header_row }),
+        Command::Inspect {
+            file,
+            sheet,
+            header_row,
+        } => inspect(&file, LoadOptions { sheet, header_row }),
+        Command::Calc {
+            expression,
+            data,
+            sheet,
+            header_row,
+        } => calc(&expression, &data, LoadOptions { sheet, header_row }),
     };
     match result {
         Ok(code) => code,
@@ -115,18 +141,27 @@ pub fn main() -> ExitCode {
 }
 
 fn read_recipe(path: &Path) -> Result<String, Failure> {
-    std::fs::read_to_string(path).map_err(|e| Failure(format!("{}: cannot read the recipe: {e}", path.display())))
+    std::fs::read_to_string(path)
+        .map_err(|e| Failure(format!("{}: cannot read the recipe: {e}", path.display())))
 }
 
 /// Parses and checks a recipe; with a table, checks its columns too.
-fn checked_recipe(path: &Path, text: &str, headers: Option<&[String]>) -> Result<recipe::Recipe, Failure> {
+fn checked_recipe(
+    path: &Path,
+    text: &str,
+    headers: Option<&[String]>,
+) -> Result<recipe::Recipe, Failure> {
     let parsed = recipe::parse_and_check(text, headers);
     if parsed.is_ok() {
         return Ok(parsed.recipe);
     }
     let count = parsed.diagnostics.len();
     let rendered = recipe::render_all(&parsed.diagnostics, &path.display().to_string(), text);
-    Err(Failure(format!("{rendered}\n{}: {count} problem{} in the recipe; nothing was written", path.display(), if count == 1 { "" } else { "s" })))
+    Err(Failure(format!(
+        "{rendered}\n{}: {count} problem{} in the recipe; nothing was written",
+        path.display(),
+        if count == 1 { "" } else { "s" }
+    )))
 }
 
 /// The `input` statement's settings.
@@ -144,7 +179,11 @@ fn load_options(recipe: &recipe::Recipe) -> LoadOptions {
         .unwrap_or_default()
 }
 
-fn load_for(recipe_path: &Path, text: &str, data: &Path) -> Result<(recipe::Recipe, Table), Failure> {
+fn load_for(
+    recipe_path: &Path,
+    text: &str,
+    data: &Path,
+) -> Result<(recipe::Recipe, Table), Failure> {
     let syntax_only = checked_recipe(recipe_path, text, None)?;
     let table = load::load(data, &load_options(&syntax_only))?;
     let recipe = checked_recipe(recipe_path, text, Some(&table.headers()))?;
@@ -154,18 +193,29 @@ fn load_for(recipe_path: &Path, text: &str, data: &Path) -> Result<(recipe::Reci
 fn now() -> String {
     // SHEAF_RUN_TIME fixes the recorded time, for byte-identical reruns in tests.
     std::env::var("SHEAF_RUN_TIME").unwrap_or_else(|_| {
-        let seconds = std::time::SystemTime::now().duration_since(std::time::UNIX_EPOCH).map_or(0, |d| d.as_secs());
+        let seconds = std::time::SystemTime::now()
+            .duration_since(std::time::UNIX_EPOCH)
+            .map_or(0, |d| d.as_secs());
         crate::format::timestamp(seconds)
     })
 }
 
 fn default_out(data: &Path) -> PathBuf {
-    let stem = data.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "data".into());
+    let stem = data
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "data".into());
     PathBuf::from(format!("{stem}-summary.xlsx"))
 }
 
 /// What the About and Record sheets say about a run.
-fn run_info(recipe_path: &Path, text: &str, recipe: &recipe::Recipe, data: &Path, previous: Option<crate::history::Record>) -> RunInfo {
+fn run_info(
+    recipe_path: &Path,
+    text: &str,
+    recipe: &recipe::Recipe,
+    data: &Path,
+    previous: Option<crate::history::Record>,
+) -> RunInfo {
     RunInfo {
         recipe_path: recipe_path.display().to_string(),
         recipe_text: text.to_string(),
@@ -179,16 +229,31 @@ fn run_info(recipe_path: &Path, text: &str, recipe: &recipe::Recipe, data: &Path
 }
 
 #[allow(clippy::too_many_arguments)]
-fn run(recipe_path: &Path, data: &Path, out: Option<PathBuf>, compare: Option<&Path>, as_json: bool, force: bool, timings: bool) -> Result<ExitCode, Failure> {
+fn run(
+    recipe_path: &Path,
+    data: &Path,
+    out: Option<PathBuf>,
+    compare: Option<&Path>,
+    as_json: bool,
+    force: bool,
+    timings: bool,
+) -> Result<ExitCode, Failure> {
     let started = std::time::Instant::now();
     let text = read_recipe(recipe_path)?;
     let (recipe, table) = load_for(recipe_path, &text, data)?;
     let loaded = std::time::Instant::now();
     let previous = match compare {
-        Some(path) => Some(crate::history::Record::read(path, &crate::history::fingerprint(&recipe))?),
+        Some(path) => Some(crate::history::Record::read(
+            path,
+            &crate::history::fingerprint(&recipe),
+        )?),
         None => None,
     };
-    let results = eval::evaluate_against(&recipe, &table, previous.as_ref().map(|p| p.previous_terms()))?;
+    let results = eval::evaluate_against(
+        &recipe,
+        &table,
+        previous.as_ref().map(|p| p.previous_terms()),
+    )?;
     let evaluated = std::time::Instant::now();
     let out = out.unwrap_or_else(|| default_out(data));
     let run = run_info(recipe_path, &text, &recipe, data, previous);
@@ -196,16 +261,29 @@ fn run(recipe_path: &Path, data: &Path, out: Option<PathBuf>, compare: Option<&P
     if timings {
         let written = std::time::Instant::now();
         let ms = |a: std::time::Instant, b: std::time::Instant| (b - a).as_secs_f64() * 1000.0;
-        eprintln!("timings: load {:.1} ms, evaluate {:.1} ms, write {:.1} ms", ms(started, loaded), ms(loaded, evaluated), ms(evaluated, written));
+        eprintln!(
+            "timings: load {:.1} ms, evaluate {:.1} ms, write {:.1} ms",
+            ms(started, loaded),
+            ms(loaded, evaluated),
+            ms(evaluated, written)
+        );
     }
     let summary = summary::render(&results, &table, &out);
     if as_json {
-        println!("{}", serde_json::to_string_pretty(&json::results(&results, &table, &run)).unwrap_or_default());
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&json::results(&results, &table, &run))
+                .unwrap_or_default()
+        );
         eprint!("{summary}");
     } else {
         print!("{summary}");
     }
-    Ok(if results.failed() { ExitCode::from(1) } else { ExitCode::SUCCESS })
+    Ok(if results.failed() {
+        ExitCode::from(1)
+    } else {
+        ExitCode::SUCCESS
+    })
 }
 
 fn validate(recipe_path: &Path, data: Option<&Path>) -> Result<ExitCode, Failure> {
@@ -214,22 +292,57 @@ fn validate(recipe_path: &Path, data: Option<&Path>) -> Result<ExitCode, Failure
         Some(data) => load_for(recipe_path, &text, data)?.0,
         None => checked_recipe(recipe_path, &text, None)?,
     };
-    let against = data.map(|d| format!(", every column found in {}", d.display())).unwrap_or_default();
-    println!("{}: ok, {} statements{against}", recipe_path.display(), recipe.statements.len());
+    let against = data
+        .map(|d| format!(", every column found in {}", d.display()))
+        .unwrap_or_default();
+    println!(
+        "{}: ok, {} statements{against}",
+        recipe_path.display(),
+        recipe.statements.len()
+    );
     Ok(ExitCode::SUCCESS)
 }
 
 fn inspect(file: &Path, options: LoadOptions) -> Result<ExitCode, Failure> {
     let sheets = load::sheet_names(file)?;
     let table = load::load(file, &options)?;
-    println!("{}: {} bytes, SHA-256 {}", file.display(), table.source.size, table.source.sha256);
-    println!("sheets: {}", sheets.iter().map(|s| format!("\"{s}\"")).collect::<Vec<_>>().join(", "));
-    println!("sheet \"{}\", header row {}, {} data rows\n", table.sheet, table.header_row, table.rows);
-    let mut lines = vec![["column".to_string(), "cell".into(), "type".into(), "values".into(), "blank".into(), "text in numbers".into(), "errors".into(), "first problem cells".into()]];
+    println!(
+        "{}: {} bytes, SHA-256 {}",
+        file.display(),
+        table.source.size,
+        table.source.sha256
+    );
+    println!(
+        "sheets: {}",
+        sheets
+            .iter()
+            .map(|s| format!("\"{s}\""))
+            .collect::<Vec<_>>()
+            .join(", ")
+    );
+    println!(
+        "sheet \"{}\", header row {}, {} data rows\n",
+        table.sheet, table.header_row, table.rows
+    );
+    let mut lines = vec![[
+        "column".to_string(),
+        "cell".into(),
+        "type".into(),
+        "values".into(),
+        "blank".into(),
+        "text in numbers".into(),
+        "errors".into(),
+        "first problem cells".into(),
+    ]];
     for c in &table.columns {
         let issues = c.issues();
         let count = |k| issues.iter().filter(|i| i.kind == k).count().to_string();
-        let first: Vec<String> = issues.iter().filter(|i| i.kind != load::IssueKind::Blank).take(3).map(|i| table.address(c, i.row)).collect();
+        let first: Vec<String> = issues
+            .iter()
+            .filter(|i| i.kind != load::IssueKind::Blank)
+            .take(3)
+            .map(|i| table.address(c, i.row))
+            .collect();
         lines.push([
             c.name.clone(),
             load::column_letters(c.sheet_column),
@@ -258,7 +371,11 @@ fn calc(expression: &str, data: &Path, options: LoadOptions) -> Result<ExitCode,
         One::Number(x) => crate::format::shortest(*x),
         One::Truth(b) => b.to_string(),
         One::Text(t) => t.clone(),
-        One::List(v) => v.iter().map(|x| crate::format::shortest(*x)).collect::<Vec<_>>().join("\n"),
+        One::List(v) => v
+            .iter()
+            .map(|x| crate::format::shortest(*x))
+            .collect::<Vec<_>>()
+            .join("\n"),
         One::Undefined(why) => format!("no value: {why}"),
     };
     match scope.eval(&expr) {
@@ -266,9 +383,18 @@ fn calc(expression: &str, data: &Path, options: LoadOptions) -> Result<ExitCode,
         Value::Rows(rows) => {
             let n = rows.len();
             let texts: Vec<String> = match rows {
-                eval::Rows::Numbers(v) => v.iter().map(|x| x.map_or("missing".into(), crate::format::shortest)).collect(),
-                eval::Rows::Truths(v) => v.iter().map(|x| x.map_or("missing".into(), |b| b.to_string())).collect(),
-                eval::Rows::Texts(v) => v.iter().map(|x| x.clone().unwrap_or_else(|| "missing".into())).collect(),
+                eval::Rows::Numbers(v) => v
+                    .iter()
+                    .map(|x| x.map_or("missing".into(), crate::format::shortest))
+                    .collect(),
+                eval::Rows::Truths(v) => v
+                    .iter()
+                    .map(|x| x.map_or("missing".into(), |b| b.to_string()))
+                    .collect(),
+                eval::Rows::Texts(v) => v
+                    .iter()
+                    .map(|x| x.clone().unwrap_or_else(|| "missing".into()))
+                    .collect(),
             };
             debug_assert_eq!(texts.len(), n);
             out.push_str(&texts.join("\n"));

@@ -16,7 +16,11 @@ pub fn columns<const N: usize>(lines: &[[String; N]]) -> String {
     }
     let mut out = String::new();
     for line in lines {
-        let cells: Vec<String> = line.iter().zip(widths).map(|(c, w)| format!("{c:<w$}")).collect();
+        let cells: Vec<String> = line
+            .iter()
+            .zip(widths)
+            .map(|(c, w)| format!("{c:<w$}"))
+            .collect();
         out.push_str(cells.join("  ").trim_end());
         out.push('\n');
     }
@@ -30,25 +34,64 @@ pub fn render(results: &Results, table: &Table, out: &Path) -> String {
         results.rows_read,
         table.source.file_name,
         table.sheet,
-        if results.missing_cells.is_empty() { String::new() } else { format!(", {} cells counted as missing (listed on About)", results.missing_cells.len()) }
+        if results.missing_cells.is_empty() {
+            String::new()
+        } else {
+            format!(
+                ", {} cells counted as missing (listed on About)",
+                results.missing_cells.len()
+            )
+        }
     );
-    let mut lines = vec![["block".to_string(), "groups".into(), "ok / note / warn".into()]];
+    let mut lines = vec![[
+        "block".to_string(),
+        "groups".into(),
+        "ok / note / warn".into(),
+    ]];
     for block in &results.blocks {
         match block {
             Block::Panel { name, entries, .. } => {
                 let n = |s: Status| entries.iter().filter(|e| e.robustness.status == s).count();
-                let groups: std::collections::HashSet<_> = entries.iter().map(|e| e.group.clone()).collect();
-                lines.push([name.clone(), groups.len().to_string(), format!("{} / {} / {}", n(Status::Ok), n(Status::Note), n(Status::Warn))]);
+                let groups: std::collections::HashSet<_> =
+                    entries.iter().map(|e| e.group.clone()).collect();
+                lines.push([
+                    name.clone(),
+                    groups.len().to_string(),
+                    format!(
+                        "{} / {} / {}",
+                        n(Status::Ok),
+                        n(Status::Note),
+                        n(Status::Warn)
+                    ),
+                ]);
             }
-            Block::Figures { name, rows, .. } => lines.push([name.clone(), rows.len().to_string(), String::new()]),
+            Block::Figures { name, rows, .. } => {
+                lines.push([name.clone(), rows.len().to_string(), String::new()])
+            }
         }
     }
     text.push_str(&columns(&lines));
     let count = |o: Outcome| results.checks.iter().filter(|c| c.outcome == o).count();
-    text.push_str(&format!("\nchecks: {} pass, {} warn, {} fail\n", count(Outcome::Pass), count(Outcome::Warn), count(Outcome::Fail)));
+    text.push_str(&format!(
+        "\nchecks: {} pass, {} warn, {} fail\n",
+        count(Outcome::Pass),
+        count(Outcome::Warn),
+        count(Outcome::Fail)
+    ));
     for c in results.checks.iter().filter(|c| c.outcome != Outcome::Pass) {
-        let group = c.group.as_ref().map_or("(all rows)".to_string(), |g| group_text(g));
-        text.push_str(&format!("  {}: \"{}\" {group}{}\n", c.outcome.word(), c.name, c.note.as_ref().map(|n| format!(" ({n})")).unwrap_or_default()));
+        let group = c
+            .group
+            .as_ref()
+            .map_or("(all rows)".to_string(), |g| group_text(g));
+        text.push_str(&format!(
+            "  {}: \"{}\" {group}{}\n",
+            c.outcome.word(),
+            c.name,
+            c.note
+                .as_ref()
+                .map(|n| format!(" ({n})"))
+                .unwrap_or_default()
+        ));
     }
     text.push_str(&format!("\nwritten: {}\n", out.display()));
     text

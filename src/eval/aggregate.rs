@@ -18,7 +18,9 @@ pub fn from_stat(stat: Stat) -> One {
 fn option<'e>(name: &str, args: &'e [Expr]) -> Option<&'e str> {
     let allowed = functions::lookup(name)?.options;
     args.iter().skip(1).find_map(|a| match &a.kind {
-        ExprKind::Column(c) if !c.braced && allowed.contains(&c.name.as_str()) => Some(c.name.as_str()),
+        ExprKind::Column(c) if !c.braced && allowed.contains(&c.name.as_str()) => {
+            Some(c.name.as_str())
+        }
         _ => None,
     })
 }
@@ -28,7 +30,8 @@ fn parameters(scope: &Scope, name: &str, args: &[Expr]) -> Result<Vec<f64>, Stri
     let allowed = functions::lookup(name).map_or(&[][..], |f| f.options);
     let mut found = Vec::new();
     for a in args.iter().skip(1) {
-        if matches!(&a.kind, ExprKind::Column(c) if !c.braced && allowed.contains(&c.name.as_str())) {
+        if matches!(&a.kind, ExprKind::Column(c) if !c.braced && allowed.contains(&c.name.as_str()))
+        {
             continue;
         }
         match scope.eval(a) {
@@ -96,7 +99,10 @@ fn row_function(scope: &Scope, name: &str, arg: &Expr, params: &[f64]) -> Value 
         Value::One(One::Undefined(why)) => Value::One(One::Undefined(why)),
         Value::One(_) => Value::One(One::Undefined(format!("`{name}` needs a number"))),
         Value::Rows(rows) => {
-            let values = rows.numbers().into_iter().map(|x| x.map(f).filter(|y| y.is_finite()));
+            let values = rows
+                .numbers()
+                .into_iter()
+                .map(|x| x.map(f).filter(|y| y.is_finite()));
             Value::Rows(Rows::Numbers(values.collect()))
         }
     }
@@ -118,7 +124,11 @@ fn aggregate(scope: &Scope, name: &str, args: &[Expr], params: &[f64]) -> One {
     let m = method(word);
     let k = params.first().copied();
     let list = |v: Stat<Vec<f64>>| v.map_or_else(|e| One::Undefined(e.to_string()), One::List);
-    let denominator = if word == Some("population") { Denominator::Population } else { Denominator::Sample };
+    let denominator = if word == Some("population") {
+        Denominator::Population
+    } else {
+        Denominator::Sample
+    };
     let adjusted = word == Some("adjusted");
     match name {
         "count" => One::Number(s.count() as f64),
@@ -135,7 +145,15 @@ fn aggregate(scope: &Scope, name: &str, args: &[Expr], params: &[f64]) -> One {
         "variance" => from_stat(s.variance(denominator)),
         "sd" => from_stat(s.sd(denominator)),
         "quartile" => from_stat(stats::quartile(&s, k.unwrap_or(2.0) as u8, m)),
-        "percentile" => from_stat(stats::quantile_sorted(s.sorted(), k.unwrap_or(50.0) / 100.0, m).and_then(|q| if s.is_empty() { Err(stats::Undefined::NoValues) } else { Ok(q) })),
+        "percentile" => from_stat(
+            stats::quantile_sorted(s.sorted(), k.unwrap_or(50.0) / 100.0, m).and_then(|q| {
+                if s.is_empty() {
+                    Err(stats::Undefined::NoValues)
+                } else {
+                    Ok(q)
+                }
+            }),
+        ),
         "iqr" => from_stat(stats::iqr(&s, m)),
         "skewness" => from_stat(s.skewness(adjusted)),
         "kurtosis" => from_stat(s.kurtosis(adjusted)),

@@ -31,8 +31,18 @@ pub struct FigureRow {
 
 #[derive(Debug, Clone, PartialEq)]
 pub enum Block {
-    Panel { name: String, keys: Vec<String>, entries: Vec<PanelEntry>, rows_used: usize },
-    Figures { name: String, keys: Vec<String>, names: Vec<String>, rows: Vec<FigureRow> },
+    Panel {
+        name: String,
+        keys: Vec<String>,
+        entries: Vec<PanelEntry>,
+        rows_used: usize,
+    },
+    Figures {
+        name: String,
+        keys: Vec<String>,
+        names: Vec<String>,
+        rows: Vec<FigureRow>,
+    },
 }
 
 impl Block {
@@ -77,8 +87,16 @@ pub struct CheckResult {
 
 #[derive(Debug, Clone, PartialEq)]
 pub enum Chart {
-    Histogram { column: String, group: Vec<String>, histogram: Histogram, rule: String },
-    Boxplot { column: String, boxes: Vec<(Vec<String>, BoxSummary)> },
+    Histogram {
+        column: String,
+        group: Vec<String>,
+        histogram: Histogram,
+        rule: String,
+    },
+    Boxplot {
+        column: String,
+        boxes: Vec<(Vec<String>, BoxSummary)>,
+    },
 }
 
 /// A cell of the input that counted as missing, for the About sheet.
@@ -116,7 +134,9 @@ pub const MAX_GROUPS: usize = 100_000;
 
 #[derive(Debug, thiserror::Error)]
 pub enum EvalError {
-    #[error("`per {keys}` makes more than {MAX_GROUPS} groups; group by a column with fewer distinct values")]
+    #[error(
+        "`per {keys}` makes more than {MAX_GROUPS} groups; group by a column with fewer distinct values"
+    )]
     TooManyGroups { keys: String },
 }
 
@@ -129,13 +149,22 @@ fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<usi
     let mut order: Vec<(Vec<String>, Vec<usize>)> = Vec::new();
     let mut index: HashMap<Vec<String>, usize> = HashMap::new();
     for (i, &row) in scope.rows.iter().enumerate() {
-        let key: Vec<String> = columns.iter().map(|c| text_of(c, i).unwrap_or_else(|| BLANK_KEY.to_string())).collect();
+        let key: Vec<String> = columns
+            .iter()
+            .map(|c| text_of(c, i).unwrap_or_else(|| BLANK_KEY.to_string()))
+            .collect();
         let slot = *index.entry(key.clone()).or_insert_with(|| {
             order.push((key, Vec::new()));
             order.len() - 1
         });
         if order.len() > MAX_GROUPS {
-            return Err(EvalError::TooManyGroups { keys: keys.iter().map(|k| k.name.clone()).collect::<Vec<_>>().join(", ") });
+            return Err(EvalError::TooManyGroups {
+                keys: keys
+                    .iter()
+                    .map(|k| k.name.clone())
+                    .collect::<Vec<_>>()
+                    .join(", "),
+            });
         }
         order[slot].1.push(row);
     }
@@ -187,11 +216,21 @@ fn columns_used(recipe: &Recipe) -> Vec<String> {
         match &s.kind {
             StatementKind::Let { value, .. } => exprs.push(value),
             StatementKind::RowsWhere(e) => exprs.push(e),
-            StatementKind::Panel { columns, per, filter, .. } => {
+            StatementKind::Panel {
+                columns,
+                per,
+                filter,
+                ..
+            } => {
                 refs.extend(columns.iter().chain(per));
                 exprs.extend(filter);
             }
-            StatementKind::Figures { per, filter, figures, .. } => {
+            StatementKind::Figures {
+                per,
+                filter,
+                figures,
+                ..
+            } => {
                 refs.extend(per);
                 exprs.extend(filter);
                 exprs.extend(figures.iter().map(|f| &f.value));
@@ -200,11 +239,15 @@ fn columns_used(recipe: &Recipe) -> Vec<String> {
                 refs.extend(per);
                 exprs.push(condition);
             }
-            StatementKind::Histogram { column, per, .. } | StatementKind::Boxplot { column, per } => {
+            StatementKind::Histogram { column, per, .. }
+            | StatementKind::Boxplot { column, per } => {
                 refs.push(column);
                 refs.extend(per);
             }
-            StatementKind::Title(_) | StatementKind::Input { .. } | StatementKind::Period(_) | StatementKind::Drift(_) => {}
+            StatementKind::Title(_)
+            | StatementKind::Input { .. }
+            | StatementKind::Period(_)
+            | StatementKind::Drift(_) => {}
         }
         out.extend(refs.into_iter().map(|c| c.name.clone()));
         for e in exprs {
@@ -222,8 +265,15 @@ pub fn evaluate(recipe: &Recipe, table: &Table) -> Result<Results, EvalError> {
 }
 
 /// Evaluates a checked recipe over a table; `change(...)` compares with `previous`.
-pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previous>) -> Result<Results, EvalError> {
-    let context = Context { previous, terms: Default::default() };
+pub fn evaluate_against(
+    recipe: &Recipe,
+    table: &Table,
+    previous: Option<Previous>,
+) -> Result<Results, EvalError> {
+    let context = Context {
+        previous,
+        terms: Default::default(),
+    };
     let mut lets = value::Lets::new();
     // For each let, the data columns it is computed from (for source cells).
     let mut sources: HashMap<String, Vec<String>> = HashMap::new();
@@ -276,14 +326,26 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
                 let (now, failed, unknown) = filter(&scope, condition);
                 let text = crate::recipe::pretty::expr(condition);
                 if failed > 0 {
-                    results.rows_skipped.push((format!("rows where {text}: condition false"), failed));
+                    results
+                        .rows_skipped
+                        .push((format!("rows where {text}: condition false"), failed));
                 }
                 if unknown > 0 {
-                    results.rows_skipped.push((format!("rows where {text}: condition could not be evaluated (missing value)"), unknown));
+                    results.rows_skipped.push((
+                        format!(
+                            "rows where {text}: condition could not be evaluated (missing value)"
+                        ),
+                        unknown,
+                    ));
                 }
                 kept = now;
             }
-            StatementKind::Panel { name, columns, per, filter: block_filter } => {
+            StatementKind::Panel {
+                name,
+                columns,
+                per,
+                filter: block_filter,
+            } => {
                 let rows = block_rows(table, &lets, &kept, block_filter);
                 let scope = Scope::new(table, &lets, &rows);
                 // Gather each (group, column) sample, then compute the panels in
@@ -293,7 +355,8 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
                 for (g, (group, group_rows)) in all_groups.iter().enumerate() {
                     let group_scope = Scope::new(table, &lets, group_rows).grouped(group, &context);
                     for column in columns {
-                        let sample = Sample::from_column(group_scope.column(&column.name).numbers());
+                        let sample =
+                            Sample::from_column(group_scope.column(&column.name).numbers());
                         jobs.push((g, column.name.clone(), sample));
                     }
                 }
@@ -301,7 +364,14 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
                     .par_iter()
                     .map(|(g, column, sample)| {
                         let (group, group_rows) = &all_groups[*g];
-                        let address = |i: usize| source_cell(table, &sources, column, group_rows[sample.positions()[i] as usize]);
+                        let address = |i: usize| {
+                            source_cell(
+                                table,
+                                &sources,
+                                column,
+                                group_rows[sample.positions()[i] as usize],
+                            )
+                        };
                         PanelEntry {
                             group: group.clone(),
                             column: column.clone(),
@@ -312,16 +382,34 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
                     })
                     .collect();
                 let keys = per.iter().map(|k| k.name.clone()).collect();
-                results.blocks.push(Block::Panel { name: name.value.clone(), keys, entries, rows_used: rows.len() });
+                results.blocks.push(Block::Panel {
+                    name: name.value.clone(),
+                    keys,
+                    entries,
+                    rows_used: rows.len(),
+                });
             }
-            StatementKind::Figures { name, per, filter: block_filter, figures } => {
+            StatementKind::Figures {
+                name,
+                per,
+                filter: block_filter,
+                figures,
+            } => {
                 let rows = block_rows(table, &lets, &kept, block_filter);
                 let scope = Scope::new(table, &lets, &rows);
                 let mut out = Vec::new();
                 for (group, group_rows) in groups(&scope, per)? {
-                    let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
-                    let values = figures.iter().map(|f| one(group_scope.eval(&f.value))).collect();
-                    out.push(FigureRow { group, rows: group_rows.len(), values });
+                    let group_scope =
+                        Scope::new(table, &lets, &group_rows).grouped(&group, &context);
+                    let values = figures
+                        .iter()
+                        .map(|f| one(group_scope.eval(&f.value)))
+                        .collect();
+                    out.push(FigureRow {
+                        group,
+                        rows: group_rows.len(),
+                        values,
+                    });
                 }
                 results.blocks.push(Block::Figures {
                     name: name.value.clone(),
@@ -330,13 +418,27 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
                     rows: out,
                 });
             }
-            StatementKind::Check { name, level, per, condition } => {
+            StatementKind::Check {
+                name,
+                level,
+                per,
+                condition,
+            } => {
                 let scope = Scope::new(table, &lets, &kept).grouped(&[], &context);
-                results.checks.push(check(&scope, &name.value, *level, condition, None));
+                results
+                    .checks
+                    .push(check(&scope, &name.value, *level, condition, None));
                 if !per.is_empty() {
                     for (group, group_rows) in groups(&scope, per)? {
-                        let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
-                        results.checks.push(check(&group_scope, &name.value, *level, condition, Some(group)));
+                        let group_scope =
+                            Scope::new(table, &lets, &group_rows).grouped(&group, &context);
+                        results.checks.push(check(
+                            &group_scope,
+                            &name.value,
+                            *level,
+                            condition,
+                            Some(group),
+                        ));
                     }
                 }
             }
@@ -348,10 +450,16 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
                     None => BinRule::Sturges,
                 };
                 for (group, group_rows) in groups(&scope, per)? {
-                    let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
+                    let group_scope =
+                        Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     let sample = group_scope.sample(&column_expr(column));
                     if let Ok(histogram) = stats::histogram(&sample, rule) {
-                        results.charts.push(Chart::Histogram { column: column.name.clone(), group, histogram, rule: rule.word() });
+                        results.charts.push(Chart::Histogram {
+                            column: column.name.clone(),
+                            group,
+                            histogram,
+                            rule: rule.word(),
+                        });
                     }
                 }
             }
@@ -359,12 +467,18 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
                 let scope = Scope::new(table, &lets, &kept);
                 let mut boxes = Vec::new();
                 for (group, group_rows) in groups(&scope, per)? {
-                    let group_scope = Scope::new(table, &lets, &group_rows).grouped(&group, &context);
-                    if let Some(summary) = panel::box_summary(&group_scope.sample(&column_expr(column))) {
+                    let group_scope =
+                        Scope::new(table, &lets, &group_rows).grouped(&group, &context);
+                    if let Some(summary) =
+                        panel::box_summary(&group_scope.sample(&column_expr(column)))
+                    {
                         boxes.push((group, summary));
                     }
                 }
-                results.charts.push(Chart::Boxplot { column: column.name.clone(), boxes });
+                results.charts.push(Chart::Boxplot {
+                    column: column.name.clone(),
+                    boxes,
+                });
             }
         }
     }
@@ -376,23 +490,40 @@ pub fn evaluate_against(recipe: &Recipe, table: &Table, previous: Option<Previou
 }
 
 fn column_expr(column: &ColumnRef) -> Expr {
-    Expr { kind: ExprKind::Column(column.clone()), span: column.span }
+    Expr {
+        kind: ExprKind::Column(column.clone()),
+        span: column.span,
+    }
 }
 
 /// The input cell of a table row in a data column. A `let` computed from
 /// one data column points at that column's cell; from several, at the row.
-fn source_cell(table: &Table, sources: &HashMap<String, Vec<String>>, column: &str, row: usize) -> String {
+fn source_cell(
+    table: &Table,
+    sources: &HashMap<String, Vec<String>>,
+    column: &str,
+    row: usize,
+) -> String {
     let behind = match sources.get(column).map(Vec::as_slice) {
         Some([only]) => only.as_str(),
         _ => column,
     };
     match table.column(behind) {
         Some(c) => table.address(c, row),
-        None => format!("{}!row {} ({column})", crate::load::table_sheet_ref(&table.sheet), table.header_row as usize + 1 + row),
+        None => format!(
+            "{}!row {} ({column})",
+            crate::load::table_sheet_ref(&table.sheet),
+            table.header_row as usize + 1 + row
+        ),
     }
 }
 
-fn block_rows(table: &Table, lets: &value::Lets, kept: &[usize], condition: &Option<Expr>) -> Vec<usize> {
+fn block_rows(
+    table: &Table,
+    lets: &value::Lets,
+    kept: &[usize],
+    condition: &Option<Expr>,
+) -> Vec<usize> {
     match condition {
         None => kept.to_vec(),
         Some(c) => filter(&Scope::new(table, lets, kept), c).0,
@@ -434,20 +565,41 @@ fn one(v: Value) -> One {
     }
 }
 
-fn check(scope: &Scope, name: &str, level: CheckLevel, condition: &Expr, group: Option<Vec<String>>) -> CheckResult {
+fn check(
+    scope: &Scope,
+    name: &str,
+    level: CheckLevel,
+    condition: &Expr,
+    group: Option<Vec<String>>,
+) -> CheckResult {
     let verdict = one(scope.eval(condition));
     let (value, limit) = match &condition.kind {
-        ExprKind::Binary { op, left, right } if op.is_comparison() => (one(scope.eval(left)), Some(one(scope.eval(right)))),
+        ExprKind::Binary { op, left, right } if op.is_comparison() => {
+            (one(scope.eval(left)), Some(one(scope.eval(right))))
+        }
         _ => (verdict.clone(), None),
     };
-    let failing = if level == CheckLevel::Fail { Outcome::Fail } else { Outcome::Warn };
+    let failing = if level == CheckLevel::Fail {
+        Outcome::Fail
+    } else {
+        Outcome::Warn
+    };
     let (outcome, note) = match verdict {
         One::Truth(true) => (Outcome::Pass, None),
         One::Truth(false) => (failing, None),
         One::Undefined(why) => (failing, Some(format!("could not be evaluated: {why}"))),
         _ => (failing, Some("the condition is not true or false".into())),
     };
-    CheckResult { name: name.to_string(), level, condition: crate::recipe::pretty::expr(condition), group, value, limit, outcome, note }
+    CheckResult {
+        name: name.to_string(),
+        level,
+        condition: crate::recipe::pretty::expr(condition),
+        group,
+        value,
+        limit,
+        outcome,
+        note,
+    }
 }
 
 /// A sample of a data column over some rows, for callers outside evaluation (`calc`).

@@ -7,8 +7,24 @@ use super::value::One;
 
 /// The standard panel's figures, in the order the panel sheet shows them.
 pub const PANEL_LABELS: &[&str] = &[
-    "n", "missing", "mean", "sd", "min", "Q1", "median", "Q3", "max", "range", "IQR", "modes", "mode basis",
-    "skewness g1", "Bowley skewness", "kurtosis b2", "low outliers", "high outliers",
+    "n",
+    "missing",
+    "mean",
+    "sd",
+    "min",
+    "Q1",
+    "median",
+    "Q3",
+    "max",
+    "range",
+    "IQR",
+    "modes",
+    "mode basis",
+    "skewness g1",
+    "Bowley skewness",
+    "kurtosis b2",
+    "low outliers",
+    "high outliers",
 ];
 
 /// A value and the cell it came from.
@@ -92,12 +108,20 @@ pub fn panel_figures(s: &Sample) -> Vec<One> {
     let m = QuantileMethod::default();
     let outliers = stats::outliers(s, 1.5, m);
     let (modes, basis) = if s.is_empty() {
-        (One::Undefined("no values".into()), One::Undefined("no values".into()))
+        (
+            One::Undefined("no values".into()),
+            One::Undefined("no values".into()),
+        )
     } else if is_whole(s.values()) {
         (list(stats::modes(s)), One::Text("exact values".into()))
     } else {
-        let k = stats::histogram(s, BinRule::Sturges).map(|h| h.counts.len()).unwrap_or(1);
-        (list(stats::binned_mode(s, k)), One::Text(format!("binned, {k} equal bins (Sturges)")))
+        let k = stats::histogram(s, BinRule::Sturges)
+            .map(|h| h.counts.len())
+            .unwrap_or(1);
+        (
+            list(stats::binned_mode(s, k)),
+            One::Text(format!("binned, {k} equal bins (Sturges)")),
+        )
     };
     vec![
         One::Number(s.count() as f64),
@@ -116,8 +140,18 @@ pub fn panel_figures(s: &Sample) -> Vec<One> {
         from_stat(s.skewness(false)),
         from_stat(stats::bowley(s, m)),
         from_stat(s.kurtosis(false)),
-        from_stat(outliers.as_ref().map(|o| o.low.len() as f64).map_err(Clone::clone)),
-        from_stat(outliers.as_ref().map(|o| o.high.len() as f64).map_err(Clone::clone)),
+        from_stat(
+            outliers
+                .as_ref()
+                .map(|o| o.low.len() as f64)
+                .map_err(Clone::clone),
+        ),
+        from_stat(
+            outliers
+                .as_ref()
+                .map(|o| o.high.len() as f64)
+                .map_err(Clone::clone),
+        ),
     ]
 }
 
@@ -136,9 +170,14 @@ fn change(after: &One, before: stats::Stat) -> One {
 
 /// Leave-one-out: the value whose removal moves the mean, and the sd, most.
 /// O(n) from the update formulas for the mean and the sum of squares.
-fn influences(s: &Sample, address: &dyn Fn(usize) -> String) -> (Option<Influence>, Option<Influence>) {
+fn influences(
+    s: &Sample,
+    address: &dyn Fn(usize) -> String,
+) -> (Option<Influence>, Option<Influence>) {
     let n = s.count();
-    let Ok(moments) = s.moments() else { return (None, None) };
+    let Ok(moments) = s.moments() else {
+        return (None, None);
+    };
     if n < 3 {
         return (None, None);
     }
@@ -159,15 +198,34 @@ fn influences(s: &Sample, address: &dyn Fn(usize) -> String) -> (Option<Influenc
             best_sd = Some((ds, i));
         }
     }
-    let make = |(change, i): (f64, usize)| Influence { change, cell: Flagged { address: address(i), value: s.values()[i] } };
+    let make = |(change, i): (f64, usize)| Influence {
+        change,
+        cell: Flagged {
+            address: address(i),
+            value: s.values()[i],
+        },
+    };
     (best_mean.map(make), best_sd.map(make))
 }
 
 /// Robustness of one (group, column). `address(i)` is the source cell of value i.
 pub fn robustness(s: &Sample, address: &dyn Fn(usize) -> String) -> Robustness {
     let m = QuantileMethod::default();
-    let flag = |indexes: &[usize]| indexes.iter().map(|&i| Flagged { address: address(i), value: s.values()[i] }).collect::<Vec<_>>();
-    let (mean, median, sd, iqr) = (s.mean(), stats::median(s), s.sd(Denominator::Sample), stats::iqr(s, m));
+    let flag = |indexes: &[usize]| {
+        indexes
+            .iter()
+            .map(|&i| Flagged {
+                address: address(i),
+                value: s.values()[i],
+            })
+            .collect::<Vec<_>>()
+    };
+    let (mean, median, sd, iqr) = (
+        s.mean(),
+        stats::median(s),
+        s.sd(Denominator::Sample),
+        stats::iqr(s, m),
+    );
     let gap = |scale: &stats::Stat, zero: &str| -> One {
         match (&mean, &median, scale) {
             (Ok(a), Ok(b), Ok(u)) if *u > 0.0 => One::number((a - b) / u),
@@ -178,28 +236,55 @@ pub fn robustness(s: &Sample, address: &dyn Fn(usize) -> String) -> Robustness {
     let (gap_in_sd, gap_in_iqr) = (gap(&sd, "sd is zero"), gap(&iqr, "IQR is zero"));
     let wide = stats::outliers(s, 1.5, m).ok();
     let far = stats::outliers(s, 3.0, m).ok();
-    let outliers_wide = wide.as_ref().map(|o| flag(&[o.low.clone(), o.high.clone()].concat())).unwrap_or_default();
-    let outliers_far = far.as_ref().map(|o| flag(&[o.low.clone(), o.high.clone()].concat())).unwrap_or_default();
+    let outliers_wide = wide
+        .as_ref()
+        .map(|o| flag(&[o.low.clone(), o.high.clone()].concat()))
+        .unwrap_or_default();
+    let outliers_far = far
+        .as_ref()
+        .map(|o| flag(&[o.low.clone(), o.high.clone()].concat()))
+        .unwrap_or_default();
     let kept: Vec<f64> = match &wide {
         Some(o) => {
             let mut out = vec![false; s.count()];
             o.low.iter().chain(&o.high).for_each(|&i| out[i] = true);
-            s.values().iter().zip(&out).filter(|(_, gone)| !**gone).map(|(x, _)| *x).collect()
+            s.values()
+                .iter()
+                .zip(&out)
+                .filter(|(_, gone)| !**gone)
+                .map(|(x, _)| *x)
+                .collect()
         }
         None => Vec::new(),
     };
     let trimmed = Sample::from_values(kept);
-    let (mean_without, sd_without, skewness_without) =
-        (from_stat(trimmed.mean()), from_stat(trimmed.sd(Denominator::Sample)), from_stat(trimmed.skewness(false)));
-    let (mean_change, sd_change, skewness_change) =
-        (change(&mean_without, mean.clone()), change(&sd_without, sd.clone()), change(&skewness_without, s.skewness(false)));
+    let (mean_without, sd_without, skewness_without) = (
+        from_stat(trimmed.mean()),
+        from_stat(trimmed.sd(Denominator::Sample)),
+        from_stat(trimmed.skewness(false)),
+    );
+    let (mean_change, sd_change, skewness_change) = (
+        change(&mean_without, mean.clone()),
+        change(&sd_without, sd.clone()),
+        change(&skewness_without, s.skewness(false)),
+    );
     let (mean_influence, sd_influence) = influences(s, address);
-    let modified_z = stats::modified_z_scores(s).map_err(|e| e.to_string()).map(|z| {
-        let big: Vec<usize> = (0..z.len()).filter(|&i| z[i].abs() > stats::MODIFIED_Z_CUTOFF).collect();
-        flag(&big)
-    });
+    let modified_z = stats::modified_z_scores(s)
+        .map_err(|e| e.to_string())
+        .map(|z| {
+            let big: Vec<usize> = (0..z.len())
+                .filter(|&i| z[i].abs() > stats::MODIFIED_Z_CUTOFF)
+                .collect();
+            flag(&big)
+        });
     let heavy_tails = s.kurtosis(false).is_ok_and(|k| k > 3.0);
-    let bootstrap = stats::bootstrap_intervals(s, stats::resamples_for(s.count()), 0.95, stats::DEFAULT_SEED).map_err(|e| e.to_string());
+    let bootstrap = stats::bootstrap_intervals(
+        s,
+        stats::resamples_for(s.count()),
+        0.95,
+        stats::DEFAULT_SEED,
+    )
+    .map_err(|e| e.to_string());
 
     // Status thresholds are common practice, not from a published source.
     let mut reasons = Vec::new();
@@ -209,35 +294,72 @@ pub fn robustness(s: &Sample, address: &dyn Fn(usize) -> String) -> Robustness {
         reasons.push(why);
     };
     if !outliers_far.is_empty() {
-        raise(Status::Warn, format!("{} value(s) beyond the 3 IQR fences", outliers_far.len()));
+        raise(
+            Status::Warn,
+            format!("{} value(s) beyond the 3 IQR fences", outliers_far.len()),
+        );
     }
     if let Ok(big) = &modified_z
         && !big.is_empty()
     {
-        raise(Status::Warn, format!("{} modified z-score(s) above 3.5", big.len()));
+        raise(
+            Status::Warn,
+            format!("{} modified z-score(s) above 3.5", big.len()),
+        );
     }
     if let One::Number(g) = gap_in_sd
         && g.abs() > 0.5
     {
-        raise(Status::Warn, format!("mean and median differ by {:.2} sd", g.abs()));
+        raise(
+            Status::Warn,
+            format!("mean and median differ by {:.2} sd", g.abs()),
+        );
     } else if let One::Number(g) = gap_in_sd
         && g.abs() > 0.25
     {
-        raise(Status::Note, format!("mean and median differ by {:.2} sd", g.abs()));
+        raise(
+            Status::Note,
+            format!("mean and median differ by {:.2} sd", g.abs()),
+        );
     }
     if outliers_far.is_empty() && !outliers_wide.is_empty() {
-        raise(Status::Note, format!("{} value(s) beyond the 1.5 IQR fences", outliers_wide.len()));
+        raise(
+            Status::Note,
+            format!("{} value(s) beyond the 1.5 IQR fences", outliers_wide.len()),
+        );
     }
     if heavy_tails {
-        raise(Status::Note, "kurtosis above 3: tails heavier than normal".into());
+        raise(
+            Status::Note,
+            "kurtosis above 3: tails heavier than normal".into(),
+        );
     }
     if s.count() < 3 {
         raise(Status::Note, format!("only {} value(s)", s.count()));
     }
-    let reason = if reasons.is_empty() { "no sign that a few values drive the figures".to_string() } else { reasons.join("; ") };
+    let reason = if reasons.is_empty() {
+        "no sign that a few values drive the figures".to_string()
+    } else {
+        reasons.join("; ")
+    };
     Robustness {
-        gap_in_sd, gap_in_iqr, outliers_wide, outliers_far, mean_without, sd_without, skewness_without, mean_change, sd_change,
-        skewness_change, mean_influence, sd_influence, modified_z, heavy_tails, bootstrap, status, reason,
+        gap_in_sd,
+        gap_in_iqr,
+        outliers_wide,
+        outliers_far,
+        mean_without,
+        sd_without,
+        skewness_without,
+        mean_change,
+        sd_change,
+        skewness_change,
+        mean_influence,
+        sd_influence,
+        modified_z,
+        heavy_tails,
+        bootstrap,
+        status,
+        reason,
     }
 }
 
@@ -271,7 +393,12 @@ mod tests {
         assert_eq!(mean.cell.address, "r4");
         let rest = Sample::from_values(values.iter().copied().filter(|&x| x != 30.0));
         assert!((mean.change - (rest.mean().unwrap() - s.mean().unwrap())).abs() < 1e-12);
-        assert!((sd.change - (rest.sd(Denominator::Sample).unwrap() - s.sd(Denominator::Sample).unwrap())).abs() < 1e-12);
+        assert!(
+            (sd.change
+                - (rest.sd(Denominator::Sample).unwrap() - s.sd(Denominator::Sample).unwrap()))
+            .abs()
+                < 1e-12
+        );
     }
 
     #[test]
@@ -279,7 +406,13 @@ mod tests {
         let s = Sample::from_values([10.0, 11.0, 12.0, 11.5, 10.5, 11.2, 250.0]);
         let r = robustness(&s, &|i| format!("Deliveries!C{}", i + 2));
         assert_eq!(r.status, Status::Warn);
-        assert_eq!(r.outliers_far, vec![Flagged { address: "Deliveries!C8".into(), value: 250.0 }]);
+        assert_eq!(
+            r.outliers_far,
+            vec![Flagged {
+                address: "Deliveries!C8".into(),
+                value: 250.0
+            }]
+        );
         assert!(r.reason.contains("beyond the 3 IQR fences"), "{}", r.reason);
         let calm = Sample::from_values([10.0, 11.0, 12.0, 11.5, 10.5, 11.2, 10.8]);
         assert_eq!(robustness(&calm, &|i| i.to_string()).status, Status::Ok);

@@ -38,7 +38,10 @@ impl Rows {
     pub fn numbers(&self) -> Vec<Option<f64>> {
         match self {
             Rows::Numbers(v) => v.clone(),
-            Rows::Truths(v) => v.iter().map(|b| b.map(|b| f64::from(u8::from(b)))).collect(),
+            Rows::Truths(v) => v
+                .iter()
+                .map(|b| b.map(|b| f64::from(u8::from(b))))
+                .collect(),
             Rows::Texts(v) => vec![None; v.len()],
         }
     }
@@ -66,7 +69,11 @@ pub enum One {
 
 impl One {
     pub fn number(x: f64) -> One {
-        if x.is_finite() { One::Number(x) } else { One::Undefined("not a finite number (division by zero?)".into()) }
+        if x.is_finite() {
+            One::Number(x)
+        } else {
+            One::Undefined("not a finite number (division by zero?)".into())
+        }
     }
 }
 
@@ -114,12 +121,23 @@ pub struct Scope<'a> {
 
 impl<'a> Scope<'a> {
     pub fn new(table: &'a Table, lets: &'a Lets, rows: &'a [usize]) -> Scope<'a> {
-        Scope { table, lets, rows, group: "(all rows)".into(), context: None, samples: RefCell::new(HashMap::new()) }
+        Scope {
+            table,
+            lets,
+            rows,
+            group: "(all rows)".into(),
+            context: None,
+            samples: RefCell::new(HashMap::new()),
+        }
     }
 
     /// The same scope, as one group of a run with a comparison context.
     pub fn grouped(mut self, group: &[String], context: &'a Context) -> Scope<'a> {
-        self.group = if group.is_empty() { "(all rows)".into() } else { group.join(" / ") };
+        self.group = if group.is_empty() {
+            "(all rows)".into()
+        } else {
+            group.join(" / ")
+        };
         self.context = Some(context);
         self
     }
@@ -127,9 +145,18 @@ impl<'a> Scope<'a> {
     /// Records the current value of a `change(...)` argument and returns its
     /// previous value, if the run has one.
     pub fn compare(&self, expression: String, now: f64) -> Result<f64, String> {
-        let Some(context) = self.context else { return Err("no previous period to compare with".into()) };
-        let previous = context.previous.as_ref().and_then(|p| p.get(&(expression.clone(), self.group.clone())).copied());
-        context.terms.borrow_mut().push(Term { expression, group: self.group.clone(), value: now });
+        let Some(context) = self.context else {
+            return Err("no previous period to compare with".into());
+        };
+        let previous = context
+            .previous
+            .as_ref()
+            .and_then(|p| p.get(&(expression.clone(), self.group.clone())).copied());
+        context.terms.borrow_mut().push(Term {
+            expression,
+            group: self.group.clone(),
+            value: now,
+        });
         previous.ok_or_else(|| "no previous period to compare with".to_string())
     }
 
@@ -163,10 +190,13 @@ impl<'a> Scope<'a> {
         match column.kind {
             ColumnKind::Text => Rows::Texts(self.rows.iter().map(|&r| column.text(r)).collect()),
             ColumnKind::Bool => Rows::Truths(
-                self.rows.iter().map(|&r| match column.cells[r] {
-                    crate::load::Cell::Bool(b) => Some(b),
-                    _ => None,
-                }).collect(),
+                self.rows
+                    .iter()
+                    .map(|&r| match column.cells[r] {
+                        crate::load::Cell::Bool(b) => Some(b),
+                        _ => None,
+                    })
+                    .collect(),
             ),
             _ => Rows::Numbers(self.rows.iter().map(|&r| column.number(r)).collect()),
         }
@@ -180,8 +210,14 @@ impl<'a> Scope<'a> {
             ExprKind::Column(c) => Value::Rows(self.column(&c.name)),
             ExprKind::Call { function, args } => aggregate::call(self, &function.value, args),
             ExprKind::Unary { op, operand } => unary(*op, self.eval(operand)),
-            ExprKind::Binary { op, left, right } => binary(*op, self.eval(left), self.eval(right), self.rows.len()),
-            ExprKind::If { condition, then, otherwise } => {
+            ExprKind::Binary { op, left, right } => {
+                binary(*op, self.eval(left), self.eval(right), self.rows.len())
+            }
+            ExprKind::If {
+                condition,
+                then,
+                otherwise,
+            } => {
                 let n = self.rows.len();
                 let (c, t, o) = (self.eval(condition), self.eval(then), self.eval(otherwise));
                 if let (Value::One(c), Value::One(t), Value::One(o)) = (&c, &t, &o) {
@@ -247,8 +283,12 @@ fn unary(op: UnaryOp, v: Value) -> Value {
         (UnaryOp::Not, Value::One(One::Truth(b))) => Value::One(One::Truth(!b)),
         (_, Value::One(One::Undefined(why))) => Value::One(One::Undefined(why)),
         (_, Value::One(_)) => Value::One(One::Undefined("wrong kind of value".into())),
-        (UnaryOp::Negate, Value::Rows(r)) => Value::Rows(Rows::Numbers(r.numbers().into_iter().map(|x| x.map(|x| -x)).collect())),
-        (UnaryOp::Not, Value::Rows(r)) => Value::Rows(Rows::Truths(truths(&r).into_iter().map(|b| b.map(|b| !b)).collect())),
+        (UnaryOp::Negate, Value::Rows(r)) => Value::Rows(Rows::Numbers(
+            r.numbers().into_iter().map(|x| x.map(|x| -x)).collect(),
+        )),
+        (UnaryOp::Not, Value::Rows(r)) => Value::Rows(Rows::Truths(
+            truths(&r).into_iter().map(|b| b.map(|b| !b)).collect(),
+        )),
     }
 }
 
@@ -300,12 +340,18 @@ fn binary(op: BinaryOp, a: Value, b: Value, n: usize) -> Value {
             // Kleene logic: false and missing is false; true or missing is true.
             (BinaryOp::And, Some(false), _) | (BinaryOp::And, _, Some(false)) => Some(false),
             (BinaryOp::Or, Some(true), _) | (BinaryOp::Or, _, Some(true)) => Some(true),
-            (_, Some(p), Some(q)) => Some(if op == BinaryOp::And { *p && *q } else { *p || *q }),
+            (_, Some(p), Some(q)) => Some(if op == BinaryOp::And {
+                *p && *q
+            } else {
+                *p || *q
+            }),
             _ => None,
         });
         return Value::Rows(Rows::Truths(combined.collect()));
     }
-    if matches!(op, BinaryOp::Equal | BinaryOp::NotEqual) && (matches!(a, Rows::Texts(_)) || matches!(b, Rows::Texts(_))) {
+    if matches!(op, BinaryOp::Equal | BinaryOp::NotEqual)
+        && (matches!(a, Rows::Texts(_)) || matches!(b, Rows::Texts(_)))
+    {
         let equal = (0..n).map(|i| match (a.text_at(i), b.text_at(i)) {
             (Some(x), Some(y)) => Some((x == y) == (op == BinaryOp::Equal)),
             _ => None,
@@ -315,7 +361,11 @@ fn binary(op: BinaryOp, a: Value, b: Value, n: usize) -> Value {
     let (x, y) = (a.numbers(), b.numbers());
     let pairs = x.iter().zip(&y);
     if op.is_comparison() {
-        return Value::Rows(Rows::Truths(pairs.map(|(p, q)| Some(compare(op, (*p)?, (*q)?))).collect()));
+        return Value::Rows(Rows::Truths(
+            pairs
+                .map(|(p, q)| Some(compare(op, (*p)?, (*q)?)))
+                .collect(),
+        ));
     }
     let values = pairs.map(|(p, q)| Some(arithmetic(op, (*p)?, (*q)?)).filter(|r| r.is_finite()));
     Value::Rows(Rows::Numbers(values.collect()))

@@ -25,7 +25,11 @@ pub fn drift_of(recipe: &crate::recipe::Recipe) -> f64 {
         .statements
         .iter()
         .find_map(|s| match &s.kind {
-            crate::recipe::ast::StatementKind::Drift(d) => Some(if d.value.1 { d.value.0 / 100.0 } else { d.value.0 }),
+            crate::recipe::ast::StatementKind::Drift(d) => Some(if d.value.1 {
+                d.value.0 / 100.0
+            } else {
+                d.value.0
+            }),
             _ => None,
         })
         .unwrap_or(DEFAULT_DRIFT)

@@ -31,22 +31,35 @@ impl Period {
 /// YYYY_MM, YYYYMM, optionally followed by a day.
 fn from_name(name: &str) -> Option<String> {
     let bytes = name.as_bytes();
-    let digits = |at: usize, n: usize| bytes.get(at..at + n).filter(|d| d.iter().all(u8::is_ascii_digit)).map(|d| std::str::from_utf8(d).unwrap());
+    let digits = |at: usize, n: usize| {
+        bytes
+            .get(at..at + n)
+            .filter(|d| d.iter().all(u8::is_ascii_digit))
+            .map(|d| std::str::from_utf8(d).unwrap())
+    };
     for start in 0..bytes.len() {
         if start > 0 && bytes[start - 1].is_ascii_digit() {
             continue;
         }
-        let Some(year) = digits(start, 4).filter(|y| ("1900".."2200").contains(y)) else { continue };
+        let Some(year) = digits(start, 4).filter(|y| ("1900".."2200").contains(y)) else {
+            continue;
+        };
         let mut at = start + 4;
         if matches!(bytes.get(at), Some(b'-' | b'_' | b'.')) {
             at += 1;
         }
-        let Some(month) = digits(at, 2).filter(|m| ("01"..="12").contains(m)) else { continue };
+        let Some(month) = digits(at, 2).filter(|m| ("01"..="12").contains(m)) else {
+            continue;
+        };
         at += 2;
         let separated = matches!(bytes.get(at), Some(b'-' | b'_' | b'.'));
         let day = digits(at + usize::from(separated), 2)
             .filter(|d| ("01"..="31").contains(d))
-            .filter(|_| !bytes.get(at + usize::from(separated) + 2).is_some_and(u8::is_ascii_digit));
+            .filter(|_| {
+                !bytes
+                    .get(at + usize::from(separated) + 2)
+                    .is_some_and(u8::is_ascii_digit)
+            });
         if bytes.get(at).is_some_and(u8::is_ascii_digit) && day.is_none() {
             continue;
         }
@@ -65,10 +78,16 @@ pub fn period_of(recipe: &Recipe, data: &Path) -> Option<Period> {
         _ => None,
     });
     if let Some(label) = stated {
-        return Some(Period { label, source: PeriodSource::Recipe });
+        return Some(Period {
+            label,
+            source: PeriodSource::Recipe,
+        });
     }
     let name = data.file_name()?.to_string_lossy();
-    from_name(&name).map(|label| Period { label, source: PeriodSource::FileName })
+    from_name(&name).map(|label| Period {
+        label,
+        source: PeriodSource::FileName,
+    })
 }
 
 #[cfg(test)]
@@ -79,8 +98,14 @@ mod tests {
     fn dates_in_file_names() {
         assert_eq!(from_name("depot-2026-10.xlsx").as_deref(), Some("2026-10"));
         assert_eq!(from_name("sales_202610.csv").as_deref(), Some("2026-10"));
-        assert_eq!(from_name("2026-10-31 ops.ods").as_deref(), Some("2026-10-31"));
-        assert_eq!(from_name("depot_2026_09_export.xlsx").as_deref(), Some("2026-09"));
+        assert_eq!(
+            from_name("2026-10-31 ops.ods").as_deref(),
+            Some("2026-10-31")
+        );
+        assert_eq!(
+            from_name("depot_2026_09_export.xlsx").as_deref(),
+            Some("2026-09")
+        );
         assert_eq!(from_name("run 12345678.xlsx"), None);
         assert_eq!(from_name("depot-2026-13.xlsx"), None);
         assert_eq!(from_name("report.xlsx"), None);

@@ -33,19 +33,35 @@ pub struct Record {
 pub enum RecordError {
     #[error("{0}: cannot read the previous result: {1}")]
     Unreadable(String, String),
-    #[error("{0} has no {RECORD_SHEET} sheet, so it is not a sheaf result workbook; compare with a workbook that sheaf wrote")]
+    #[error(
+        "{0} has no {RECORD_SHEET} sheet, so it is not a sheaf result workbook; compare with a workbook that sheaf wrote"
+    )]
     NotSheaf(String),
-    #[error("{path} was made by a different recipe (fingerprint {theirs}, this recipe {ours}); compare results of the same recipe")]
-    OtherRecipe { path: String, theirs: String, ours: String },
+    #[error(
+        "{path} was made by a different recipe (fingerprint {theirs}, this recipe {ours}); compare results of the same recipe"
+    )]
+    OtherRecipe {
+        path: String,
+        theirs: String,
+        ours: String,
+    },
 }
 
 /// SHA-256 of the recipe's canonical text: layout and comments do not count.
 pub fn fingerprint(recipe: &Recipe) -> String {
-    Sha256::digest(pretty::recipe(recipe).as_bytes()).iter().take(12).map(|b| format!("{b:02x}")).collect()
+    Sha256::digest(pretty::recipe(recipe).as_bytes())
+        .iter()
+        .take(12)
+        .map(|b| format!("{b:02x}"))
+        .collect()
 }
 
 fn group_text(group: &[String]) -> String {
-    if group.is_empty() { "(all rows)".to_string() } else { group.join(" / ") }
+    if group.is_empty() {
+        "(all rows)".to_string()
+    } else {
+        group.join(" / ")
+    }
 }
 
 impl Record {
@@ -53,20 +69,36 @@ impl Record {
         let mut entries = Vec::new();
         for block in &results.blocks {
             match block {
-                Block::Panel { name, entries: rows, .. } => {
+                Block::Panel {
+                    name,
+                    entries: rows,
+                    ..
+                } => {
                     for e in rows {
                         for (label, value) in PANEL_LABELS.iter().zip(&e.figures) {
                             if let One::Number(x) = value {
-                                entries.push(Entry { block: name.clone(), group: group_text(&e.group), name: format!("{} {label}", e.column), value: *x });
+                                entries.push(Entry {
+                                    block: name.clone(),
+                                    group: group_text(&e.group),
+                                    name: format!("{} {label}", e.column),
+                                    value: *x,
+                                });
                             }
                         }
                     }
                 }
-                Block::Figures { name, names, rows, .. } => {
+                Block::Figures {
+                    name, names, rows, ..
+                } => {
                     for r in rows {
                         for (figure, value) in names.iter().zip(&r.values) {
                             if let One::Number(x) = value {
-                                entries.push(Entry { block: name.clone(), group: group_text(&r.group), name: figure.clone(), value: *x });
+                                entries.push(Entry {
+                                    block: name.clone(),
+                                    group: group_text(&r.group),
+                                    name: figure.clone(),
+                                    value: *x,
+                                });
                             }
                         }
                     }
@@ -74,34 +106,57 @@ impl Record {
             }
         }
         for t in &results.terms {
-            entries.push(Entry { block: TERM_BLOCK.into(), group: t.group.clone(), name: t.expression.clone(), value: t.value });
+            entries.push(Entry {
+                block: TERM_BLOCK.into(),
+                group: t.group.clone(),
+                name: t.expression.clone(),
+                value: t.value,
+            });
         }
-        Record { fingerprint, period, entries }
+        Record {
+            fingerprint,
+            period,
+            entries,
+        }
     }
 
     /// The values `change(...)` compares with.
     pub fn previous_terms(&self) -> crate::eval::Previous {
-        self.entries.iter().filter(|e| e.block == TERM_BLOCK).map(|e| ((e.name.clone(), e.group.clone()), e.value)).collect()
+        self.entries
+            .iter()
+            .filter(|e| e.block == TERM_BLOCK)
+            .map(|e| ((e.name.clone(), e.group.clone()), e.value))
+            .collect()
     }
 
     pub fn find(&self, block: &str, group: &str, name: &str) -> Option<f64> {
-        self.entries.iter().find(|e| e.block == block && e.group == group && e.name == name).map(|e| e.value)
+        self.entries
+            .iter()
+            .find(|e| e.block == block && e.group == group && e.name == name)
+            .map(|e| e.value)
     }
 
     /// Reads the Record sheet of a sheaf result; refuses another recipe's.
     pub fn read(path: &Path, expected_fingerprint: &str) -> Result<Record, RecordError> {
         let shown = path.display().to_string();
-        let mut workbook = open_workbook_auto(path).map_err(|e| RecordError::Unreadable(shown.clone(), e.to_string()))?;
+        let mut workbook = open_workbook_auto(path)
+            .map_err(|e| RecordError::Unreadable(shown.clone(), e.to_string()))?;
         if !workbook.sheet_names().iter().any(|n| n == RECORD_SHEET) {
             return Err(RecordError::NotSheaf(shown));
         }
-        let range = workbook.worksheet_range(RECORD_SHEET).map_err(|e| RecordError::Unreadable(shown.clone(), e.to_string()))?;
+        let range = workbook
+            .worksheet_range(RECORD_SHEET)
+            .map_err(|e| RecordError::Unreadable(shown.clone(), e.to_string()))?;
         let text = |d: Option<&Data>| d.map(|d| d.to_string()).unwrap_or_default();
         let rows: Vec<&[Data]> = range.rows().collect();
         let cell = |r: usize, c: usize| text(rows.get(r).and_then(|row| row.get(c)));
         let fingerprint = cell(0, 1);
         if fingerprint != expected_fingerprint {
-            return Err(RecordError::OtherRecipe { path: shown, theirs: fingerprint, ours: expected_fingerprint.to_string() });
+            return Err(RecordError::OtherRecipe {
+                path: shown,
+                theirs: fingerprint,
+                ours: expected_fingerprint.to_string(),
+            });
         }
         let period = Some(cell(1, 1)).filter(|p| !p.is_empty() && p != "(none)");
         let entries = rows
@@ -113,9 +168,18 @@ impl Record {
                     Data::Int(i) => *i as f64,
                     _ => return None,
                 };
-                Some(Entry { block: text(row.first()), group: text(row.get(1)), name: text(row.get(2)), value })
+                Some(Entry {
+                    block: text(row.first()),
+                    group: text(row.get(1)),
+                    name: text(row.get(2)),
+                    value,
+                })
             })
             .collect();
-        Ok(Record { fingerprint, period, entries })
+        Ok(Record {
+            fingerprint,
+            period,
+            entries,
+        })
     }
 }

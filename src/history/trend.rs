@@ -32,7 +32,15 @@ pub fn largest_moves(records: &[(String, Record)]) -> Vec<Move> {
         let ((from, before), (to, after)) = (&pair[0], &pair[1]);
         for e in after.entries.iter().filter(|e| e.block != TERM_BLOCK) {
             if let Some(b) = before.find(&e.block, &e.group, &e.name) {
-                moves.push(Move { block: e.block.clone(), group: e.group.clone(), name: e.name.clone(), from: from.clone(), to: to.clone(), before: b, after: e.value });
+                moves.push(Move {
+                    block: e.block.clone(),
+                    group: e.group.clone(),
+                    name: e.name.clone(),
+                    from: from.clone(),
+                    to: to.clone(),
+                    before: b,
+                    after: e.value,
+                });
             }
         }
     }
@@ -49,17 +57,21 @@ fn charted(name: &str, is_panel: bool) -> bool {
     !is_panel || name.ends_with(" mean") || name.ends_with(" median")
 }
 
-pub fn trend_workbook(records: &[(String, Record)], panel_blocks: &[String]) -> Result<Vec<u8>, XlsxError> {
+pub fn trend_workbook(
+    records: &[(String, Record)],
+    panel_blocks: &[String],
+) -> Result<Vec<u8>, XlsxError> {
     let mut workbook = Workbook::new();
     let bold = Format::new().set_bold();
-    let header = |sheet: &mut rust_xlsxwriter::Worksheet, labels: &[&str]| -> Result<(), XlsxError> {
-        for (c, l) in labels.iter().enumerate() {
-            sheet.write_string_with_format(0, c as u16, *l, &bold)?;
-            sheet.set_column_width(c as u16, 18)?;
-        }
-        sheet.set_freeze_panes(1, 0)?;
-        Ok(())
-    };
+    let header =
+        |sheet: &mut rust_xlsxwriter::Worksheet, labels: &[&str]| -> Result<(), XlsxError> {
+            for (c, l) in labels.iter().enumerate() {
+                sheet.write_string_with_format(0, c as u16, *l, &bold)?;
+                sheet.set_column_width(c as u16, 18)?;
+            }
+            sheet.set_freeze_panes(1, 0)?;
+            Ok(())
+        };
 
     let sheet = workbook.add_worksheet().set_name("Trend")?;
     header(sheet, &["period", "block", "group", "figure", "value"])?;
@@ -77,18 +89,36 @@ pub fn trend_workbook(records: &[(String, Record)], panel_blocks: &[String]) -> 
     sheet.autofilter(0, 0, r.max(1) - 1, 4)?;
 
     let sheet = workbook.add_worksheet().set_name("Largest moves")?;
-    header(sheet, &["block", "group", "figure", "from", "to", "before", "after", "change", "relative change"])?;
+    header(
+        sheet,
+        &[
+            "block",
+            "group",
+            "figure",
+            "from",
+            "to",
+            "before",
+            "after",
+            "change",
+            "relative change",
+        ],
+    )?;
     let moves = largest_moves(records);
     for (i, m) in moves.iter().take(200).enumerate() {
         let r = 1 + i as u32;
-        for (c, t) in [&m.block, &m.group, &m.name, &m.from, &m.to].into_iter().enumerate() {
+        for (c, t) in [&m.block, &m.group, &m.name, &m.from, &m.to]
+            .into_iter()
+            .enumerate()
+        {
             sheet.write_string(r, c as u16, t)?;
         }
         sheet.write_number(r, 5, m.before)?;
         sheet.write_number(r, 6, m.after)?;
         sheet.write_number(r, 7, m.after - m.before)?;
         match m.relative() {
-            Some(x) => sheet.write_number_with_format(r, 8, x, &Format::new().set_num_format("0.0%"))?,
+            Some(x) => {
+                sheet.write_number_with_format(r, 8, x, &Format::new().set_num_format("0.0%"))?
+            }
             None => sheet.write_string(r, 8, "before was 0")?,
         };
     }
@@ -97,10 +127,20 @@ pub fn trend_workbook(records: &[(String, Record)], panel_blocks: &[String]) -> 
     // One chart per (block, figure): periods down, groups across.
     let sheet_name = "Trend charts";
     let sheet = workbook.add_worksheet().set_name(sheet_name)?;
-    let mut series: BTreeMap<(String, String), BTreeMap<String, BTreeMap<String, f64>>> = BTreeMap::new();
+    let mut series: BTreeMap<(String, String), BTreeMap<String, BTreeMap<String, f64>>> =
+        BTreeMap::new();
     for (period, record) in records {
-        for e in record.entries.iter().filter(|e| e.block != TERM_BLOCK && charted(&e.name, panel_blocks.contains(&e.block))) {
-            series.entry((e.block.clone(), e.name.clone())).or_default().entry(e.group.clone()).or_default().insert(period.clone(), e.value);
+        for e in record
+            .entries
+            .iter()
+            .filter(|e| e.block != TERM_BLOCK && charted(&e.name, panel_blocks.contains(&e.block)))
+        {
+            series
+                .entry((e.block.clone(), e.name.clone()))
+                .or_default()
+                .entry(e.group.clone())
+                .or_default()
+                .insert(period.clone(), e.value);
         }
     }
     let periods: Vec<&String> = records.iter().map(|(p, _)| p).collect();

@@ -8,7 +8,9 @@ use super::{LoadError, LoadOptions};
 
 /// The pseudo-sheet name of a CSV file: its name without the ending.
 pub fn sheet_name(path: &Path) -> String {
-    path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "data".into())
+    path.file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "data".into())
 }
 
 /// The most frequent of `,` `;` tab `|` in the first line, outside quotes.
@@ -23,7 +25,11 @@ fn detect_delimiter(text: &str) -> u8 {
             entry.1 += 1;
         }
     }
-    counts.iter().max_by_key(|(_, n)| *n).filter(|(_, n)| *n > 0).map_or(b',', |(d, _)| *d)
+    counts
+        .iter()
+        .max_by_key(|(_, n)| *n)
+        .filter(|(_, n)| *n > 0)
+        .map_or(b',', |(d, _)| *d)
 }
 
 /// A field as a cell: a number if it reads as one, otherwise text.
@@ -33,7 +39,13 @@ pub fn parse_field(field: &str) -> Cell {
         return Cell::Blank;
     }
     match trimmed.parse::<f64>() {
-        Ok(x) if x.is_finite() && !trimmed.eq_ignore_ascii_case("nan") && !trimmed.to_ascii_lowercase().contains("inf") => Cell::Number(x),
+        Ok(x)
+            if x.is_finite()
+                && !trimmed.eq_ignore_ascii_case("nan")
+                && !trimmed.to_ascii_lowercase().contains("inf") =>
+        {
+            Cell::Number(x)
+        }
         _ => Cell::from_text(field),
     }
 }
@@ -42,12 +54,23 @@ pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<T
     let path = source.path.clone();
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
     let text = std::str::from_utf8(bytes).map_err(|e| {
-        let line = bytes[..e.valid_up_to()].iter().filter(|&&b| b == b'\n').count() + 1;
-        LoadError::Malformed { path: path.clone(), reason: format!("line {line} is not UTF-8 text; save the file as UTF-8 and run again") }
+        let line = bytes[..e.valid_up_to()]
+            .iter()
+            .filter(|&&b| b == b'\n')
+            .count()
+            + 1;
+        LoadError::Malformed {
+            path: path.clone(),
+            reason: format!("line {line} is not UTF-8 text; save the file as UTF-8 and run again"),
+        }
     })?;
     let sheet = sheet_name(Path::new(&path));
     if options.sheet.as_ref().is_some_and(|s| s != &sheet) {
-        return Err(LoadError::NoSuchSheet { path, sheet: options.sheet.clone().unwrap(), available: format!("\"{sheet}\" (a CSV file has one sheet, named after the file)") });
+        return Err(LoadError::NoSuchSheet {
+            path,
+            sheet: options.sheet.clone().unwrap(),
+            available: format!("\"{sheet}\" (a CSV file has one sheet, named after the file)"),
+        });
     }
     let header_row = options.header_row.unwrap_or(1);
     let mut reader = csv::ReaderBuilder::new()
@@ -64,7 +87,12 @@ pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<T
         match reader.read_record(&mut record) {
             Ok(false) => break,
             Ok(true) => {}
-            Err(e) => return Err(LoadError::Malformed { path: path.clone(), reason: e.to_string() }),
+            Err(e) => {
+                return Err(LoadError::Malformed {
+                    path: path.clone(),
+                    reason: e.to_string(),
+                });
+            }
         }
         seen += 1;
         if seen < header_row as usize {
@@ -87,16 +115,33 @@ pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<T
         return Err(LoadError::EmptySheet { path, sheet });
     }
     let Some(header) = header else {
-        return Err(LoadError::NoHeaderRow { path, sheet, row: header_row });
+        return Err(LoadError::NoHeaderRow {
+            path,
+            sheet,
+            row: header_row,
+        });
     };
     let width = grid.len();
-    let names: Vec<String> = (0..width).map(|c| header.get(c).unwrap_or("").trim().to_string()).collect();
+    let names: Vec<String> = (0..width)
+        .map(|c| header.get(c).unwrap_or("").trim().to_string())
+        .collect();
     let columns = build_columns(&path, names, grid, header_row)?;
-    Ok(Table { source, sheet, header_row, columns, rows: body_rows })
+    Ok(Table {
+        source,
+        sheet,
+        header_row,
+        columns,
+        rows: body_rows,
+    })
 }
 
 /// Named columns from header names and cells, refusing blank and duplicate headers.
-pub fn build_columns(path: &str, names: Vec<String>, grid: Vec<Vec<Cell>>, header_row: u32) -> Result<Vec<Column>, LoadError> {
+pub fn build_columns(
+    path: &str,
+    names: Vec<String>,
+    grid: Vec<Vec<Cell>>,
+    header_row: u32,
+) -> Result<Vec<Column>, LoadError> {
     let mut columns: Vec<Column> = Vec::new();
     let mut seen: std::collections::HashMap<String, u32> = std::collections::HashMap::new();
     for (index, (name, cells)) in names.into_iter().zip(grid).enumerate() {
@@ -105,7 +150,10 @@ pub fn build_columns(path: &str, names: Vec<String>, grid: Vec<Vec<Cell>>, heade
             if kind == super::table::ColumnKind::Empty {
                 continue;
             }
-            return Err(LoadError::BlankHeader { path: path.to_string(), address: cell_address(index as u32, header_row as usize) });
+            return Err(LoadError::BlankHeader {
+                path: path.to_string(),
+                address: cell_address(index as u32, header_row as usize),
+            });
         }
         if let Some(&first) = seen.get(&name) {
             return Err(LoadError::DuplicateHeader {
@@ -116,7 +164,12 @@ pub fn build_columns(path: &str, names: Vec<String>, grid: Vec<Vec<Cell>>, heade
             });
         }
         seen.insert(name.clone(), index as u32);
-        columns.push(Column { name, sheet_column: index as u32, kind, cells });
+        columns.push(Column {
+            name,
+            sheet_column: index as u32,
+            kind,
+            cells,
+        });
     }
     Ok(columns)
 }
@@ -137,7 +190,10 @@ mod tests {
         assert_eq!(detect_delimiter("\"x;y\",b\n"), b',');
         let t = table("\u{feff}depot;weight\nNorth;2,5\nSouth;3\n").unwrap();
         assert_eq!(t.headers(), ["depot", "weight"]);
-        assert_eq!(t.columns[1].cells, [Cell::Text("2,5".into()), Cell::Number(3.0)]);
+        assert_eq!(
+            t.columns[1].cells,
+            [Cell::Text("2,5".into()), Cell::Number(3.0)]
+        );
     }
 
     #[test]

@@ -9,22 +9,44 @@ mod workbook;
 
 use std::path::Path;
 
-pub use table::{Cell, CellIssue, Column, ColumnKind, IssueKind, SourceInfo, Table, column_letters, quote_sheet as table_sheet_ref};
+pub use table::{
+    Cell, CellIssue, Column, ColumnKind, IssueKind, SourceInfo, Table, column_letters,
+    quote_sheet as table_sheet_ref,
+};
 
 #[derive(Debug, thiserror::Error)]
 pub enum LoadError {
     #[error("{path}: cannot read the file: {reason}")]
     Unreadable { path: String, reason: String },
     #[error("{path}: no sheet named \"{sheet}\"; the sheets are: {available}")]
-    NoSuchSheet { path: String, sheet: String, available: String },
+    NoSuchSheet {
+        path: String,
+        sheet: String,
+        available: String,
+    },
     #[error("{path}: sheet \"{sheet}\" is empty")]
     EmptySheet { path: String, sheet: String },
-    #[error("{path}: sheet \"{sheet}\" has fewer than {row} rows, so row {row} cannot be the header row")]
-    NoHeaderRow { path: String, sheet: String, row: u32 },
-    #[error("{path}: the header {address} is blank but its column holds data; give the column a name")]
+    #[error(
+        "{path}: sheet \"{sheet}\" has fewer than {row} rows, so row {row} cannot be the header row"
+    )]
+    NoHeaderRow {
+        path: String,
+        sheet: String,
+        row: u32,
+    },
+    #[error(
+        "{path}: the header {address} is blank but its column holds data; give the column a name"
+    )]
     BlankHeader { path: String, address: String },
-    #[error("{path}: the header \"{name}\" appears twice, at {first} and {second}; rename one of them")]
-    DuplicateHeader { path: String, name: String, first: String, second: String },
+    #[error(
+        "{path}: the header \"{name}\" appears twice, at {first} and {second}; rename one of them"
+    )]
+    DuplicateHeader {
+        path: String,
+        name: String,
+        first: String,
+        second: String,
+    },
     #[error("{path}: {reason}")]
     Malformed { path: String, reason: String },
 }
@@ -40,22 +62,35 @@ pub struct LoadOptions {
 /// Reads any supported file; the kind is taken from its ending.
 pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
     let shown = path.display().to_string();
-    let bytes = std::fs::read(path).map_err(|e| LoadError::Unreadable { path: shown.clone(), reason: e.to_string() })?;
+    let bytes = std::fs::read(path).map_err(|e| LoadError::Unreadable {
+        path: shown.clone(),
+        reason: e.to_string(),
+    })?;
     let source = SourceInfo::describe(path, &bytes);
-    let ending = path.extension().and_then(|e| e.to_str()).unwrap_or("").to_ascii_lowercase();
+    let ending = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .unwrap_or("")
+        .to_ascii_lowercase();
     match ending.as_str() {
         "csv" | "tsv" | "txt" => csv_file::load(&bytes, source, options),
         "xlsx" | "xlsm" | "xls" | "xlsb" | "ods" => workbook::load(path, source, options),
         other => Err(LoadError::Unreadable {
             path: shown,
-            reason: format!("unknown file type `.{other}`; sheaf reads .xlsx, .xlsm, .xls, .ods, .csv and .tsv"),
+            reason: format!(
+                "unknown file type `.{other}`; sheaf reads .xlsx, .xlsm, .xls, .ods, .csv and .tsv"
+            ),
         }),
     }
 }
 
 /// The sheets of a file and, for CSV, the one pseudo-sheet.
 pub fn sheet_names(path: &Path) -> Result<Vec<String>, LoadError> {
-    let ending = path.extension().and_then(|e| e.to_str()).unwrap_or("").to_ascii_lowercase();
+    let ending = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .unwrap_or("")
+        .to_ascii_lowercase();
     if matches!(ending.as_str(), "csv" | "tsv" | "txt") {
         return Ok(vec![csv_file::sheet_name(path)]);
     }

@@ -19,7 +19,10 @@ impl SourceInfo {
         let digest = Sha256::digest(bytes);
         SourceInfo {
             path: path.display().to_string(),
-            file_name: path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_default(),
+            file_name: path
+                .file_name()
+                .map(|n| n.to_string_lossy().into_owned())
+                .unwrap_or_default(),
             size: bytes.len() as u64,
             sha256: digest.iter().map(|b| format!("{b:02x}")).collect(),
         }
@@ -41,7 +44,18 @@ pub enum Cell {
 
 /// Spreadsheet error values; a cell holding one as text (a CSV export, a
 /// cached formula result) counts as a formula error, not as text.
-pub const ERROR_CODES: &[&str] = &["#DIV/0!", "#N/A", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#NULL!", "#SPILL!", "#CALC!", "#GETTING_DATA"];
+pub const ERROR_CODES: &[&str] = &[
+    "#DIV/0!",
+    "#N/A",
+    "#VALUE!",
+    "#REF!",
+    "#NAME?",
+    "#NUM!",
+    "#NULL!",
+    "#SPILL!",
+    "#CALC!",
+    "#GETTING_DATA",
+];
 
 impl Cell {
     /// Text as a cell: blank, a spreadsheet error code, or text.
@@ -137,7 +151,10 @@ impl Column {
 
     /// Cells that count as missing in this column's numeric view, in row order.
     pub fn issues(&self) -> Vec<CellIssue> {
-        let numeric = matches!(self.kind, ColumnKind::Number | ColumnKind::Date | ColumnKind::Bool);
+        let numeric = matches!(
+            self.kind,
+            ColumnKind::Number | ColumnKind::Date | ColumnKind::Bool
+        );
         let mut found = Vec::new();
         for (row, cell) in self.cells.iter().enumerate() {
             let issue = match cell {
@@ -203,7 +220,11 @@ impl Table {
 
     /// `Deliveries!C17` for data row `row` (0-based) of `column`.
     pub fn address(&self, column: &Column, row: usize) -> String {
-        format!("{}!{}", quote_sheet(&self.sheet), cell_address(column.sheet_column, self.header_row as usize + 1 + row))
+        format!(
+            "{}!{}",
+            quote_sheet(&self.sheet),
+            cell_address(column.sheet_column, self.header_row as usize + 1 + row)
+        )
     }
 }
 
@@ -253,9 +274,18 @@ mod tests {
 
     #[test]
     fn a_stray_text_cell_does_not_make_a_numeric_column_text() {
-        let cells = [Cell::Number(1.0), Cell::Text("n/a".into()), Cell::Number(3.0), Cell::Blank];
+        let cells = [
+            Cell::Number(1.0),
+            Cell::Text("n/a".into()),
+            Cell::Number(3.0),
+            Cell::Blank,
+        ];
         assert_eq!(Column::infer_kind(&cells), ColumnKind::Number);
-        let keys = [Cell::Text("North".into()), Cell::Text("South".into()), Cell::Number(3.0)];
+        let keys = [
+            Cell::Text("North".into()),
+            Cell::Text("South".into()),
+            Cell::Number(3.0),
+        ];
         assert_eq!(Column::infer_kind(&keys), ColumnKind::Text);
         assert_eq!(Column::infer_kind(&[Cell::Blank]), ColumnKind::Empty);
     }

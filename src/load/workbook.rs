@@ -9,11 +9,16 @@ use super::table::{Cell, SourceInfo, Table};
 use super::{LoadError, LoadOptions};
 
 fn unreadable(path: &Path, e: impl std::fmt::Display) -> LoadError {
-    LoadError::Unreadable { path: path.display().to_string(), reason: e.to_string() }
+    LoadError::Unreadable {
+        path: path.display().to_string(),
+        reason: e.to_string(),
+    }
 }
 
 pub fn sheet_names(path: &Path) -> Result<Vec<String>, LoadError> {
-    Ok(open_workbook_auto(path).map_err(|e| unreadable(path, e))?.sheet_names())
+    Ok(open_workbook_auto(path)
+        .map_err(|e| unreadable(path, e))?
+        .sheet_names())
 }
 
 fn cell(data: &Data) -> Cell {
@@ -25,7 +30,9 @@ fn cell(data: &Data) -> Cell {
         Data::Bool(b) => Cell::Bool(*b),
         Data::DateTime(d) if d.is_datetime() => Cell::Date(d.as_f64()),
         Data::DateTime(d) => Cell::Number(d.as_f64()),
-        Data::DateTimeIso(s) => crate::format::serial_from_iso(s).map_or_else(|| Cell::Text(s.clone()), Cell::Date),
+        Data::DateTimeIso(s) => {
+            crate::format::serial_from_iso(s).map_or_else(|| Cell::Text(s.clone()), Cell::Date)
+        }
         Data::DurationIso(s) => Cell::Text(s.clone()),
         Data::Error(e) => Cell::Error(e.to_string()),
         Data::Empty => Cell::Blank,
@@ -40,23 +47,40 @@ const MAX_RATIO: u64 = 200;
 const RATIO_CHECKED_ABOVE: u64 = 64 << 20;
 
 fn refuse_zip_bombs(path: &Path) -> Result<(), LoadError> {
-    let Ok(file) = std::fs::File::open(path) else { return Ok(()) };
+    let Ok(file) = std::fs::File::open(path) else {
+        return Ok(());
+    };
     let mut head = [0u8; 4];
     if std::io::Read::read_exact(&mut &file, &mut head).is_err() || &head != b"PK\x03\x04" {
         return Ok(()); // not a zip (xls is an OLE file): calamine judges it
     }
-    let mut archive = zip::ZipArchive::new(file).map_err(|e| unreadable(path, format!("the file is not a complete workbook ({e})")))?;
+    let mut archive = zip::ZipArchive::new(file)
+        .map_err(|e| unreadable(path, format!("the file is not a complete workbook ({e})")))?;
     let mut total = 0u64;
     for i in 0..archive.len() {
-        let Ok(entry) = archive.by_index_raw(i) else { continue };
+        let Ok(entry) = archive.by_index_raw(i) else {
+            continue;
+        };
         let (packed, unpacked) = (entry.compressed_size().max(1), entry.size());
         total = total.saturating_add(unpacked);
         if unpacked > RATIO_CHECKED_ABOVE && unpacked / packed > MAX_RATIO {
-            return Err(unreadable(path, format!("part {} would unpack {} times its size ({unpacked} bytes); refused as a likely zip bomb", entry.name().unwrap_or_default(), unpacked / packed)));
+            return Err(unreadable(
+                path,
+                format!(
+                    "part {} would unpack {} times its size ({unpacked} bytes); refused as a likely zip bomb",
+                    entry.name().unwrap_or_default(),
+                    unpacked / packed
+                ),
+            ));
         }
     }
     if total > MAX_UNPACKED {
-        return Err(unreadable(path, format!("the workbook would unpack to {total} bytes, more than the {MAX_UNPACKED} sheaf reads")));
+        return Err(unreadable(
+            path,
+            format!(
+                "the workbook would unpack to {total} bytes, more than the {MAX_UNPACKED} sheaf reads"
+            ),
+        ));
     }
     Ok(())
 }
@@ -74,14 +98,30 @@ fn read(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table,
     let mut workbook = open_workbook_auto(path).map_err(|e| unreadable(path, e))?;
     let names = workbook.sheet_names();
     let sheet = match &options.sheet {
-        Some(wanted) => names.iter().find(|n| *n == wanted).cloned().ok_or_else(|| LoadError::NoSuchSheet {
-            path: shown.clone(),
-            sheet: wanted.clone(),
-            available: names.iter().map(|n| format!("\"{n}\"")).collect::<Vec<_>>().join(", "),
-        })?,
-        None => names.first().cloned().ok_or_else(|| LoadError::EmptySheet { path: shown.clone(), sheet: "(none)".into() })?,
+        Some(wanted) => names
+            .iter()
+            .find(|n| *n == wanted)
+            .cloned()
+            .ok_or_else(|| LoadError::NoSuchSheet {
+                path: shown.clone(),
+                sheet: wanted.clone(),
+                available: names
+                    .iter()
+                    .map(|n| format!("\"{n}\""))
+                    .collect::<Vec<_>>()
+                    .join(", "),
+            })?,
+        None => names
+            .first()
+            .cloned()
+            .ok_or_else(|| LoadError::EmptySheet {
+                path: shown.clone(),
+                sheet: "(none)".into(),
+            })?,
     };
-    let range = workbook.worksheet_range(&sheet).map_err(|e| unreadable(path, e))?;
+    let range = workbook
+        .worksheet_range(&sheet)
+        .map_err(|e| unreadable(path, e))?;
     let Some((top, left)) = range.start() else {
         return Err(LoadError::EmptySheet { path: shown, sheet });
     };
@@ -89,7 +129,11 @@ fn read(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table,
     // calamine's range starts at the first used cell; sheet rows are 1-based.
     let header_index = header_row as i64 - 1 - i64::from(top);
     if header_index < 0 || header_index as usize >= range.height() {
-        return Err(LoadError::NoHeaderRow { path: shown, sheet, row: header_row });
+        return Err(LoadError::NoHeaderRow {
+            path: shown,
+            sheet,
+            row: header_row,
+        });
     }
     let header_index = header_index as usize;
     let width = range.width() + left as usize;
@@ -110,5 +154,11 @@ fn read(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table,
         }
     }
     let columns = build_columns(&shown, names_in_sheet, grid, header_row)?;
-    Ok(Table { source, sheet, header_row, columns, rows: body_rows })
+    Ok(Table {
+        source,
+        sheet,
+        header_row,
+        columns,
+        rows: body_rows,
+    })
 }

@@ -14,7 +14,10 @@ impl Span {
     }
 
     pub fn to(self, other: Span) -> Span {
-        Span { start: self.start.min(other.start), end: self.end.max(other.end) }
+        Span {
+            start: self.start.min(other.start),
+            end: self.end.max(other.end),
+        }
     }
 }
 
@@ -108,10 +111,24 @@ pub enum ExprKind {
     Percent(f64),
     Text(String),
     Column(ColumnRef),
-    Call { function: Spanned<String>, args: Vec<Expr> },
-    Unary { op: UnaryOp, operand: Box<Expr> },
-    Binary { op: BinaryOp, left: Box<Expr>, right: Box<Expr> },
-    If { condition: Box<Expr>, then: Box<Expr>, otherwise: Box<Expr> },
+    Call {
+        function: Spanned<String>,
+        args: Vec<Expr>,
+    },
+    Unary {
+        op: UnaryOp,
+        operand: Box<Expr>,
+    },
+    Binary {
+        op: BinaryOp,
+        left: Box<Expr>,
+        right: Box<Expr>,
+    },
+    If {
+        condition: Box<Expr>,
+        then: Box<Expr>,
+        otherwise: Box<Expr>,
+    },
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -124,21 +141,35 @@ impl Expr {
     /// The direct sub-expressions.
     pub fn children(&self) -> Vec<&Expr> {
         match &self.kind {
-            ExprKind::Number(_) | ExprKind::Percent(_) | ExprKind::Text(_) | ExprKind::Column(_) => vec![],
+            ExprKind::Number(_)
+            | ExprKind::Percent(_)
+            | ExprKind::Text(_)
+            | ExprKind::Column(_) => vec![],
             ExprKind::Call { args, .. } => args.iter().collect(),
             ExprKind::Unary { operand, .. } => vec![operand],
             ExprKind::Binary { left, right, .. } => vec![left, right],
-            ExprKind::If { condition, then, otherwise } => vec![condition, then, otherwise],
+            ExprKind::If {
+                condition,
+                then,
+                otherwise,
+            } => vec![condition, then, otherwise],
         }
     }
 
     fn children_mut(&mut self) -> Vec<&mut Expr> {
         match &mut self.kind {
-            ExprKind::Number(_) | ExprKind::Percent(_) | ExprKind::Text(_) | ExprKind::Column(_) => vec![],
+            ExprKind::Number(_)
+            | ExprKind::Percent(_)
+            | ExprKind::Text(_)
+            | ExprKind::Column(_) => vec![],
             ExprKind::Call { args, .. } => args.iter_mut().collect(),
             ExprKind::Unary { operand, .. } => vec![operand],
             ExprKind::Binary { left, right, .. } => vec![left, right],
-            ExprKind::If { condition, then, otherwise } => vec![condition, then, otherwise],
+            ExprKind::If {
+                condition,
+                then,
+                otherwise,
+            } => vec![condition, then, otherwise],
         }
     }
 
@@ -188,19 +219,47 @@ pub struct Figure {
 #[derive(Debug, Clone, PartialEq)]
 pub enum StatementKind {
     Title(Spanned<String>),
-    Input { sheet: Option<Spanned<String>>, header_row: Option<Spanned<u32>> },
-    Let { name: Spanned<String>, value: Expr },
+    Input {
+        sheet: Option<Spanned<String>>,
+        header_row: Option<Spanned<u32>>,
+    },
+    Let {
+        name: Spanned<String>,
+        value: Expr,
+    },
     RowsWhere(Expr),
-    Panel { name: Spanned<String>, columns: Vec<ColumnRef>, per: Vec<ColumnRef>, filter: Option<Expr> },
-    Figures { name: Spanned<String>, per: Vec<ColumnRef>, filter: Option<Expr>, figures: Vec<Figure> },
-    Check { name: Spanned<String>, level: CheckLevel, per: Vec<ColumnRef>, condition: Expr },
-    Histogram { column: ColumnRef, per: Vec<ColumnRef>, bins: Option<Spanned<Bins>> },
+    Panel {
+        name: Spanned<String>,
+        columns: Vec<ColumnRef>,
+        per: Vec<ColumnRef>,
+        filter: Option<Expr>,
+    },
+    Figures {
+        name: Spanned<String>,
+        per: Vec<ColumnRef>,
+        filter: Option<Expr>,
+        figures: Vec<Figure>,
+    },
+    Check {
+        name: Spanned<String>,
+        level: CheckLevel,
+        per: Vec<ColumnRef>,
+        condition: Expr,
+    },
+    Histogram {
+        column: ColumnRef,
+        per: Vec<ColumnRef>,
+        bins: Option<Spanned<Bins>>,
+    },
     /// The period this data covers, when the file name does not say.
     Period(Spanned<String>),
     /// How large a relative change to the previous period is flagged: the
     /// number as written and whether it was a percentage.
     Drift(Spanned<(f64, bool)>),
-    Boxplot { column: ColumnRef, per: Vec<ColumnRef> },
+    Boxplot {
+        column: ColumnRef,
+        per: Vec<ColumnRef>,
+    },
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -222,7 +281,8 @@ impl Recipe {
         let zero = Span::default();
         for statement in &mut copy.statements {
             statement.span = zero;
-            let clear_columns = |cols: &mut Vec<ColumnRef>| cols.iter_mut().for_each(|c| c.span = zero);
+            let clear_columns =
+                |cols: &mut Vec<ColumnRef>| cols.iter_mut().for_each(|c| c.span = zero);
             match &mut statement.kind {
                 StatementKind::Title(t) => t.span = zero,
                 StatementKind::Input { sheet, header_row } => {
@@ -238,7 +298,12 @@ impl Recipe {
                     value.clear_spans();
                 }
                 StatementKind::RowsWhere(e) => e.clear_spans(),
-                StatementKind::Panel { name, columns, per, filter } => {
+                StatementKind::Panel {
+                    name,
+                    columns,
+                    per,
+                    filter,
+                } => {
                     name.span = zero;
                     clear_columns(columns);
                     clear_columns(per);
@@ -246,7 +311,12 @@ impl Recipe {
                         f.clear_spans();
                     }
                 }
-                StatementKind::Figures { name, per, filter, figures } => {
+                StatementKind::Figures {
+                    name,
+                    per,
+                    filter,
+                    figures,
+                } => {
                     name.span = zero;
                     clear_columns(per);
                     if let Some(f) = filter {
@@ -257,7 +327,12 @@ impl Recipe {
                         figure.value.clear_spans();
                     }
                 }
-                StatementKind::Check { name, per, condition, .. } => {
+                StatementKind::Check {
+                    name,
+                    per,
+                    condition,
+                    ..
+                } => {
                     name.span = zero;
                     clear_columns(per);
                     condition.clear_spans();

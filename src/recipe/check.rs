@@ -34,7 +34,11 @@ struct Typed {
 
 impl Typed {
     fn merge_shape(self, other: Typed) -> Shape {
-        if self.shape == Shape::Rows || other.shape == Shape::Rows { Shape::Rows } else { Shape::One }
+        if self.shape == Shape::Rows || other.shape == Shape::Rows {
+            Shape::Rows
+        } else {
+            Shape::One
+        }
     }
 }
 
@@ -53,7 +57,12 @@ struct Checker<'a> {
 
 /// Checks a parsed recipe; `headers` are the data's column names when known.
 pub fn check(recipe: &Recipe, headers: Option<&[String]>) -> Vec<Diagnostic> {
-    let mut checker = Checker { headers, lets: HashMap::new(), defining: None, problems: Vec::new() };
+    let mut checker = Checker {
+        headers,
+        lets: HashMap::new(),
+        defining: None,
+        problems: Vec::new(),
+    };
     checker.statements(recipe);
     checker.problems
 }
@@ -61,7 +70,12 @@ pub fn check(recipe: &Recipe, headers: Option<&[String]>) -> Vec<Diagnostic> {
 /// Checks one expression on its own (for `sheaf calc`): any shape and a
 /// list are fine there, since every value is printed on its own line.
 pub fn check_expression(e: &Expr, headers: Option<&[String]>) -> Vec<Diagnostic> {
-    let mut checker = Checker { headers, lets: HashMap::new(), defining: None, problems: Vec::new() };
+    let mut checker = Checker {
+        headers,
+        lets: HashMap::new(),
+        defining: None,
+        problems: Vec::new(),
+    };
     checker.expr(e);
     checker.problems
 }
@@ -84,34 +98,63 @@ impl Checker<'_> {
                 StatementKind::Title(_) => {
                     titles += 1;
                     if titles == 2 {
-                        self.report(statement.span, "a second `title`", Some("a recipe has one title; remove this line".into()));
+                        self.report(
+                            statement.span,
+                            "a second `title`",
+                            Some("a recipe has one title; remove this line".into()),
+                        );
                     }
                 }
                 StatementKind::Input { .. } => {
                     inputs += 1;
                     if inputs == 2 {
-                        self.report(statement.span, "a second `input` statement", Some("put every input setting on one `input` line".into()));
+                        self.report(
+                            statement.span,
+                            "a second `input` statement",
+                            Some("put every input setting on one `input` line".into()),
+                        );
                     }
                 }
                 StatementKind::Period(_) => {
                     periods += 1;
                     if periods == 2 {
-                        self.report(statement.span, "a second `period`", Some("a recipe names one period; remove this line".into()));
+                        self.report(
+                            statement.span,
+                            "a second `period`",
+                            Some("a recipe names one period; remove this line".into()),
+                        );
                     }
                 }
                 StatementKind::Drift(d) => {
                     drifts += 1;
                     if drifts == 2 {
-                        self.report(statement.span, "a second `drift`", Some("a recipe has one drift threshold; remove this line".into()));
+                        self.report(
+                            statement.span,
+                            "a second `drift`",
+                            Some("a recipe has one drift threshold; remove this line".into()),
+                        );
                     }
-                    let share = if d.value.1 { d.value.0 / 100.0 } else { d.value.0 };
+                    let share = if d.value.1 {
+                        d.value.0 / 100.0
+                    } else {
+                        d.value.0
+                    };
                     if share <= 0.0 {
-                        self.report(d.span, "the drift threshold must be above 0", Some("write a share of change, such as `drift 10%`".into()));
+                        self.report(
+                            d.span,
+                            "the drift threshold must be above 0",
+                            Some("write a share of change, such as `drift 10%`".into()),
+                        );
                     }
                 }
                 StatementKind::Let { name, value } => self.let_statement(name, value),
                 StatementKind::RowsWhere(condition) => self.condition(condition, "`rows where`"),
-                StatementKind::Panel { name, columns, per, filter } => {
+                StatementKind::Panel {
+                    name,
+                    columns,
+                    per,
+                    filter,
+                } => {
                     self.block_name(name, &mut blocks);
                     for c in columns.iter().chain(per) {
                         self.column(c);
@@ -120,7 +163,12 @@ impl Checker<'_> {
                         self.condition(f, "`where`");
                     }
                 }
-                StatementKind::Figures { name, per, filter, figures } => {
+                StatementKind::Figures {
+                    name,
+                    per,
+                    filter,
+                    figures,
+                } => {
                     self.block_name(name, &mut blocks);
                     per.iter().for_each(|c| {
                         self.column(c);
@@ -130,9 +178,18 @@ impl Checker<'_> {
                     }
                     self.figures(figures);
                 }
-                StatementKind::Check { name, per, condition, .. } => {
+                StatementKind::Check {
+                    name,
+                    per,
+                    condition,
+                    ..
+                } => {
                     if !checks.insert(name.value.clone()) {
-                        self.report(name.span, format!("a second check named \"{}\"", name.value), Some("give each check its own name".into()));
+                        self.report(
+                            name.span,
+                            format!("a second check named \"{}\"", name.value),
+                            Some("give each check its own name".into()),
+                        );
                     }
                     per.iter().for_each(|c| {
                         self.column(c);
@@ -144,12 +201,21 @@ impl Checker<'_> {
                     per.iter().for_each(|c| {
                         self.column(c);
                     });
-                    if let Some(Spanned { value: Bins::Rule(rule), span }) = bins
+                    if let Some(Spanned {
+                        value: Bins::Rule(rule),
+                        span,
+                    }) = bins
                         && !BIN_RULES.contains(&rule.as_str())
                     {
                         let help = match closest(rule, BIN_RULES.iter().copied()) {
-                            Some(s) => format!("did you mean `{s}`? rules are {}, or give a number of bins", BIN_RULES.join(", ")),
-                            None => format!("rules are {}, or give a number of bins", BIN_RULES.join(", ")),
+                            Some(s) => format!(
+                                "did you mean `{s}`? rules are {}, or give a number of bins",
+                                BIN_RULES.join(", ")
+                            ),
+                            None => format!(
+                                "rules are {}, or give a number of bins",
+                                BIN_RULES.join(", ")
+                            ),
                         };
                         self.report(*span, format!("unknown bin rule `{rule}`"), Some(help));
                     }
@@ -167,22 +233,49 @@ impl Checker<'_> {
     fn block_name(&mut self, name: &Spanned<String>, seen: &mut HashSet<String>) {
         let lower = name.value.to_lowercase();
         if !seen.insert(lower) {
-            self.report(name.span, format!("a second block named \"{}\"", name.value), Some("each panel and figures block becomes a sheet and needs its own name".into()));
+            self.report(
+                name.span,
+                format!("a second block named \"{}\"", name.value),
+                Some("each panel and figures block becomes a sheet and needs its own name".into()),
+            );
         }
         if name.value.trim().is_empty() {
-            self.report(name.span, "a block name cannot be empty", Some("name it, for example \"Lateness\"".into()));
+            self.report(
+                name.span,
+                "a block name cannot be empty",
+                Some("name it, for example \"Lateness\"".into()),
+            );
         } else if let Some(c) = name.value.chars().find(|c| SHEET_FORBIDDEN.contains(c)) {
-            self.report(name.span, format!("a block name cannot contain `{c}`"), Some("sheet names exclude [ ] : * ? / \\".into()));
+            self.report(
+                name.span,
+                format!("a block name cannot contain `{c}`"),
+                Some("sheet names exclude [ ] : * ? / \\".into()),
+            );
         } else if name.value.chars().count() > SHEET_MAX {
-            self.report(name.span, format!("a block name is at most {SHEET_MAX} characters (it names a sheet)"), Some("shorten it".into()));
+            self.report(
+                name.span,
+                format!("a block name is at most {SHEET_MAX} characters (it names a sheet)"),
+                Some("shorten it".into()),
+            );
         }
     }
 
     fn let_statement(&mut self, name: &Spanned<String>, value: &Expr) {
         if self.lets.contains_key(&name.value) {
-            self.report(name.span, format!("`{}` is defined twice", name.value), Some("give the new column another name".into()));
-        } else if self.headers.is_some_and(|h| h.iter().any(|c| c == &name.value)) {
-            self.report(name.span, format!("`{}` is already a column of the data", name.value), Some("give the new column another name".into()));
+            self.report(
+                name.span,
+                format!("`{}` is defined twice", name.value),
+                Some("give the new column another name".into()),
+            );
+        } else if self
+            .headers
+            .is_some_and(|h| h.iter().any(|c| c == &name.value))
+        {
+            self.report(
+                name.span,
+                format!("`{}` is already a column of the data", name.value),
+                Some("give the new column another name".into()),
+            );
         }
         self.defining = Some(name.value.clone());
         let typed = self.expr(value);
@@ -194,7 +287,13 @@ impl Checker<'_> {
             self.lets.insert(name.value.clone(), t);
         } else {
             // Known to exist, so later uses are not reported again.
-            self.lets.insert(name.value.clone(), Typed { shape: Shape::Rows, value: Value::Unknown });
+            self.lets.insert(
+                name.value.clone(),
+                Typed {
+                    shape: Shape::Rows,
+                    value: Value::Unknown,
+                },
+            );
         }
     }
 
@@ -202,12 +301,23 @@ impl Checker<'_> {
         let mut names = HashSet::new();
         for figure in figures {
             if !names.insert(figure.name.value.clone()) {
-                self.report(figure.name.span, format!("a second figure named `{}` in this block", figure.name.value), Some("give each figure its own name".into()));
+                self.report(
+                    figure.name.span,
+                    format!(
+                        "a second figure named `{}` in this block",
+                        figure.name.value
+                    ),
+                    Some("give each figure its own name".into()),
+                );
             }
             if let Some(t) = self.expr(&figure.value)
                 && t.shape == Shape::Rows
             {
-                self.report(figure.value.span, "a figure must be one value per group, but this is a value per row", Some("reduce it with an aggregate, such as mean(...) or share(...)".into()));
+                self.report(
+                    figure.value.span,
+                    "a figure must be one value per group, but this is a value per row",
+                    Some("reduce it with an aggregate, such as mean(...) or share(...)".into()),
+                );
             }
         }
     }
@@ -217,7 +327,14 @@ impl Checker<'_> {
             match t.value {
                 Value::Truth | Value::Unknown => {}
                 Value::List => self.list_misused(e),
-                _ => self.report(e.span, format!("{context} needs a condition (true or false), not a {}", noun(t.value)), Some("compare something, such as `status != \"cancelled\"`".into())),
+                _ => self.report(
+                    e.span,
+                    format!(
+                        "{context} needs a condition (true or false), not a {}",
+                        noun(t.value)
+                    ),
+                    Some("compare something, such as `status != \"cancelled\"`".into()),
+                ),
             }
         }
     }
@@ -228,14 +345,26 @@ impl Checker<'_> {
             return self.list_misused(e);
         }
         if !matches!(t.value, Value::Truth | Value::Unknown) {
-            self.report(e.span, format!("a check needs a condition, not a {}", noun(t.value)), Some("compare a figure with a limit, such as `mean(x) <= 5`".into()));
+            self.report(
+                e.span,
+                format!("a check needs a condition, not a {}", noun(t.value)),
+                Some("compare a figure with a limit, such as `mean(x) <= 5`".into()),
+            );
         } else if t.shape == Shape::Rows {
-            self.report(e.span, "a check needs one true/false value per group, but this is one per row", Some("use an aggregate, such as `share(x > 0) >= 95%` or `min(x) >= 0`".into()));
+            self.report(
+                e.span,
+                "a check needs one true/false value per group, but this is one per row",
+                Some("use an aggregate, such as `share(x > 0) >= 95%` or `min(x) >= 0`".into()),
+            );
         }
     }
 
     fn list_misused(&mut self, e: &Expr) {
-        self.report(e.span, "this gives a list of values (every tied mode)", Some("a list can stand only alone as a figure: `top = modes(x)`".into()));
+        self.report(
+            e.span,
+            "this gives a list of values (every tied mode)",
+            Some("a list can stand only alone as a figure: `top = modes(x)`".into()),
+        );
     }
 
     /// Resolves a column name: an earlier `let`, or a data column.
@@ -249,14 +378,28 @@ impl Checker<'_> {
             return Some(*t);
         }
         let Some(headers) = self.headers else {
-            return Some(Typed { shape: Shape::Rows, value: Value::Unknown });
+            return Some(Typed {
+                shape: Shape::Rows,
+                value: Value::Unknown,
+            });
         };
         if headers.iter().any(|h| h == &c.name) {
-            return Some(Typed { shape: Shape::Rows, value: Value::Unknown });
+            return Some(Typed {
+                shape: Shape::Rows,
+                value: Value::Unknown,
+            });
         }
-        let candidates = headers.iter().map(String::as_str).chain(self.lets.keys().map(String::as_str));
+        let candidates = headers
+            .iter()
+            .map(String::as_str)
+            .chain(self.lets.keys().map(String::as_str));
         let help = match closest(&c.name, candidates) {
-            Some(near) if near.chars().all(|ch| ch.is_ascii_alphanumeric() || ch == '_') && !near.starts_with(|ch: char| ch.is_ascii_digit()) => {
+            Some(near)
+                if near
+                    .chars()
+                    .all(|ch| ch.is_ascii_alphanumeric() || ch == '_')
+                    && !near.starts_with(|ch: char| ch.is_ascii_digit()) =>
+            {
                 format!("did you mean `{near}`?")
             }
             Some(near) => format!("did you mean `{{{near}}}`?"),
@@ -267,16 +410,33 @@ impl Checker<'_> {
     }
 
     fn expr(&mut self, e: &Expr) -> Option<Typed> {
-        let one = |value| Some(Typed { shape: Shape::One, value });
+        let one = |value| {
+            Some(Typed {
+                shape: Shape::One,
+                value,
+            })
+        };
         match &e.kind {
             ExprKind::Number(_) | ExprKind::Percent(_) => one(Value::Number),
             ExprKind::Text(_) => one(Value::Text),
             ExprKind::Column(c) => self.column(c),
             ExprKind::Unary { op, operand } => {
                 let t = self.expr(operand)?;
-                let wanted = if *op == UnaryOp::Not { Value::Truth } else { Value::Number };
-                self.operand(operand, t, wanted, if *op == UnaryOp::Not { "`not`" } else { "`-`" })?;
-                Some(Typed { shape: t.shape, value: wanted })
+                let wanted = if *op == UnaryOp::Not {
+                    Value::Truth
+                } else {
+                    Value::Number
+                };
+                self.operand(
+                    operand,
+                    t,
+                    wanted,
+                    if *op == UnaryOp::Not { "`not`" } else { "`-`" },
+                )?;
+                Some(Typed {
+                    shape: t.shape,
+                    value: wanted,
+                })
             }
             ExprKind::Binary { op, left, right } => {
                 let (l, r) = (self.expr(left), self.expr(right));
@@ -286,7 +446,10 @@ impl Checker<'_> {
                 if op.is_logical() {
                     self.operand(left, l, Value::Truth, &symbol)?;
                     self.operand(right, r, Value::Truth, &symbol)?;
-                    return Some(Typed { shape, value: Value::Truth });
+                    return Some(Typed {
+                        shape,
+                        value: Value::Truth,
+                    });
                 }
                 if matches!(op, BinaryOp::Equal | BinaryOp::NotEqual) {
                     for (side, t) in [(left, l), (right, r)] {
@@ -295,13 +458,27 @@ impl Checker<'_> {
                             return None;
                         }
                     }
-                    return Some(Typed { shape, value: Value::Truth });
+                    return Some(Typed {
+                        shape,
+                        value: Value::Truth,
+                    });
                 }
                 self.operand(left, l, Value::Number, &symbol)?;
                 self.operand(right, r, Value::Number, &symbol)?;
-                Some(Typed { shape, value: if op.is_comparison() { Value::Truth } else { Value::Number } })
+                Some(Typed {
+                    shape,
+                    value: if op.is_comparison() {
+                        Value::Truth
+                    } else {
+                        Value::Number
+                    },
+                })
             }
-            ExprKind::If { condition, then, otherwise } => {
+            ExprKind::If {
+                condition,
+                then,
+                otherwise,
+            } => {
                 let c = self.expr(condition);
                 let (t, o) = (self.expr(then), self.expr(otherwise));
                 let (c, t, o) = (c?, t?, o?);
@@ -312,11 +489,32 @@ impl Checker<'_> {
                         return None;
                     }
                 }
-                let value = if t.value == o.value { t.value } else if t.value == Value::Unknown { o.value } else if o.value == Value::Unknown { t.value } else {
-                    self.report(e.span, format!("the two branches of `if` give different kinds of value ({} and {})", noun(t.value), noun(o.value)), Some("make both branches numbers, or both text".into()));
+                let value = if t.value == o.value {
+                    t.value
+                } else if t.value == Value::Unknown {
+                    o.value
+                } else if o.value == Value::Unknown {
+                    t.value
+                } else {
+                    self.report(
+                        e.span,
+                        format!(
+                            "the two branches of `if` give different kinds of value ({} and {})",
+                            noun(t.value),
+                            noun(o.value)
+                        ),
+                        Some("make both branches numbers, or both text".into()),
+                    );
                     return None;
                 };
-                Some(Typed { shape: if c.merge_shape(t) == Shape::Rows || o.shape == Shape::Rows { Shape::Rows } else { Shape::One }, value })
+                Some(Typed {
+                    shape: if c.merge_shape(t) == Shape::Rows || o.shape == Shape::Rows {
+                        Shape::Rows
+                    } else {
+                        Shape::One
+                    },
+                    value,
+                })
             }
             ExprKind::Call { function, args } => self.call(function, args, e.span),
         }
@@ -335,7 +533,15 @@ impl Checker<'_> {
             Value::Truth => "combine conditions such as `x > 0`",
             _ => "text and conditions do not take part in arithmetic",
         };
-        self.report(e.span, format!("{operator} needs a {} here, not a {}", noun(wanted), noun(t.value)), Some(help.into()));
+        self.report(
+            e.span,
+            format!(
+                "{operator} needs a {} here, not a {}",
+                noun(wanted),
+                noun(t.value)
+            ),
+            Some(help.into()),
+        );
         None
     }
 
@@ -345,7 +551,11 @@ impl Checker<'_> {
                 Some(s) => format!("did you mean `{s}`?"),
                 None => "see the README for the list of functions".to_string(),
             };
-            self.report(name.span, format!("unknown function `{}`", name.value), Some(help));
+            self.report(
+                name.span,
+                format!("unknown function `{}`", name.value),
+                Some(help),
+            );
             return None;
         };
         if args.len() < function.min_args() || args.len() > function.max_args() {
@@ -354,7 +564,16 @@ impl Checker<'_> {
             } else {
                 format!("{} to {}", function.min_args(), function.max_args())
             };
-            self.report(span, format!("`{}` takes {wanted} argument{}, got {}", function.name, if function.max_args() == 1 { "" } else { "s" }, args.len()), Some(format!("write {}", function.signature())));
+            self.report(
+                span,
+                format!(
+                    "`{}` takes {wanted} argument{}, got {}",
+                    function.name,
+                    if function.max_args() == 1 { "" } else { "s" },
+                    args.len()
+                ),
+                Some(format!("write {}", function.signature())),
+            );
             return None;
         }
         let first = self.expr(&args[0]);
@@ -369,25 +588,66 @@ impl Checker<'_> {
         match function.kind {
             FunctionKind::Comparison => {
                 if first.shape == Shape::Rows {
-                    self.report(args[0].span, format!("`{}` compares one value per group, but this is a value per row", function.name), Some("give it an aggregate, as in change(mean(x))".into()));
+                    self.report(
+                        args[0].span,
+                        format!(
+                            "`{}` compares one value per group, but this is a value per row",
+                            function.name
+                        ),
+                        Some("give it an aggregate, as in change(mean(x))".into()),
+                    );
                     return None;
                 }
-                self.operand(&args[0], first, Value::Number, &format!("`{}`", function.name))?;
-                Some(Typed { shape: Shape::One, value: Value::Number })
+                self.operand(
+                    &args[0],
+                    first,
+                    Value::Number,
+                    &format!("`{}`", function.name),
+                )?;
+                Some(Typed {
+                    shape: Shape::One,
+                    value: Value::Number,
+                })
             }
             FunctionKind::Row => {
-                self.operand(&args[0], first, Value::Number, &format!("`{}`", function.name))?;
-                Some(Typed { shape: first.shape, value: Value::Number })
+                self.operand(
+                    &args[0],
+                    first,
+                    Value::Number,
+                    &format!("`{}`", function.name),
+                )?;
+                Some(Typed {
+                    shape: first.shape,
+                    value: Value::Number,
+                })
             }
             FunctionKind::Aggregate => {
                 if first.shape == Shape::One {
-                    self.report(args[0].span, format!("`{}` reduces a column, but its argument is already one value", function.name), Some(format!("give it a column, as in {}", function.signature())));
+                    self.report(
+                        args[0].span,
+                        format!(
+                            "`{}` reduces a column, but its argument is already one value",
+                            function.name
+                        ),
+                        Some(format!("give it a column, as in {}", function.signature())),
+                    );
                     return None;
                 }
-                let wanted = if function.takes_condition { Value::Truth } else { Value::Number };
+                let wanted = if function.takes_condition {
+                    Value::Truth
+                } else {
+                    Value::Number
+                };
                 self.operand(&args[0], first, wanted, &format!("`{}`", function.name))?;
-                let value = if function.returns == Returns::List { Value::List } else { Value::Number };
-                Some(Typed { shape: Shape::One, value })
+                let value = if function.returns == Returns::List {
+                    Value::List
+                } else {
+                    Value::Number
+                };
+                Some(Typed {
+                    shape: Shape::One,
+                    value,
+                })
             }
         }
     }
@@ -403,34 +663,61 @@ impl Checker<'_> {
             {
                 if function.options.contains(&c.name.as_str()) {
                     if option_seen {
-                        self.report(arg.span, format!("`{}` takes one option word", function.name), Some(format!("write {}", function.signature())));
+                        self.report(
+                            arg.span,
+                            format!("`{}` takes one option word", function.name),
+                            Some(format!("write {}", function.signature())),
+                        );
                         ok = false;
                     }
                     option_seen = true;
                     continue;
                 }
-                let is_column = self.lets.contains_key(&c.name) || self.headers.is_some_and(|h| h.contains(&c.name));
-                if !is_column && (function.parameters.is_empty() || closest(&c.name, function.options.iter().copied()).is_some()) {
+                let is_column = self.lets.contains_key(&c.name)
+                    || self.headers.is_some_and(|h| h.contains(&c.name));
+                if !is_column
+                    && (function.parameters.is_empty()
+                        || closest(&c.name, function.options.iter().copied()).is_some())
+                {
                     let help = if function.options.is_empty() {
-                        format!("`{}` takes no option words; write {}", function.name, function.signature())
+                        format!(
+                            "`{}` takes no option words; write {}",
+                            function.name,
+                            function.signature()
+                        )
                     } else {
                         match closest(&c.name, function.options.iter().copied()) {
-                            Some(s) => format!("did you mean `{s}`? options: {}", function.options.join(", ")),
+                            Some(s) => format!(
+                                "did you mean `{s}`? options: {}",
+                                function.options.join(", ")
+                            ),
                             None => format!("options: {}", function.options.join(", ")),
                         }
                     };
-                    self.report(arg.span, format!("unknown option `{}` for `{}`", c.name, function.name), Some(help));
+                    self.report(
+                        arg.span,
+                        format!("unknown option `{}` for `{}`", c.name, function.name),
+                        Some(help),
+                    );
                     ok = false;
                     continue;
                 }
             }
             if option_seen {
-                self.report(arg.span, "the option word comes last", Some(format!("write {}", function.signature())));
+                self.report(
+                    arg.span,
+                    "the option word comes last",
+                    Some(format!("write {}", function.signature())),
+                );
                 ok = false;
                 continue;
             }
             let Some(parameter) = parameters.next() else {
-                self.report(arg.span, format!("`{}` takes no more numbers here", function.name), Some(format!("write {}", function.signature())));
+                self.report(
+                    arg.span,
+                    format!("`{}` takes no more numbers here", function.name),
+                    Some(format!("write {}", function.signature())),
+                );
                 ok = false;
                 continue;
             };
@@ -440,25 +727,57 @@ impl Checker<'_> {
     }
 
     fn parameter(&mut self, function: &Function, parameter: &Parameter, arg: &Expr) -> bool {
-        let Some(t) = self.expr(arg) else { return false };
+        let Some(t) = self.expr(arg) else {
+            return false;
+        };
         if t.shape == Shape::Rows || !matches!(t.value, Value::Number | Value::Unknown) {
-            self.report(arg.span, format!("the `{}` of `{}` must be one number", parameter.name, function.name), Some(format!("write {}", function.signature())));
+            self.report(
+                arg.span,
+                format!(
+                    "the `{}` of `{}` must be one number",
+                    parameter.name, function.name
+                ),
+                Some(format!("write {}", function.signature())),
+            );
             return false;
         }
-        let Some((value, percent)) = literal_value(arg) else { return true };
+        let Some((value, percent)) = literal_value(arg) else {
+            return true;
+        };
         if percent && parameter.name == "p" {
-            self.report(arg.span, "a percentile is written as a number from 0 to 100, without `%`", Some(format!("write percentile(x, {})", value * 100.0)));
+            self.report(
+                arg.span,
+                "a percentile is written as a number from 0 to 100, without `%`",
+                Some(format!("write percentile(x, {})", value * 100.0)),
+            );
             return false;
         }
-        let too_high = if parameter.max_exclusive { value >= parameter.max } else { value > parameter.max };
+        let too_high = if parameter.max_exclusive {
+            value >= parameter.max
+        } else {
+            value > parameter.max
+        };
         if value < parameter.min || too_high || (parameter.whole && value.fract() != 0.0) {
             let range = match (parameter.whole, parameter.max_exclusive) {
                 (true, _) => format!("a whole number from {} to {}", parameter.min, parameter.max),
-                (false, true) => format!("at least {} and below {}% (a share such as 10%)", parameter.min, parameter.max * 100.0),
-                (false, false) if parameter.max.is_infinite() => format!("{} or more", parameter.min),
+                (false, true) => format!(
+                    "at least {} and below {}% (a share such as 10%)",
+                    parameter.min,
+                    parameter.max * 100.0
+                ),
+                (false, false) if parameter.max.is_infinite() => {
+                    format!("{} or more", parameter.min)
+                }
                 (false, false) => format!("from {} to {}", parameter.min, parameter.max),
             };
-            self.report(arg.span, format!("the `{}` of `{}` must be {range}", parameter.name, function.name), None);
+            self.report(
+                arg.span,
+                format!(
+                    "the `{}` of `{}` must be {range}",
+                    parameter.name, function.name
+                ),
+                None,
+            );
             return false;
         }
         true
@@ -470,7 +789,10 @@ fn literal_value(e: &Expr) -> Option<(f64, bool)> {
     match &e.kind {
         ExprKind::Number(v) => Some((*v, false)),
         ExprKind::Percent(v) => Some((v / 100.0, true)),
-        ExprKind::Unary { op: UnaryOp::Negate, operand } => literal_value(operand).map(|(v, p)| (-v, p)),
+        ExprKind::Unary {
+            op: UnaryOp::Negate,
+            operand,
+        } => literal_value(operand).map(|(v, p)| (-v, p)),
         _ => None,
     }
 }

@@ -17,7 +17,11 @@ pub struct Diagnostic {
 
 impl Diagnostic {
     pub fn new(span: Span, message: impl Into<String>) -> Diagnostic {
-        Diagnostic { span, message: message.into(), help: None }
+        Diagnostic {
+            span,
+            message: message.into(),
+            help: None,
+        }
     }
 
     pub fn with_help(mut self, help: impl Into<String>) -> Diagnostic {
@@ -34,19 +38,26 @@ impl Diagnostic {
     pub fn render(&self, file_name: &str, source: &str) -> String {
         let file = SimpleFile::new(file_name, source);
         // A fault at the end of a line is shown as a caret there, not over the line break.
-        let at_line_end = source[self.span.start.min(source.len())..].starts_with(['\n', '\r']) || self.span.start >= source.len();
-        let end = if at_line_end { self.span.start } else { self.span.end.max(self.span.start + 1).min(source.len()) };
+        let at_line_end = source[self.span.start.min(source.len())..].starts_with(['\n', '\r'])
+            || self.span.start >= source.len();
+        let end = if at_line_end {
+            self.span.start
+        } else {
+            self.span.end.max(self.span.start + 1).min(source.len())
+        };
         let mut report = Report::error()
             .with_message(&self.message)
             .with_labels(vec![Label::primary((), self.span.start..end)]);
         if let Some(help) = &self.help {
             report = report.with_notes(vec![format!("help: {help}")]);
         }
-        term::emit_into_string(&Config::default(), &file, &report)
-            .unwrap_or_else(|_| {
-                let (line, column) = self.line_column(source);
-                format!("error: {}\n --> {file_name}:{line}:{column}\n", self.message)
-            })
+        term::emit_into_string(&Config::default(), &file, &report).unwrap_or_else(|_| {
+            let (line, column) = self.line_column(source);
+            format!(
+                "error: {}\n --> {file_name}:{line}:{column}\n",
+                self.message
+            )
+        })
     }
 }
 
@@ -69,5 +80,9 @@ fn floor_char_boundary(s: &str, mut i: usize) -> usize {
 pub fn render_all(diagnostics: &[Diagnostic], file_name: &str, source: &str) -> String {
     let mut sorted: Vec<&Diagnostic> = diagnostics.iter().collect();
     sorted.sort_by_key(|d| d.span.start);
-    sorted.iter().map(|d| d.render(file_name, source)).collect::<Vec<_>>().join("\n")
+    sorted
+        .iter()
+        .map(|d| d.render(file_name, source))
+        .collect::<Vec<_>>()
+        .join("\n")
 }

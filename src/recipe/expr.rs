@@ -16,7 +16,11 @@ use super::syntax::*;
 pub fn expression(input: &str) -> PResult<'_, Expr> {
     let (after_space, _) = space0(input)?;
     if after_space.starts_with('=') && !after_space.starts_with("==") {
-        return failure(after_space, "an expression does not start with `=`", Some("write the expression itself, without a leading `=`"));
+        return failure(
+            after_space,
+            "an expression does not start with `=`",
+            Some("write the expression itself, without a leading `=`"),
+        );
     }
     if keyword("if")(input).is_ok() {
         return nested(input, if_expression);
@@ -30,19 +34,42 @@ fn if_expression(input: &str) -> PResult<'_, Expr> {
     let (rest, condition) = expression(rest)?;
     let rest = expect_keyword(rest, "then", "after the condition of `if`")?;
     let (rest, then) = expression(rest)?;
-    let rest = expect_keyword(rest, "else", "after the `then` branch; every `if` needs an `else`")?;
+    let rest = expect_keyword(
+        rest,
+        "else",
+        "after the `then` branch; every `if` needs an `else`",
+    )?;
     let (rest, otherwise) = expression(rest)?;
-    let kind = ExprKind::If { condition: Box::new(condition), then: Box::new(then), otherwise: Box::new(otherwise) };
-    Ok((rest, Expr { kind, span: span_between(start, rest) }))
+    let kind = ExprKind::If {
+        condition: Box::new(condition),
+        then: Box::new(then),
+        otherwise: Box::new(otherwise),
+    };
+    Ok((
+        rest,
+        Expr {
+            kind,
+            span: span_between(start, rest),
+        },
+    ))
 }
 
-fn expect_keyword<'a>(input: &'a str, word: &'static str, context: &str) -> Result<&'a str, nom::Err<SyntaxError>> {
+fn expect_keyword<'a>(
+    input: &'a str,
+    word: &'static str,
+    context: &str,
+) -> Result<&'a str, nom::Err<SyntaxError>> {
     match keyword(word)(input) {
         Ok((rest, _)) => Ok(rest),
         Err(_) => {
             let found = next_token(input);
             let at = input.trim_start();
-            failure::<()>(at, format!("expected `{word}` {context}, found {}", describe(found)), None).map(|_| at)
+            failure::<()>(
+                at,
+                format!("expected `{word}` {context}, found {}", describe(found)),
+                None,
+            )
+            .map(|_| at)
         }
     }
 }
@@ -58,11 +85,25 @@ fn chain<'a>(
     while let Ok((after_op, op)) = operator(rest) {
         operands += 1;
         if operands > MAX_CHAIN {
-            return failure(rest.trim_start(), format!("more than {MAX_CHAIN} terms joined by `{}` in one expression", op.symbol()), Some("split it into steps with `let`"));
+            return failure(
+                rest.trim_start(),
+                format!(
+                    "more than {MAX_CHAIN} terms joined by `{}` in one expression",
+                    op.symbol()
+                ),
+                Some("split it into steps with `let`"),
+            );
         }
         let (after, right) = operand(after_op).map_err(|e| missing_operand(e, after_op, op))?;
         let span = left.span.to(right.span);
-        left = Expr { kind: ExprKind::Binary { op, left: Box::new(left), right: Box::new(right) }, span };
+        left = Expr {
+            kind: ExprKind::Binary {
+                op,
+                left: Box::new(left),
+                right: Box::new(right),
+            },
+            span,
+        };
         rest = after;
     }
     Ok((rest, left))
@@ -75,7 +116,11 @@ fn missing_operand(error: nom::Err<SyntaxError>, at: &str, op: BinaryOp) -> nom:
             let at = at.trim_start();
             nom::Err::Failure(SyntaxError {
                 offset: offset_of(at),
-                message: format!("expected a value after `{}`, found {}", op.symbol(), describe(next_token(at))),
+                message: format!(
+                    "expected a value after `{}`, found {}",
+                    op.symbol(),
+                    describe(next_token(at))
+                ),
                 help: None,
             })
         }
@@ -84,11 +129,15 @@ fn missing_operand(error: nom::Err<SyntaxError>, at: &str, op: BinaryOp) -> nom:
 }
 
 fn or_level(input: &str) -> PResult<'_, Expr> {
-    chain(input, and_level, |i| keyword("or")(i).map(|(r, _)| (r, BinaryOp::Or)))
+    chain(input, and_level, |i| {
+        keyword("or")(i).map(|(r, _)| (r, BinaryOp::Or))
+    })
 }
 
 fn and_level(input: &str) -> PResult<'_, Expr> {
-    chain(input, not_level, |i| keyword("and")(i).map(|(r, _)| (r, BinaryOp::And)))
+    chain(input, not_level, |i| {
+        keyword("and")(i).map(|(r, _)| (r, BinaryOp::And))
+    })
 }
 
 fn not_level(input: &str) -> PResult<'_, Expr> {
@@ -96,15 +145,34 @@ fn not_level(input: &str) -> PResult<'_, Expr> {
         let start = input.trim_start();
         return nested(rest, |rest| {
             let (rest, operand) = not_level(rest)?;
-            let kind = ExprKind::Unary { op: UnaryOp::Not, operand: Box::new(operand) };
-            Ok((rest, Expr { kind, span: span_between(start, rest) }))
+            let kind = ExprKind::Unary {
+                op: UnaryOp::Not,
+                operand: Box::new(operand),
+            };
+            Ok((
+                rest,
+                Expr {
+                    kind,
+                    span: span_between(start, rest),
+                },
+            ))
         });
     }
     comparison(input)
 }
 
 fn comparison_operator(input: &str) -> PResult<'_, BinaryOp> {
-    let (rest, symbol) = ws(alt((tag("<="), tag(">="), tag("=="), tag("!="), tag("<>"), tag("<"), tag(">"), tag("=")))).parse(input)?;
+    let (rest, symbol) = ws(alt((
+        tag("<="),
+        tag(">="),
+        tag("=="),
+        tag("!="),
+        tag("<>"),
+        tag("<"),
+        tag(">"),
+        tag("="),
+    )))
+    .parse(input)?;
     let op = match symbol {
         "<=" => BinaryOp::LessEqual,
         ">=" => BinaryOp::GreaterEqual,
@@ -112,8 +180,20 @@ fn comparison_operator(input: &str) -> PResult<'_, BinaryOp> {
         "!=" => BinaryOp::NotEqual,
         "<" => BinaryOp::Less,
         ">" => BinaryOp::Greater,
-        "<>" => return failure(input.trim_start(), "`<>` is not an operator here", Some("write `!=` for 'not equal'")),
-        _ => return failure(input.trim_start(), "a single `=` does not compare", Some("write `==` to compare two values")),
+        "<>" => {
+            return failure(
+                input.trim_start(),
+                "`<>` is not an operator here",
+                Some("write `!=` for 'not equal'"),
+            );
+        }
+        _ => {
+            return failure(
+                input.trim_start(),
+                "a single `=` does not compare",
+                Some("write `==` to compare two values"),
+            );
+        }
     };
     Ok((rest, op))
 }
@@ -127,21 +207,53 @@ fn comparison(input: &str) -> PResult<'_, Expr> {
     };
     let (rest, right) = additive(after_op).map_err(|e| missing_operand(e, after_op, op))?;
     if comparison_operator(rest).is_ok() {
-        return failure(rest.trim_start(), "comparisons do not chain", Some("write `a < b and b < c`"));
+        return failure(
+            rest.trim_start(),
+            "comparisons do not chain",
+            Some("write `a < b and b < c`"),
+        );
     }
     let span = left.span.to(right.span);
-    Ok((rest, Expr { kind: ExprKind::Binary { op, left: Box::new(left), right: Box::new(right) }, span }))
+    Ok((
+        rest,
+        Expr {
+            kind: ExprKind::Binary {
+                op,
+                left: Box::new(left),
+                right: Box::new(right),
+            },
+            span,
+        },
+    ))
 }
 
 fn additive(input: &str) -> PResult<'_, Expr> {
     chain(input, multiplicative, |i| {
-        ws(alt((char('+'), char('-')))).parse(i).map(|(r, c)| (r, if c == '+' { BinaryOp::Add } else { BinaryOp::Subtract }))
+        ws(alt((char('+'), char('-')))).parse(i).map(|(r, c)| {
+            (
+                r,
+                if c == '+' {
+                    BinaryOp::Add
+                } else {
+                    BinaryOp::Subtract
+                },
+            )
+        })
     })
 }
 
 fn multiplicative(input: &str) -> PResult<'_, Expr> {
     chain(input, unary, |i| {
-        ws(alt((char('*'), char('/')))).parse(i).map(|(r, c)| (r, if c == '*' { BinaryOp::Multiply } else { BinaryOp::Divide }))
+        ws(alt((char('*'), char('/')))).parse(i).map(|(r, c)| {
+            (
+                r,
+                if c == '*' {
+                    BinaryOp::Multiply
+                } else {
+                    BinaryOp::Divide
+                },
+            )
+        })
     })
 }
 
@@ -149,9 +261,19 @@ fn unary(input: &str) -> PResult<'_, Expr> {
     if let Ok((rest, _)) = ws(char::<&str, SyntaxError>('-')).parse(input) {
         let start = input.trim_start();
         return nested(rest, |rest| {
-            let (rest, operand) = unary(rest).map_err(|e| missing_operand(e, rest, BinaryOp::Subtract))?;
-            let kind = ExprKind::Unary { op: UnaryOp::Negate, operand: Box::new(operand) };
-            Ok((rest, Expr { kind, span: span_between(start, rest) }))
+            let (rest, operand) =
+                unary(rest).map_err(|e| missing_operand(e, rest, BinaryOp::Subtract))?;
+            let kind = ExprKind::Unary {
+                op: UnaryOp::Negate,
+                operand: Box::new(operand),
+            };
+            Ok((
+                rest,
+                Expr {
+                    kind,
+                    span: span_between(start, rest),
+                },
+            ))
         });
     }
     power(input)
@@ -162,15 +284,34 @@ fn power(input: &str) -> PResult<'_, Expr> {
     let Ok((after_op, _)) = ws(char::<&str, SyntaxError>('^')).parse(rest) else {
         return Ok((rest, base));
     };
-    let (rest, exponent) = nested(after_op, unary).map_err(|e| missing_operand(e, after_op, BinaryOp::Power))?;
+    let (rest, exponent) =
+        nested(after_op, unary).map_err(|e| missing_operand(e, after_op, BinaryOp::Power))?;
     let span = base.span.to(exponent.span);
-    Ok((rest, Expr { kind: ExprKind::Binary { op: BinaryOp::Power, left: Box::new(base), right: Box::new(exponent) }, span }))
+    Ok((
+        rest,
+        Expr {
+            kind: ExprKind::Binary {
+                op: BinaryOp::Power,
+                left: Box::new(base),
+                right: Box::new(exponent),
+            },
+            span,
+        },
+    ))
 }
 
 fn primary(input: &str) -> PResult<'_, Expr> {
     let (input, _) = space0(input)?;
     let start = input;
-    let spanned = |rest, kind| Ok((rest, Expr { kind, span: span_between(start, rest) }));
+    let spanned = |rest, kind| {
+        Ok((
+            rest,
+            Expr {
+                kind,
+                span: span_between(start, rest),
+            },
+        ))
+    };
     if input.starts_with('(') {
         return nested(&input[1..], |inner| {
             let (rest, mut e) = expression(inner)?;
@@ -180,7 +321,14 @@ fn primary(input: &str) -> PResult<'_, Expr> {
                     e.span = span_between(start, rest);
                     Ok((rest, e))
                 }
-                None => failure(rest, format!("expected `)` to close the `(`, found {}", describe(next_token(rest))), None),
+                None => failure(
+                    rest,
+                    format!(
+                        "expected `)` to close the `(`, found {}",
+                        describe(next_token(rest))
+                    ),
+                    None,
+                ),
             }
         });
     }
@@ -190,28 +338,55 @@ fn primary(input: &str) -> PResult<'_, Expr> {
     }
     if input.starts_with('{') {
         let (rest, name) = braced_name(input)?;
-        let column = ColumnRef { name: name.to_string(), braced: true, span: span_between(start, rest) };
+        let column = ColumnRef {
+            name: name.to_string(),
+            braced: true,
+            span: span_between(start, rest),
+        };
         return spanned(rest, ExprKind::Column(column));
     }
     if input.starts_with(|c: char| c.is_ascii_digit()) {
         let (rest, (value, percent)) = number_literal(input)?;
-        return spanned(rest, if percent { ExprKind::Percent(value) } else { ExprKind::Number(value) });
+        return spanned(
+            rest,
+            if percent {
+                ExprKind::Percent(value)
+            } else {
+                ExprKind::Number(value)
+            },
+        );
     }
     let Ok((rest, word)) = identifier(input) else {
         return no_match(input);
     };
     if KEYWORDS.contains(&word) {
-        return failure(input, format!("`{word}` is a keyword, not a value"), Some(&format!("a column with this name is written in braces: {{{word}}}")));
+        return failure(
+            input,
+            format!("`{word}` is a keyword, not a value"),
+            Some(&format!(
+                "a column with this name is written in braces: {{{word}}}"
+            )),
+        );
     }
     let name_span = span_between(start, rest);
     if let Ok((after_open, _)) = ws(char::<&str, SyntaxError>('(')).parse(rest) {
         return nested(after_open, |inside| {
             let (rest, args) = arguments(inside)?;
-            let function = Spanned { value: word.to_string(), span: name_span };
+            let function = Spanned {
+                value: word.to_string(),
+                span: name_span,
+            };
             spanned(rest, ExprKind::Call { function, args })
         });
     }
-    spanned(rest, ExprKind::Column(ColumnRef { name: word.to_string(), braced: false, span: name_span }))
+    spanned(
+        rest,
+        ExprKind::Column(ColumnRef {
+            name: word.to_string(),
+            braced: false,
+            span: name_span,
+        }),
+    )
 }
 
 /// Call arguments after the `(`, through the closing `)`.
@@ -238,8 +413,19 @@ fn arguments(input: &str) -> PResult<'_, Vec<Expr>> {
         } else if let Some(after) = after.strip_prefix(')') {
             return Ok((after, args));
         } else {
-            let help = if after.starts_with(':') { Some("sheaf takes column names, not cell ranges: write mean(weight_kg)") } else { None };
-            return failure(after, format!("expected `,` or `)` in the arguments, found {}", describe(next_token(after))), help);
+            let help = if after.starts_with(':') {
+                Some("sheaf takes column names, not cell ranges: write mean(weight_kg)")
+            } else {
+                None
+            };
+            return failure(
+                after,
+                format!(
+                    "expected `,` or `)` in the arguments, found {}",
+                    describe(next_token(after))
+                ),
+                help,
+            );
         }
     }
 }

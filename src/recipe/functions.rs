@@ -45,21 +45,53 @@ pub struct Function {
     pub summary: &'static str,
 }
 
-const METHODS: &[&str] = &["hf1", "hf2", "hf3", "hf4", "hf5", "hf6", "hf7", "hf8", "hf9", "hinges"];
+const METHODS: &[&str] = &[
+    "hf1", "hf2", "hf3", "hf4", "hf5", "hf6", "hf7", "hf8", "hf9", "hinges",
+];
 
 const fn param(name: &'static str, min: f64, max: f64, whole: bool, required: bool) -> Parameter {
-    Parameter { name, min, max, max_exclusive: false, whole, required }
+    Parameter {
+        name,
+        min,
+        max,
+        max_exclusive: false,
+        whole,
+        required,
+    }
 }
 
 const fn aggregate(name: &'static str, summary: &'static str) -> Function {
-    Function { name, kind: FunctionKind::Aggregate, returns: Returns::Number, takes_condition: false, parameters: &[], options: &[], summary }
+    Function {
+        name,
+        kind: FunctionKind::Aggregate,
+        returns: Returns::Number,
+        takes_condition: false,
+        parameters: &[],
+        options: &[],
+        summary,
+    }
 }
 
 const fn row(name: &'static str, summary: &'static str) -> Function {
-    Function { name, kind: FunctionKind::Row, returns: Returns::Number, takes_condition: false, parameters: &[], options: &[], summary }
+    Function {
+        name,
+        kind: FunctionKind::Row,
+        returns: Returns::Number,
+        takes_condition: false,
+        parameters: &[],
+        options: &[],
+        summary,
+    }
 }
 
-const SHARE_CUT: Parameter = Parameter { name: "a", min: 0.0, max: 0.5, max_exclusive: true, whole: false, required: true };
+const SHARE_CUT: Parameter = Parameter {
+    name: "a",
+    min: 0.0,
+    max: 0.5,
+    max_exclusive: true,
+    whole: false,
+    required: true,
+};
 const FENCE_K: Parameter = param("k", 0.0, f64::INFINITY, false, false);
 
 pub const FUNCTIONS: &[Function] = &[
@@ -70,39 +102,116 @@ pub const FUNCTIONS: &[Function] = &[
     aggregate("max", "largest value"),
     aggregate("range", "max - min"),
     aggregate("mean", "arithmetic mean"),
-    aggregate("median", "middle value; mean of the two middle values for even n"),
-    Function { returns: Returns::List, ..aggregate("modes", "every most frequent value, ascending") },
+    aggregate(
+        "median",
+        "middle value; mean of the two middle values for even n",
+    ),
+    Function {
+        returns: Returns::List,
+        ..aggregate("modes", "every most frequent value, ascending")
+    },
     Function {
         returns: Returns::List,
         parameters: &[param("k", 1.0, 1000.0, true, true)],
-        ..aggregate("binned_mode", "mean of the values in the fullest of k equal bins")
+        ..aggregate(
+            "binned_mode",
+            "mean of the values in the fullest of k equal bins",
+        )
     },
-    Function { options: &["population"], ..aggregate("variance", "sample variance (n - 1); `population` divides by n") },
-    Function { options: &["population"], ..aggregate("sd", "sample standard deviation; `population` divides by n") },
-    Function { parameters: &[param("q", 0.0, 4.0, true, true)], options: METHODS, ..aggregate("quartile", "quartile 1, 2 or 3") },
-    Function { parameters: &[param("p", 0.0, 100.0, false, true)], options: METHODS, ..aggregate("percentile", "p-th percentile, p from 0 to 100") },
-    Function { options: METHODS, ..aggregate("iqr", "Q3 - Q1") },
-    Function { options: &["adjusted"], ..aggregate("skewness", "moment skewness g1; `adjusted` gives G1") },
-    Function { options: &["adjusted"], ..aggregate("kurtosis", "moment kurtosis b2; `adjusted` gives G2 + 3") },
-    Function { options: &["adjusted"], ..aggregate("excess_kurtosis", "b2 - 3; `adjusted` gives G2") },
-    Function { options: METHODS, ..aggregate("bowley", "Bowley's quartile skewness") },
-    Function { options: &["scaled"], ..aggregate("mad", "median absolute deviation; `scaled` multiplies by 1.4826") },
-    Function { parameters: &[SHARE_CUT], ..aggregate("trimmed_mean", "mean after cutting share a from each end") },
-    Function { parameters: &[SHARE_CUT], ..aggregate("winsorized_mean", "mean after clamping share a at each end") },
-    Function { takes_condition: true, ..aggregate("share", "fraction of rows where the condition holds") },
-    Function { parameters: &[FENCE_K], options: METHODS, ..aggregate("outliers", "number of values beyond Tukey's fences (k = 1.5)") },
-    Function { parameters: &[FENCE_K], options: METHODS, ..aggregate("fence_low", "Q1 - k IQR") },
-    Function { parameters: &[FENCE_K], options: METHODS, ..aggregate("fence_high", "Q3 + k IQR") },
+    Function {
+        options: &["population"],
+        ..aggregate(
+            "variance",
+            "sample variance (n - 1); `population` divides by n",
+        )
+    },
+    Function {
+        options: &["population"],
+        ..aggregate("sd", "sample standard deviation; `population` divides by n")
+    },
+    Function {
+        parameters: &[param("q", 0.0, 4.0, true, true)],
+        options: METHODS,
+        ..aggregate("quartile", "quartile 1, 2 or 3")
+    },
+    Function {
+        parameters: &[param("p", 0.0, 100.0, false, true)],
+        options: METHODS,
+        ..aggregate("percentile", "p-th percentile, p from 0 to 100")
+    },
+    Function {
+        options: METHODS,
+        ..aggregate("iqr", "Q3 - Q1")
+    },
+    Function {
+        options: &["adjusted"],
+        ..aggregate("skewness", "moment skewness g1; `adjusted` gives G1")
+    },
+    Function {
+        options: &["adjusted"],
+        ..aggregate("kurtosis", "moment kurtosis b2; `adjusted` gives G2 + 3")
+    },
+    Function {
+        options: &["adjusted"],
+        ..aggregate("excess_kurtosis", "b2 - 3; `adjusted` gives G2")
+    },
+    Function {
+        options: METHODS,
+        ..aggregate("bowley", "Bowley's quartile skewness")
+    },
+    Function {
+        options: &["scaled"],
+        ..aggregate(
+            "mad",
+            "median absolute deviation; `scaled` multiplies by 1.4826",
+        )
+    },
+    Function {
+        parameters: &[SHARE_CUT],
+        ..aggregate("trimmed_mean", "mean after cutting share a from each end")
+    },
+    Function {
+        parameters: &[SHARE_CUT],
+        ..aggregate("winsorized_mean", "mean after clamping share a at each end")
+    },
+    Function {
+        takes_condition: true,
+        ..aggregate("share", "fraction of rows where the condition holds")
+    },
+    Function {
+        parameters: &[FENCE_K],
+        options: METHODS,
+        ..aggregate(
+            "outliers",
+            "number of values beyond Tukey's fences (k = 1.5)",
+        )
+    },
+    Function {
+        parameters: &[FENCE_K],
+        options: METHODS,
+        ..aggregate("fence_low", "Q1 - k IQR")
+    },
+    Function {
+        parameters: &[FENCE_K],
+        options: METHODS,
+        ..aggregate("fence_high", "Q3 + k IQR")
+    },
     Function {
         kind: FunctionKind::Comparison,
-        ..aggregate("change", "size of the relative change from the previous period: |now - before| / |before|")
+        ..aggregate(
+            "change",
+            "size of the relative change from the previous period: |now - before| / |before|",
+        )
     },
     row("abs", "absolute value"),
     row("ln", "natural logarithm"),
     row("log10", "base-10 logarithm"),
     row("exp", "e to the power"),
     row("sqrt", "square root"),
-    Function { parameters: &[param("d", -15.0, 15.0, true, true)], ..row("round", "round to d decimals") },
+    Function {
+        parameters: &[param("d", -15.0, 15.0, true, true)],
+        ..row("round", "round to d decimals")
+    },
     row("floor", "largest whole number not above"),
     row("ceil", "smallest whole number not below"),
 ];
@@ -114,12 +223,24 @@ pub fn lookup(name: &str) -> Option<&'static Function> {
 impl Function {
     /// `percentile(x, p[, method])`, for messages.
     pub fn signature(&self) -> String {
-        let mut parts = vec![if self.takes_condition { "condition".to_string() } else { "x".to_string() }];
+        let mut parts = vec![if self.takes_condition {
+            "condition".to_string()
+        } else {
+            "x".to_string()
+        }];
         for p in self.parameters {
-            parts.push(if p.required { p.name.to_string() } else { format!("[{}]", p.name) });
+            parts.push(if p.required {
+                p.name.to_string()
+            } else {
+                format!("[{}]", p.name)
+            });
         }
         if !self.options.is_empty() {
-            let shown = if self.options == METHODS { "method".to_string() } else { self.options.join("|") };
+            let shown = if self.options == METHODS {
+                "method".to_string()
+            } else {
+                self.options.join("|")
+            };
             parts.push(format!("[{shown}]"));
         }
         format!("{}({})", self.name, parts.join(", "))

@@ -57,7 +57,11 @@ pub fn split_lines(source: &str) -> (Vec<Line<'_>>, Vec<Diagnostic>) {
                     .with_help("indent block lines with spaces only"),
             );
         }
-        lines.push(Line { text, offset: start + indent_text.len(), indent: indent_text.chars().count() });
+        lines.push(Line {
+            text,
+            offset: start + indent_text.len(),
+            indent: indent_text.chars().count(),
+        });
     }
     (lines, problems)
 }
@@ -68,11 +72,15 @@ mod tests {
 
     #[test]
     fn comments_end_lines_but_not_inside_strings_or_braces() {
-        let source = "title \"Depot #4\"  # note\n\n   let x = {Item #} * 2 # twice\n# only a comment\n";
+        let source =
+            "title \"Depot #4\"  # note\n\n   let x = {Item #} * 2 # twice\n# only a comment\n";
         let (lines, problems) = split_lines(source);
         assert!(problems.is_empty());
         let texts: Vec<&str> = lines.iter().map(|l| l.text).collect();
         assert_eq!(texts, ["title \"Depot #4\"", "let x = {Item #} * 2"]);
-        assert_eq!((lines[1].indent, lines[1].offset), (3, source.find("let").unwrap()));
+        assert_eq!(
+            (lines[1].indent, lines[1].offset),
+            (3, source.find("let").unwrap())
+        );
     }
 }

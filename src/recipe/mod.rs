@@ -47,13 +47,19 @@ pub fn parse(source: &str) -> Parsed {
         for e in expressions(&recipe) {
             if e.depth() > MAX_DEPTH {
                 diagnostics.push(
-                    Diagnostic::new(e.span, format!("this expression nests more than {MAX_DEPTH} levels deep"))
-                        .with_help("split it into steps with `let`"),
+                    Diagnostic::new(
+                        e.span,
+                        format!("this expression nests more than {MAX_DEPTH} levels deep"),
+                    )
+                    .with_help("split it into steps with `let`"),
                 );
             }
         }
         diagnostics.sort_by_key(|d| d.span.start);
-        Parsed { recipe, diagnostics }
+        Parsed {
+            recipe,
+            diagnostics,
+        }
     })
 }
 
@@ -70,7 +76,10 @@ pub fn parse_and_check(source: &str, headers: Option<&[String]>) -> Parsed {
 
 /// Parses one expression on its own (for `sheaf calc`) and checks its
 /// names and kinds against the data's headers.
-pub fn parse_expression(source: &str, headers: Option<&[String]>) -> Result<ast::Expr, Vec<Diagnostic>> {
+pub fn parse_expression(
+    source: &str,
+    headers: Option<&[String]>,
+) -> Result<ast::Expr, Vec<Diagnostic>> {
     let parsed = syntax::with_source(source, || {
         let text = source.trim_end();
         let result = expr::expression(text).and_then(|(rest, e)| {
@@ -78,26 +87,48 @@ pub fn parse_expression(source: &str, headers: Option<&[String]>) -> Result<ast:
             if rest_trimmed.is_empty() {
                 Ok(e)
             } else {
-                syntax::failure(rest_trimmed, format!("unexpected {} here; expected an operator or the end", syntax::describe(syntax::next_token(rest_trimmed))), None).map(|(_, ())| e)
+                syntax::failure(
+                    rest_trimmed,
+                    format!(
+                        "unexpected {} here; expected an operator or the end",
+                        syntax::describe(syntax::next_token(rest_trimmed))
+                    ),
+                    None,
+                )
+                .map(|(_, ())| e)
             }
         });
         result.map_err(|err| match err {
             nom::Err::Error(e) | nom::Err::Failure(e) => {
-                let message = if e.message.is_empty() { "expected an expression".to_string() } else { e.message };
+                let message = if e.message.is_empty() {
+                    "expected an expression".to_string()
+                } else {
+                    e.message
+                };
                 let mut d = Diagnostic::new(ast::Span::new(e.offset, e.offset + 1), message);
                 if let Some(h) = e.help {
                     d = d.with_help(h);
                 }
                 vec![d]
             }
-            nom::Err::Incomplete(_) => vec![Diagnostic::new(ast::Span::default(), "incomplete expression")],
+            nom::Err::Incomplete(_) => vec![Diagnostic::new(
+                ast::Span::default(),
+                "incomplete expression",
+            )],
         })
     })?;
     if parsed.depth() > MAX_DEPTH {
-        return Err(vec![Diagnostic::new(parsed.span, format!("this expression nests more than {MAX_DEPTH} levels deep"))]);
+        return Err(vec![Diagnostic::new(
+            parsed.span,
+            format!("this expression nests more than {MAX_DEPTH} levels deep"),
+        )]);
     }
     let problems = check::check_expression(&parsed, headers);
-    if problems.is_empty() { Ok(parsed) } else { Err(problems) }
+    if problems.is_empty() {
+        Ok(parsed)
+    } else {
+        Err(problems)
+    }
 }
 
 /// Every top-level expression of the recipe.
@@ -109,7 +140,9 @@ fn expressions(recipe: &Recipe) -> Vec<&ast::Expr> {
             Let { value, .. } => found.push(value),
             RowsWhere(e) => found.push(e),
             Panel { filter, .. } => found.extend(filter),
-            Figures { filter, figures, .. } => {
+            Figures {
+                filter, figures, ..
+            } => {
                 found.extend(filter);
                 found.extend(figures.iter().map(|f| &f.value));
             }

@@ -17,15 +17,25 @@ fn columns(cols: &[ColumnRef]) -> String {
 }
 
 fn column(c: &ColumnRef) -> String {
-    if c.braced { format!("{{{}}}", c.name) } else { c.name.clone() }
+    if c.braced {
+        format!("{{{}}}", c.name)
+    } else {
+        c.name.clone()
+    }
 }
 
 fn per(cols: &[ColumnRef]) -> String {
-    if cols.is_empty() { String::new() } else { format!(" per {}", columns(cols)) }
+    if cols.is_empty() {
+        String::new()
+    } else {
+        format!(" per {}", columns(cols))
+    }
 }
 
 fn filter(f: &Option<Expr>) -> String {
-    f.as_ref().map(|e| format!(" where {}", expr(e))).unwrap_or_default()
+    f.as_ref()
+        .map(|e| format!(" where {}", expr(e)))
+        .unwrap_or_default()
 }
 
 pub fn quoted(text: &str) -> String {
@@ -58,31 +68,82 @@ fn statement(out: &mut String, s: &Statement) {
         }
         StatementKind::Let { name, value } => format!("let {} = {}", name.value, expr(value)),
         StatementKind::RowsWhere(e) => format!("rows where {}", expr(e)),
-        StatementKind::Panel { name, columns: cols, per: keys, filter: f } => {
-            format!("panel {} of {}{}{}:", quoted(&name.value), columns(cols), per(keys), filter(f))
+        StatementKind::Panel {
+            name,
+            columns: cols,
+            per: keys,
+            filter: f,
+        } => {
+            format!(
+                "panel {} of {}{}{}:",
+                quoted(&name.value),
+                columns(cols),
+                per(keys),
+                filter(f)
+            )
         }
-        StatementKind::Figures { name, per: keys, filter: f, figures } => {
+        StatementKind::Figures {
+            name,
+            per: keys,
+            filter: f,
+            figures,
+        } => {
             let mut text = format!("figures {}{}{}:", quoted(&name.value), per(keys), filter(f));
             for figure in figures {
-                text.push_str(&format!("\n    {} = {}", figure.name.value, expr(&figure.value)));
+                text.push_str(&format!(
+                    "\n    {} = {}",
+                    figure.name.value,
+                    expr(&figure.value)
+                ));
             }
             text
         }
-        StatementKind::Check { name, level, per: keys, condition } => {
-            let level = if *level == CheckLevel::Warn { "warn" } else { "fail" };
-            format!("check {} {level}{}: {}", quoted(&name.value), per(keys), expr(condition))
+        StatementKind::Check {
+            name,
+            level,
+            per: keys,
+            condition,
+        } => {
+            let level = if *level == CheckLevel::Warn {
+                "warn"
+            } else {
+                "fail"
+            };
+            format!(
+                "check {} {level}{}: {}",
+                quoted(&name.value),
+                per(keys),
+                expr(condition)
+            )
         }
-        StatementKind::Histogram { column: c, per: keys, bins } => {
+        StatementKind::Histogram {
+            column: c,
+            per: keys,
+            bins,
+        } => {
             let bins = match bins {
-                Some(Spanned { value: Bins::Rule(rule), .. }) => format!(", bins {rule}"),
-                Some(Spanned { value: Bins::Count(n), .. }) => format!(", bins {n}"),
+                Some(Spanned {
+                    value: Bins::Rule(rule),
+                    ..
+                }) => format!(", bins {rule}"),
+                Some(Spanned {
+                    value: Bins::Count(n),
+                    ..
+                }) => format!(", bins {n}"),
                 None => String::new(),
             };
             format!("histogram {}{}{bins}", column(c), per(keys))
         }
-        StatementKind::Boxplot { column: c, per: keys } => format!("boxplot {}{}", column(c), per(keys)),
+        StatementKind::Boxplot {
+            column: c,
+            per: keys,
+        } => format!("boxplot {}{}", column(c), per(keys)),
         StatementKind::Period(p) => format!("period {}", quoted(&p.value)),
-        StatementKind::Drift(d) => format!("drift {}{}", number(d.value.0), if d.value.1 { "%" } else { "" }),
+        StatementKind::Drift(d) => format!(
+            "drift {}{}",
+            number(d.value.0),
+            if d.value.1 { "%" } else { "" }
+        ),
     };
     out.push_str(&line);
     out.push('\n');
@@ -97,14 +158,23 @@ fn precedence(e: &Expr) -> u8 {
     match &e.kind {
         ExprKind::If { .. } => 0,
         ExprKind::Binary { op, .. } => op.precedence(),
-        ExprKind::Unary { op: UnaryOp::Not, .. } => 3,
-        ExprKind::Unary { op: UnaryOp::Negate, .. } => 7,
+        ExprKind::Unary {
+            op: UnaryOp::Not, ..
+        } => 3,
+        ExprKind::Unary {
+            op: UnaryOp::Negate,
+            ..
+        } => 7,
         _ => 10,
     }
 }
 
 fn wrapped(e: &Expr, parens: bool) -> String {
-    if parens { format!("({})", expr(e)) } else { expr(e) }
+    if parens {
+        format!("({})", expr(e))
+    } else {
+        expr(e)
+    }
 }
 
 pub fn expr(e: &Expr) -> String {
@@ -114,12 +184,31 @@ pub fn expr(e: &Expr) -> String {
         ExprKind::Text(t) => quoted(t),
         ExprKind::Column(c) => column(c),
         ExprKind::Call { function, args } => {
-            format!("{}({})", function.value, args.iter().map(expr).collect::<Vec<_>>().join(", "))
+            format!(
+                "{}({})",
+                function.value,
+                args.iter().map(expr).collect::<Vec<_>>().join(", ")
+            )
         }
-        ExprKind::Unary { op: UnaryOp::Negate, operand } => format!("-{}", wrapped(operand, precedence(operand) < 8)),
-        ExprKind::Unary { op: UnaryOp::Not, operand } => format!("not {}", wrapped(operand, precedence(operand) < 3)),
-        ExprKind::If { condition, then, otherwise } => {
-            format!("if {} then {} else {}", expr(condition), expr(then), expr(otherwise))
+        ExprKind::Unary {
+            op: UnaryOp::Negate,
+            operand,
+        } => format!("-{}", wrapped(operand, precedence(operand) < 8)),
+        ExprKind::Unary {
+            op: UnaryOp::Not,
+            operand,
+        } => format!("not {}", wrapped(operand, precedence(operand) < 3)),
+        ExprKind::If {
+            condition,
+            then,
+            otherwise,
+        } => {
+            format!(
+                "if {} then {} else {}",
+                expr(condition),
+                expr(then),
+                expr(otherwise)
+            )
         }
         ExprKind::Binary { op, left, right } => {
             let p = op.precedence();
@@ -130,7 +219,12 @@ pub fn expr(e: &Expr) -> String {
             } else {
                 (precedence(left) < p, precedence(right) <= p)
             };
-            format!("{} {} {}", wrapped(left, left_parens), op.symbol(), wrapped(right, right_parens))
+            format!(
+                "{} {} {}",
+                wrapped(left, left_parens),
+                op.symbol(),
+                wrapped(right, right_parens)
+            )
         }
     }
 }

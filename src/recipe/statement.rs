@@ -11,7 +11,11 @@ use super::lines::Line;
 use super::syntax::*;
 
 /// Turns a plain no-match of `parser` into "expected WHAT, found ...".
-fn need<'a, T>(input: &'a str, what: &str, parser: impl FnOnce(&'a str) -> PResult<'a, T>) -> PResult<'a, T> {
+fn need<'a, T>(
+    input: &'a str,
+    what: &str,
+    parser: impl FnOnce(&'a str) -> PResult<'a, T>,
+) -> PResult<'a, T> {
     parser(input).map_err(|e| match e {
         nom::Err::Error(_) => {
             let at = input.trim_start();
@@ -31,13 +35,26 @@ fn end_of_line<'a>(input: &'a str, what_else: &str) -> PResult<'a, ()> {
     if rest.is_empty() {
         return Ok((rest, ()));
     }
-    failure(rest, format!("unexpected {} here; expected {what_else}", describe(next_token(rest))), None)
+    failure(
+        rest,
+        format!(
+            "unexpected {} here; expected {what_else}",
+            describe(next_token(rest))
+        ),
+        None,
+    )
 }
 
 fn spanned_string(input: &str) -> PResult<'_, Spanned<String>> {
     let start = input.trim_start();
     let (rest, value) = string_literal(input)?;
-    Ok((rest, Spanned { value, span: span_between(start, rest) }))
+    Ok((
+        rest,
+        Spanned {
+            value,
+            span: span_between(start, rest),
+        },
+    ))
 }
 
 /// A column: bare identifier (not a keyword) or braced header text.
@@ -45,17 +62,34 @@ pub fn column(input: &str) -> PResult<'_, ColumnRef> {
     let (input, _) = space0(input)?;
     if input.starts_with('{') {
         let (rest, name) = braced_name(input)?;
-        return Ok((rest, ColumnRef { name: name.to_string(), braced: true, span: span_between(input, rest) }));
+        return Ok((
+            rest,
+            ColumnRef {
+                name: name.to_string(),
+                braced: true,
+                span: span_between(input, rest),
+            },
+        ));
     }
     let (rest, name) = identifier(input)?;
     if KEYWORDS.contains(&name) {
         return no_match(input);
     }
-    Ok((rest, ColumnRef { name: name.to_string(), braced: false, span: span_between(input, rest) }))
+    Ok((
+        rest,
+        ColumnRef {
+            name: name.to_string(),
+            braced: false,
+            span: span_between(input, rest),
+        },
+    ))
 }
 
 /// `a, b, c`; stops before a `,` that is followed by `stop_before` (a keyword).
-fn column_list<'a>(input: &'a str, stop_before: Option<&'static str>) -> PResult<'a, Vec<ColumnRef>> {
+fn column_list<'a>(
+    input: &'a str,
+    stop_before: Option<&'static str>,
+) -> PResult<'a, Vec<ColumnRef>> {
     let (mut rest, first) = need(input, "a column name", column)?;
     let mut columns = vec![first];
     while let Ok((after_comma, _)) = ws(char::<&str, SyntaxError>(',')).parse(rest) {
@@ -69,7 +103,10 @@ fn column_list<'a>(input: &'a str, stop_before: Option<&'static str>) -> PResult
     Ok((rest, columns))
 }
 
-fn optional_per<'a>(input: &'a str, stop_before: Option<&'static str>) -> PResult<'a, Vec<ColumnRef>> {
+fn optional_per<'a>(
+    input: &'a str,
+    stop_before: Option<&'static str>,
+) -> PResult<'a, Vec<ColumnRef>> {
     match keyword("per")(input) {
         Ok((rest, _)) => column_list(rest, stop_before),
         Err(_) => Ok((input, Vec::new())),
@@ -78,7 +115,9 @@ fn optional_per<'a>(input: &'a str, stop_before: Option<&'static str>) -> PResul
 
 fn optional_where(input: &str) -> PResult<'_, Option<Expr>> {
     match keyword("where")(input) {
-        Ok((rest, _)) => need(rest, "a condition after `where`", expression).map(|(r, e)| (r, Some(e))),
+        Ok((rest, _)) => {
+            need(rest, "a condition after `where`", expression).map(|(r, e)| (r, Some(e)))
+        }
         Err(_) => Ok((input, None)),
     }
 }
@@ -87,7 +126,14 @@ fn block_colon(input: &str) -> PResult<'_, ()> {
     let (rest, _) = space0(input)?;
     match rest.strip_prefix(':') {
         Some(rest) => end_of_line(rest, "the end of the line after `:`"),
-        None => failure(rest, format!("expected `per`, `where` or `:` to end the block header, found {}", describe(next_token(rest))), None),
+        None => failure(
+            rest,
+            format!(
+                "expected `per`, `where` or `:` to end the block header, found {}",
+                describe(next_token(rest))
+            ),
+            None,
+        ),
     }
 }
 
@@ -101,7 +147,9 @@ fn input_statement(input: &str) -> PResult<'_, StatementKind> {
     let (mut sheet, mut header_row) = (None, None);
     let mut rest = input;
     loop {
-        let (after, word) = need(rest, "`sheet \"NAME\"` or `header row N`", |i| ws(identifier).parse(i))?;
+        let (after, word) = need(rest, "`sheet \"NAME\"` or `header row N`", |i| {
+            ws(identifier).parse(i)
+        })?;
         rest = match word {
             "sheet" => {
                 let (after, name) = need(after, "the sheet name in double quotes", spanned_string)?;
@@ -113,14 +161,29 @@ fn input_statement(input: &str) -> PResult<'_, StatementKind> {
                 let (after, _) = space0(after)?;
                 let (after_digits, digits) = need(after, "the header row number", digit1)?;
                 match digits.parse::<u32>() {
-                    Ok(n) if n >= 1 => header_row = Some(Spanned { value: n, span: span_between(after, after_digits) }),
-                    _ => return failure(after, "the header row is counted from 1", Some("write `header row 1` for the first row")),
+                    Ok(n) if n >= 1 => {
+                        header_row = Some(Spanned {
+                            value: n,
+                            span: span_between(after, after_digits),
+                        })
+                    }
+                    _ => {
+                        return failure(
+                            after,
+                            "the header row is counted from 1",
+                            Some("write `header row 1` for the first row"),
+                        );
+                    }
                 }
                 after_digits
             }
             other => {
                 let at = rest.trim_start();
-                return failure(at, format!("unknown input setting `{other}`"), Some("write `sheet \"NAME\"` and/or `header row N`, separated by a comma"));
+                return failure(
+                    at,
+                    format!("unknown input setting `{other}`"),
+                    Some("write `sheet \"NAME\"` and/or `header row N`, separated by a comma"),
+                );
             }
         };
         match ws(char::<&str, SyntaxError>(',')).parse(rest) {
@@ -128,7 +191,10 @@ fn input_statement(input: &str) -> PResult<'_, StatementKind> {
             Err(_) => break,
         }
     }
-    let (rest, _) = end_of_line(rest, "`,` and another input setting, or the end of the line")?;
+    let (rest, _) = end_of_line(
+        rest,
+        "`,` and another input setting, or the end of the line",
+    )?;
     Ok((rest, StatementKind::Input { sheet, header_row }))
 }
 
@@ -137,12 +203,26 @@ fn let_statement(input: &str) -> PResult<'_, StatementKind> {
     let start = rest;
     let (rest, name) = need(rest, "the name of the new column", identifier)?;
     if KEYWORDS.contains(&name) {
-        return failure(start, format!("`{name}` is a keyword and cannot name a column"), Some("choose another name"));
+        return failure(
+            start,
+            format!("`{name}` is a keyword and cannot name a column"),
+            Some("choose another name"),
+        );
     }
-    let name = Spanned { value: name.to_string(), span: span_between(start, rest) };
+    let name = Spanned {
+        value: name.to_string(),
+        span: span_between(start, rest),
+    };
     let (rest, _) = space0(rest)?;
     let Some(rest) = rest.strip_prefix('=').filter(|r| !r.starts_with('=')) else {
-        return failure(rest, format!("expected `=` after the name, found {}", describe(next_token(rest))), Some("write `let name = expression`"));
+        return failure(
+            rest,
+            format!(
+                "expected `=` after the name, found {}",
+                describe(next_token(rest))
+            ),
+            Some("write `let name = expression`"),
+        );
     };
     let (rest, value) = need(rest, "an expression after `=`", expression)?;
     let (rest, _) = end_of_line(rest, "an operator or the end of the line")?;
@@ -163,25 +243,55 @@ fn panel_header(input: &str) -> PResult<'_, StatementKind> {
     let (rest, per) = optional_per(rest, None)?;
     let (rest, filter) = optional_where(rest)?;
     let (rest, _) = block_colon(rest)?;
-    Ok((rest, StatementKind::Panel { name, columns, per, filter }))
+    Ok((
+        rest,
+        StatementKind::Panel {
+            name,
+            columns,
+            per,
+            filter,
+        },
+    ))
 }
 
 fn figures_header(input: &str) -> PResult<'_, StatementKind> {
-    let (rest, name) = need(input, "the name of the figures block in double quotes", spanned_string)?;
+    let (rest, name) = need(
+        input,
+        "the name of the figures block in double quotes",
+        spanned_string,
+    )?;
     let (rest, per) = optional_per(rest, None)?;
     let (rest, filter) = optional_where(rest)?;
     let (rest, _) = block_colon(rest)?;
-    Ok((rest, StatementKind::Figures { name, per, filter, figures: Vec::new() }))
+    Ok((
+        rest,
+        StatementKind::Figures {
+            name,
+            per,
+            filter,
+            figures: Vec::new(),
+        },
+    ))
 }
 
 fn figure_line(input: &str) -> PResult<'_, Figure> {
     let (rest, _) = space0(input)?;
     let start = rest;
     let (rest, name) = need(rest, "a figure as `name = expression`", identifier)?;
-    let name = Spanned { value: name.to_string(), span: span_between(start, rest) };
+    let name = Spanned {
+        value: name.to_string(),
+        span: span_between(start, rest),
+    };
     let (rest, _) = space0(rest)?;
     let Some(rest) = rest.strip_prefix('=').filter(|r| !r.starts_with('=')) else {
-        return failure(rest, format!("expected `=` after the figure's name, found {}", describe(next_token(rest))), Some("write `name = expression`"));
+        return failure(
+            rest,
+            format!(
+                "expected `=` after the figure's name, found {}",
+                describe(next_token(rest))
+            ),
+            Some("write `name = expression`"),
+        );
     };
     let (rest, value) = need(rest, "an expression after `=`", expression)?;
     let (rest, _) = end_of_line(rest, "an operator or the end of the line")?;
@@ -194,16 +304,37 @@ fn check_statement(input: &str) -> PResult<'_, StatementKind> {
     let level = match level {
         "warn" => CheckLevel::Warn,
         "fail" => CheckLevel::Fail,
-        other => return failure(rest.trim_start(), format!("expected `warn` or `fail`, found `{other}`"), Some("`warn` marks the run, `fail` also makes it exit with status 1")),
+        other => {
+            return failure(
+                rest.trim_start(),
+                format!("expected `warn` or `fail`, found `{other}`"),
+                Some("`warn` marks the run, `fail` also makes it exit with status 1"),
+            );
+        }
     };
     let (rest, per) = optional_per(after, None)?;
     let (rest, _) = space0(rest)?;
     let Some(rest) = rest.strip_prefix(':') else {
-        return failure(rest, format!("expected `per` or `:` before the condition, found {}", describe(next_token(rest))), None);
+        return failure(
+            rest,
+            format!(
+                "expected `per` or `:` before the condition, found {}",
+                describe(next_token(rest))
+            ),
+            None,
+        );
     };
     let (rest, condition) = need(rest, "the condition to check after `:`", expression)?;
     let (rest, _) = end_of_line(rest, "an operator or the end of the line")?;
-    Ok((rest, StatementKind::Check { name, level, per, condition }))
+    Ok((
+        rest,
+        StatementKind::Check {
+            name,
+            level,
+            per,
+            condition,
+        },
+    ))
 }
 
 fn histogram_statement(input: &str) -> PResult<'_, StatementKind> {
@@ -219,13 +350,26 @@ fn histogram_statement(input: &str) -> PResult<'_, StatementKind> {
             let (after, digits) = digit1(after)?;
             match digits.parse::<u32>() {
                 Ok(n) if n >= 1 => (after, Bins::Count(n)),
-                _ => return failure(start, "the number of bins must be a whole number from 1", None),
+                _ => {
+                    return failure(
+                        start,
+                        "the number of bins must be a whole number from 1",
+                        None,
+                    );
+                }
             }
         } else {
-            let (after, word) = need(after, "a bin rule (sturges, scott, freedman_diaconis) or a number", identifier)?;
+            let (after, word) = need(
+                after,
+                "a bin rule (sturges, scott, freedman_diaconis) or a number",
+                identifier,
+            )?;
             (after, Bins::Rule(word.to_string()))
         };
-        bins = Some(Spanned { value, span: span_between(start, after) });
+        bins = Some(Spanned {
+            value,
+            span: span_between(start, after),
+        });
         rest = after;
     }
     let (rest, _) = end_of_line(rest, "`per`, `, bins ...` or the end of the line")?;
@@ -239,28 +383,65 @@ fn boxplot_statement(input: &str) -> PResult<'_, StatementKind> {
     Ok((rest, StatementKind::Boxplot { column, per }))
 }
 
-pub const STATEMENT_WORDS: &[&str] = &["title", "input", "let", "rows", "panel", "figures", "check", "histogram", "boxplot", "period", "drift"];
+pub const STATEMENT_WORDS: &[&str] = &[
+    "title",
+    "input",
+    "let",
+    "rows",
+    "panel",
+    "figures",
+    "check",
+    "histogram",
+    "boxplot",
+    "period",
+    "drift",
+];
 
 fn period_statement(input: &str) -> PResult<'_, StatementKind> {
-    let (rest, text) = need(input, "the period in double quotes, such as \"2026-10\"", spanned_string)?;
+    let (rest, text) = need(
+        input,
+        "the period in double quotes, such as \"2026-10\"",
+        spanned_string,
+    )?;
     let (rest, _) = end_of_line(rest, "the end of the line after the period")?;
     Ok((rest, StatementKind::Period(text)))
 }
 
 fn drift_statement(input: &str) -> PResult<'_, StatementKind> {
     let start = input.trim_start();
-    let (rest, (value, percent)) = need(input, "the share of change to flag, such as 10%", number_literal)?;
+    let (rest, (value, percent)) = need(
+        input,
+        "the share of change to flag, such as 10%",
+        number_literal,
+    )?;
     let span = span_between(start, rest);
     let (rest, _) = end_of_line(rest, "the end of the line after the drift threshold")?;
-    Ok((rest, StatementKind::Drift(Spanned { value: (value, percent), span })))
+    Ok((
+        rest,
+        StatementKind::Drift(Spanned {
+            value: (value, percent),
+            span,
+        }),
+    ))
 }
 
 fn statement_line(input: &str) -> PResult<'_, StatementKind> {
     let (rest, word) = match identifier(input) {
         Ok(found) => found,
         Err(_) => {
-            let help = if input.starts_with('=') { Some("a recipe line starts with a statement word, such as `let` or `figures`") } else { None };
-            return failure(input, format!("expected a statement, found {}", describe(next_token(input))), help);
+            let help = if input.starts_with('=') {
+                Some("a recipe line starts with a statement word, such as `let` or `figures`")
+            } else {
+                None
+            };
+            return failure(
+                input,
+                format!(
+                    "expected a statement, found {}",
+                    describe(next_token(input))
+                ),
+                help,
+            );
         }
     };
     match word {
@@ -278,7 +459,10 @@ fn statement_line(input: &str) -> PResult<'_, StatementKind> {
         other => {
             let suggestion = super::suggest::closest(other, STATEMENT_WORDS.iter().copied());
             let help = match suggestion {
-                Some(s) => format!("did you mean `{s}`? statements are: {}", STATEMENT_WORDS.join(", ")),
+                Some(s) => format!(
+                    "did you mean `{s}`? statements are: {}",
+                    STATEMENT_WORDS.join(", ")
+                ),
                 None => format!("statements are: {}", STATEMENT_WORDS.join(", ")),
             };
             failure(input, format!("unknown statement `{other}`"), Some(&help))
@@ -289,13 +473,21 @@ fn statement_line(input: &str) -> PResult<'_, StatementKind> {
 fn to_diagnostic(error: nom::Err<SyntaxError>, line: &Line) -> Diagnostic {
     let e = match error {
         nom::Err::Error(e) | nom::Err::Failure(e) => e,
-        nom::Err::Incomplete(_) => SyntaxError { offset: line.offset, message: String::new(), help: None },
+        nom::Err::Incomplete(_) => SyntaxError {
+            offset: line.offset,
+            message: String::new(),
+            help: None,
+        },
     };
     let token_len = {
         let local = e.offset.saturating_sub(line.offset).min(line.text.len());
         next_token(&line.text[local..]).len()
     };
-    let message = if e.message.is_empty() { "this line could not be read".to_string() } else { e.message };
+    let message = if e.message.is_empty() {
+        "this line could not be read".to_string()
+    } else {
+        e.message
+    };
     let mut d = Diagnostic::new(Span::new(e.offset, e.offset + token_len), message);
     if let Some(help) = e.help {
         d = d.with_help(help);
@@ -303,8 +495,13 @@ fn to_diagnostic(error: nom::Err<SyntaxError>, line: &Line) -> Diagnostic {
     d
 }
 
-fn parse_with<T>(line: &Line, parser: impl FnOnce(&str) -> PResult<'_, T>) -> Result<T, Diagnostic> {
-    parser(line.text).map(|(_, v)| v).map_err(|e| to_diagnostic(e, line))
+fn parse_with<T>(
+    line: &Line,
+    parser: impl FnOnce(&str) -> PResult<'_, T>,
+) -> Result<T, Diagnostic> {
+    parser(line.text)
+        .map(|(_, v)| v)
+        .map_err(|e| to_diagnostic(e, line))
 }
 
 /// Parses the lines; a bad line is reported and parsing goes on at the next.
@@ -322,7 +519,10 @@ pub fn parse_lines(lines: &[Line], diagnostics: &mut Vec<Diagnostic>) -> Recipe 
             continue;
         }
         let mut statement = match parse_with(line, statement_line) {
-            Ok(kind) => Statement { kind, span: line.span() },
+            Ok(kind) => Statement {
+                kind,
+                span: line.span(),
+            },
             Err(d) => {
                 diagnostics.push(d);
                 // Skip the body of a header that failed, so it is not reported line by line.
@@ -362,8 +562,12 @@ pub fn parse_lines(lines: &[Line], diagnostics: &mut Vec<Diagnostic>) -> Recipe 
             }
             _ => {
                 if let Some(first) = body.first() {
-                    let help = "only `figures` and `panel` headers (ending in `:`) take indented lines";
-                    diagnostics.push(Diagnostic::new(first.span(), "this line is indented but no block is open").with_help(help));
+                    let help =
+                        "only `figures` and `panel` headers (ending in `:`) take indented lines";
+                    diagnostics.push(
+                        Diagnostic::new(first.span(), "this line is indented but no block is open")
+                            .with_help(help),
+                    );
                 }
             }
         }

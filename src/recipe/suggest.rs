@@ -34,7 +34,10 @@ mod tests {
     #[test]
     fn finds_typos_and_ignores_strangers() {
         assert_eq!(distance("kitten", "sitting"), 3);
-        assert_eq!(closest("wieght_kg", ["weight_kg", "depot"]), Some("weight_kg"));
+        assert_eq!(
+            closest("wieght_kg", ["weight_kg", "depot"]),
+            Some("weight_kg")
+        );
         assert_eq!(closest("Depot", ["depot", "status"]), Some("depot"));
         assert_eq!(closest("xyz", ["weight_kg", "depot"]), None);
     }

@@ -22,7 +22,11 @@ pub struct SyntaxError {
 
 impl<'a> ParseError<&'a str> for SyntaxError {
     fn from_error_kind(input: &'a str, _kind: ErrorKind) -> Self {
-        SyntaxError { offset: offset_of(input), message: String::new(), help: None }
+        SyntaxError {
+            offset: offset_of(input),
+            message: String::new(),
+            help: None,
+        }
     }
 
     fn append(_input: &'a str, _kind: ErrorKind, other: Self) -> Self {
@@ -31,7 +35,11 @@ impl<'a> ParseError<&'a str> for SyntaxError {
 
     /// Of two failed alternatives, report the one that got further.
     fn or(self, other: Self) -> Self {
-        if other.offset > self.offset || (other.offset == self.offset && self.message.is_empty()) { other } else { self }
+        if other.offset > self.offset || (other.offset == self.offset && self.message.is_empty()) {
+            other
+        } else {
+            self
+        }
     }
 }
 
@@ -48,7 +56,11 @@ pub fn failure<T>(at: &str, message: impl Into<String>, help: Option<&str>) -> P
 
 /// A plain "did not match" at `at`.
 pub fn no_match<T>(at: &str) -> PResult<'static, T> {
-    Err(nom::Err::Error(SyntaxError { offset: offset_of(at), message: String::new(), help: None }))
+    Err(nom::Err::Error(SyntaxError {
+        offset: offset_of(at),
+        message: String::new(),
+        help: None,
+    }))
 }
 
 thread_local! {
@@ -81,7 +93,10 @@ pub fn span_between(start: &str, rest: &str) -> Span {
 }
 
 /// Enters one level of nesting; fails cleanly past [`MAX_NESTING`].
-pub fn nested<'a, T>(input: &'a str, inner: impl FnOnce(&'a str) -> PResult<'a, T>) -> PResult<'a, T> {
+pub fn nested<'a, T>(
+    input: &'a str,
+    inner: impl FnOnce(&'a str) -> PResult<'a, T>,
+) -> PResult<'a, T> {
     let depth = NESTING.with(|n| {
         n.set(n.get() + 1);
         n.get()
@@ -100,7 +115,9 @@ pub fn nested<'a, T>(input: &'a str, inner: impl FnOnce(&'a str) -> PResult<'a, 
 }
 
 /// Spaces and tabs (never a line break: lines are split beforehand).
-pub fn ws<'a, O>(inner: impl Parser<&'a str, Output = O, Error = SyntaxError>) -> impl Parser<&'a str, Output = O, Error = SyntaxError> {
+pub fn ws<'a, O>(
+    inner: impl Parser<&'a str, Output = O, Error = SyntaxError>,
+) -> impl Parser<&'a str, Output = O, Error = SyntaxError> {
     (space0, inner).map(|(_, o)| o)
 }
 
@@ -110,17 +127,27 @@ fn is_word_char(c: char) -> bool {
 
 /// An identifier: a letter or `_`, then letters, digits and `_`.
 pub fn identifier(input: &str) -> PResult<'_, &str> {
-    recognize((take_while1(|c: char| c.is_ascii_alphabetic() || c == '_'), take_while(is_word_char))).parse(input)
+    recognize((
+        take_while1(|c: char| c.is_ascii_alphabetic() || c == '_'),
+        take_while(is_word_char),
+    ))
+    .parse(input)
 }
 
 /// Words with a meaning of their own; a column with such a name goes in braces.
-pub const KEYWORDS: &[&str] = &["and", "or", "not", "if", "then", "else", "where", "per", "of", "bins"];
+pub const KEYWORDS: &[&str] = &[
+    "and", "or", "not", "if", "then", "else", "where", "per", "of", "bins",
+];
 
 /// The keyword `word`, not followed by more word characters.
 pub fn keyword<'a>(word: &'static str) -> impl Fn(&'a str) -> PResult<'a, &'a str> {
     move |input: &'a str| {
         let (rest, found) = ws(identifier).parse(input)?;
-        if found == word { Ok((rest, found)) } else { no_match(input) }
+        if found == word {
+            Ok((rest, found))
+        } else {
+            no_match(input)
+        }
     }
 }
 
@@ -133,20 +160,26 @@ pub fn string_literal(input: &str) -> PResult<'_, String> {
         let mut chars = rest.chars();
         match chars.next() {
             None => {
-                return failure(input, "this string is not closed", Some("add the closing `\"` on the same line"));
+                return failure(
+                    input,
+                    "this string is not closed",
+                    Some("add the closing `\"` on the same line"),
+                );
             }
             Some('"') => return Ok((chars.as_str(), text)),
-            Some('\\') => {
-                match chars.next() {
-                    Some('"') => text.push('"'),
-                    Some('\\') => text.push('\\'),
-                    Some('n') => text.push('\n'),
-                    Some('t') => text.push('\t'),
-                    _ => {
-                        return failure(rest, "unknown escape in a string", Some("use \\\" for a quote or \\\\ for a backslash"));
-                    }
+            Some('\\') => match chars.next() {
+                Some('"') => text.push('"'),
+                Some('\\') => text.push('\\'),
+                Some('n') => text.push('\n'),
+                Some('t') => text.push('\t'),
+                _ => {
+                    return failure(
+                        rest,
+                        "unknown escape in a string",
+                        Some("use \\\" for a quote or \\\\ for a backslash"),
+                    );
                 }
-            }
+            },
             Some(c) => text.push(c),
         }
         rest = chars.as_str();
@@ -158,8 +191,16 @@ pub fn braced_name(input: &str) -> PResult<'_, &str> {
     let (input, _) = space0(input)?;
     let (after_open, _) = char('{').parse(input)?;
     match after_open.find('}') {
-        None => failure(input, "this column name in braces is not closed", Some("add the closing `}`")),
-        Some(0) => failure(input, "empty column name `{}`", Some("write the header text between the braces")),
+        None => failure(
+            input,
+            "this column name in braces is not closed",
+            Some("add the closing `}`"),
+        ),
+        Some(0) => failure(
+            input,
+            "empty column name `{}`",
+            Some("write the header text between the braces"),
+        ),
         Some(end) => Ok((&after_open[end + 1..], &after_open[..end])),
     }
 }
@@ -175,14 +216,22 @@ pub fn number_literal(input: &str) -> PResult<'_, (f64, bool)> {
     ))
     .parse(input)?;
     let value: f64 = text.parse().map_err(|_| {
-        nom::Err::Failure(SyntaxError { offset: offset_of(input), message: "not a number".into(), help: None })
+        nom::Err::Failure(SyntaxError {
+            offset: offset_of(input),
+            message: "not a number".into(),
+            help: None,
+        })
     })?;
     if !value.is_finite() {
         return failure(input, "this number is too large", None);
     }
     let (rest, percent) = opt(tag("%")).parse(rest)?;
     if rest.starts_with(|c: char| is_word_char(c) || c == '.') {
-        return failure(rest, "a number runs into other characters here", Some("separate them with an operator or a space"));
+        return failure(
+            rest,
+            "a number runs into other characters here",
+            Some("separate them with an operator or a space"),
+        );
     }
     Ok((rest, (value, percent.is_some())))
 }
@@ -195,7 +244,9 @@ pub fn next_token(input: &str) -> &str {
     }
     let first = input.chars().next().unwrap();
     let end = if is_word_char(first) {
-        input.find(|c: char| !is_word_char(c)).unwrap_or(input.len())
+        input
+            .find(|c: char| !is_word_char(c))
+            .unwrap_or(input.len())
     } else {
         first.len_utf8()
     };
@@ -204,5 +255,9 @@ pub fn next_token(input: &str) -> &str {
 
 /// What a token is called in a message.
 pub fn describe(token: &str) -> String {
-    if token.is_empty() { "the end of the line".to_string() } else { format!("`{token}`") }
+    if token.is_empty() {
+        "the end of the line".to_string()
+    } else {
+        format!("`{token}`")
+    }
 }

@@ -77,7 +77,12 @@ impl SplitMix64 {
 
 /// Percentile intervals at `level` (0.95 for 95%): the (1-level)/2 and
 /// (1+level)/2 quantiles (type 7) of the resampled means and medians.
-pub fn bootstrap_intervals(sample: &Sample, resamples: usize, level: f64, seed: u64) -> Stat<BootstrapIntervals> {
+pub fn bootstrap_intervals(
+    sample: &Sample,
+    resamples: usize,
+    level: f64,
+    seed: u64,
+) -> Stat<BootstrapIntervals> {
     need(sample.count(), 1)?;
     need(resamples, 2)?;
     let sorted = sample.sorted();
@@ -105,7 +110,13 @@ pub fn bootstrap_intervals(sample: &Sample, resamples: usize, level: f64, seed: 
             high: quantile_sorted(&stats, (1.0 + level) / 2.0, method)?,
         })
     };
-    Ok(BootstrapIntervals { mean: interval(means)?, median: interval(medians)?, resamples, level, seed })
+    Ok(BootstrapIntervals {
+        mean: interval(means)?,
+        median: interval(medians)?,
+        resamples,
+        level,
+        seed,
+    })
 }
 
 /// The sum and the median of a resample, in one pass over the counts. The
@@ -170,7 +181,10 @@ mod tests {
             hits[rng.below(7) as usize] += 1;
         }
         // Each cell expects 10,000; 4 sd of a binomial is about 370.
-        assert!(hits.iter().all(|&h| (9_600..10_400).contains(&h)), "{hits:?}");
+        assert!(
+            hits.iter().all(|&h| (9_600..10_400).contains(&h)),
+            "{hits:?}"
+        );
     }
 
     #[test]
@@ -186,10 +200,22 @@ mod tests {
     #[test]
     fn one_pass_agrees_with_the_two_steps() {
         let sorted = [1.0, 2.0, 4.0, 8.0, 9.5];
-        for counts in [[2, 0, 1, 1, 1], [0, 0, 0, 0, 5], [1, 1, 1, 1, 1], [0, 3, 0, 2, 0]] {
+        for counts in [
+            [2, 0, 1, 1, 1],
+            [0, 0, 0, 0, 5],
+            [1, 1, 1, 1, 1],
+            [0, 3, 0, 2, 0],
+        ] {
             let (sum, median) = sum_and_median(&sorted, &counts);
-            let direct: f64 = sorted.iter().zip(counts).map(|(x, c)| x * f64::from(c)).sum();
-            assert_eq!((sum, median), (direct, median_from_counts(&sorted, &counts)));
+            let direct: f64 = sorted
+                .iter()
+                .zip(counts)
+                .map(|(x, c)| x * f64::from(c))
+                .sum();
+            assert_eq!(
+                (sum, median),
+                (direct, median_from_counts(&sorted, &counts))
+            );
         }
     }
 
@@ -207,6 +233,9 @@ mod tests {
     fn constant_data_gives_a_point_interval() {
         let s = Sample::from_values([3.0; 20]);
         let b = bootstrap_intervals(&s, 100, 0.95, 7).unwrap();
-        assert_eq!((b.mean.low, b.mean.high, b.median.low, b.median.high), (3.0, 3.0, 3.0, 3.0));
+        assert_eq!(
+            (b.mean.low, b.mean.high, b.median.low, b.median.high),
+            (3.0, 3.0, 3.0, 3.0)
+        );
     }
 }

@@ -56,17 +56,27 @@ pub struct Histogram {
 fn bin_count(sample: &Sample, rule: BinRule, range: f64) -> Stat<usize> {
     let n = sample.count() as f64;
     let width = match rule {
-        BinRule::Fixed(0) => return Err(Undefined::BadArgument("a histogram needs at least 1 bin".into())),
+        BinRule::Fixed(0) => {
+            return Err(Undefined::BadArgument(
+                "a histogram needs at least 1 bin".into(),
+            ));
+        }
         BinRule::Fixed(k) => return Ok(k),
         BinRule::Sturges => return Ok(n.log2().ceil() as usize + 1),
-        BinRule::Scott => (24.0 * std::f64::consts::PI.sqrt() / n).cbrt() * sample.sd(Denominator::Population)?,
+        BinRule::Scott => {
+            (24.0 * std::f64::consts::PI.sqrt() / n).cbrt() * sample.sd(Denominator::Population)?
+        }
         BinRule::FreedmanDiaconis => 2.0 * iqr(sample, QuantileMethod::HyndmanFan(7))? / n.cbrt(),
     };
     if width <= 0.0 || range == 0.0 {
         return Ok(1);
     }
     let k = (range / width).ceil();
-    Ok(if k > 1e9 { usize::MAX } else { (k as usize).max(1) })
+    Ok(if k > 1e9 {
+        usize::MAX
+    } else {
+        (k as usize).max(1)
+    })
 }
 
 /// Counts in k equal bins over [min, max]. A constant column gets one bin.
@@ -80,7 +90,11 @@ pub fn histogram(sample: &Sample, rule: BinRule) -> Stat<Histogram> {
     for &x in sample.values() {
         counts[bin_of(x, &edges)] += 1;
     }
-    Ok(Histogram { edges, counts, capped_from })
+    Ok(Histogram {
+        edges,
+        counts,
+        capped_from,
+    })
 }
 
 /// lo + i (hi - lo) / k, with the last edge exactly hi.
@@ -147,7 +161,12 @@ mod tests {
     #[test]
     fn constant_column_has_one_bin() {
         let s = Sample::from_values([2.5; 10]);
-        for rule in [BinRule::Sturges, BinRule::Scott, BinRule::FreedmanDiaconis, BinRule::Fixed(5)] {
+        for rule in [
+            BinRule::Sturges,
+            BinRule::Scott,
+            BinRule::FreedmanDiaconis,
+            BinRule::Fixed(5),
+        ] {
             let h = histogram(&s, rule).unwrap();
             assert_eq!(h.counts.iter().sum::<usize>(), 10, "{rule:?}");
         }

@@ -17,11 +17,18 @@ mod sample;
 mod summation;
 mod undefined;
 
-pub use bootstrap::{SplitMix64, BootstrapIntervals, Interval, bootstrap_intervals, resamples_for, DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET, MIN_RESAMPLES};
-pub use histogram::{BinRule, Histogram, binned_mode, histogram, MAX_BINS};
+pub use bootstrap::{
+    BootstrapIntervals, DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET, Interval, MIN_RESAMPLES,
+    SplitMix64, bootstrap_intervals, resamples_for,
+};
+pub use histogram::{BinRule, Histogram, MAX_BINS, binned_mode, histogram};
 pub use moments::{Denominator, Moments};
-pub use order::{bowley, iqr, mad, median, modes, quartile, trimmed_mean, winsorized_mean, MAD_NORMAL_SCALE};
-pub use outliers::{Fences, fences, modified_z_scores, outliers, Outliers, MODIFIED_Z_CONSTANT, MODIFIED_Z_CUTOFF};
+pub use order::{
+    MAD_NORMAL_SCALE, bowley, iqr, mad, median, modes, quartile, trimmed_mean, winsorized_mean,
+};
+pub use outliers::{
+    Fences, MODIFIED_Z_CONSTANT, MODIFIED_Z_CUTOFF, Outliers, fences, modified_z_scores, outliers,
+};
 pub use quantile::{QuantileMethod, quantile_sorted};
 pub use sample::Sample;
 pub use summation::Neumaier;

@@ -133,8 +133,14 @@ mod tests {
         assert!(close(s.skewness(false).unwrap(), 36.0 / 10f64.powf(1.5)));
         assert!(close(s.kurtosis(false).unwrap(), 2.788));
         // G1 = g1 * sqrt(20) / 3; G2 = ((6 * (2.788 - 3)) + 6) * 4 / (3 * 2).
-        assert!(close(s.skewness(true).unwrap(), 36.0 / 10f64.powf(1.5) * 20f64.sqrt() / 3.0));
-        assert!(close(s.excess_kurtosis(true).unwrap(), (6.0 * (2.788 - 3.0) + 6.0) * 4.0 / 6.0));
+        assert!(close(
+            s.skewness(true).unwrap(),
+            36.0 / 10f64.powf(1.5) * 20f64.sqrt() / 3.0
+        ));
+        assert!(close(
+            s.excess_kurtosis(true).unwrap(),
+            (6.0 * (2.788 - 3.0) + 6.0) * 4.0 / 6.0
+        ));
     }
 
     #[test]
@@ -149,9 +155,15 @@ mod tests {
     fn adjusted_forms_need_enough_values() {
         let s = Sample::from_values([1.0, 2.0, 4.0]);
         assert!(s.skewness(true).is_ok());
-        assert_eq!(s.excess_kurtosis(true), Err(Undefined::TooFewValues { needed: 4, have: 3 }));
+        assert_eq!(
+            s.excess_kurtosis(true),
+            Err(Undefined::TooFewValues { needed: 4, have: 3 })
+        );
         let one = Sample::from_values([5.0]);
-        assert_eq!(one.variance(Denominator::Sample), Err(Undefined::TooFewValues { needed: 2, have: 1 }));
+        assert_eq!(
+            one.variance(Denominator::Sample),
+            Err(Undefined::TooFewValues { needed: 2, have: 1 })
+        );
         assert_eq!(one.variance(Denominator::Population), Ok(0.0));
     }
 }

@@ -21,7 +21,11 @@ pub(crate) fn median_of_sorted(sorted: &[f64]) -> Stat {
     if n == 0 {
         return Err(Undefined::NoValues);
     }
-    Ok(if n % 2 == 1 { sorted[n / 2] } else { midpoint(sorted[n / 2 - 1], sorted[n / 2]) })
+    Ok(if n % 2 == 1 {
+        sorted[n / 2]
+    } else {
+        midpoint(sorted[n / 2 - 1], sorted[n / 2])
+    })
 }
 
 /// Mean of two numbers without overflow for huge values.
@@ -32,7 +36,9 @@ fn midpoint(a: f64, b: f64) -> f64 {
 /// The k-th quartile (k = 0..4) by the given method.
 pub fn quartile(sample: &Sample, k: u8, method: QuantileMethod) -> Stat {
     if k > 4 {
-        return Err(Undefined::BadArgument(format!("quartile {k} does not exist; use 1, 2 or 3")));
+        return Err(Undefined::BadArgument(format!(
+            "quartile {k} does not exist; use 1, 2 or 3"
+        )));
     }
     quantile_sorted(sample.sorted(), f64::from(k) / 4.0, method)
 }
@@ -44,7 +50,11 @@ pub fn iqr(sample: &Sample, method: QuantileMethod) -> Stat {
 
 /// Bowley's quartile skewness (Q3 + Q1 - 2 Q2) / (Q3 - Q1).
 pub fn bowley(sample: &Sample, method: QuantileMethod) -> Stat {
-    let (q1, q2, q3) = (quartile(sample, 1, method)?, quartile(sample, 2, method)?, quartile(sample, 3, method)?);
+    let (q1, q2, q3) = (
+        quartile(sample, 1, method)?,
+        quartile(sample, 2, method)?,
+        quartile(sample, 3, method)?,
+    );
     if q3 == q1 {
         return Err(Undefined::ZeroIqr);
     }
@@ -157,7 +167,10 @@ mod tests {
 
     #[test]
     fn modes_lists_every_tie_ascending() {
-        assert_eq!(modes(&sample(&[3.0, 1.0, 3.0, 2.0, 1.0, 5.0])), Ok(vec![1.0, 3.0]));
+        assert_eq!(
+            modes(&sample(&[3.0, 1.0, 3.0, 2.0, 1.0, 5.0])),
+            Ok(vec![1.0, 3.0])
+        );
         assert_eq!(modes(&sample(&[7.0])), Ok(vec![7.0]));
     }
 
@@ -177,19 +190,40 @@ mod tests {
         assert_eq!(trimmed_mean(&s, 0.1), Ok(44.0 / 8.0));
         assert_eq!(winsorized_mean(&s, 0.1), Ok((2.0 + 44.0 + 9.0) / 10.0));
         assert_eq!(trimmed_mean(&s, 0.0), Ok(14.5));
-        assert!(matches!(trimmed_mean(&s, 0.5), Err(Undefined::BadArgument(_))));
+        assert!(matches!(
+            trimmed_mean(&s, 0.5),
+            Err(Undefined::BadArgument(_))
+        ));
         // 10% of 30 is 3 even though 0.1 * 30 = 3.0000000000000004.
         let thirty = Sample::from_values((1..=30).map(f64::from));
         assert_eq!(trimmed_mean(&thirty, 0.1), Ok(15.5));
         let with_outlier = Sample::from_values((1..=29).map(f64::from).chain([1000.0]));
-        assert_eq!(trimmed_mean(&with_outlier, 0.1), Ok(Neumaier::of((4..=27).map(f64::from)) / 24.0));
+        assert_eq!(
+            trimmed_mean(&with_outlier, 0.1),
+            Ok(Neumaier::of((4..=27).map(f64::from)) / 24.0)
+        );
     }
 
     #[test]
     fn bowley_of_symmetric_and_skewed_data() {
-        assert_eq!(bowley(&sample(&[1.0, 2.0, 3.0, 4.0, 5.0]), QuantileMethod::default()), Ok(0.0));
+        assert_eq!(
+            bowley(
+                &sample(&[1.0, 2.0, 3.0, 4.0, 5.0]),
+                QuantileMethod::default()
+            ),
+            Ok(0.0)
+        );
         // hf7 on 1,2,3,4,20: Q1 = 2, Q2 = 3, Q3 = 4 -> 0; on 1,2,3,10,20: Q3 = 10 -> (10+2-6)/8.
-        assert_eq!(bowley(&sample(&[1.0, 2.0, 3.0, 10.0, 20.0]), QuantileMethod::default()), Ok(0.75));
-        assert_eq!(bowley(&sample(&[2.0; 6]), QuantileMethod::default()), Err(Undefined::ZeroIqr));
+        assert_eq!(
+            bowley(
+                &sample(&[1.0, 2.0, 3.0, 10.0, 20.0]),
+                QuantileMethod::default()
+            ),
+            Ok(0.75)
+        );
+        assert_eq!(
+            bowley(&sample(&[2.0; 6]), QuantileMethod::default()),
+            Err(Undefined::ZeroIqr)
+        );
     }
 }

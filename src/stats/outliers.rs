@@ -20,7 +20,9 @@ pub struct Fences {
 
 pub fn fences(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<Fences> {
     if !(k.is_finite() && k >= 0.0) {
-        return Err(Undefined::BadArgument(format!("the fence factor must be 0 or more, not {k}")));
+        return Err(Undefined::BadArgument(format!(
+            "the fence factor must be 0 or more, not {k}"
+        )));
     }
     let spread = iqr(sample, method)?;
     Ok(Fences {
@@ -64,7 +66,11 @@ pub fn modified_z_scores(sample: &Sample) -> Stat<Vec<f64>> {
     if spread == 0.0 {
         return Err(Undefined::ZeroMad);
     }
-    Ok(sample.values().iter().map(|x| MODIFIED_Z_CONSTANT * (x - centre) / spread).collect())
+    Ok(sample
+        .values()
+        .iter()
+        .map(|x| MODIFIED_Z_CONSTANT * (x - centre) / spread)
+        .collect())
 }
 
 #[cfg(test)]
@@ -77,11 +83,29 @@ mod tests {
     fn fences_and_outliers_from_the_definition() {
         let s = Sample::from_values((1..=10).map(f64::from).chain([100.0]));
         let o = outliers(&s, 1.5, QuantileMethod::default()).unwrap();
-        assert_eq!(o.fences, Fences { low: -4.0, high: 16.0 });
+        assert_eq!(
+            o.fences,
+            Fences {
+                low: -4.0,
+                high: 16.0
+            }
+        );
         assert_eq!((o.low.clone(), o.high.clone()), (vec![], vec![10]));
-        assert_eq!(fences(&s, 3.0, QuantileMethod::default()), Ok(Fences { low: -11.5, high: 23.5 }));
+        assert_eq!(
+            fences(&s, 3.0, QuantileMethod::default()),
+            Ok(Fences {
+                low: -11.5,
+                high: 23.5
+            })
+        );
         // Tukey's own fences use hinges: depth 3.5 -> 3.5 and 8.5 here too.
-        assert_eq!(fences(&s, 1.5, QuantileMethod::Hinges), Ok(Fences { low: -4.0, high: 16.0 }));
+        assert_eq!(
+            fences(&s, 1.5, QuantileMethod::Hinges),
+            Ok(Fences {
+                low: -4.0,
+                high: 16.0
+            })
+        );
     }
 
     // Hand-checked: median 6, |x - 6| = 5 4 3 2 1 0 1 2 3 4 94 -> MAD 3,

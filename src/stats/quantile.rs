@@ -34,14 +34,18 @@ impl QuantileMethod {
             return Some(QuantileMethod::Hinges);
         }
         let t: u8 = word.strip_prefix("hf")?.parse().ok()?;
-        (1..=9).contains(&t).then_some(QuantileMethod::HyndmanFan(t))
+        (1..=9)
+            .contains(&t)
+            .then_some(QuantileMethod::HyndmanFan(t))
     }
 }
 
 /// The p-quantile (p in [0, 1]) of values sorted ascending.
 pub fn quantile_sorted(sorted: &[f64], p: f64, method: QuantileMethod) -> Stat {
     if !(0.0..=1.0).contains(&p) {
-        return Err(Undefined::BadArgument(format!("quantile level {p} is outside 0 to 1")));
+        return Err(Undefined::BadArgument(format!(
+            "quantile level {p} is outside 0 to 1"
+        )));
     }
     if sorted.is_empty() {
         return Err(Undefined::NoValues);
@@ -64,21 +68,37 @@ fn hyndman_fan(x: &[f64], p: f64, kind: u8) -> Stat {
         7 => 1.0 - p,
         8 => (p + 1.0) / 3.0,
         9 => p / 4.0 + 3.0 / 8.0,
-        _ => return Err(Undefined::BadArgument(format!("there is no Hyndman-Fan type {kind}; use 1 to 9"))),
+        _ => {
+            return Err(Undefined::BadArgument(format!(
+                "there is no Hyndman-Fan type {kind}; use 1 to 9"
+            )));
+        }
     };
     let h = snap_to_integer(n * p + m);
     let j = h.floor();
     let g = h - j;
     let gamma = match kind {
         1 => step(g > 0.0),
-        2 => if g > 0.0 { 1.0 } else { 0.5 },
+        2 => {
+            if g > 0.0 {
+                1.0
+            } else {
+                0.5
+            }
+        }
         3 => step(!(g == 0.0 && (j as i64) % 2 == 0)),
         _ => g,
     };
     let at = |k: f64| x[(k.clamp(1.0, n) as usize) - 1];
     let (lo, hi) = (at(j), at(j + 1.0));
     // Written so that gamma = 0 or 1 returns a data value exactly.
-    Ok(if gamma == 0.0 { lo } else if gamma == 1.0 { hi } else { lo + gamma * (hi - lo) })
+    Ok(if gamma == 0.0 {
+        lo
+    } else if gamma == 1.0 {
+        hi
+    } else {
+        lo + gamma * (hi - lo)
+    })
 }
 
 fn step(on: bool) -> f64 {
@@ -90,7 +110,11 @@ fn step(on: bool) -> f64 {
 /// discontinuous types to the next value. Snap within a few ulps.
 fn snap_to_integer(h: f64) -> f64 {
     let r = h.round();
-    if (h - r).abs() <= 8.0 * f64::EPSILON * r.abs().max(1.0) { r } else { h }
+    if (h - r).abs() <= 8.0 * f64::EPSILON * r.abs().max(1.0) {
+        r
+    } else {
+        h
+    }
 }
 
 fn hinges(x: &[f64], p: f64) -> Stat {
@@ -100,11 +124,19 @@ fn hinges(x: &[f64], p: f64) -> Stat {
     let hinge_depth = ((n + 1) / 2 + 1) as f64 / 2.0;
     let from_low = |depth: f64| {
         let i = depth.floor() as usize - 1;
-        if depth.fract() == 0.0 { x[i] } else { (x[i] + x[i + 1]) / 2.0 }
+        if depth.fract() == 0.0 {
+            x[i]
+        } else {
+            (x[i] + x[i + 1]) / 2.0
+        }
     };
     let from_high = |depth: f64| {
         let i = n - depth.floor() as usize;
-        if depth.fract() == 0.0 { x[i] } else { (x[i] + x[i - 1]) / 2.0 }
+        if depth.fract() == 0.0 {
+            x[i]
+        } else {
+            (x[i] + x[i - 1]) / 2.0
+        }
     };
     match p {
         0.0 => Ok(x[0]),
@@ -132,18 +164,22 @@ mod tests {
         let x: Vec<f64> = (1..=10).map(f64::from).collect();
         // np = 2.5 for p = 0.25.
         let expected = [
-            3.0,   // type 1: j = 2, g > 0 -> x[3]
-            3.0,   // type 2: same, no tie
-            2.0,   // type 3: np - 0.5 = 2, g = 0, j even -> x[2]
-            2.5,   // type 4: 2 + 0.5 * (3 - 2)
-            3.0,   // type 5: np + 0.5 = 3
-            2.75,  // type 6: np + p = 2.75
-            3.25,  // type 7: np + 1 - p = 3.25
-            2.5 + 1.25 / 3.0 - 0.0, // type 8: np + (p+1)/3 = 2.5 + 0.41666..
+            3.0,                      // type 1: j = 2, g > 0 -> x[3]
+            3.0,                      // type 2: same, no tie
+            2.0,                      // type 3: np - 0.5 = 2, g = 0, j even -> x[2]
+            2.5,                      // type 4: 2 + 0.5 * (3 - 2)
+            3.0,                      // type 5: np + 0.5 = 3
+            2.75,                     // type 6: np + p = 2.75
+            3.25,                     // type 7: np + 1 - p = 3.25
+            2.5 + 1.25 / 3.0 - 0.0,   // type 8: np + (p+1)/3 = 2.5 + 0.41666..
             2.5 + 0.25 / 4.0 + 0.375, // type 9: np + p/4 + 3/8 = 2.9375
         ];
         for (t, want) in (1..=9).zip(expected) {
-            assert!((q(&x, 0.25, t) - want).abs() < 1e-12, "type {t}: {} vs {want}", q(&x, 0.25, t));
+            assert!(
+                (q(&x, 0.25, t) - want).abs() < 1e-12,
+                "type {t}: {} vs {want}",
+                q(&x, 0.25, t)
+            );
         }
     }
 
@@ -171,12 +207,30 @@ mod tests {
     // n = 9 -> 3, n = 11 -> 3.5, n = 12 -> 3.5.
     #[test]
     fn tukey_hinges() {
-        for (n, lower, upper) in [(8, 2.5, 6.5), (9, 3.0, 7.0), (11, 3.5, 8.5), (12, 3.5, 9.5), (1, 1.0, 1.0), (2, 1.0, 2.0)] {
+        for (n, lower, upper) in [
+            (8, 2.5, 6.5),
+            (9, 3.0, 7.0),
+            (11, 3.5, 8.5),
+            (12, 3.5, 9.5),
+            (1, 1.0, 1.0),
+            (2, 1.0, 2.0),
+        ] {
             let x: Vec<f64> = (1..=n).map(f64::from).collect();
-            assert_eq!(quantile_sorted(&x, 0.25, QuantileMethod::Hinges), Ok(lower), "n = {n}");
-            assert_eq!(quantile_sorted(&x, 0.75, QuantileMethod::Hinges), Ok(upper), "n = {n}");
+            assert_eq!(
+                quantile_sorted(&x, 0.25, QuantileMethod::Hinges),
+                Ok(lower),
+                "n = {n}"
+            );
+            assert_eq!(
+                quantile_sorted(&x, 0.75, QuantileMethod::Hinges),
+                Ok(upper),
+                "n = {n}"
+            );
         }
-        assert!(matches!(quantile_sorted(&[1.0], 0.9, QuantileMethod::Hinges), Err(Undefined::BadArgument(_))));
+        assert!(matches!(
+            quantile_sorted(&[1.0], 0.9, QuantileMethod::Hinges),
+            Err(Undefined::BadArgument(_))
+        ));
     }
 
     #[test]
@@ -185,7 +239,10 @@ mod tests {
             let m = QuantileMethod::HyndmanFan(t);
             assert_eq!(QuantileMethod::from_word(&m.word()), Some(m));
         }
-        assert_eq!(QuantileMethod::from_word("hinges"), Some(QuantileMethod::Hinges));
+        assert_eq!(
+            QuantileMethod::from_word("hinges"),
+            Some(QuantileMethod::Hinges)
+        );
         assert_eq!(QuantileMethod::from_word("hf10"), None);
         assert_eq!(QuantileMethod::from_word("hf0"), None);
     }

@@ -43,7 +43,13 @@ impl Sample {
     }
 
     fn build(values: Vec<f64>, positions: Vec<u32>, missing: usize) -> Sample {
-        Sample { values, positions, missing, sorted: OnceLock::new(), moments: OnceLock::new() }
+        Sample {
+            values,
+            positions,
+            missing,
+            sorted: OnceLock::new(),
+            moments: OnceLock::new(),
+        }
     }
 
     /// Values in the order they were given.
@@ -103,7 +109,11 @@ impl Sample {
                 _ => Err(Undefined::NoValues),
             };
         }
-        self.values.iter().copied().reduce(pick).ok_or(Undefined::NoValues)
+        self.values
+            .iter()
+            .copied()
+            .reduce(pick)
+            .ok_or(Undefined::NoValues)
     }
 
     pub fn range(&self) -> Stat {
@@ -129,7 +139,13 @@ mod tests {
 
     #[test]
     fn gaps_and_non_finite_values_count_as_missing() {
-        let s = Sample::from_column([Some(2.0), None, Some(f64::NAN), Some(5.0), Some(f64::INFINITY)]);
+        let s = Sample::from_column([
+            Some(2.0),
+            None,
+            Some(f64::NAN),
+            Some(5.0),
+            Some(f64::INFINITY),
+        ]);
         assert_eq!(s.count(), 2);
         assert_eq!(s.missing(), 3);
         assert_eq!(s.positions(), &[0, 3]);

@@ -25,11 +25,22 @@ pub const CONVENTIONS: &[&str] = &[
     "A let column is computed over the rows kept at its line; its aggregates reduce over those rows, not per group.",
 ];
 
-pub fn about(workbook: &mut Workbook, names: &mut SheetNames, results: &Results, table: &Table, run: &RunInfoRef) -> Result<(), XlsxError> {
+pub fn about(
+    workbook: &mut Workbook,
+    names: &mut SheetNames,
+    results: &Results,
+    table: &Table,
+    run: &RunInfoRef,
+) -> Result<(), XlsxError> {
     let sheet = workbook.add_worksheet().set_name(names.claim("About"))?;
     sheet.set_column_width(0, 30)?;
     sheet.set_column_width(1, 90)?;
-    sheet.write_string_with_format(0, 0, results.title.as_deref().unwrap_or("sheaf result"), &style::title())?;
+    sheet.write_string_with_format(
+        0,
+        0,
+        results.title.as_deref().unwrap_or("sheaf result"),
+        &style::title(),
+    )?;
     sheet.merge_range(1, 0, 1, 3, DISCLAIMER, &style::note())?;
     sheet.set_row_height(1, 45)?;
     let mut r = 3;
@@ -47,21 +58,48 @@ pub fn about(workbook: &mut Workbook, names: &mut SheetNames, results: &Results,
     pair("input SHA-256", table.source.sha256.clone())?;
     pair("sheet", table.sheet.clone())?;
     pair("header row", table.header_row.to_string())?;
-    pair("period", run.period.as_ref().map_or("none: no date in the file name and no `period` in the recipe".to_string(), |p| p.explain()))?;
-    pair("recipe fingerprint", format!("{} (SHA-256 of the recipe's canonical text; --compare needs the same)", run.fingerprint))?;
+    pair(
+        "period",
+        run.period.as_ref().map_or(
+            "none: no date in the file name and no `period` in the recipe".to_string(),
+            |p| p.explain(),
+        ),
+    )?;
+    pair(
+        "recipe fingerprint",
+        format!(
+            "{} (SHA-256 of the recipe's canonical text; --compare needs the same)",
+            run.fingerprint
+        ),
+    )?;
     if let Some(previous) = &run.previous {
-        pair("compared with", format!("period {}", previous.period.as_deref().unwrap_or("(unknown)")))?;
+        pair(
+            "compared with",
+            format!(
+                "period {}",
+                previous.period.as_deref().unwrap_or("(unknown)")
+            ),
+        )?;
     }
     pair("rows read", results.rows_read.to_string())?;
     for (reason, count) in &results.rows_skipped {
         pair("rows skipped", format!("{count}: {reason}"))?;
     }
     for block in &results.blocks {
-        if let Block::Panel { name, rows_used, .. } = block {
+        if let Block::Panel {
+            name, rows_used, ..
+        } = block
+        {
             pair("rows in panel", format!("{name}: {rows_used}"))?;
         }
     }
-    pair("bootstrap", format!("{DEFAULT_RESAMPLES} resamples (fewer for columns over {} values: {DRAW_BUDGET} draws at most, never under {MIN_RESAMPLES} resamples), seed {DEFAULT_SEED}, 95% percentile intervals", DRAW_BUDGET / DEFAULT_RESAMPLES))?;
+    pair(
+        "bootstrap",
+        format!(
+            "{DEFAULT_RESAMPLES} resamples (fewer for columns over {} values: {DRAW_BUDGET} draws at most, never under {MIN_RESAMPLES} resamples), seed {DEFAULT_SEED}, 95% percentile intervals",
+            DRAW_BUDGET / DEFAULT_RESAMPLES
+        ),
+    )?;
     for (i, c) in CONVENTIONS.iter().enumerate() {
         pair(if i == 0 { "conventions" } else { "" }, c.to_string())?;
     }

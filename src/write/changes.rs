@@ -8,10 +8,27 @@ use super::{RunInfo, style};
 use crate::eval::Results;
 use crate::history::{RECORD_SHEET, Record};
 
-pub fn changes(workbook: &mut Workbook, names: &mut SheetNames, results: &Results, run: &RunInfo, previous: &Record) -> Result<(), XlsxError> {
+pub fn changes(
+    workbook: &mut Workbook,
+    names: &mut SheetNames,
+    results: &Results,
+    run: &RunInfo,
+    previous: &Record,
+) -> Result<(), XlsxError> {
     let current = Record::from_results(results, run.fingerprint.clone(), None);
     let sheet = workbook.add_worksheet().set_name(names.claim("Changes"))?;
-    let labels: Vec<String> = ["block", "group", "figure", "previous", "now", "change", "relative change", "flag"].map(String::from).to_vec();
+    let labels: Vec<String> = [
+        "block",
+        "group",
+        "figure",
+        "previous",
+        "now",
+        "change",
+        "relative change",
+        "flag",
+    ]
+    .map(String::from)
+    .to_vec();
     sheet.write_string_with_format(0, 0, "Changes", &style::title())?;
     let note = format!(
         "Each figure against period {}. Flagged when the relative change exceeds {}% (the recipe's drift, or sheaf's default of 10%).",
@@ -22,8 +39,14 @@ pub fn changes(workbook: &mut Workbook, names: &mut SheetNames, results: &Result
     style::table_header(sheet, 3, &labels, 3)?;
     let percent = Format::new().set_num_format("0.0%");
     let mut r = 4;
-    for e in current.entries.iter().filter(|e| e.block != crate::history::record_term_block()) {
-        let Some(before) = previous.find(&e.block, &e.group, &e.name) else { continue };
+    for e in current
+        .entries
+        .iter()
+        .filter(|e| e.block != crate::history::record_term_block())
+    {
+        let Some(before) = previous.find(&e.block, &e.group, &e.name) else {
+            continue;
+        };
         sheet.write_string(r, 0, &e.block)?;
         sheet.write_string(r, 1, &e.group)?;
         sheet.write_string(r, 2, &e.name)?;
@@ -44,14 +67,25 @@ pub fn changes(workbook: &mut Workbook, names: &mut SheetNames, results: &Result
     style::filter(sheet, 3, r - 1, labels.len())
 }
 
-pub fn record(workbook: &mut Workbook, names: &mut SheetNames, results: &Results, run: &RunInfo) -> Result<(), XlsxError> {
+pub fn record(
+    workbook: &mut Workbook,
+    names: &mut SheetNames,
+    results: &Results,
+    run: &RunInfo,
+) -> Result<(), XlsxError> {
     let record = Record::from_results(results, run.fingerprint.clone(), None);
-    let sheet = workbook.add_worksheet().set_name(names.claim(RECORD_SHEET))?;
+    let sheet = workbook
+        .add_worksheet()
+        .set_name(names.claim(RECORD_SHEET))?;
     let bold = Format::new().set_bold();
     sheet.write_string_with_format(0, 0, "recipe fingerprint", &bold)?;
     sheet.write_string(0, 1, &run.fingerprint)?;
     sheet.write_string_with_format(1, 0, "period", &bold)?;
-    sheet.write_string(1, 1, run.period.as_ref().map_or("(none)", |p| p.label.as_str()))?;
+    sheet.write_string(
+        1,
+        1,
+        run.period.as_ref().map_or("(none)", |p| p.label.as_str()),
+    )?;
     for (c, h) in ["block", "group", "figure", "value"].iter().enumerate() {
         sheet.write_string_with_format(2, c as u16, *h, &style::header())?;
         sheet.set_column_width(c as u16, 24)?;

@@ -48,13 +48,24 @@ pub enum WriteError {
 }
 
 /// The workbook as bytes.
-pub fn workbook_bytes(results: &Results, table: &Table, run: &RunInfo) -> Result<Vec<u8>, WriteError> {
+pub fn workbook_bytes(
+    results: &Results,
+    table: &Table,
+    run: &RunInfo,
+) -> Result<Vec<u8>, WriteError> {
     let mut workbook = Workbook::new();
-    let mut properties = DocProperties::new().set_title(results.title.clone().unwrap_or_else(|| "sheaf result".into()));
+    let mut properties = DocProperties::new().set_title(
+        results
+            .title
+            .clone()
+            .unwrap_or_else(|| "sheaf result".into()),
+    );
     // The file's own creation time is the recorded run time, so a rerun with
     // the same SHEAF_RUN_TIME is byte for byte the same workbook.
     let iso = run.run_time.trim_end_matches(" UTC").replacen(' ', "T", 1);
-    if let Some(created) = crate::format::serial_from_iso(&iso).and_then(|serial| rust_xlsxwriter::ExcelDateTime::from_serial_datetime(serial).ok()) {
+    if let Some(created) = crate::format::serial_from_iso(&iso)
+        .and_then(|serial| rust_xlsxwriter::ExcelDateTime::from_serial_datetime(serial).ok())
+    {
         properties = properties.set_creation_datetime(&created);
     }
     workbook.set_properties(&properties);
@@ -72,7 +83,13 @@ pub fn workbook_bytes(results: &Results, table: &Table, run: &RunInfo) -> Result
 
 /// Writes the workbook to `out`: refuses to replace a file without `force`
 /// or to touch the input; writes a temporary file first, then renames it.
-pub fn save(results: &Results, table: &Table, run: &RunInfo, out: &Path, force: bool) -> Result<(), WriteError> {
+pub fn save(
+    results: &Results,
+    table: &Table,
+    run: &RunInfo,
+    out: &Path,
+    force: bool,
+) -> Result<(), WriteError> {
     let shown = out.display().to_string();
     if same_file(out, Path::new(&table.source.path)) {
         return Err(WriteError::WouldOverwriteInput(shown));
@@ -81,7 +98,10 @@ pub fn save(results: &Results, table: &Table, run: &RunInfo, out: &Path, force: 
         return Err(WriteError::Exists(shown));
     }
     let bytes = workbook_bytes(results, table, run)?;
-    let io = |e: std::io::Error| WriteError::Io { path: shown.clone(), reason: e.to_string() };
+    let io = |e: std::io::Error| WriteError::Io {
+        path: shown.clone(),
+        reason: e.to_string(),
+    };
     let temporary = temporary_beside(out);
     let result = (|| {
         let mut file = std::fs::File::create(&temporary)?;
@@ -96,7 +116,10 @@ pub fn save(results: &Results, table: &Table, run: &RunInfo, out: &Path, force: 
 }
 
 fn temporary_beside(out: &Path) -> PathBuf {
-    let name = out.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_else(|| "result.xlsx".into());
+    let name = out
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "result.xlsx".into());
     out.with_file_name(format!(".{name}.{}.partial", std::process::id()))
 }
 

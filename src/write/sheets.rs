@@ -14,12 +14,19 @@ pub struct SheetNames(HashSet<String>);
 
 impl SheetNames {
     pub fn claim(&mut self, wanted: &str) -> String {
-        let base: String = wanted.chars().filter(|c| !"[]:*?/\\".contains(*c)).take(31).collect();
+        let base: String = wanted
+            .chars()
+            .filter(|c| !"[]:*?/\\".contains(*c))
+            .take(31)
+            .collect();
         let mut name = base.clone();
         let mut n = 2;
         while !self.0.insert(name.to_lowercase()) {
             let suffix = format!(" {n}");
-            name = format!("{}{suffix}", base.chars().take(31 - suffix.len()).collect::<String>());
+            name = format!(
+                "{}{suffix}",
+                base.chars().take(31 - suffix.len()).collect::<String>()
+            );
             n += 1;
         }
         name
@@ -52,14 +59,40 @@ fn heading(sheet: &mut Worksheet, title: &str, note: &str, width: usize) -> Resu
     Ok(3)
 }
 
-pub fn blocks(workbook: &mut Workbook, names: &mut SheetNames, results: &Results) -> Result<(), XlsxError> {
+pub fn blocks(
+    workbook: &mut Workbook,
+    names: &mut SheetNames,
+    results: &Results,
+) -> Result<(), XlsxError> {
     for block in &results.blocks {
         match block {
-            Block::Panel { name, keys, entries, .. } => {
-                panel_sheet(workbook.add_worksheet().set_name(names.claim(name))?, name, keys, entries)?;
-                robustness_sheet(workbook.add_worksheet().set_name(names.claim(&format!("{name} robustness")))?, name, keys, entries)?;
+            Block::Panel {
+                name,
+                keys,
+                entries,
+                ..
+            } => {
+                panel_sheet(
+                    workbook.add_worksheet().set_name(names.claim(name))?,
+                    name,
+                    keys,
+                    entries,
+                )?;
+                robustness_sheet(
+                    workbook
+                        .add_worksheet()
+                        .set_name(names.claim(&format!("{name} robustness")))?,
+                    name,
+                    keys,
+                    entries,
+                )?;
             }
-            Block::Figures { name, keys, names: figure_names, rows } => {
+            Block::Figures {
+                name,
+                keys,
+                names: figure_names,
+                rows,
+            } => {
                 let sheet = workbook.add_worksheet().set_name(names.claim(name))?;
                 let mut labels: Vec<String> = keys.clone();
                 labels.push("rows".into());
@@ -70,7 +103,12 @@ pub fn blocks(workbook: &mut Workbook, names: &mut SheetNames, results: &Results
                 for (i, row) in rows.iter().enumerate() {
                     let r = top + 1 + i as u32;
                     write_group(sheet, r, &row.group)?;
-                    sheet.write_number_with_format(r, keys.len() as u16, row.rows as f64, &style::count())?;
+                    sheet.write_number_with_format(
+                        r,
+                        keys.len() as u16,
+                        row.rows as f64,
+                        &style::count(),
+                    )?;
                     for (j, value) in row.values.iter().enumerate() {
                         write_one(sheet, r, (keys.len() + 1 + j) as u16, value, false)?;
                     }
@@ -89,7 +127,12 @@ fn write_group(sheet: &mut Worksheet, row: u32, group: &[String]) -> Result<(), 
     Ok(())
 }
 
-fn panel_sheet(sheet: &mut Worksheet, name: &str, keys: &[String], entries: &[PanelEntry]) -> Result<(), XlsxError> {
+fn panel_sheet(
+    sheet: &mut Worksheet,
+    name: &str,
+    keys: &[String],
+    entries: &[PanelEntry],
+) -> Result<(), XlsxError> {
     let mut labels: Vec<String> = keys.to_vec();
     labels.push("column".into());
     labels.extend(PANEL_LABELS.iter().map(|s| s.to_string()));
@@ -101,35 +144,81 @@ fn panel_sheet(sheet: &mut Worksheet, name: &str, keys: &[String], entries: &[Pa
         write_group(sheet, r, &e.group)?;
         sheet.write_string(r, keys.len() as u16, &e.column)?;
         for (j, value) in e.figures.iter().enumerate() {
-            write_one(sheet, r, (keys.len() + 1 + j) as u16, value, whole.contains(&PANEL_LABELS[j]))?;
+            write_one(
+                sheet,
+                r,
+                (keys.len() + 1 + j) as u16,
+                value,
+                whole.contains(&PANEL_LABELS[j]),
+            )?;
         }
     }
     style::filter(sheet, top, top + entries.len() as u32, labels.len())
 }
 
 pub const ROBUSTNESS_LABELS: &[&str] = &[
-    "status", "reason", "gap in sd", "gap in IQR", "outliers 1.5 IQR", "1.5 IQR cells", "outliers 3 IQR", "3 IQR cells",
-    "mean without", "mean change", "sd without", "sd change", "skewness without", "skewness change",
-    "largest mean change (one value)", "its cell", "largest sd change (one value)", "its cell (sd)", "modified z above 3.5", "modified z cells",
-    "kurtosis above 3", "mean 95% low", "mean 95% high", "median 95% low", "median 95% high", "resamples",
+    "status",
+    "reason",
+    "gap in sd",
+    "gap in IQR",
+    "outliers 1.5 IQR",
+    "1.5 IQR cells",
+    "outliers 3 IQR",
+    "3 IQR cells",
+    "mean without",
+    "mean change",
+    "sd without",
+    "sd change",
+    "skewness without",
+    "skewness change",
+    "largest mean change (one value)",
+    "its cell",
+    "largest sd change (one value)",
+    "its cell (sd)",
+    "modified z above 3.5",
+    "modified z cells",
+    "kurtosis above 3",
+    "mean 95% low",
+    "mean 95% high",
+    "median 95% low",
+    "median 95% high",
+    "resamples",
 ];
 
 /// Cells listed in one spreadsheet cell; the rest are counted, not listed.
 const LISTED_CELLS: usize = 100;
 
 fn cells(list: &[Flagged]) -> String {
-    let mut text = list.iter().take(LISTED_CELLS).map(|f| format!("{} ({})", f.address, crate::format::shortest(f.value))).collect::<Vec<_>>().join(", ");
+    let mut text = list
+        .iter()
+        .take(LISTED_CELLS)
+        .map(|f| format!("{} ({})", f.address, crate::format::shortest(f.value)))
+        .collect::<Vec<_>>()
+        .join(", ");
     if list.len() > LISTED_CELLS {
-        text.push_str(&format!(" and {} more (see the About sheet's missing cells and the JSON output for all)", list.len() - LISTED_CELLS));
+        text.push_str(&format!(
+            " and {} more (see the About sheet's missing cells and the JSON output for all)",
+            list.len() - LISTED_CELLS
+        ));
     }
     text
 }
 
-fn robustness_sheet(sheet: &mut Worksheet, name: &str, keys: &[String], entries: &[PanelEntry]) -> Result<(), XlsxError> {
+fn robustness_sheet(
+    sheet: &mut Worksheet,
+    name: &str,
+    keys: &[String],
+    entries: &[PanelEntry],
+) -> Result<(), XlsxError> {
     let mut labels: Vec<String> = keys.to_vec();
     labels.push("column".into());
     labels.extend(ROBUSTNESS_LABELS.iter().map(|s| s.to_string()));
-    let top = heading(sheet, &format!("{name}: robustness"), &robustness_note(), labels.len())?;
+    let top = heading(
+        sheet,
+        &format!("{name}: robustness"),
+        &robustness_note(),
+        labels.len(),
+    )?;
     style::table_header(sheet, top, &labels, keys.len() as u16 + 1)?;
     for (i, e) in entries.iter().enumerate() {
         let r = top + 1 + i as u32;
@@ -140,12 +229,20 @@ fn robustness_sheet(sheet: &mut Worksheet, name: &str, keys: &[String], entries:
         c += 1;
         sheet.write_string_with_format(r, c, b.status.word(), &style::status(b.status.word()))?;
         sheet.write_string(r, c + 1, &b.reason)?;
-        let mut values: Vec<(One, bool)> = vec![(b.gap_in_sd.clone(), false), (b.gap_in_iqr.clone(), false)];
+        let mut values: Vec<(One, bool)> =
+            vec![(b.gap_in_sd.clone(), false), (b.gap_in_iqr.clone(), false)];
         values.push((One::Number(b.outliers_wide.len() as f64), true));
         values.push((One::Text(cells(&b.outliers_wide)), false));
         values.push((One::Number(b.outliers_far.len() as f64), true));
         values.push((One::Text(cells(&b.outliers_far)), false));
-        for v in [&b.mean_without, &b.mean_change, &b.sd_without, &b.sd_change, &b.skewness_without, &b.skewness_change] {
+        for v in [
+            &b.mean_without,
+            &b.mean_change,
+            &b.sd_without,
+            &b.sd_change,
+            &b.skewness_without,
+            &b.skewness_change,
+        ] {
             values.push((v.clone(), false));
         }
         for influence in [&b.mean_influence, &b.sd_influence] {
@@ -170,7 +267,14 @@ fn robustness_sheet(sheet: &mut Worksheet, name: &str, keys: &[String], entries:
                 values.push((One::Text(String::new()), false));
             }
         }
-        values.push((One::Text(if b.heavy_tails { "yes: tails heavier than normal".into() } else { "no".into() }), false));
+        values.push((
+            One::Text(if b.heavy_tails {
+                "yes: tails heavier than normal".into()
+            } else {
+                "no".into()
+            }),
+            false,
+        ));
         match &b.bootstrap {
             Ok(bi) => {
                 for x in [bi.mean.low, bi.mean.high, bi.median.low, bi.median.high] {
@@ -187,9 +291,24 @@ fn robustness_sheet(sheet: &mut Worksheet, name: &str, keys: &[String], entries:
     style::filter(sheet, top, top + entries.len() as u32, labels.len())
 }
 
-pub fn checks(workbook: &mut Workbook, names: &mut SheetNames, results: &Results) -> Result<(), XlsxError> {
+pub fn checks(
+    workbook: &mut Workbook,
+    names: &mut SheetNames,
+    results: &Results,
+) -> Result<(), XlsxError> {
     let sheet = workbook.add_worksheet().set_name(names.claim("Checks"))?;
-    let labels: Vec<String> = ["check", "level", "group", "condition", "value", "limit", "result", "note"].map(String::from).to_vec();
+    let labels: Vec<String> = [
+        "check",
+        "level",
+        "group",
+        "condition",
+        "value",
+        "limit",
+        "result",
+        "note",
+    ]
+    .map(String::from)
+    .to_vec();
     let note = "Every check of the recipe, overall and for each group when it names groups. value is the left side of the \
 condition, limit the right side. A check that cannot be evaluated counts as not passed. Figures that had no value are listed below the checks.";
     let top = heading(sheet, "Checks", note, labels.len())?;
@@ -197,8 +316,22 @@ condition, limit the right side. A check that cannot be evaluated counts as not 
     let mut r = top + 1;
     for c in &results.checks {
         sheet.write_string(r, 0, &c.name)?;
-        sheet.write_string(r, 1, if c.level == crate::recipe::ast::CheckLevel::Warn { "warn" } else { "fail" })?;
-        sheet.write_string(r, 2, c.group.as_ref().map_or("(all rows)".to_string(), |g| g.join(" / ")))?;
+        sheet.write_string(
+            r,
+            1,
+            if c.level == crate::recipe::ast::CheckLevel::Warn {
+                "warn"
+            } else {
+                "fail"
+            },
+        )?;
+        sheet.write_string(
+            r,
+            2,
+            c.group
+                .as_ref()
+                .map_or("(all rows)".to_string(), |g| g.join(" / ")),
+        )?;
         sheet.write_string(r, 3, &c.condition)?;
         write_one(sheet, r, 4, &c.value, false)?;
         if let Some(limit) = &c.limit {
@@ -235,16 +368,28 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
                 for e in entries {
                     for (label, value) in PANEL_LABELS.iter().zip(&e.figures) {
                         if let One::Undefined(why) = value {
-                            found.push((format!("{name} / {} / {} / {label}", group_text(&e.group), e.column), why.clone()));
+                            found.push((
+                                format!(
+                                    "{name} / {} / {} / {label}",
+                                    group_text(&e.group),
+                                    e.column
+                                ),
+                                why.clone(),
+                            ));
                         }
                     }
                 }
             }
-            Block::Figures { name, names, rows, .. } => {
+            Block::Figures {
+                name, names, rows, ..
+            } => {
                 for row in rows {
                     for (label, value) in names.iter().zip(&row.values) {
                         if let One::Undefined(why) = value {
-                            found.push((format!("{name} / {} / {label}", group_text(&row.group)), why.clone()));
+                            found.push((
+                                format!("{name} / {} / {label}", group_text(&row.group)),
+                                why.clone(),
+                            ));
                         }
                     }
                 }
@@ -255,5 +400,9 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
 }
 
 pub fn group_text(group: &[String]) -> String {
-    if group.is_empty() { "(all rows)".to_string() } else { group.join(" / ") }
+    if group.is_empty() {
+        "(all rows)".to_string()
+    } else {
+        group.join(" / ")
+    }
 }

@@ -13,15 +13,25 @@ pub fn title() -> Format {
 }
 
 pub fn note() -> Format {
-    Format::new().set_italic().set_background_color(Color::RGB(NOTE_COLOUR)).set_text_wrap().set_align(FormatAlign::Top)
+    Format::new()
+        .set_italic()
+        .set_background_color(Color::RGB(NOTE_COLOUR))
+        .set_text_wrap()
+        .set_align(FormatAlign::Top)
 }
 
 pub fn header() -> Format {
-    Format::new().set_bold().set_font_color(Color::White).set_background_color(Color::RGB(HEADER_COLOUR)).set_text_wrap()
+    Format::new()
+        .set_bold()
+        .set_font_color(Color::White)
+        .set_background_color(Color::RGB(HEADER_COLOUR))
+        .set_text_wrap()
 }
 
 pub fn reason() -> Format {
-    Format::new().set_italic().set_font_color(Color::RGB(0x7F6A4D))
+    Format::new()
+        .set_italic()
+        .set_font_color(Color::RGB(0x7F6A4D))
 }
 
 pub fn count() -> Format {
@@ -43,17 +53,33 @@ pub fn status(word: &str) -> Format {
 
 /// Writes one figure: a number as a number, text always as text (never a
 /// formula), a reason in words where there is no value.
-pub fn write_one(sheet: &mut Worksheet, row: u32, col: u16, value: &One, whole: bool) -> Result<(), XlsxError> {
+pub fn write_one(
+    sheet: &mut Worksheet,
+    row: u32,
+    col: u16,
+    value: &One,
+    whole: bool,
+) -> Result<(), XlsxError> {
     match value {
-        One::Number(x) => sheet.write_number_with_format(row, col, *x, &if whole { count() } else { number() }).map(|_| ()),
+        One::Number(x) => sheet
+            .write_number_with_format(row, col, *x, &if whole { count() } else { number() })
+            .map(|_| ()),
         One::Truth(b) => sheet.write_boolean(row, col, *b).map(|_| ()),
         One::Text(t) => sheet.write_string(row, col, fit(t)).map(|_| ()),
-        One::List(v) if v.len() == 1 => sheet.write_number_with_format(row, col, v[0], &number()).map(|_| ()),
+        One::List(v) if v.len() == 1 => sheet
+            .write_number_with_format(row, col, v[0], &number())
+            .map(|_| ()),
         One::List(v) => {
-            let text = v.iter().map(|x| crate::format::shortest(*x)).collect::<Vec<_>>().join("; ");
+            let text = v
+                .iter()
+                .map(|x| crate::format::shortest(*x))
+                .collect::<Vec<_>>()
+                .join("; ");
             sheet.write_string(row, col, text).map(|_| ())
         }
-        One::Undefined(why) => sheet.write_string_with_format(row, col, why, &reason()).map(|_| ()),
+        One::Undefined(why) => sheet
+            .write_string_with_format(row, col, why, &reason())
+            .map(|_| ()),
     }
 }
 
@@ -66,11 +92,19 @@ pub fn fit(text: &str) -> String {
         return text.to_string();
     }
     let mark = " ... (cut: a cell holds 32,767 characters)";
-    text.chars().take(CELL_LIMIT - mark.len()).collect::<String>() + mark
+    text.chars()
+        .take(CELL_LIMIT - mark.len())
+        .collect::<String>()
+        + mark
 }
 
 /// A table header row with filter buttons, frozen above the data.
-pub fn table_header(sheet: &mut Worksheet, row: u32, labels: &[String], frozen_columns: u16) -> Result<(), XlsxError> {
+pub fn table_header(
+    sheet: &mut Worksheet,
+    row: u32,
+    labels: &[String],
+    frozen_columns: u16,
+) -> Result<(), XlsxError> {
     for (c, label) in labels.iter().enumerate() {
         sheet.write_string_with_format(row, c as u16, label, &header())?;
         let width = (label.chars().count() as f64 + 2.0).clamp(9.0, 28.0);
@@ -81,7 +115,12 @@ pub fn table_header(sheet: &mut Worksheet, row: u32, labels: &[String], frozen_c
 }
 
 /// Turns on the filter buttons over a finished table.
-pub fn filter(sheet: &mut Worksheet, header_row: u32, last_row: u32, columns: usize) -> Result<(), XlsxError> {
+pub fn filter(
+    sheet: &mut Worksheet,
+    header_row: u32,
+    last_row: u32,
+    columns: usize,
+) -> Result<(), XlsxError> {
     if columns > 0 {
         sheet.autofilter(header_row, 0, last_row.max(header_row), columns as u16 - 1)?;
     }
