@@ -198,11 +198,23 @@ fn input_statement(input: &str) -> PResult<'_, StatementKind> {
     Ok((rest, StatementKind::Input { sheet, header_row }))
 }
 
-fn let_statement(input: &str) -> PResult<'_, StatementKind> {
+/// How a `name = expression` line is worded in its messages.
+struct Binding {
+    /// What is expected where the name should be.
+    name: &'static str,
+    /// What the `=` follows, as in "expected `=` after the name".
+    after: &'static str,
+    help: &'static str,
+    /// Whether a keyword may be the name (a `let` column may not).
+    refuse_keywords: bool,
+}
+
+/// `name = expression` through the end of the line: a `let` or a figure.
+fn binding<'a>(input: &'a str, wording: &Binding) -> PResult<'a, (Spanned<String>, Expr)> {
     let (rest, _) = space0(input)?;
     let start = rest;
-    let (rest, name) = need(rest, "the name of the new column", identifier)?;
-    if KEYWORDS.contains(&name) {
+    let (rest, name) = need(rest, wording.name, identifier)?;
+    if wording.refuse_keywords && KEYWORDS.contains(&name) {
         return failure(
             start,
             format!("`{name}` is a keyword and cannot name a column"),
@@ -218,14 +230,26 @@ fn let_statement(input: &str) -> PResult<'_, StatementKind> {
         return failure(
             rest,
             format!(
-                "expected `=` after the name, found {}",
+                "expected `=` after {}, found {}",
+                wording.after,
                 describe(next_token(rest))
             ),
-            Some("write `let name = expression`"),
+            Some(wording.help),
         );
     };
     let (rest, value) = need(rest, "an expression after `=`", expression)?;
     let (rest, _) = end_of_line(rest, "an operator or the end of the line")?;
+    Ok((rest, (name, value)))
+}
+
+fn let_statement(input: &str) -> PResult<'_, StatementKind> {
+    let wording = Binding {
+        name: "the name of the new column",
+        after: "the name",
+        help: "write `let name = expression`",
+        refuse_keywords: true,
+    };
+    let (rest, (name, value)) = binding(input, &wording)?;
     Ok((rest, StatementKind::Let { name, value }))
 }
 
@@ -275,26 +299,13 @@ fn figures_header(input: &str) -> PResult<'_, StatementKind> {
 }
 
 fn figure_line(input: &str) -> PResult<'_, Figure> {
-    let (rest, _) = space0(input)?;
-    let start = rest;
-    let (rest, name) = need(rest, "a figure as `name = expression`", identifier)?;
-    let name = Spanned {
-        value: name.to_string(),
-        span: span_between(start, rest),
+    let wording = Binding {
+        name: "a figure as `name = expression`",
+        after: "the figure's name",
+        help: "write `name = expression`",
+        refuse_keywords: false,
     };
-    let (rest, _) = space0(rest)?;
-    let Some(rest) = rest.strip_prefix('=').filter(|r| !r.starts_with('=')) else {
-        return failure(
-            rest,
-            format!(
-                "expected `=` after the figure's name, found {}",
-                describe(next_token(rest))
-            ),
-            Some("write `name = expression`"),
-        );
-    };
-    let (rest, value) = need(rest, "an expression after `=`", expression)?;
-    let (rest, _) = end_of_line(rest, "an operator or the end of the line")?;
+    let (rest, (name, value)) = binding(input, &wording)?;
     Ok((rest, Figure { name, value }))
 }
 
