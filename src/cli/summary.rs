@@ -2,9 +2,8 @@
 
 use std::path::Path;
 
-use crate::eval::{Block, Outcome, Results, Status};
+use crate::eval::{Block, Outcome, Results, Status, group_label};
 use crate::load::Table;
-use crate::write::group_text;
 
 /// Left-aligned columns separated by two spaces.
 pub fn columns<const N: usize>(lines: &[[String; N]]) -> String {
@@ -79,10 +78,7 @@ pub fn render(results: &Results, table: &Table, out: &Path) -> String {
         count(Outcome::Fail)
     ));
     for c in results.checks.iter().filter(|c| c.outcome != Outcome::Pass) {
-        let group = c
-            .group
-            .as_ref()
-            .map_or("(all rows)".to_string(), |g| group_text(g));
+        let group = group_label(c.group.as_deref().unwrap_or_default());
         text.push_str(&format!(
             "  {}: \"{}\" {group}{}\n",
             c.outcome.word(),

@@ -22,6 +22,16 @@ pub use value::{Context, One, Previous, Rows, Scope, Term, Value};
 /// The label of a group whose key cell is blank.
 pub const BLANK_KEY: &str = "(blank)";
 
+/// A group's keys as one label, `North / 2026`; "(all rows)" when ungrouped.
+/// Sheets, the terminal and the Record sheet all name groups this way.
+pub fn group_label(group: &[String]) -> String {
+    if group.is_empty() {
+        "(all rows)".to_string()
+    } else {
+        group.join(" / ")
+    }
+}
+
 #[derive(Debug, Clone, PartialEq)]
 pub struct FigureRow {
     pub group: Vec<String>,

@@ -125,7 +125,7 @@ impl<'a> Scope<'a> {
             table,
             lets,
             rows,
-            group: "(all rows)".into(),
+            group: super::group_label(&[]),
             context: None,
             samples: RefCell::new(HashMap::new()),
         }
@@ -133,11 +133,7 @@ impl<'a> Scope<'a> {
 
     /// The same scope, as one group of a run with a comparison context.
     pub fn grouped(mut self, group: &[String], context: &'a Context) -> Scope<'a> {
-        self.group = if group.is_empty() {
-            "(all rows)".into()
-        } else {
-            group.join(" / ")
-        };
+        self.group = super::group_label(group);
         self.context = Some(context);
         self
     }

@@ -7,7 +7,7 @@ use std::path::Path;
 use calamine::{Data, Reader, open_workbook_auto};
 use sha2::{Digest, Sha256};
 
-use crate::eval::{Block, One, PANEL_LABELS, Results};
+use crate::eval::{Block, One, PANEL_LABELS, Results, group_label};
 use crate::recipe::{Recipe, pretty};
 
 pub const RECORD_SHEET: &str = "Record";
@@ -56,14 +56,6 @@ pub fn fingerprint(recipe: &Recipe) -> String {
         .collect()
 }
 
-fn group_text(group: &[String]) -> String {
-    if group.is_empty() {
-        "(all rows)".to_string()
-    } else {
-        group.join(" / ")
-    }
-}
-
 impl Record {
     pub fn from_results(results: &Results, fingerprint: String, period: Option<String>) -> Record {
         let mut entries = Vec::new();
@@ -79,7 +71,7 @@ impl Record {
                             if let One::Number(x) = value {
                                 entries.push(Entry {
                                     block: name.clone(),
-                                    group: group_text(&e.group),
+                                    group: group_label(&e.group),
                                     name: format!("{} {label}", e.column),
                                     value: *x,
                                 });
@@ -95,7 +87,7 @@ impl Record {
                             if let One::Number(x) = value {
                                 entries.push(Entry {
                                     block: name.clone(),
-                                    group: group_text(&r.group),
+                                    group: group_label(&r.group),
                                     name: figure.clone(),
                                     value: *x,
                                 });

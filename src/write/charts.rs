@@ -8,9 +8,9 @@ use rust_xlsxwriter::{
     Chart, ChartFormat, ChartMarker, ChartMarkerType, ChartType, Workbook, XlsxError,
 };
 
-use super::sheets::{SheetNames, group_text};
+use super::sheets::SheetNames;
 use super::style;
-use crate::eval::{Chart as ChartData, Results};
+use crate::eval::{Chart as ChartData, Results, group_label};
 use crate::format::rounded;
 
 const ROWS_PER_CHART: u32 = 18;
@@ -40,7 +40,7 @@ pub fn charts(
             } => {
                 let title = format!(
                     "{column}, {} ({} bins, {rule})",
-                    group_text(group),
+                    group_label(group),
                     histogram.counts.len()
                 );
                 sheet.write_string_with_format(top, 0, "bin", &style::header())?;
@@ -84,7 +84,7 @@ pub fn charts(
                 }
                 for (i, (group, b)) in boxes.iter().enumerate() {
                     let r = top + 1 + i as u32;
-                    sheet.write_string(r, 0, group_text(group))?;
+                    sheet.write_string(r, 0, group_label(group))?;
                     for (j, x) in [b.q1, b.whisker_high, b.whisker_low, b.median, b.q3]
                         .into_iter()
                         .enumerate()

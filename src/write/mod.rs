@@ -8,8 +8,6 @@ mod charts;
 mod sheets;
 mod style;
 
-pub use sheets::group_text;
-
 use std::io::Write as _;
 use std::path::{Path, PathBuf};
 

@@ -5,7 +5,7 @@ use std::collections::HashSet;
 use rust_xlsxwriter::{Workbook, Worksheet, XlsxError};
 
 use super::style::{self, write_one};
-use crate::eval::{Block, Flagged, One, PANEL_LABELS, PanelEntry, Results};
+use crate::eval::{Block, Flagged, One, PANEL_LABELS, PanelEntry, Results, group_label};
 use crate::stats::{DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET};
 
 /// Sheet names in use, so every new one is unique and at most 31 characters.
@@ -325,13 +325,7 @@ condition, limit the right side. A check that cannot be evaluated counts as not 
                 "fail"
             },
         )?;
-        sheet.write_string(
-            r,
-            2,
-            c.group
-                .as_ref()
-                .map_or("(all rows)".to_string(), |g| g.join(" / ")),
-        )?;
+        sheet.write_string(r, 2, group_label(c.group.as_deref().unwrap_or_default()))?;
         sheet.write_string(r, 3, &c.condition)?;
         write_one(sheet, r, 4, &c.value, false)?;
         if let Some(limit) = &c.limit {
@@ -371,7 +365,7 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
                             found.push((
                                 format!(
                                     "{name} / {} / {} / {label}",
-                                    group_text(&e.group),
+                                    group_label(&e.group),
                                     e.column
                                 ),
                                 why.clone(),
@@ -387,7 +381,7 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
                     for (label, value) in names.iter().zip(&row.values) {
                         if let One::Undefined(why) = value {
                             found.push((
-                                format!("{name} / {} / {label}", group_text(&row.group)),
+                                format!("{name} / {} / {label}", group_label(&row.group)),
                                 why.clone(),
                             ));
                         }
@@ -397,12 +391,4 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
         }
     }
     found
-}
-
-pub fn group_text(group: &[String]) -> String {
-    if group.is_empty() {
-        "(all rows)".to_string()
-    } else {
-        group.join(" / ")
-    }
 }
