@@ -161,7 +161,7 @@ fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<usi
     for (i, &row) in scope.rows.iter().enumerate() {
         let key: Vec<String> = columns
             .iter()
-            .map(|c| text_of(c, i).unwrap_or_else(|| BLANK_KEY.to_string()))
+            .map(|c| c.text_at(i).unwrap_or_else(|| BLANK_KEY.to_string()))
             .collect();
         let slot = *index.entry(key.clone()).or_insert_with(|| {
             order.push((key, Vec::new()));
@@ -179,14 +179,6 @@ fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<usi
         order[slot].1.push(row);
     }
     Ok(order)
-}
-
-fn text_of(rows: &Rows, i: usize) -> Option<String> {
-    match rows {
-        Rows::Texts(v) => v[i].clone(),
-        Rows::Numbers(v) => v[i].map(crate::format::shortest),
-        Rows::Truths(v) => v[i].map(|b| b.to_string()),
-    }
 }
 
 /// Rows of `scope` where `condition` holds; the others counted by reason.
@@ -542,29 +534,15 @@ fn block_rows(
 
 /// A value over `kept` rows spread to the whole table (missing elsewhere).
 fn widen(v: Value, kept: &[usize], total: usize) -> Rows {
-    let rows = match v {
-        Value::Rows(r) => r,
-        Value::One(One::Number(x)) => Rows::Numbers(vec![Some(x); kept.len()]),
-        Value::One(One::Truth(b)) => Rows::Truths(vec![Some(b); kept.len()]),
-        Value::One(One::Text(t)) => Rows::Texts(vec![Some(t); kept.len()]),
-        Value::One(_) => Rows::Numbers(vec![None; kept.len()]),
-    };
-    match rows {
-        Rows::Numbers(v) => {
-            let mut full = vec![None; total];
-            kept.iter().zip(v).for_each(|(&r, x)| full[r] = x);
-            Rows::Numbers(full)
-        }
-        Rows::Truths(v) => {
-            let mut full = vec![None; total];
-            kept.iter().zip(v).for_each(|(&r, x)| full[r] = x);
-            Rows::Truths(full)
-        }
-        Rows::Texts(v) => {
-            let mut full = vec![None; total];
-            kept.iter().zip(v).for_each(|(&r, x)| full[r] = x);
-            Rows::Texts(full)
-        }
+    fn scatter<T: Clone>(values: Vec<Option<T>>, kept: &[usize], total: usize) -> Vec<Option<T>> {
+        let mut full = vec![None; total];
+        kept.iter().zip(values).for_each(|(&r, x)| full[r] = x);
+        full
+    }
+    match value::spread(v, kept.len()) {
+        Rows::Numbers(v) => Rows::Numbers(scatter(v, kept, total)),
+        Rows::Truths(v) => Rows::Truths(scatter(v, kept, total)),
+        Rows::Texts(v) => Rows::Texts(scatter(v, kept, total)),
     }
 }
 
@@ -610,9 +588,4 @@ fn check(
         outcome,
         note,
     }
-}
-
-/// A sample of a data column over some rows, for callers outside evaluation (`calc`).
-pub fn sample_of(scope: &Scope, column: &str) -> Sample {
-    Sample::from_column(scope.column(column).numbers())
 }

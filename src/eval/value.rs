@@ -46,7 +46,9 @@ impl Rows {
         }
     }
 
-    fn text_at(&self, i: usize) -> Option<String> {
+    /// Row i as text (numbers in their shortest exact form), for group keys
+    /// and text comparisons.
+    pub fn text_at(&self, i: usize) -> Option<String> {
         match self {
             Rows::Numbers(v) => v[i].map(crate::format::shortest),
             Rows::Truths(v) => v[i].map(|b| b.to_string()),
@@ -255,7 +257,7 @@ fn pick(rows: &Rows, at: &[usize]) -> Rows {
 }
 
 /// A single value repeated over n rows (broadcasting).
-fn spread(v: Value, n: usize) -> Rows {
+pub(super) fn spread(v: Value, n: usize) -> Rows {
     match v {
         Value::Rows(r) => r,
         Value::One(One::Number(x)) => Rows::Numbers(vec![Some(x); n]),
