@@ -38,7 +38,7 @@ fn one_file(
 }
 
 fn uses_change(recipe: &Recipe) -> bool {
-    recipe::pretty::recipe(recipe).contains("change(")
+    recipe::calls(recipe, "change")
 }
 
 pub fn run(

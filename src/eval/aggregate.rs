@@ -145,15 +145,11 @@ fn aggregate(scope: &Scope, name: &str, args: &[Expr], params: &[f64]) -> One {
         "variance" => from_stat(s.variance(denominator)),
         "sd" => from_stat(s.sd(denominator)),
         "quartile" => from_stat(stats::quartile(&s, k.unwrap_or(2.0) as u8, m)),
-        "percentile" => from_stat(
-            stats::quantile_sorted(s.sorted(), k.unwrap_or(50.0) / 100.0, m).and_then(|q| {
-                if s.is_empty() {
-                    Err(stats::Undefined::NoValues)
-                } else {
-                    Ok(q)
-                }
-            }),
-        ),
+        "percentile" => from_stat(stats::quantile_sorted(
+            s.sorted(),
+            k.unwrap_or(50.0) / 100.0,
+            m,
+        )),
         "iqr" => from_stat(stats::iqr(&s, m)),
         "skewness" => from_stat(s.skewness(adjusted)),
         "kurtosis" => from_stat(s.kurtosis(adjusted)),

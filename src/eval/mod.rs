@@ -210,7 +210,6 @@ fn collect_columns(e: &Expr, out: &mut Vec<String>) {
 }
 
 fn columns_used(recipe: &Recipe) -> Vec<String> {
-    let walk = collect_columns;
     let mut out = Vec::new();
     for s in &recipe.statements {
         let mut refs: Vec<&ColumnRef> = Vec::new();
@@ -253,7 +252,7 @@ fn columns_used(recipe: &Recipe) -> Vec<String> {
         }
         out.extend(refs.into_iter().map(|c| c.name.clone()));
         for e in exprs {
-            walk(e, &mut out);
+            collect_columns(e, &mut out);
         }
     }
     let mut seen = std::collections::HashSet::new();

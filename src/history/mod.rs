@@ -7,12 +7,7 @@ mod record;
 mod trend;
 
 pub use period::{Period, PeriodSource, period_of};
-pub use record::{Entry, RECORD_SHEET, Record, RecordError, fingerprint};
-
-/// The block name under which `change(...)` arguments are recorded.
-pub fn record_term_block() -> &'static str {
-    record::TERM_BLOCK
-}
+pub use record::{Entry, RECORD_SHEET, Record, RecordError, TERM_BLOCK, fingerprint};
 pub use trend::{Move, largest_moves, trend_workbook};
 
 /// Relative change beyond which a figure is flagged when the recipe sets no

@@ -170,9 +170,7 @@ impl Checker<'_> {
                     figures,
                 } => {
                     self.block_name(name, &mut blocks);
-                    per.iter().for_each(|c| {
-                        self.column(c);
-                    });
+                    self.columns(per);
                     if let Some(f) = filter {
                         self.condition(f, "`where`");
                     }
@@ -191,16 +189,12 @@ impl Checker<'_> {
                             Some("give each check its own name".into()),
                         );
                     }
-                    per.iter().for_each(|c| {
-                        self.column(c);
-                    });
+                    self.columns(per);
                     self.check_condition(condition);
                 }
                 StatementKind::Histogram { column, per, bins } => {
                     self.column(column);
-                    per.iter().for_each(|c| {
-                        self.column(c);
-                    });
+                    self.columns(per);
                     if let Some(Spanned {
                         value: Bins::Rule(rule),
                         span,
@@ -222,11 +216,16 @@ impl Checker<'_> {
                 }
                 StatementKind::Boxplot { column, per } => {
                     self.column(column);
-                    per.iter().for_each(|c| {
-                        self.column(c);
-                    });
+                    self.columns(per);
                 }
             }
+        }
+    }
+
+    /// Resolves each column of a list (group keys, chart columns).
+    fn columns(&mut self, columns: &[ColumnRef]) {
+        for c in columns {
+            self.column(c);
         }
     }
 

@@ -131,6 +131,20 @@ pub fn parse_expression(
     }
 }
 
+/// Whether any expression of the recipe calls `function` (at any depth).
+pub fn calls(recipe: &Recipe, function: &str) -> bool {
+    let mut stack = expressions(recipe);
+    while let Some(e) = stack.pop() {
+        if let ast::ExprKind::Call { function: f, .. } = &e.kind
+            && f.value == function
+        {
+            return true;
+        }
+        stack.extend(e.children());
+    }
+    false
+}
+
 /// Every top-level expression of the recipe.
 fn expressions(recipe: &Recipe) -> Vec<&ast::Expr> {
     use ast::StatementKind::*;

@@ -30,7 +30,7 @@ pub fn about(
     names: &mut SheetNames,
     results: &Results,
     table: &Table,
-    run: &RunInfoRef,
+    run: &super::RunInfo,
 ) -> Result<(), XlsxError> {
     let sheet = workbook.add_worksheet().set_name(names.claim("About"))?;
     sheet.set_column_width(0, 30)?;
@@ -131,5 +131,3 @@ pub fn about(
     }
     Ok(())
 }
-
-pub type RunInfoRef = super::RunInfo;

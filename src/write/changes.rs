@@ -42,7 +42,7 @@ pub fn changes(
     for e in current
         .entries
         .iter()
-        .filter(|e| e.block != crate::history::record_term_block())
+        .filter(|e| e.block != crate::history::TERM_BLOCK)
     {
         let Some(before) = previous.find(&e.block, &e.group, &e.name) else {
             continue;
