@@ -5,17 +5,15 @@ use rust_xlsxwriter::{Format, Workbook, XlsxError};
 
 use super::sheets::SheetNames;
 use super::{RunInfo, style};
-use crate::eval::Results;
 use crate::history::{RECORD_SHEET, Record};
 
 pub fn changes(
     workbook: &mut Workbook,
     names: &mut SheetNames,
-    results: &Results,
+    current: &Record,
     run: &RunInfo,
     previous: &Record,
 ) -> Result<(), XlsxError> {
-    let current = Record::from_results(results, run.fingerprint.clone(), None);
     let sheet = workbook.add_worksheet().set_name(names.claim("Changes"))?;
     let labels: Vec<String> = [
         "block",
@@ -70,22 +68,16 @@ pub fn changes(
 pub fn record(
     workbook: &mut Workbook,
     names: &mut SheetNames,
-    results: &Results,
-    run: &RunInfo,
+    record: &Record,
 ) -> Result<(), XlsxError> {
-    let record = Record::from_results(results, run.fingerprint.clone(), None);
     let sheet = workbook
         .add_worksheet()
         .set_name(names.claim(RECORD_SHEET))?;
     let bold = Format::new().set_bold();
     sheet.write_string_with_format(0, 0, "recipe fingerprint", &bold)?;
-    sheet.write_string(0, 1, &run.fingerprint)?;
+    sheet.write_string(0, 1, &record.fingerprint)?;
     sheet.write_string_with_format(1, 0, "period", &bold)?;
-    sheet.write_string(
-        1,
-        1,
-        run.period.as_ref().map_or("(none)", |p| p.label.as_str()),
-    )?;
+    sheet.write_string(1, 1, record.period.as_deref().unwrap_or("(none)"))?;
     for (c, h) in ["block", "group", "figure", "value"].iter().enumerate() {
         sheet.write_string_with_format(2, c as u16, *h, &style::header())?;
         sheet.set_column_width(c as u16, 24)?;

@@ -71,11 +71,17 @@ pub fn workbook_bytes(
     sheets::blocks(&mut workbook, &mut names, results)?;
     sheets::checks(&mut workbook, &mut names, results)?;
     charts::charts(&mut workbook, &mut names, results)?;
+    // This run's figures, for the Changes sheet and for the next run.
+    let current = crate::history::Record::from_results(
+        results,
+        run.fingerprint.clone(),
+        run.period.as_ref().map(|p| p.label.clone()),
+    );
     if let Some(previous) = &run.previous {
-        changes::changes(&mut workbook, &mut names, results, run, previous)?;
+        changes::changes(&mut workbook, &mut names, &current, run, previous)?;
     }
     about::about(&mut workbook, &mut names, results, table, run)?;
-    changes::record(&mut workbook, &mut names, results, run)?;
+    changes::record(&mut workbook, &mut names, &current)?;
     Ok(workbook.save_to_buffer()?)
 }
 
