@@ -92,48 +92,35 @@ impl Checker<'_> {
     fn statements(&mut self, recipe: &Recipe) {
         let mut blocks: HashSet<String> = HashSet::new();
         let mut checks: HashSet<String> = HashSet::new();
-        let (mut titles, mut inputs, mut periods, mut drifts) = (0, 0, 0, 0);
+        // Statements a recipe has at most once, by the message for a second one.
+        let mut once: HashMap<&'static str, usize> = HashMap::new();
         for statement in &recipe.statements {
             match &statement.kind {
-                StatementKind::Title(_) => {
-                    titles += 1;
-                    if titles == 2 {
-                        self.report(
-                            statement.span,
-                            "a second `title`",
-                            Some("a recipe has one title; remove this line".into()),
-                        );
-                    }
-                }
-                StatementKind::Input { .. } => {
-                    inputs += 1;
-                    if inputs == 2 {
-                        self.report(
-                            statement.span,
-                            "a second `input` statement",
-                            Some("put every input setting on one `input` line".into()),
-                        );
-                    }
-                }
-                StatementKind::Period(_) => {
-                    periods += 1;
-                    if periods == 2 {
-                        self.report(
-                            statement.span,
-                            "a second `period`",
-                            Some("a recipe names one period; remove this line".into()),
-                        );
-                    }
-                }
+                StatementKind::Title(_) => self.at_most_once(
+                    &mut once,
+                    statement.span,
+                    "a second `title`",
+                    "a recipe has one title; remove this line",
+                ),
+                StatementKind::Input { .. } => self.at_most_once(
+                    &mut once,
+                    statement.span,
+                    "a second `input` statement",
+                    "put every input setting on one `input` line",
+                ),
+                StatementKind::Period(_) => self.at_most_once(
+                    &mut once,
+                    statement.span,
+                    "a second `period`",
+                    "a recipe names one period; remove this line",
+                ),
                 StatementKind::Drift(d) => {
-                    drifts += 1;
-                    if drifts == 2 {
-                        self.report(
-                            statement.span,
-                            "a second `drift`",
-                            Some("a recipe has one drift threshold; remove this line".into()),
-                        );
-                    }
+                    self.at_most_once(
+                        &mut once,
+                        statement.span,
+                        "a second `drift`",
+                        "a recipe has one drift threshold; remove this line",
+                    );
                     let share = if d.value.1 {
                         d.value.0 / 100.0
                     } else {
@@ -219,6 +206,22 @@ impl Checker<'_> {
                     self.columns(per);
                 }
             }
+        }
+    }
+
+    /// Reports the second (not the third, ...) statement of a kind that a
+    /// recipe has at most once.
+    fn at_most_once(
+        &mut self,
+        seen: &mut HashMap<&'static str, usize>,
+        span: Span,
+        second: &'static str,
+        help: &str,
+    ) {
+        let count = seen.entry(second).or_insert(0);
+        *count += 1;
+        if *count == 2 {
+            self.report(span, second, Some(help.into()));
         }
     }
 

@@ -78,7 +78,7 @@ fn expect_keyword<'a>(
 fn chain<'a>(
     input: &'a str,
     operand: fn(&'a str) -> PResult<'a, Expr>,
-    operator: fn(&'a str) -> PResult<'a, BinaryOp>,
+    operator: impl Fn(&'a str) -> PResult<'a, BinaryOp>,
 ) -> PResult<'a, Expr> {
     let (mut rest, mut left) = operand(input)?;
     let mut operands = 1;
@@ -227,34 +227,26 @@ fn comparison(input: &str) -> PResult<'_, Expr> {
     ))
 }
 
+/// One of two single-character operators, such as `+` and `-`.
+fn either<'a>(
+    (first, first_op): (char, BinaryOp),
+    (second, second_op): (char, BinaryOp),
+) -> impl Fn(&'a str) -> PResult<'a, BinaryOp> {
+    move |i| {
+        ws(alt((char(first), char(second))))
+            .parse(i)
+            .map(|(rest, c)| (rest, if c == first { first_op } else { second_op }))
+    }
+}
+
 fn additive(input: &str) -> PResult<'_, Expr> {
-    chain(input, multiplicative, |i| {
-        ws(alt((char('+'), char('-')))).parse(i).map(|(r, c)| {
-            (
-                r,
-                if c == '+' {
-                    BinaryOp::Add
-                } else {
-                    BinaryOp::Subtract
-                },
-            )
-        })
-    })
+    let operator = either(('+', BinaryOp::Add), ('-', BinaryOp::Subtract));
+    chain(input, multiplicative, operator)
 }
 
 fn multiplicative(input: &str) -> PResult<'_, Expr> {
-    chain(input, unary, |i| {
-        ws(alt((char('*'), char('/')))).parse(i).map(|(r, c)| {
-            (
-                r,
-                if c == '*' {
-                    BinaryOp::Multiply
-                } else {
-                    BinaryOp::Divide
-                },
-            )
-        })
-    })
+    let operator = either(('*', BinaryOp::Multiply), ('/', BinaryOp::Divide));
+    chain(input, unary, operator)
 }
 
 fn unary(input: &str) -> PResult<'_, Expr> {
