@@ -2,15 +2,13 @@
 //! with calamine, exit statuses, and a golden record of the layout.
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+
+mod common;
 
 use calamine::{Data, Reader, open_workbook_auto};
+use common::{cells, root, sheaf, text};
 use sheaf::load::{self, LoadOptions};
 use sheaf::stats::{self, Sample};
-
-fn root() -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-}
 
 fn demo_recipe() -> PathBuf {
     root().join("workbooks/depot-monthly.sheaf")
@@ -20,33 +18,7 @@ fn october() -> PathBuf {
     root().join("workbooks/depot-2026-10.xlsx")
 }
 
-fn sheaf(args: &[&str], dir: &Path) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_sheaf"))
-        .args(args)
-        .current_dir(dir)
-        .env("SHEAF_RUN_TIME", "2026-11-01 09:00:00 UTC")
-        .output()
-        .unwrap()
-}
-
-fn text(o: &Output) -> String {
-    format!(
-        "{}{}",
-        String::from_utf8_lossy(&o.stdout),
-        String::from_utf8_lossy(&o.stderr)
-    )
-}
-
 type Grid = Vec<Vec<Data>>;
-
-fn sheet(path: &Path, name: &str) -> Grid {
-    let mut wb = open_workbook_auto(path).unwrap();
-    wb.worksheet_range(name)
-        .unwrap()
-        .rows()
-        .map(|r| r.to_vec())
-        .collect()
-}
 
 fn s(d: &Data) -> String {
     match d {
@@ -141,7 +113,7 @@ fn the_demo_run_writes_every_sheet_and_its_figures_agree_with_the_core() {
         .map(|r| late.number(r).map(|m| m / 60.0))
         .collect();
     let sample = Sample::from_column(harbour);
-    let panel = sheet(&out, "Lateness");
+    let panel = cells(&out, "Lateness");
     let (header, row) = find(&panel, &["Harbour", "late_h"]);
     assert_eq!(f(&row[column(header, "n")]), sample.count() as f64);
     assert_eq!(f(&row[column(header, "missing")]), sample.missing() as f64);
@@ -153,7 +125,7 @@ fn the_demo_run_writes_every_sheet_and_its_figures_agree_with_the_core() {
     );
 
     // The typed-in 900 minutes (row 18 of the sheet) is named by its cell.
-    let robust = sheet(&out, "Lateness robustness");
+    let robust = cells(&out, "Lateness robustness");
     let (header, row) = find(&robust, &["Harbour", "late_h"]);
     assert_eq!(s(&row[column(header, "status")]), "warn");
     assert!(
@@ -166,12 +138,12 @@ fn the_demo_run_writes_every_sheet_and_its_figures_agree_with_the_core() {
     assert!(s(&row[column(header, "its cell")]).starts_with("Deliveries!E41"));
 
     // Checks: the overall mean-median check and its value.
-    let checks = sheet(&out, "Checks");
+    let checks = cells(&out, "Checks");
     let (header, row) = find(&checks, &["no negative weight"]);
     assert_eq!(s(&row[column(header, "result")]), "pass");
 
     // About: provenance, the missing cells with their addresses, the recipe.
-    let about: Vec<String> = sheet(&out, "About")
+    let about: Vec<String> = cells(&out, "About")
         .iter()
         .flat_map(|r| r.iter().map(s))
         .collect();
@@ -230,7 +202,7 @@ fn exit_status_one_when_a_fail_check_fails() {
         "{}",
         text(&o)
     );
-    let checks = sheet(&dir.path().join("r.xlsx"), "Checks");
+    let checks = cells(&dir.path().join("r.xlsx"), "Checks");
     let (header, row) = find(&checks, &["weights are plausible", "fail", "North"]);
     assert_eq!(f(&row[column(header, "value")]), 250.0);
     assert_eq!(s(&row[column(header, "result")]), "fail");
@@ -496,7 +468,7 @@ fn text_that_looks_like_a_formula_is_written_as_text() {
         dir.path(),
     );
     assert_eq!(o.status.code(), Some(0), "{}", text(&o));
-    let grid = sheet(&dir.path().join("k.xlsx"), "W");
+    let grid = cells(&dir.path().join("k.xlsx"), "W");
     let keys: Vec<String> = grid.iter().skip(4).map(|r| s(&r[0])).collect();
     assert_eq!(keys, ["=1+1", "+SUM(A1)", "@cmd", "-x"]);
     for row in grid.iter().skip(4) {

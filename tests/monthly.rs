@@ -3,41 +3,13 @@
 //! file is named and the rest complete, and --compare refuses another recipe.
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+
+mod common;
 
 use calamine::{Data, Reader, open_workbook_auto};
+use common::{cells, root, sheaf, text};
 
 const MONTHS: [&str; 3] = ["depot-2026-08", "depot-2026-09", "depot-2026-10"];
-
-fn root() -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-}
-
-fn sheaf(args: &[&str], dir: &Path) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_sheaf"))
-        .args(args)
-        .current_dir(dir)
-        .env("SHEAF_RUN_TIME", "2026-11-01 09:00:00 UTC")
-        .output()
-        .unwrap()
-}
-
-fn text(o: &Output) -> String {
-    format!(
-        "{}{}",
-        String::from_utf8_lossy(&o.stdout),
-        String::from_utf8_lossy(&o.stderr)
-    )
-}
-
-fn cells(path: &Path, sheet: &str) -> Vec<Vec<Data>> {
-    let mut wb = open_workbook_auto(path).unwrap();
-    wb.worksheet_range(sheet)
-        .unwrap()
-        .rows()
-        .map(|r| r.to_vec())
-        .collect()
-}
 
 /// The demo months copied into `dir/months`, so a batch can add files beside them.
 fn months_in(dir: &Path) -> PathBuf {

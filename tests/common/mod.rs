@@ -1,0 +1,40 @@
+//! Helpers shared by the tests that run the `sheaf` binary.
+#![allow(dead_code)] // each test file uses its own subset
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use calamine::{Data, Reader, open_workbook_auto};
+
+pub fn root() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+/// Runs the built binary in `dir` with a fixed recorded run time.
+pub fn sheaf(args: &[&str], dir: &Path) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .args(args)
+        .current_dir(dir)
+        .env("SHEAF_RUN_TIME", "2026-11-01 09:00:00 UTC")
+        .output()
+        .unwrap()
+}
+
+/// Standard output then standard error, for messages and assertions.
+pub fn text(o: &Output) -> String {
+    format!(
+        "{}{}",
+        String::from_utf8_lossy(&o.stdout),
+        String::from_utf8_lossy(&o.stderr)
+    )
+}
+
+/// Every cell of one sheet of a workbook, read back with calamine.
+pub fn cells(path: &Path, sheet: &str) -> Vec<Vec<Data>> {
+    let mut wb = open_workbook_auto(path).unwrap();
+    wb.worksheet_range(sheet)
+        .unwrap()
+        .rows()
+        .map(|r| r.to_vec())
+        .collect()
+}
