@@ -35,7 +35,7 @@ pub fn results(results: &Results, table: &Table, run: &RunInfo) -> Json {
                             "mean_without_outliers": one(&r.mean_without), "sd_without_outliers": one(&r.sd_without),
                             "bootstrap": r.bootstrap.as_ref().ok().map(|b| json!({
                                 "mean": [b.mean.low, b.mean.high], "median": [b.median.low, b.median.high],
-                                "resamples": b.resamples, "seed": b.seed })),
+                                "resamples": b.resamples, "seed": b.seed, "method": b.method.words() })),
                         }
                     })
                 }).collect::<Vec<_>>()

@@ -278,13 +278,9 @@ pub fn robustness(s: &Sample, address: &dyn Fn(usize) -> String) -> Robustness {
             flag(&big)
         });
     let heavy_tails = s.kurtosis(false).is_ok_and(|k| k > 3.0);
-    let bootstrap = stats::bootstrap_intervals(
-        s,
-        stats::resamples_for(s.count()),
-        0.95,
-        stats::DEFAULT_SEED,
-    )
-    .map_err(|e| e.to_string());
+    let bootstrap =
+        stats::bootstrap_intervals(s, stats::DEFAULT_RESAMPLES, 0.95, stats::DEFAULT_SEED)
+            .map_err(|e| e.to_string());
 
     // Status thresholds are common practice, not from a published source.
     let mut reasons = Vec::new();

@@ -10,19 +10,22 @@
 mod bootstrap;
 mod histogram;
 mod moments;
+mod normal;
 mod order;
 mod outliers;
 mod quantile;
+mod random;
 mod sample;
 mod summation;
 mod undefined;
 
 pub use bootstrap::{
-    BootstrapIntervals, DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET, Interval, MIN_RESAMPLES,
-    SplitMix64, bootstrap_intervals, resamples_for,
+    BootstrapIntervals, BootstrapMethod, DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET, Interval,
+    bootstrap_intervals, resampled_in_full,
 };
 pub use histogram::{BinRule, Histogram, MAX_BINS, binned_mode, histogram};
 pub use moments::{Denominator, Moments};
+pub use normal::{normal_cdf, normal_quantile};
 pub use order::{
     MAD_NORMAL_SCALE, bowley, iqr, mad, median, modes, quartile, trimmed_mean, winsorized_mean,
 };
@@ -30,6 +33,7 @@ pub use outliers::{
     Fences, MODIFIED_Z_CONSTANT, MODIFIED_Z_CUTOFF, Outliers, fences, modified_z_scores, outliers,
 };
 pub use quantile::{QuantileMethod, quantile_sorted};
+pub use random::SplitMix64;
 pub use sample::Sample;
 pub use summation::Neumaier;
 pub use undefined::{Stat, Undefined};

@@ -45,9 +45,12 @@ fn robustness_note() -> String {
 fences (type 7 quartiles), each with its source cell. 'Without' recomputes mean, sd and skewness leaving out the 1.5 IQR outliers. \
 Leave-one-out: the largest change in the mean and in the sd that removing one value causes, and its cell. Modified z-scores \
 0.6745 (x - median) / MAD above 3.5 (Iglewicz and Hoaglin 1993). Bootstrap: 95% percentile intervals from {DEFAULT_RESAMPLES} \
-resamples ({DRAW_BUDGET} draws at most for long columns; the 'resamples' column says how many), seed {DEFAULT_SEED}, so reruns agree. Status: warn for values beyond the 3 IQR fences, modified z above 3.5 or a \
+resamples, seed {DEFAULT_SEED}, so reruns agree. Columns over {} values are not resampled in full: the median's resamples draw \
+their middle order statistics directly (the same distribution) and the mean's interval is the Cornish-Fisher expansion of its \
+bootstrap distribution (Hall 1992); the 'bootstrap method' column says which. Status: warn for values beyond the 3 IQR fences, modified z above 3.5 or a \
 mean-median gap above 0.5 sd; note for 1.5 IQR outliers, kurtosis above 3, a gap above 0.25 sd or fewer than 3 values \
-(thresholds are common practice, not from a published source)."
+(thresholds are common practice, not from a published source).",
+        DRAW_BUDGET / DEFAULT_RESAMPLES
     )
 }
 
@@ -183,6 +186,7 @@ pub const ROBUSTNESS_LABELS: &[&str] = &[
     "median 95% low",
     "median 95% high",
     "resamples",
+    "bootstrap method",
 ];
 
 /// Cells listed in one spreadsheet cell; the rest are counted, not listed.
@@ -281,8 +285,9 @@ fn robustness_sheet(
                     values.push((One::Number(x), false));
                 }
                 values.push((One::Number(bi.resamples as f64), true));
+                values.push((One::Text(bi.method.words().into()), false));
             }
-            Err(why) => (0..5).for_each(|_| values.push((One::Undefined(why.clone()), false))),
+            Err(why) => (0..6).for_each(|_| values.push((One::Undefined(why.clone()), false))),
         }
         for (j, (value, whole)) in values.iter().enumerate() {
             write_one(sheet, r, c + 2 + j as u16, value, *whole)?;
