@@ -296,7 +296,7 @@ pub fn evaluate_against(
                     address: table.address(column, issue.row),
                     column: name.clone(),
                     kind: issue.kind,
-                    content: issue.content,
+                    content: issue.content.clone(),
                 });
             }
         }

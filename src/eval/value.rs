@@ -187,15 +187,7 @@ impl<'a> Scope<'a> {
         };
         match column.kind {
             ColumnKind::Text => Rows::Texts(self.rows.iter().map(|&r| column.text(r)).collect()),
-            ColumnKind::Bool => Rows::Truths(
-                self.rows
-                    .iter()
-                    .map(|&r| match column.cells[r] {
-                        crate::load::Cell::Bool(b) => Some(b),
-                        _ => None,
-                    })
-                    .collect(),
-            ),
+            ColumnKind::Bool => Rows::Truths(self.rows.iter().map(|&r| column.truth(r)).collect()),
             _ => Rows::Numbers(self.rows.iter().map(|&r| column.number(r)).collect()),
         }
     }

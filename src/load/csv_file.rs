@@ -3,7 +3,8 @@
 
 use std::path::Path;
 
-use super::table::{Cell, Column, SourceInfo, Table, cell_address};
+use super::column::{Column, ColumnBuilder, ColumnKind, MAX_ROWS};
+use super::table::{Cell, SourceInfo, Table, cell_address};
 use super::{LoadError, LoadOptions};
 
 /// The pseudo-sheet name of a CSV file: its name without the ending.
@@ -80,7 +81,7 @@ pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<T
         .from_reader(text.as_bytes());
     // Stream the records into columns: only the header rows are kept whole.
     let mut header: Option<csv::StringRecord> = None;
-    let mut grid: Vec<Vec<Cell>> = Vec::new();
+    let mut grid: Vec<ColumnBuilder> = Vec::new();
     let (mut seen, mut body_rows) = (0usize, 0usize);
     let mut record = csv::StringRecord::new();
     loop {
@@ -99,12 +100,22 @@ pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<T
             continue;
         }
         if seen == header_row as usize {
-            grid = vec![Vec::new(); record.len()];
+            grid = (0..record.len())
+                .map(|_| ColumnBuilder::default())
+                .collect();
             header = Some(record.clone());
             continue;
         }
-        if record.len() > grid.len() {
-            grid.resize(record.len(), vec![Cell::Blank; body_rows]);
+        if body_rows == MAX_ROWS {
+            return Err(LoadError::Malformed {
+                path: path.clone(),
+                reason: format!(
+                    "more than {MAX_ROWS} data rows; split the file or filter it before reading"
+                ),
+            });
+        }
+        while record.len() > grid.len() {
+            grid.push(ColumnBuilder::blanks(body_rows));
         }
         for (c, column) in grid.iter_mut().enumerate() {
             column.push(record.get(c).map_or(Cell::Blank, parse_field));
@@ -139,15 +150,15 @@ pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<T
 pub fn build_columns(
     path: &str,
     names: Vec<String>,
-    grid: Vec<Vec<Cell>>,
+    grid: Vec<ColumnBuilder>,
     header_row: u32,
 ) -> Result<Vec<Column>, LoadError> {
     let mut columns: Vec<Column> = Vec::new();
     let mut seen: std::collections::HashMap<String, u32> = std::collections::HashMap::new();
     for (index, (name, cells)) in names.into_iter().zip(grid).enumerate() {
-        let kind = Column::infer_kind(&cells);
+        let column = cells.finish(name.clone(), index as u32);
         if name.is_empty() {
-            if kind == super::table::ColumnKind::Empty {
+            if column.kind == ColumnKind::Empty {
                 continue;
             }
             return Err(LoadError::BlankHeader {
@@ -163,13 +174,8 @@ pub fn build_columns(
                 second: cell_address(index as u32, header_row as usize),
             });
         }
-        seen.insert(name.clone(), index as u32);
-        columns.push(Column {
-            name,
-            sheet_column: index as u32,
-            kind,
-            cells,
-        });
+        seen.insert(name, index as u32);
+        columns.push(column);
     }
     Ok(columns)
 }
@@ -190,9 +196,10 @@ mod tests {
         assert_eq!(detect_delimiter("\"x;y\",b\n"), b',');
         let t = table("\u{feff}depot;weight\nNorth;2,5\nSouth;3\n").unwrap();
         assert_eq!(t.headers(), ["depot", "weight"]);
+        let weight = &t.columns[1];
         assert_eq!(
-            t.columns[1].cells,
-            [Cell::Text("2,5".into()), Cell::Number(3.0)]
+            (weight.text(0).as_deref(), weight.number(1)),
+            (Some("2,5"), Some(3.0))
         );
     }
 
@@ -204,7 +211,10 @@ mod tests {
         let issues = weight.issues();
         assert_eq!(issues.len(), 1);
         assert_eq!(t.address(weight, issues[0].row), "deliveries!B3");
-        assert_eq!(t.column("note").unwrap().cells[0], Cell::Blank);
+        assert_eq!(
+            t.column("note").unwrap().issues()[0].kind,
+            super::super::IssueKind::Blank
+        );
     }
 
     #[test]

@@ -3,16 +3,15 @@
 //! through the csv crate. Nothing is skipped silently: every blank, text
 //! cell in a numeric column and formula error is counted and addressed.
 
+mod column;
 mod csv_file;
 mod table;
 mod workbook;
 
 use std::path::Path;
 
-pub use table::{
-    Cell, CellIssue, Column, ColumnKind, IssueKind, SourceInfo, Table, column_letters,
-    quote_sheet as table_sheet_ref,
-};
+pub use column::{CellIssue, Column, ColumnBuilder, ColumnKind, IssueKind, MAX_ROWS};
+pub use table::{Cell, SourceInfo, Table, column_letters, quote_sheet as table_sheet_ref};
 
 #[derive(Debug, thiserror::Error)]
 pub enum LoadError {

@@ -1,9 +1,10 @@
-//! The loaded data: typed columns with cell addresses and the cells that
-//! could not be used as numbers.
+//! The loaded data: its source, its typed columns and their cell addresses.
 
 use std::path::Path;
 
 use sha2::{Digest, Sha256};
+
+use super::column::Column;
 
 /// What the About sheet says about the input file.
 #[derive(Debug, Clone)]
@@ -29,7 +30,7 @@ impl SourceInfo {
     }
 }
 
-/// One cell's content after loading.
+/// One cell as a loader reads it, before its column is stored by type.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Cell {
     Number(f64),
@@ -67,133 +68,6 @@ impl Cell {
             Cell::Error(trimmed.to_string())
         } else {
             Cell::Text(text.to_string())
-        }
-    }
-}
-
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum ColumnKind {
-    Number,
-    Date,
-    Text,
-    Bool,
-    /// No cell holds anything.
-    Empty,
-}
-
-impl ColumnKind {
-    pub fn word(self) -> &'static str {
-        match self {
-            ColumnKind::Number => "number",
-            ColumnKind::Date => "date",
-            ColumnKind::Text => "text",
-            ColumnKind::Bool => "true/false",
-            ColumnKind::Empty => "empty",
-        }
-    }
-}
-
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
-pub enum IssueKind {
-    Blank,
-    TextInNumbers,
-    FormulaError,
-}
-
-impl IssueKind {
-    pub fn words(self) -> &'static str {
-        match self {
-            IssueKind::Blank => "blank cell",
-            IssueKind::TextInNumbers => "text in a numeric column",
-            IssueKind::FormulaError => "formula error",
-        }
-    }
-}
-
-/// A cell that counts as missing, and why.
-#[derive(Debug, Clone, PartialEq)]
-pub struct CellIssue {
-    pub row: usize,
-    pub kind: IssueKind,
-    /// What the cell held (text or error), for the About sheet.
-    pub content: String,
-}
-
-#[derive(Debug, Clone)]
-pub struct Column {
-    pub name: String,
-    /// 0-based position in the sheet, for addresses.
-    pub sheet_column: u32,
-    pub kind: ColumnKind,
-    pub cells: Vec<Cell>,
-}
-
-impl Column {
-    /// The numeric view: numbers and dates are values; everything else is missing.
-    pub fn number(&self, row: usize) -> Option<f64> {
-        match self.cells[row] {
-            Cell::Number(x) | Cell::Date(x) => Some(x),
-            Cell::Bool(b) if self.kind == ColumnKind::Bool => Some(f64::from(u8::from(b))),
-            _ => None,
-        }
-    }
-
-    /// The text view, used for group keys and text comparisons.
-    pub fn text(&self, row: usize) -> Option<String> {
-        match &self.cells[row] {
-            Cell::Text(t) => Some(t.clone()),
-            Cell::Number(x) => Some(crate::format::shortest(*x)),
-            Cell::Date(x) => Some(crate::format::date(*x)),
-            Cell::Bool(b) => Some(b.to_string()),
-            Cell::Blank | Cell::Error(_) => None,
-        }
-    }
-
-    /// Cells that count as missing in this column's numeric view, in row order.
-    pub fn issues(&self) -> Vec<CellIssue> {
-        let numeric = matches!(
-            self.kind,
-            ColumnKind::Number | ColumnKind::Date | ColumnKind::Bool
-        );
-        let mut found = Vec::new();
-        for (row, cell) in self.cells.iter().enumerate() {
-            let issue = match cell {
-                Cell::Blank => Some((IssueKind::Blank, String::new())),
-                Cell::Error(e) => Some((IssueKind::FormulaError, e.clone())),
-                Cell::Text(t) if numeric => Some((IssueKind::TextInNumbers, t.clone())),
-                _ => None,
-            };
-            if let Some((kind, content)) = issue {
-                found.push(CellIssue { row, kind, content });
-            }
-        }
-        found
-    }
-
-    /// Decides the column's kind from its cells: numeric when numbers are
-    /// at least as common as text, so a typed-in "n/a" does not turn a
-    /// numeric column into text (it is listed as missing instead).
-    pub fn infer_kind(cells: &[Cell]) -> ColumnKind {
-        let (mut numbers, mut dates, mut texts, mut bools) = (0usize, 0usize, 0usize, 0usize);
-        for cell in cells {
-            match cell {
-                Cell::Number(_) => numbers += 1,
-                Cell::Date(_) => dates += 1,
-                Cell::Text(_) => texts += 1,
-                Cell::Bool(_) => bools += 1,
-                Cell::Blank | Cell::Error(_) => {}
-            }
-        }
-        if numbers + dates + texts + bools == 0 {
-            ColumnKind::Empty
-        } else if numbers + dates == 0 && bools > texts {
-            ColumnKind::Bool
-        } else if numbers + dates < texts || numbers + dates == 0 {
-            ColumnKind::Text
-        } else if dates > numbers {
-            ColumnKind::Date
-        } else {
-            ColumnKind::Number
         }
     }
 }
@@ -270,23 +144,5 @@ mod tests {
         assert_eq!(cell_address(2, 17), "C17");
         assert_eq!(quote_sheet("Deliveries"), "Deliveries");
         assert_eq!(quote_sheet("Sep 2026"), "'Sep 2026'");
-    }
-
-    #[test]
-    fn a_stray_text_cell_does_not_make_a_numeric_column_text() {
-        let cells = [
-            Cell::Number(1.0),
-            Cell::Text("n/a".into()),
-            Cell::Number(3.0),
-            Cell::Blank,
-        ];
-        assert_eq!(Column::infer_kind(&cells), ColumnKind::Number);
-        let keys = [
-            Cell::Text("North".into()),
-            Cell::Text("South".into()),
-            Cell::Number(3.0),
-        ];
-        assert_eq!(Column::infer_kind(&keys), ColumnKind::Text);
-        assert_eq!(Column::infer_kind(&[Cell::Blank]), ColumnKind::Empty);
     }
 }

@@ -4,6 +4,7 @@ use std::path::Path;
 
 use calamine::{Data, Reader, open_workbook_auto};
 
+use super::column::ColumnBuilder;
 use super::csv_file::build_columns;
 use super::table::{Cell, SourceInfo, Table};
 use super::{LoadError, LoadOptions};
@@ -139,18 +140,22 @@ fn read(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table,
     let width = range.width() + left as usize;
     let body_rows = range.height() - header_index - 1;
     let mut names_in_sheet = vec![String::new(); width];
-    let mut grid: Vec<Vec<Cell>> = vec![vec![Cell::Blank; body_rows]; width];
+    let mut grid: Vec<ColumnBuilder> = (0..width).map(|_| ColumnBuilder::default()).collect();
+    let left = left as usize;
     for (r, row) in range.rows().enumerate().skip(header_index) {
-        for (c, data) in row.iter().enumerate() {
-            let column = c + left as usize;
-            if r == header_index {
-                names_in_sheet[column] = match data {
+        if r == header_index {
+            for (c, data) in row.iter().enumerate() {
+                names_in_sheet[c + left] = match data {
                     Data::Empty => String::new(),
                     other => other.to_string().trim().to_string(),
                 };
-            } else {
-                grid[column][r - header_index - 1] = cell(data);
             }
+            continue;
+        }
+        // Columns left of the used range are blank.
+        grid[..left].iter_mut().for_each(|b| b.push(Cell::Blank));
+        for (builder, data) in grid[left..].iter_mut().zip(row) {
+            builder.push(cell(data));
         }
     }
     let columns = build_columns(&shown, names_in_sheet, grid, header_row)?;

@@ -1,0 +1,460 @@
+//! One loaded column, stored by type: a numeric column is its numbers (8
+//! bytes a row), a text column is an index into its distinct words (4 bytes
+//! a row). Cells that count as missing are kept apart, with their rows, for
+//! the About sheet. Loaders feed cells one at a time to a [`ColumnBuilder`],
+//! which decides the column's kind once every cell is in.
+
+use std::collections::HashMap;
+
+use super::table::Cell;
+
+/// Rows are held as u32: a sheet has at most 1,048,576 rows, and a CSV
+/// file with more than this many is refused when it is read.
+pub const MAX_ROWS: usize = u32::MAX as usize - 1;
+
+/// A text column's code for a blank or error cell.
+const NO_TEXT: u32 = u32::MAX;
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ColumnKind {
+    Number,
+    Date,
+    Text,
+    Bool,
+    /// No cell holds anything.
+    Empty,
+}
+
+impl ColumnKind {
+    pub fn word(self) -> &'static str {
+        match self {
+            ColumnKind::Number => "number",
+            ColumnKind::Date => "date",
+            ColumnKind::Text => "text",
+            ColumnKind::Bool => "true/false",
+            ColumnKind::Empty => "empty",
+        }
+    }
+
+    pub fn is_numeric(self) -> bool {
+        matches!(
+            self,
+            ColumnKind::Number | ColumnKind::Date | ColumnKind::Bool
+        )
+    }
+
+    /// The kind from how many cells of each type a column has: numeric when
+    /// numbers are at least as common as text, so a typed-in "n/a" does not
+    /// turn a numeric column into text (it is listed as missing instead).
+    fn from_counts(numbers: usize, dates: usize, texts: usize, bools: usize) -> ColumnKind {
+        if numbers + dates + texts + bools == 0 {
+            ColumnKind::Empty
+        } else if numbers + dates == 0 && bools > texts {
+            ColumnKind::Bool
+        } else if numbers + dates < texts || numbers + dates == 0 {
+            ColumnKind::Text
+        } else if dates > numbers {
+            ColumnKind::Date
+        } else {
+            ColumnKind::Number
+        }
+    }
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub enum IssueKind {
+    Blank,
+    TextInNumbers,
+    FormulaError,
+}
+
+impl IssueKind {
+    pub fn words(self) -> &'static str {
+        match self {
+            IssueKind::Blank => "blank cell",
+            IssueKind::TextInNumbers => "text in a numeric column",
+            IssueKind::FormulaError => "formula error",
+        }
+    }
+}
+
+/// A cell that counts as missing, and why.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CellIssue {
+    pub row: usize,
+    pub kind: IssueKind,
+    /// What the cell held (text or error), for the About sheet.
+    pub content: String,
+}
+
+#[derive(Debug, Clone)]
+enum Values {
+    /// Number, date, true/false and empty columns: the numeric view, NaN
+    /// where missing. `other_type` lists the rows holding a date in a
+    /// number column (or a plain number in a date column), for the text view.
+    Numbers {
+        numbers: Vec<f64>,
+        other_type: Vec<u32>,
+    },
+    /// Text columns: each row's text as an index into `words`.
+    Texts { codes: Vec<u32>, words: Vec<String> },
+}
+
+#[derive(Debug, Clone)]
+pub struct Column {
+    pub name: String,
+    /// 0-based position in the sheet, for addresses.
+    pub sheet_column: u32,
+    pub kind: ColumnKind,
+    values: Values,
+    /// Cells that count as missing in this column's numeric view, in row order.
+    issues: Vec<CellIssue>,
+}
+
+impl Column {
+    /// The numeric view: numbers and dates are values (true/false as 1/0
+    /// in a true/false column); everything else is missing.
+    pub fn number(&self, row: usize) -> Option<f64> {
+        match &self.values {
+            Values::Numbers { numbers, .. } => Some(numbers[row]).filter(|x| !x.is_nan()),
+            Values::Texts { .. } => None,
+        }
+    }
+
+    /// The whole numeric view (NaN where missing), for a numeric column.
+    pub fn numbers(&self) -> Option<&[f64]> {
+        match &self.values {
+            Values::Numbers { numbers, .. } => Some(numbers),
+            Values::Texts { .. } => None,
+        }
+    }
+
+    /// A true/false column's cell.
+    pub fn truth(&self, row: usize) -> Option<bool> {
+        match self.kind {
+            ColumnKind::Bool => self.number(row).map(|x| x == 1.0),
+            _ => None,
+        }
+    }
+
+    /// A text column's rows as codes into its distinct words (None where blank).
+    pub fn text_codes(&self) -> Option<(&[u32], &[String])> {
+        match &self.values {
+            Values::Texts { codes, words } => Some((codes, words)),
+            Values::Numbers { .. } => None,
+        }
+    }
+
+    /// Index into a text column's words for a code from [`Column::text_codes`].
+    pub fn word_of(code: u32) -> Option<usize> {
+        (code != NO_TEXT).then_some(code as usize)
+    }
+
+    /// The text view, used for group keys and text comparisons.
+    pub fn text(&self, row: usize) -> Option<String> {
+        match &self.values {
+            Values::Texts { codes, words } => Column::word_of(codes[row]).map(|w| words[w].clone()),
+            Values::Numbers {
+                numbers,
+                other_type,
+            } => {
+                let x = numbers[row];
+                if x.is_nan() {
+                    // A text cell in a numeric column still reads as its text.
+                    return self
+                        .issue_at(row)
+                        .filter(|i| i.kind == IssueKind::TextInNumbers)
+                        .map(|i| i.content.clone());
+                }
+                let other = other_type.binary_search(&(row as u32)).is_ok();
+                Some(match self.kind {
+                    ColumnKind::Bool => (x == 1.0).to_string(),
+                    ColumnKind::Date if !other => crate::format::date(x),
+                    ColumnKind::Number if other => crate::format::date(x),
+                    _ => crate::format::shortest(x),
+                })
+            }
+        }
+    }
+
+    /// Cells that count as missing in this column's numeric view, in row order.
+    pub fn issues(&self) -> &[CellIssue] {
+        &self.issues
+    }
+
+    fn issue_at(&self, row: usize) -> Option<&CellIssue> {
+        self.issues
+            .binary_search_by_key(&row, |i| i.row)
+            .ok()
+            .map(|i| &self.issues[i])
+    }
+}
+
+/// Cells that are neither numbers nor dates; rare in a numeric column.
+#[derive(Debug, Default)]
+struct OtherCells {
+    texts: Vec<(u32, u32)>,
+    words: Vec<String>,
+    word_index: HashMap<String, u32>,
+    bools: Vec<(u32, bool)>,
+    blanks: Vec<u32>,
+    errors: Vec<(u32, String)>,
+}
+
+impl OtherCells {
+    fn word(&mut self, text: String) -> u32 {
+        if let Some(&code) = self.word_index.get(&text) {
+            return code;
+        }
+        let code = self.words.len() as u32;
+        self.words.push(text.clone());
+        self.word_index.insert(text, code);
+        code
+    }
+}
+
+/// Takes a column's cells in row order and stores them by type.
+#[derive(Debug, Default)]
+pub struct ColumnBuilder {
+    /// Every row: the number or date, NaN for any other cell.
+    numbers: Vec<f64>,
+    /// Rows holding dates.
+    dates: Vec<u32>,
+    /// Boxed so that a sheet of a million columns stays small.
+    other: Option<Box<OtherCells>>,
+}
+
+impl ColumnBuilder {
+    /// A column whose first `rows` cells are blank (a ragged CSV row made it appear late).
+    pub fn blanks(rows: usize) -> ColumnBuilder {
+        let mut builder = ColumnBuilder::default();
+        for _ in 0..rows {
+            builder.push(Cell::Blank);
+        }
+        builder
+    }
+
+    pub fn rows(&self) -> usize {
+        self.numbers.len()
+    }
+
+    pub fn push(&mut self, cell: Cell) {
+        let row = self.numbers.len() as u32;
+        let value = match cell {
+            Cell::Number(x) => x,
+            Cell::Date(x) => {
+                self.dates.push(row);
+                x
+            }
+            other => {
+                let rest = self.other.get_or_insert_with(Box::default);
+                match other {
+                    Cell::Text(t) => {
+                        let code = rest.word(t);
+                        rest.texts.push((row, code));
+                    }
+                    Cell::Bool(b) => rest.bools.push((row, b)),
+                    Cell::Blank => rest.blanks.push(row),
+                    Cell::Error(e) => rest.errors.push((row, e)),
+                    Cell::Number(_) | Cell::Date(_) => unreachable!("handled above"),
+                }
+                f64::NAN
+            }
+        };
+        self.numbers.push(value);
+    }
+
+    /// The column, its kind decided from all its cells.
+    pub fn finish(self, name: String, sheet_column: u32) -> Column {
+        let ColumnBuilder {
+            mut numbers,
+            dates,
+            other,
+        } = self;
+        let other = other.map(|o| *o).unwrap_or_default();
+        let values_count = numbers.iter().filter(|x| !x.is_nan()).count();
+        let kind = ColumnKind::from_counts(
+            values_count - dates.len(),
+            dates.len(),
+            other.texts.len(),
+            other.bools.len(),
+        );
+        let mut issues: Vec<CellIssue> = Vec::new();
+        let issue = |row: u32, kind, content: String| CellIssue {
+            row: row as usize,
+            kind,
+            content,
+        };
+        issues.extend(
+            other
+                .blanks
+                .iter()
+                .map(|&r| issue(r, IssueKind::Blank, String::new())),
+        );
+        issues.extend(
+            other
+                .errors
+                .iter()
+                .map(|(r, e)| issue(*r, IssueKind::FormulaError, e.clone())),
+        );
+        let values = if kind == ColumnKind::Text {
+            let mut words = other.words;
+            let mut index: HashMap<String, u32> = other.word_index;
+            let mut codes = vec![NO_TEXT; numbers.len()];
+            for &(row, code) in &other.texts {
+                codes[row as usize] = code;
+            }
+            let mut code_of = |text: String| -> u32 {
+                *index.entry(text.clone()).or_insert_with(|| {
+                    words.push(text);
+                    (words.len() - 1) as u32
+                })
+            };
+            let mut date_rows = dates.iter().peekable();
+            for (row, &x) in numbers.iter().enumerate() {
+                if x.is_nan() {
+                    continue;
+                }
+                let is_date = date_rows.next_if(|&&d| d as usize == row).is_some();
+                let text = if is_date {
+                    crate::format::date(x)
+                } else {
+                    crate::format::shortest(x)
+                };
+                codes[row] = code_of(text);
+            }
+            for &(row, b) in &other.bools {
+                codes[row as usize] = code_of(b.to_string());
+            }
+            Values::Texts { codes, words }
+        } else {
+            if kind.is_numeric() {
+                issues.extend(other.texts.iter().map(|&(r, code)| {
+                    issue(
+                        r,
+                        IssueKind::TextInNumbers,
+                        other.words[code as usize].clone(),
+                    )
+                }));
+            }
+            if kind == ColumnKind::Bool {
+                for &(row, b) in &other.bools {
+                    numbers[row as usize] = f64::from(u8::from(b));
+                }
+            } else {
+                // A true/false cell in a number column is no number: say so.
+                issues.extend(
+                    other
+                        .bools
+                        .iter()
+                        .map(|&(r, b)| issue(r, IssueKind::TextInNumbers, b.to_string())),
+                );
+            }
+            let other_type = if kind == ColumnKind::Date {
+                let mut date_rows = dates.iter().peekable();
+                let mut plain = Vec::new();
+                for (row, x) in numbers.iter().enumerate() {
+                    let is_date = date_rows.next_if(|&&d| d as usize == row).is_some();
+                    if !x.is_nan() && !is_date {
+                        plain.push(row as u32);
+                    }
+                }
+                plain
+            } else {
+                dates
+            };
+            numbers.shrink_to_fit();
+            Values::Numbers {
+                numbers,
+                other_type,
+            }
+        };
+        issues.sort_by_key(|i| i.row);
+        Column {
+            name,
+            sheet_column,
+            kind,
+            values,
+            issues,
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn column(cells: Vec<Cell>) -> Column {
+        let mut builder = ColumnBuilder::default();
+        cells.into_iter().for_each(|c| builder.push(c));
+        builder.finish("x".into(), 0)
+    }
+
+    #[test]
+    fn a_stray_text_cell_does_not_make_a_numeric_column_text() {
+        let c = column(vec![
+            Cell::Number(1.0),
+            Cell::Text("n/a".into()),
+            Cell::Number(3.0),
+            Cell::Blank,
+        ]);
+        assert_eq!(c.kind, ColumnKind::Number);
+        assert_eq!(
+            (c.number(0), c.number(1), c.number(3)),
+            (Some(1.0), None, None)
+        );
+        assert_eq!(c.text(1).as_deref(), Some("n/a"));
+        let kinds: Vec<_> = c.issues().iter().map(|i| (i.row, i.kind)).collect();
+        assert_eq!(
+            kinds,
+            [(1, IssueKind::TextInNumbers), (3, IssueKind::Blank)]
+        );
+        let keys = column(vec![
+            Cell::Text("North".into()),
+            Cell::Text("South".into()),
+            Cell::Number(3.0),
+        ]);
+        assert_eq!(keys.kind, ColumnKind::Text);
+        assert_eq!(keys.text(2).as_deref(), Some("3"));
+        assert_eq!(keys.number(2), None);
+        assert_eq!(column(vec![Cell::Blank]).kind, ColumnKind::Empty);
+    }
+
+    #[test]
+    fn each_kind_keeps_its_views() {
+        let dates = column(vec![
+            Cell::Date(46_300.0),
+            Cell::Number(2.5),
+            Cell::Date(46_301.0),
+        ]);
+        assert_eq!(dates.kind, ColumnKind::Date);
+        assert_eq!(dates.number(1), Some(2.5));
+        assert_eq!(dates.text(1).as_deref(), Some("2.5"));
+        assert_eq!(dates.text(0), Some(crate::format::date(46_300.0)));
+        let truths = column(vec![Cell::Bool(true), Cell::Blank, Cell::Bool(false)]);
+        assert_eq!(truths.kind, ColumnKind::Bool);
+        assert_eq!(
+            (truths.truth(0), truths.truth(1), truths.number(2)),
+            (Some(true), None, Some(0.0))
+        );
+        assert_eq!(truths.text(0).as_deref(), Some("true"));
+        let mixed = column(vec![
+            Cell::Number(1.0),
+            Cell::Bool(true),
+            Cell::Error("#N/A".into()),
+        ]);
+        let kinds: Vec<_> = mixed.issues().iter().map(|i| i.kind).collect();
+        assert_eq!(
+            kinds,
+            [IssueKind::TextInNumbers, IssueKind::FormulaError],
+            "a true/false cell among numbers is listed, not dropped"
+        );
+        let words = column(vec![
+            Cell::Text("a".into()),
+            Cell::Text("b".into()),
+            Cell::Text("a".into()),
+        ]);
+        let (codes, distinct) = words.text_codes().unwrap();
+        assert_eq!((codes[0], codes[2], distinct.len()), (0, 0, 2));
+    }
+}
