@@ -150,32 +150,88 @@ pub enum EvalError {
     TooManyGroups { keys: String },
 }
 
+/// Each row's value of one group key as a small id, and each id's label.
+/// A text data column already holds its rows as codes; anything else is
+/// keyed by its text.
+fn key_ids(scope: &Scope, key: &ColumnRef) -> (Vec<u32>, Vec<String>) {
+    let mut labels: Vec<String> = Vec::new();
+    let data = match scope.lets.contains_key(&key.name) {
+        true => None,
+        false => scope.table.column(&key.name),
+    };
+    if let Some((codes, words)) = data.and_then(|c| c.text_codes()) {
+        // Codes renumbered in order of first appearance; u32::MAX = not seen yet.
+        let mut id_of_word = vec![u32::MAX; words.len()];
+        let mut blank_id = u32::MAX;
+        let ids = scope
+            .rows
+            .iter()
+            .map(|&r| {
+                let (slot, label) = match crate::load::Column::word_of(codes[r]) {
+                    Some(w) => (&mut id_of_word[w], &words[w]),
+                    None => (&mut blank_id, &BLANK_KEY.to_string()),
+                };
+                if *slot == u32::MAX {
+                    *slot = labels.len() as u32;
+                    labels.push(label.clone());
+                }
+                *slot
+            })
+            .collect();
+        return (ids, labels);
+    }
+    let rows = scope.column(&key.name);
+    let mut index: HashMap<String, u32> = HashMap::new();
+    let ids = (0..rows.len())
+        .map(|i| {
+            let label = rows.text_at(i).unwrap_or_else(|| BLANK_KEY.to_string());
+            *index.entry(label).or_insert_with_key(|label| {
+                labels.push(label.clone());
+                (labels.len() - 1) as u32
+            })
+        })
+        .collect();
+    (ids, labels)
+}
+
 /// Group keys of each row in `rows`, and the groups in order of first appearance.
 fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<usize>)>, EvalError> {
     if keys.is_empty() {
         return Ok(vec![(Vec::new(), scope.rows.to_vec())]);
     }
-    let columns: Vec<Rows> = keys.iter().map(|k| scope.column(&k.name)).collect();
-    let mut order: Vec<(Vec<String>, Vec<usize>)> = Vec::new();
-    let mut index: HashMap<Vec<String>, usize> = HashMap::new();
-    for (i, &row) in scope.rows.iter().enumerate() {
-        let key: Vec<String> = columns
+    let per_key: Vec<(Vec<u32>, Vec<String>)> = keys.iter().map(|k| key_ids(scope, k)).collect();
+    let too_many = || EvalError::TooManyGroups {
+        keys: keys
             .iter()
-            .map(|c| c.text_at(i).unwrap_or_else(|| BLANK_KEY.to_string()))
-            .collect();
-        let slot = *index.entry(key.clone()).or_insert_with(|| {
-            order.push((key, Vec::new()));
-            order.len() - 1
-        });
-        if order.len() > MAX_GROUPS {
-            return Err(EvalError::TooManyGroups {
-                keys: keys
+            .map(|k| k.name.clone())
+            .collect::<Vec<_>>()
+            .join(", "),
+    };
+    if per_key.iter().any(|(_, labels)| labels.len() > MAX_GROUPS) {
+        return Err(too_many());
+    }
+    let mut order: Vec<(Vec<String>, Vec<usize>)> = Vec::new();
+    let mut index: HashMap<Vec<u32>, usize> = HashMap::new();
+    let mut key = Vec::with_capacity(keys.len());
+    for (i, &row) in scope.rows.iter().enumerate() {
+        key.clear();
+        key.extend(per_key.iter().map(|(ids, _)| ids[i]));
+        let slot = match index.get(&key) {
+            Some(&slot) => slot,
+            None => {
+                if order.len() == MAX_GROUPS {
+                    return Err(too_many());
+                }
+                let labels = key
                     .iter()
-                    .map(|k| k.name.clone())
-                    .collect::<Vec<_>>()
-                    .join(", "),
-            });
-        }
+                    .zip(&per_key)
+                    .map(|(&id, (_, labels))| labels[id as usize].clone())
+                    .collect();
+                order.push((labels, Vec::new()));
+                index.insert(key.clone(), order.len() - 1);
+                order.len() - 1
+            }
+        };
         order[slot].1.push(row);
     }
     Ok(order)
@@ -349,36 +405,32 @@ pub fn evaluate_against(
             } => {
                 let rows = block_rows(table, &lets, &kept, block_filter);
                 let scope = Scope::new(table, &lets, &rows);
-                // Gather each (group, column) sample, then compute the panels in
-                // parallel: they are independent and the robustness checks dominate.
+                // Each (group, column) is independent and the robustness checks
+                // dominate, so they run in parallel; a sample is built inside its
+                // job, so only as many exist at once as there are threads.
                 let all_groups = groups(&scope, per)?;
-                let mut jobs = Vec::new();
-                for (g, (group, group_rows)) in all_groups.iter().enumerate() {
-                    let group_scope = Scope::new(table, &lets, group_rows).grouped(group, &context);
-                    for column in columns {
-                        let sample =
-                            Sample::from_column(group_scope.column(&column.name).numbers());
-                        jobs.push((g, column.name.clone(), sample));
-                    }
-                }
+                let jobs: Vec<(usize, &ColumnRef)> = (0..all_groups.len())
+                    .flat_map(|g| columns.iter().map(move |c| (g, c)))
+                    .collect();
                 let entries: Vec<PanelEntry> = jobs
                     .par_iter()
-                    .map(|(g, column, sample)| {
-                        let (group, group_rows) = &all_groups[*g];
+                    .map(|&(g, column)| {
+                        let (group, group_rows) = &all_groups[g];
+                        let sample = column_sample(table, &lets, group_rows, &column.name);
                         let address = |i: usize| {
                             source_cell(
                                 table,
                                 &sources,
-                                column,
+                                &column.name,
                                 group_rows[sample.positions()[i] as usize],
                             )
                         };
                         PanelEntry {
                             group: group.clone(),
-                            column: column.clone(),
-                            figures: panel::panel_figures(sample),
-                            robustness: panel::robustness(sample, &address),
-                            sample_summary: panel::box_summary(sample),
+                            column: column.name.clone(),
+                            figures: panel::panel_figures(&sample),
+                            robustness: panel::robustness(&sample, &address),
+                            sample_summary: panel::box_summary(&sample),
                         }
                     })
                     .collect();
@@ -488,6 +540,19 @@ pub fn evaluate_against(
     terms.retain(|t| seen.insert((t.expression.clone(), t.group.clone())));
     results.terms = terms;
     Ok(results)
+}
+
+/// The sample of a column over some rows: straight from a numeric data
+/// column, or through the row-by-row evaluation for anything else.
+fn column_sample(table: &Table, lets: &value::Lets, rows: &[usize], name: &str) -> Sample {
+    let data = match lets.contains_key(name) {
+        true => None,
+        false => table.column(name).and_then(|c| c.numbers()),
+    };
+    match data {
+        Some(numbers) => Sample::from_column(rows.iter().map(|&r| Some(numbers[r]))),
+        None => Sample::from_column(Scope::new(table, lets, rows).column(name).numbers()),
+    }
 }
 
 fn column_expr(column: &ColumnRef) -> Expr {
