@@ -210,6 +210,17 @@ fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<usi
     if per_key.iter().any(|(_, labels)| labels.len() > MAX_GROUPS) {
         return Err(too_many());
     }
+    if let [(ids, labels)] = per_key.as_slice() {
+        // One key: its ids already number the groups in order of first appearance.
+        let mut order: Vec<(Vec<String>, Vec<usize>)> = labels
+            .iter()
+            .map(|label| (vec![label.clone()], Vec::new()))
+            .collect();
+        for (&id, &row) in ids.iter().zip(scope.rows) {
+            order[id as usize].1.push(row);
+        }
+        return Ok(order);
+    }
     let mut order: Vec<(Vec<String>, Vec<usize>)> = Vec::new();
     let mut index: HashMap<Vec<u32>, usize> = HashMap::new();
     let mut key = Vec::with_capacity(keys.len());
@@ -408,7 +419,9 @@ pub fn evaluate_against(
                 // Each (group, column) is independent and the robustness checks
                 // dominate, so they run in parallel; a sample is built inside its
                 // job, so only as many exist at once as there are threads.
+                let t0 = std::time::Instant::now();
                 let all_groups = groups(&scope, per)?;
+                eprintln!("groups {:?}", t0.elapsed());
                 let jobs: Vec<(usize, &ColumnRef)> = (0..all_groups.len())
                     .flat_map(|g| columns.iter().map(move |c| (g, c)))
                     .collect();
@@ -417,23 +430,33 @@ pub fn evaluate_against(
                     .map(|&(g, column)| {
                         let (group, group_rows) = &all_groups[g];
                         let sample = column_sample(table, &lets, group_rows, &column.name);
-                        let address = |i: usize| {
-                            source_cell(
-                                table,
-                                &sources,
-                                &column.name,
-                                group_rows[sample.positions()[i] as usize],
-                            )
-                        };
+                        let cells = CellNamer::new(table, &sources, &column.name);
+                        let address = |i: usize| cells.name(group_rows[sample.position(i)]);
+                        let t = std::time::Instant::now();
+                        let _ = sample.sorted();
+                        let _ = sample.moments();
+                        let t1 = t.elapsed();
+                        let figures = panel::panel_figures(&sample);
+                        let t2 = t.elapsed();
+                        let robustness = panel::robustness(&sample, &address);
+                        let t3 = t.elapsed();
+                        let sample_summary = panel::box_summary(&sample);
+                        eprintln!(
+                            "job sort+mom {t1:?} fig {:?} rob {:?} box {:?}",
+                            t2 - t1,
+                            t3 - t2,
+                            t.elapsed() - t3
+                        );
                         PanelEntry {
                             group: group.clone(),
                             column: column.name.clone(),
-                            figures: panel::panel_figures(&sample),
-                            robustness: panel::robustness(&sample, &address),
-                            sample_summary: panel::box_summary(&sample),
+                            figures,
+                            robustness,
+                            sample_summary,
                         }
                     })
                     .collect();
+                eprintln!("jobs {:?}", t0.elapsed());
                 let keys = per.iter().map(|k| k.name.clone()).collect();
                 results.blocks.push(Block::Panel {
                     name: name.value.clone(),
@@ -562,25 +585,47 @@ fn column_expr(column: &ColumnRef) -> Expr {
     }
 }
 
-/// The input cell of a table row in a data column. A `let` computed from
-/// one data column points at that column's cell; from several, at the row.
-fn source_cell(
-    table: &Table,
-    sources: &HashMap<String, Vec<String>>,
-    column: &str,
-    row: usize,
-) -> String {
-    let behind = match sources.get(column).map(Vec::as_slice) {
-        Some([only]) => only.as_str(),
-        _ => column,
-    };
-    match table.column(behind) {
-        Some(c) => table.address(c, row),
-        None => format!(
-            "{}!row {} ({column})",
-            crate::load::table_sheet_ref(&table.sheet),
-            table.header_row as usize + 1 + row
-        ),
+/// Names the input cell of a table row in one column. A `let` computed
+/// from one data column points at that column's cell; from several, at the
+/// row. The sheet and column part is made once: a long column can flag
+/// thousands of cells.
+struct CellNamer<'a> {
+    table: &'a Table,
+    /// `Deliveries!D` when the column is (or comes from) one data column.
+    prefix: Option<String>,
+    column: &'a str,
+}
+
+impl<'a> CellNamer<'a> {
+    fn new(table: &'a Table, sources: &HashMap<String, Vec<String>>, column: &'a str) -> Self {
+        let behind = match sources.get(column).map(Vec::as_slice) {
+            Some([only]) => only.as_str(),
+            _ => column,
+        };
+        let prefix = table.column(behind).map(|c| {
+            format!(
+                "{}!{}",
+                crate::load::table_sheet_ref(&table.sheet),
+                crate::load::column_letters(c.sheet_column)
+            )
+        });
+        CellNamer {
+            table,
+            prefix,
+            column,
+        }
+    }
+
+    fn name(&self, row: usize) -> String {
+        let sheet_row = self.table.header_row as usize + 1 + row;
+        match &self.prefix {
+            Some(prefix) => format!("{prefix}{sheet_row}"),
+            None => format!(
+                "{}!row {sheet_row} ({})",
+                crate::load::table_sheet_ref(&self.table.sheet),
+                self.column
+            ),
+        }
     }
 }
 

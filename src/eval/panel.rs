@@ -1,6 +1,6 @@
 //! The standard panel and its robustness checks for one (group, column).
 
-use crate::stats::{self, BinRule, Denominator, QuantileMethod, Sample};
+use crate::stats::{self, Denominator, QuantileMethod, Sample};
 
 use super::aggregate::from_stat;
 use super::value::One;
@@ -115,9 +115,7 @@ pub fn panel_figures(s: &Sample) -> Vec<One> {
     } else if is_whole(s.values()) {
         (list(stats::modes(s)), One::Text("exact values".into()))
     } else {
-        let k = stats::histogram(s, BinRule::Sturges)
-            .map(|h| h.counts.len())
-            .unwrap_or(1);
+        let k = stats::sturges_bins(s.count());
         (
             list(stats::binned_mode(s, k)),
             One::Text(format!("binned, {k} equal bins (Sturges)")),
@@ -169,7 +167,11 @@ fn change(after: &One, before: stats::Stat) -> One {
 }
 
 /// Leave-one-out: the value whose removal moves the mean, and the sd, most.
-/// O(n) from the update formulas for the mean and the sum of squares.
+/// Leaving out x moves the mean by (mean - x) / (n - 1), most at the
+/// smallest or largest value, and the sum of squares by -n/(n-1) (x - mean)^2,
+/// most at the value farthest from or nearest to the mean. So only those
+/// candidates (first occurrences, in row order) are evaluated, with the
+/// update formulas for the mean and the sum of squares.
 fn influences(
     s: &Sample,
     address: &dyn Fn(usize) -> String,
@@ -182,11 +184,27 @@ fn influences(
         return (None, None);
     }
     let (nf, mean) = (n as f64, moments.mean);
+    let values = s.values();
+    let (mut lowest, mut highest, mut nearest) = (0, 0, 0);
+    for (i, &x) in values.iter().enumerate() {
+        if x < values[lowest] {
+            lowest = i;
+        }
+        if x > values[highest] {
+            highest = i;
+        }
+        if (x - mean).abs() < (values[nearest] - mean).abs() {
+            nearest = i;
+        }
+    }
+    let mut candidates = [lowest, highest, nearest];
+    candidates.sort_unstable();
     let m2 = moments.m2 * nf;
     let sd = (m2 / (nf - 1.0)).sqrt();
     let mut best_mean: Option<(f64, usize)> = None;
     let mut best_sd: Option<(f64, usize)> = None;
-    for (i, &x) in s.values().iter().enumerate() {
+    for i in candidates {
+        let x = values[i];
         let mean_without = (nf * mean - x) / (nf - 1.0);
         let m2_without = (m2 - (x - mean) * (x - mean_without)).max(0.0);
         let sd_without = (m2_without / (nf - 2.0)).sqrt();
@@ -202,7 +220,7 @@ fn influences(
         change,
         cell: Flagged {
             address: address(i),
-            value: s.values()[i],
+            value: values[i],
         },
     };
     (best_mean.map(make), best_sd.map(make))
@@ -257,7 +275,7 @@ pub fn robustness(s: &Sample, address: &dyn Fn(usize) -> String) -> Robustness {
         }
         None => Vec::new(),
     };
-    let trimmed = Sample::from_values(kept);
+    let trimmed = Sample::from_finite(kept);
     let (mean_without, sd_without, skewness_without) = (
         from_stat(trimmed.mean()),
         from_stat(trimmed.sd(Denominator::Sample)),
@@ -269,14 +287,9 @@ pub fn robustness(s: &Sample, address: &dyn Fn(usize) -> String) -> Robustness {
         change(&skewness_without, s.skewness(false)),
     );
     let (mean_influence, sd_influence) = influences(s, address);
-    let modified_z = stats::modified_z_scores(s)
+    let modified_z = stats::modified_z_beyond(s, stats::MODIFIED_Z_CUTOFF)
         .map_err(|e| e.to_string())
-        .map(|z| {
-            let big: Vec<usize> = (0..z.len())
-                .filter(|&i| z[i].abs() > stats::MODIFIED_Z_CUTOFF)
-                .collect();
-            flag(&big)
-        });
+        .map(|big| flag(&big));
     let heavy_tails = s.kurtosis(false).is_ok_and(|k| k > 3.0);
     let bootstrap =
         stats::bootstrap_intervals(s, stats::DEFAULT_RESAMPLES, 0.95, stats::DEFAULT_SEED)

@@ -6,7 +6,7 @@
 
 use std::collections::HashMap;
 
-use super::table::Cell;
+use super::table::{Cell, ERROR_CODES};
 
 /// Rows are held as u32: a sheet has at most 1,048,576 rows, and a CSV
 /// file with more than this many is refused when it is read.
@@ -262,6 +262,23 @@ impl ColumnBuilder {
             }
         };
         self.numbers.push(value);
+    }
+
+    /// Adds a text cell (blank, a spreadsheet error code, or text) without
+    /// copying text the column has seen before.
+    pub fn push_text(&mut self, text: &str) {
+        let trimmed = text.trim();
+        if trimmed.is_empty() || ERROR_CODES.contains(&trimmed) {
+            return self.push(Cell::from_text(text));
+        }
+        let row = self.numbers.len() as u32;
+        let rest = self.other.get_or_insert_with(Box::default);
+        let code = match rest.word_index.get(text) {
+            Some(&code) => code,
+            None => rest.word(text.to_string()),
+        };
+        rest.texts.push((row, code));
+        self.numbers.push(f64::NAN);
     }
 
     /// The column, its kind decided from all its cells.

@@ -33,21 +33,12 @@ fn detect_delimiter(text: &str) -> u8 {
         .map_or(b',', |(d, _)| *d)
 }
 
-/// A field as a cell: a number if it reads as one, otherwise text.
-pub fn parse_field(field: &str) -> Cell {
-    let trimmed = field.trim();
-    if trimmed.is_empty() {
-        return Cell::Blank;
-    }
-    match trimmed.parse::<f64>() {
-        Ok(x)
-            if x.is_finite()
-                && !trimmed.eq_ignore_ascii_case("nan")
-                && !trimmed.to_ascii_lowercase().contains("inf") =>
-        {
-            Cell::Number(x)
-        }
-        _ => Cell::from_text(field),
+/// Adds a field to its column: a number if it reads as one (infinities and
+/// NaN do not count), otherwise as text, blank or a spreadsheet error code.
+fn push_field(column: &mut ColumnBuilder, field: &str) {
+    match field.trim().parse::<f64>() {
+        Ok(x) if x.is_finite() => column.push(Cell::Number(x)),
+        _ => column.push_text(field),
     }
 }
 
@@ -118,7 +109,7 @@ pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<T
             grid.push(ColumnBuilder::blanks(body_rows));
         }
         for (c, column) in grid.iter_mut().enumerate() {
-            column.push(record.get(c).map_or(Cell::Blank, parse_field));
+            push_field(column, record.get(c).unwrap_or(""));
         }
         body_rows += 1;
     }

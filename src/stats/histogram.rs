@@ -53,6 +53,11 @@ pub struct Histogram {
     pub capped_from: Option<usize>,
 }
 
+/// Sturges' rule: ceil(log2 n) + 1 bins for n values.
+pub fn sturges_bins(n: usize) -> usize {
+    (n as f64).log2().ceil() as usize + 1
+}
+
 fn bin_count(sample: &Sample, rule: BinRule, range: f64) -> Stat<usize> {
     let n = sample.count() as f64;
     let width = match rule {
@@ -62,7 +67,7 @@ fn bin_count(sample: &Sample, rule: BinRule, range: f64) -> Stat<usize> {
             ));
         }
         BinRule::Fixed(k) => return Ok(k),
-        BinRule::Sturges => return Ok(n.log2().ceil() as usize + 1),
+        BinRule::Sturges => return Ok(sturges_bins(sample.count())),
         BinRule::Scott => {
             (24.0 * std::f64::consts::PI.sqrt() / n).cbrt() * sample.sd(Denominator::Population)?
         }

@@ -23,14 +23,15 @@ pub use bootstrap::{
     BootstrapIntervals, BootstrapMethod, DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET, Interval,
     bootstrap_intervals, resampled_in_full,
 };
-pub use histogram::{BinRule, Histogram, MAX_BINS, binned_mode, histogram};
+pub use histogram::{BinRule, Histogram, MAX_BINS, binned_mode, histogram, sturges_bins};
 pub use moments::{Denominator, Moments};
 pub use normal::{normal_cdf, normal_quantile};
 pub use order::{
     MAD_NORMAL_SCALE, bowley, iqr, mad, median, modes, quartile, trimmed_mean, winsorized_mean,
 };
 pub use outliers::{
-    Fences, MODIFIED_Z_CONSTANT, MODIFIED_Z_CUTOFF, Outliers, fences, modified_z_scores, outliers,
+    Fences, MODIFIED_Z_CONSTANT, MODIFIED_Z_CUTOFF, Outliers, fences, modified_z_beyond,
+    modified_z_scores, outliers,
 };
 pub use quantile::{QuantileMethod, quantile_sorted};
 pub use random::SplitMix64;

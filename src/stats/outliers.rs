@@ -73,6 +73,19 @@ pub fn modified_z_scores(sample: &Sample) -> Stat<Vec<f64>> {
         .collect())
 }
 
+/// Indexes of the values whose modified z-score exceeds `cutoff` in size,
+/// without keeping every score.
+pub fn modified_z_beyond(sample: &Sample, cutoff: f64) -> Stat<Vec<usize>> {
+    let centre = median(sample)?;
+    let spread = super::order::mad(sample, false)?;
+    if spread == 0.0 {
+        return Err(Undefined::ZeroMad);
+    }
+    Ok((0..sample.count())
+        .filter(|&i| (MODIFIED_Z_CONSTANT * (sample.values()[i] - centre) / spread).abs() > cutoff)
+        .collect())
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -119,5 +132,7 @@ mod tests {
         assert_eq!(z.iter().filter(|m| m.abs() > MODIFIED_Z_CUTOFF).count(), 1);
         let flat = Sample::from_values([1.0, 1.0, 1.0, 9.0]);
         assert_eq!(modified_z_scores(&flat), Err(Undefined::ZeroMad));
+        let big: Vec<usize> = (0..z.len()).filter(|&i| z[i].abs() > 3.5).collect();
+        assert_eq!(modified_z_beyond(&s, 3.5), Ok(big));
     }
 }

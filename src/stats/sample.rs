@@ -12,8 +12,9 @@ use super::undefined::{Stat, Undefined, need};
 #[derive(Debug)]
 pub struct Sample {
     values: Vec<f64>,
-    /// For each value, its index in the column it came from (for cell addresses).
-    positions: Vec<u32>,
+    /// For each value, its index in the column it came from (for cell
+    /// addresses); None while there has been no gap, when it is the identity.
+    positions: Option<Vec<u32>>,
     missing: usize,
     sorted: OnceLock<Vec<f64>>,
     moments: OnceLock<Moments>,
@@ -22,16 +23,23 @@ pub struct Sample {
 impl Sample {
     /// Takes a column with gaps. `None` and non-finite numbers count as missing.
     pub fn from_column(column: impl IntoIterator<Item = Option<f64>>) -> Sample {
-        let mut values = Vec::new();
-        let mut positions = Vec::new();
+        let column = column.into_iter();
+        let mut values = Vec::with_capacity(column.size_hint().0);
+        let mut positions: Option<Vec<u32>> = None;
         let mut missing = 0;
-        for (i, cell) in column.into_iter().enumerate() {
+        for (i, cell) in column.enumerate() {
             match cell {
                 Some(x) if x.is_finite() => {
                     values.push(x);
-                    positions.push(i as u32);
+                    if let Some(p) = positions.as_mut() {
+                        p.push(i as u32);
+                    }
                 }
-                _ => missing += 1,
+                _ => {
+                    missing += 1;
+                    // The first gap: positions stop being the identity.
+                    positions.get_or_insert_with(|| (0..values.len() as u32).collect());
+                }
             }
         }
         Sample::build(values, positions, missing)
@@ -42,7 +50,13 @@ impl Sample {
         Sample::from_column(values.into_iter().map(Some))
     }
 
-    fn build(values: Vec<f64>, positions: Vec<u32>, missing: usize) -> Sample {
+    /// Takes ownership of values already known to be finite, without a copy.
+    pub(crate) fn from_finite(values: Vec<f64>) -> Sample {
+        debug_assert!(values.iter().all(|x| x.is_finite()));
+        Sample::build(values, None, 0)
+    }
+
+    fn build(values: Vec<f64>, positions: Option<Vec<u32>>, missing: usize) -> Sample {
         Sample {
             values,
             positions,
@@ -57,9 +71,12 @@ impl Sample {
         &self.values
     }
 
-    /// For each value, the index of its cell in the column it was built from.
-    pub fn positions(&self) -> &[u32] {
-        &self.positions
+    /// The index, in the column it was built from, of the cell of value i.
+    pub fn position(&self, i: usize) -> usize {
+        match &self.positions {
+            Some(p) => p[i] as usize,
+            None => i,
+        }
     }
 
     /// Values in ascending order; sorted once, on first use.
@@ -148,7 +165,9 @@ mod tests {
         ]);
         assert_eq!(s.count(), 2);
         assert_eq!(s.missing(), 3);
-        assert_eq!(s.positions(), &[0, 3]);
+        assert_eq!((s.position(0), s.position(1)), (0, 3));
+        let whole = Sample::from_values([4.0, 5.0]);
+        assert_eq!(whole.position(1), 1);
         assert_eq!(s.sum(), 7.0);
     }
 

@@ -2,6 +2,9 @@
 
 /// Neumaier's improved Kahan summation (Neumaier 1974): the running error
 /// term also catches the case where the new term is larger than the sum.
+/// Each step's rounding error is found by Knuth's branch-free TwoSum, which
+/// gives the same exact error as Neumaier's two-case formula without a
+/// data-dependent branch in the hot loop.
 #[derive(Debug, Clone, Copy, Default)]
 pub struct Neumaier {
     sum: f64,
@@ -11,11 +14,9 @@ pub struct Neumaier {
 impl Neumaier {
     pub fn add(&mut self, x: f64) {
         let t = self.sum + x;
-        if self.sum.abs() >= x.abs() {
-            self.compensation += (self.sum - t) + x;
-        } else {
-            self.compensation += (x - t) + self.sum;
-        }
+        let x_part = t - self.sum;
+        let sum_part = t - x_part;
+        self.compensation += (self.sum - sum_part) + (x - x_part);
         self.sum = t;
     }
 
