@@ -211,10 +211,14 @@ fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<usi
         return Err(too_many());
     }
     if let [(ids, labels)] = per_key.as_slice() {
-        // One key: its ids already number the groups in order of first appearance.
+        // One key: its ids already number the groups in order of first
+        // appearance. Counting first sizes each group's row list exactly.
+        let mut sizes = vec![0usize; labels.len()];
+        ids.iter().for_each(|&id| sizes[id as usize] += 1);
         let mut order: Vec<(Vec<String>, Vec<usize>)> = labels
             .iter()
-            .map(|label| (vec![label.clone()], Vec::new()))
+            .zip(sizes)
+            .map(|(label, size)| (vec![label.clone()], Vec::with_capacity(size)))
             .collect();
         for (&id, &row) in ids.iter().zip(scope.rows) {
             order[id as usize].1.push(row);
@@ -245,6 +249,7 @@ fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<usi
         };
         order[slot].1.push(row);
     }
+    order.iter_mut().for_each(|(_, rows)| rows.shrink_to_fit());
     Ok(order)
 }
 
@@ -419,9 +424,7 @@ pub fn evaluate_against(
                 // Each (group, column) is independent and the robustness checks
                 // dominate, so they run in parallel; a sample is built inside its
                 // job, so only as many exist at once as there are threads.
-                let t0 = std::time::Instant::now();
                 let all_groups = groups(&scope, per)?;
-                eprintln!("groups {:?}", t0.elapsed());
                 let jobs: Vec<(usize, &ColumnRef)> = (0..all_groups.len())
                     .flat_map(|g| columns.iter().map(move |c| (g, c)))
                     .collect();
@@ -432,31 +435,15 @@ pub fn evaluate_against(
                         let sample = column_sample(table, &lets, group_rows, &column.name);
                         let cells = CellNamer::new(table, &sources, &column.name);
                         let address = |i: usize| cells.name(group_rows[sample.position(i)]);
-                        let t = std::time::Instant::now();
-                        let _ = sample.sorted();
-                        let _ = sample.moments();
-                        let t1 = t.elapsed();
-                        let figures = panel::panel_figures(&sample);
-                        let t2 = t.elapsed();
-                        let robustness = panel::robustness(&sample, &address);
-                        let t3 = t.elapsed();
-                        let sample_summary = panel::box_summary(&sample);
-                        eprintln!(
-                            "job sort+mom {t1:?} fig {:?} rob {:?} box {:?}",
-                            t2 - t1,
-                            t3 - t2,
-                            t.elapsed() - t3
-                        );
                         PanelEntry {
                             group: group.clone(),
                             column: column.name.clone(),
-                            figures,
-                            robustness,
-                            sample_summary,
+                            figures: panel::panel_figures(&sample),
+                            robustness: panel::robustness(&sample, &address),
+                            sample_summary: panel::box_summary(&sample),
                         }
                     })
                     .collect();
-                eprintln!("jobs {:?}", t0.elapsed());
                 let keys = per.iter().map(|k| k.name.clone()).collect();
                 results.blocks.push(Block::Panel {
                     name: name.value.clone(),
@@ -567,7 +554,12 @@ pub fn evaluate_against(
 
 /// The sample of a column over some rows: straight from a numeric data
 /// column, or through the row-by-row evaluation for anything else.
-fn column_sample(table: &Table, lets: &value::Lets, rows: &[usize], name: &str) -> Sample {
+pub(crate) fn column_sample(
+    table: &Table,
+    lets: &value::Lets,
+    rows: &[usize],
+    name: &str,
+) -> Sample {
     let data = match lets.contains_key(name) {
         true => None,
         false => table.column(name).and_then(|c| c.numbers()),
@@ -629,15 +621,16 @@ impl<'a> CellNamer<'a> {
     }
 }
 
-fn block_rows(
+/// The rows a block works on: those kept so far, narrowed by its own filter.
+fn block_rows<'a>(
     table: &Table,
     lets: &value::Lets,
-    kept: &[usize],
+    kept: &'a [usize],
     condition: &Option<Expr>,
-) -> Vec<usize> {
+) -> std::borrow::Cow<'a, [usize]> {
     match condition {
-        None => kept.to_vec(),
-        Some(c) => filter(&Scope::new(table, lets, kept), c).0,
+        None => std::borrow::Cow::Borrowed(kept),
+        Some(c) => std::borrow::Cow::Owned(filter(&Scope::new(table, lets, kept), c).0),
     }
 }
 

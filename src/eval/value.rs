@@ -164,11 +164,13 @@ impl<'a> Scope<'a> {
         if let Some(s) = self.samples.borrow().get(&key) {
             return Rc::clone(s);
         }
-        let numbers = match self.eval(argument) {
-            Value::Rows(rows) => rows.numbers(),
-            Value::One(_) => Vec::new(),
-        };
-        let sample = Rc::new(Sample::from_column(numbers));
+        let sample = Rc::new(match &argument.kind {
+            ExprKind::Column(c) => super::column_sample(self.table, self.lets, self.rows, &c.name),
+            _ => match self.eval(argument) {
+                Value::Rows(rows) => Sample::from_column(rows.numbers()),
+                Value::One(_) => Sample::from_column(Vec::new()),
+            },
+        });
         self.samples.borrow_mut().insert(key, Rc::clone(&sample));
         sample
     }

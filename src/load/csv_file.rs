@@ -1,10 +1,12 @@
 //! CSV and TSV: delimiter and UTF-8 byte-order mark detected; each field
 //! typed as a number, or kept as text.
 
+use std::io::Read;
 use std::path::Path;
 
 use super::column::{Column, ColumnBuilder, ColumnKind, MAX_ROWS};
-use super::table::{Cell, SourceInfo, Table, cell_address};
+use super::source::Hashing;
+use super::table::{Cell, Table, cell_address};
 use super::{LoadError, LoadOptions};
 
 /// The pseudo-sheet name of a CSV file: its name without the ending.
@@ -42,20 +44,52 @@ fn push_field(column: &mut ColumnBuilder, field: &str) {
     }
 }
 
-pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<Table, LoadError> {
-    let path = source.path.clone();
-    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
-    let text = std::str::from_utf8(bytes).map_err(|e| {
-        let line = bytes[..e.valid_up_to()]
-            .iter()
-            .filter(|&&b| b == b'\n')
-            .count()
-            + 1;
-        LoadError::Malformed {
-            path: path.clone(),
-            reason: format!("line {line} is not UTF-8 text; save the file as UTF-8 and run again"),
-        }
+/// The first bytes of the file, enough to see its first line.
+const HEAD_BYTES: u64 = 1 << 16;
+
+/// Reads a CSV or TSV file as it streams past: only the columns are kept.
+pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
+    let shown = path.display().to_string();
+    let file = std::fs::File::open(path).map_err(|e| LoadError::Unreadable {
+        path: shown.clone(),
+        reason: e.to_string(),
     })?;
+    let mut hashing = Hashing::new(std::io::BufReader::with_capacity(1 << 20, file));
+    let mut head = Vec::new();
+    (&mut hashing)
+        .take(HEAD_BYTES)
+        .read_to_end(&mut head)
+        .map_err(|e| LoadError::Unreadable {
+            path: shown.clone(),
+            reason: e.to_string(),
+        })?;
+    if head.starts_with(b"\xEF\xBB\xBF") {
+        head.drain(..3);
+    }
+    let delimiter = detect_delimiter(&String::from_utf8_lossy(&head));
+    let mut input = std::io::Cursor::new(head).chain(hashing);
+    let (sheet, header_row, columns, rows) = read_records(&mut input, delimiter, &shown, options)?;
+    let (_, hashing) = input.into_inner();
+    Ok(Table {
+        source: hashing.finish(path),
+        sheet,
+        header_row,
+        columns,
+        rows,
+    })
+}
+
+/// A sheet's name, header row, columns and count of data rows.
+type Parts = (String, u32, Vec<Column>, usize);
+
+/// The records of a CSV file as columns.
+fn read_records(
+    input: impl Read,
+    delimiter: u8,
+    path: &str,
+    options: &LoadOptions,
+) -> Result<Parts, LoadError> {
+    let path = path.to_string();
     let sheet = sheet_name(Path::new(&path));
     if options.sheet.as_ref().is_some_and(|s| s != &sheet) {
         return Err(LoadError::NoSuchSheet {
@@ -66,10 +100,10 @@ pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<T
     }
     let header_row = options.header_row.unwrap_or(1);
     let mut reader = csv::ReaderBuilder::new()
-        .delimiter(detect_delimiter(text))
+        .delimiter(delimiter)
         .has_headers(false)
         .flexible(true)
-        .from_reader(text.as_bytes());
+        .from_reader(input);
     // Stream the records into columns: only the header rows are kept whole.
     let mut header: Option<csv::StringRecord> = None;
     let mut grid: Vec<ColumnBuilder> = Vec::new();
@@ -80,9 +114,16 @@ pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<T
             Ok(false) => break,
             Ok(true) => {}
             Err(e) => {
+                let reason = match e.kind() {
+                    csv::ErrorKind::Utf8 { pos, .. } => format!(
+                        "line {} is not UTF-8 text; save the file as UTF-8 and run again",
+                        pos.as_ref().map_or(seen + 1, |p| p.line() as usize)
+                    ),
+                    _ => e.to_string(),
+                };
                 return Err(LoadError::Malformed {
                     path: path.clone(),
-                    reason: e.to_string(),
+                    reason,
                 });
             }
         }
@@ -128,13 +169,7 @@ pub fn load(bytes: &[u8], source: SourceInfo, options: &LoadOptions) -> Result<T
         .map(|c| header.get(c).unwrap_or("").trim().to_string())
         .collect();
     let columns = build_columns(&path, names, grid, header_row)?;
-    Ok(Table {
-        source,
-        sheet,
-        header_row,
-        columns,
-        rows: body_rows,
-    })
+    Ok((sheet, header_row, columns, body_rows))
 }
 
 /// Named columns from header names and cells, refusing blank and duplicate headers.
@@ -176,8 +211,10 @@ mod tests {
     use super::*;
 
     fn table(text: &str) -> Result<Table, LoadError> {
-        let source = SourceInfo::describe(Path::new("deliveries.csv"), text.as_bytes());
-        load(text.as_bytes(), source, &LoadOptions::default())
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("deliveries.csv");
+        std::fs::write(&path, text).unwrap();
+        load(&path, &LoadOptions::default())
     }
 
     #[test]

@@ -5,13 +5,15 @@
 
 mod column;
 mod csv_file;
+mod source;
 mod table;
 mod workbook;
 
 use std::path::Path;
 
 pub use column::{CellIssue, Column, ColumnBuilder, ColumnKind, IssueKind, MAX_ROWS};
-pub use table::{Cell, SourceInfo, Table, column_letters, quote_sheet as table_sheet_ref};
+pub use source::SourceInfo;
+pub use table::{Cell, Table, column_letters, quote_sheet as table_sheet_ref};
 
 #[derive(Debug, thiserror::Error)]
 pub enum LoadError {
@@ -61,19 +63,20 @@ pub struct LoadOptions {
 /// Reads any supported file; the kind is taken from its ending.
 pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
     let shown = path.display().to_string();
-    let bytes = std::fs::read(path).map_err(|e| LoadError::Unreadable {
-        path: shown.clone(),
-        reason: e.to_string(),
-    })?;
-    let source = SourceInfo::describe(path, &bytes);
     let ending = path
         .extension()
         .and_then(|e| e.to_str())
         .unwrap_or("")
         .to_ascii_lowercase();
     match ending.as_str() {
-        "csv" | "tsv" | "txt" => csv_file::load(&bytes, source, options),
-        "xlsx" | "xlsm" | "xls" | "xlsb" | "ods" => workbook::load(path, source, options),
+        "csv" | "tsv" | "txt" => csv_file::load(path, options),
+        "xlsx" | "xlsm" | "xls" | "xlsb" | "ods" => {
+            let source = SourceInfo::of_file(path).map_err(|e| LoadError::Unreadable {
+                path: shown.clone(),
+                reason: e.to_string(),
+            })?;
+            workbook::load(path, source, options)
+        }
         other => Err(LoadError::Unreadable {
             path: shown,
             reason: format!(

@@ -1,34 +1,7 @@
 //! The loaded data: its source, its typed columns and their cell addresses.
 
-use std::path::Path;
-
-use sha2::{Digest, Sha256};
-
 use super::column::Column;
-
-/// What the About sheet says about the input file.
-#[derive(Debug, Clone)]
-pub struct SourceInfo {
-    pub path: String,
-    pub file_name: String,
-    pub size: u64,
-    pub sha256: String,
-}
-
-impl SourceInfo {
-    pub fn describe(path: &Path, bytes: &[u8]) -> SourceInfo {
-        let digest = Sha256::digest(bytes);
-        SourceInfo {
-            path: path.display().to_string(),
-            file_name: path
-                .file_name()
-                .map(|n| n.to_string_lossy().into_owned())
-                .unwrap_or_default(),
-            size: bytes.len() as u64,
-            sha256: digest.iter().map(|b| format!("{b:02x}")).collect(),
-        }
-    }
-}
+use super::source::SourceInfo;
 
 /// One cell as a loader reads it, before its column is stored by type.
 #[derive(Debug, Clone, PartialEq)]

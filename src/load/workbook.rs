@@ -6,7 +6,8 @@ use calamine::{Data, Reader, open_workbook_auto};
 
 use super::column::ColumnBuilder;
 use super::csv_file::build_columns;
-use super::table::{Cell, SourceInfo, Table};
+use super::source::SourceInfo;
+use super::table::{Cell, Table};
 use super::{LoadError, LoadOptions};
 
 fn unreadable(path: &Path, e: impl std::fmt::Display) -> LoadError {
