@@ -30,8 +30,8 @@ pub fn results(results: &Results, table: &Table, run: &RunInfo) -> Json {
                         "group": e.group, "column": e.column, "figures": figures,
                         "robustness": {
                             "status": r.status.word(), "reason": r.reason,
-                            "outliers_1_5_iqr": r.outliers_wide.iter().map(|f| json!({"cell": f.address, "value": f.value})).collect::<Vec<_>>(),
-                            "outliers_3_iqr": r.outliers_far.iter().map(|f| json!({"cell": f.address, "value": f.value})).collect::<Vec<_>>(),
+                            "outliers_1_5_iqr": r.outliers_wide.iter().map(|f| json!({"cell": f.address.to_string(), "value": f.value})).collect::<Vec<_>>(),
+                            "outliers_3_iqr": r.outliers_far.iter().map(|f| json!({"cell": f.address.to_string(), "value": f.value})).collect::<Vec<_>>(),
                             "mean_without_outliers": one(&r.mean_without), "sd_without_outliers": one(&r.sd_without),
                             "bootstrap": r.bootstrap.as_ref().ok().map(|b| json!({
                                 "mean": [b.mean.low, b.mean.high], "median": [b.median.low, b.median.high],

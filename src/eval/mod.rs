@@ -16,7 +16,10 @@ use crate::load::{IssueKind, Table};
 use crate::recipe::ast::{Bins, CheckLevel, ColumnRef, Expr, ExprKind, Recipe, StatementKind};
 use crate::stats::{self, BinRule, Histogram, Sample};
 
-pub use panel::{BoxSummary, Flagged, Influence, PANEL_LABELS, PanelEntry, Robustness, Status};
+pub use panel::{
+    BoxSummary, CellName, CellPlace, Flagged, Influence, PANEL_LABELS, PanelEntry, Robustness,
+    Status,
+};
 pub use value::{Context, One, Previous, Rows, Scope, Term, Value};
 
 /// The label of a group whose key cell is blank.
@@ -579,44 +582,41 @@ fn column_expr(column: &ColumnRef) -> Expr {
 
 /// Names the input cell of a table row in one column. A `let` computed
 /// from one data column points at that column's cell; from several, at the
-/// row. The sheet and column part is made once: a long column can flag
-/// thousands of cells.
+/// row. The place is made once per column and shared by every name.
 struct CellNamer<'a> {
     table: &'a Table,
-    /// `Deliveries!D` when the column is (or comes from) one data column.
-    prefix: Option<String>,
-    column: &'a str,
+    place: std::sync::Arc<CellPlace>,
 }
 
 impl<'a> CellNamer<'a> {
-    fn new(table: &'a Table, sources: &HashMap<String, Vec<String>>, column: &'a str) -> Self {
+    fn new(table: &'a Table, sources: &HashMap<String, Vec<String>>, column: &str) -> Self {
         let behind = match sources.get(column).map(Vec::as_slice) {
             Some([only]) => only.as_str(),
             _ => column,
         };
-        let prefix = table.column(behind).map(|c| {
-            format!(
-                "{}!{}",
-                crate::load::table_sheet_ref(&table.sheet),
-                crate::load::column_letters(c.sheet_column)
-            )
-        });
+        let sheet = crate::load::table_sheet_ref(&table.sheet);
+        let place = match table.column(behind) {
+            Some(c) => CellPlace::Column {
+                sheet_and_letters: format!(
+                    "{sheet}!{}",
+                    crate::load::column_letters(c.sheet_column)
+                ),
+            },
+            None => CellPlace::Row {
+                sheet,
+                column: column.to_string(),
+            },
+        };
         CellNamer {
             table,
-            prefix,
-            column,
+            place: std::sync::Arc::new(place),
         }
     }
 
-    fn name(&self, row: usize) -> String {
-        let sheet_row = self.table.header_row as usize + 1 + row;
-        match &self.prefix {
-            Some(prefix) => format!("{prefix}{sheet_row}"),
-            None => format!(
-                "{}!row {sheet_row} ({})",
-                crate::load::table_sheet_ref(&self.table.sheet),
-                self.column
-            ),
+    fn name(&self, row: usize) -> CellName {
+        CellName {
+            place: std::sync::Arc::clone(&self.place),
+            sheet_row: (self.table.header_row as usize + 1 + row) as u32,
         }
     }
 }

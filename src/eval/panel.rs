@@ -1,5 +1,7 @@
 //! The standard panel and its robustness checks for one (group, column).
 
+use std::sync::Arc;
+
 use crate::stats::{self, Denominator, QuantileMethod, Sample};
 
 use super::aggregate::from_stat;
@@ -27,10 +29,40 @@ pub const PANEL_LABELS: &[&str] = &[
     "high outliers",
 ];
 
+/// Where the values of one panel column come from: `Deliveries!D` for a
+/// data column (or a `let` computed from one), or a sheet and a name for a
+/// `let` computed from several columns.
+#[derive(Debug, PartialEq)]
+pub enum CellPlace {
+    Column { sheet_and_letters: String },
+    Row { sheet: String, column: String },
+}
+
+/// A source cell, named only when shown: a long column can flag thousands.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CellName {
+    pub place: Arc<CellPlace>,
+    /// 1-based sheet row.
+    pub sheet_row: u32,
+}
+
+impl std::fmt::Display for CellName {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match &*self.place {
+            CellPlace::Column { sheet_and_letters } => {
+                write!(f, "{sheet_and_letters}{}", self.sheet_row)
+            }
+            CellPlace::Row { sheet, column } => {
+                write!(f, "{sheet}!row {} ({column})", self.sheet_row)
+            }
+        }
+    }
+}
+
 /// A value and the cell it came from.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Flagged {
-    pub address: String,
+    pub address: CellName,
     pub value: f64,
 }
 
@@ -174,7 +206,7 @@ fn change(after: &One, before: stats::Stat) -> One {
 /// update formulas for the mean and the sum of squares.
 fn influences(
     s: &Sample,
-    address: &dyn Fn(usize) -> String,
+    address: &dyn Fn(usize) -> CellName,
 ) -> (Option<Influence>, Option<Influence>) {
     let n = s.count();
     let Ok(moments) = s.moments() else {
@@ -227,7 +259,7 @@ fn influences(
 }
 
 /// Robustness of one (group, column). `address(i)` is the source cell of value i.
-pub fn robustness(s: &Sample, address: &dyn Fn(usize) -> String) -> Robustness {
+pub fn robustness(s: &Sample, address: &dyn Fn(usize) -> CellName) -> Robustness {
     let m = QuantileMethod::default();
     let flag = |indexes: &[usize]| {
         indexes
@@ -393,13 +425,23 @@ pub fn box_summary(s: &Sample) -> Option<BoxSummary> {
 mod tests {
     use super::*;
 
+    /// Value i sits in Deliveries!C(i + 2), under a header row.
+    fn column_c(i: usize) -> CellName {
+        CellName {
+            place: Arc::new(CellPlace::Column {
+                sheet_and_letters: "Deliveries!C".into(),
+            }),
+            sheet_row: i as u32 + 2,
+        }
+    }
+
     #[test]
     fn leave_one_out_matches_recomputing() {
         let values = [3.0, 4.0, 4.5, 5.0, 30.0, 4.2];
         let s = Sample::from_values(values);
-        let (mean, sd) = influences(&s, &|i| format!("r{i}"));
+        let (mean, sd) = influences(&s, &column_c);
         let (mean, sd) = (mean.unwrap(), sd.unwrap());
-        assert_eq!(mean.cell.address, "r4");
+        assert_eq!(mean.cell.address.to_string(), "Deliveries!C6");
         let rest = Sample::from_values(values.iter().copied().filter(|&x| x != 30.0));
         assert!((mean.change - (rest.mean().unwrap() - s.mean().unwrap())).abs() < 1e-12);
         assert!(
@@ -413,17 +455,18 @@ mod tests {
     #[test]
     fn a_typed_in_outlier_is_a_warning_with_its_cell() {
         let s = Sample::from_values([10.0, 11.0, 12.0, 11.5, 10.5, 11.2, 250.0]);
-        let r = robustness(&s, &|i| format!("Deliveries!C{}", i + 2));
+        let r = robustness(&s, &column_c);
         assert_eq!(r.status, Status::Warn);
         assert_eq!(
             r.outliers_far,
             vec![Flagged {
-                address: "Deliveries!C8".into(),
+                address: column_c(6),
                 value: 250.0
             }]
         );
+        assert_eq!(r.outliers_far[0].address.to_string(), "Deliveries!C8");
         assert!(r.reason.contains("beyond the 3 IQR fences"), "{}", r.reason);
         let calm = Sample::from_values([10.0, 11.0, 12.0, 11.5, 10.5, 11.2, 10.8]);
-        assert_eq!(robustness(&calm, &|i| i.to_string()).status, Status::Ok);
+        assert_eq!(robustness(&calm, &column_c).status, Status::Ok);
     }
 }
