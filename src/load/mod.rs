@@ -5,6 +5,7 @@
 
 mod column;
 mod csv_file;
+mod sheet_cells;
 mod source;
 mod table;
 mod workbook;

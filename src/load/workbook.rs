@@ -2,10 +2,9 @@
 
 use std::path::Path;
 
-use calamine::{Data, Reader, open_workbook_auto};
+use calamine::{Data, DataRef, Reader, Xlsx, open_workbook_auto};
 
-use super::column::ColumnBuilder;
-use super::csv_file::build_columns;
+use super::sheet_cells::SheetCells;
 use super::source::SourceInfo;
 use super::table::{Cell, Table};
 use super::{LoadError, LoadOptions};
@@ -23,7 +22,7 @@ pub fn sheet_names(path: &Path) -> Result<Vec<String>, LoadError> {
         .sheet_names())
 }
 
-fn cell(data: &Data) -> Cell {
+fn cell_of(data: &Data) -> Cell {
     match data {
         Data::Int(i) => Cell::Number(*i as f64),
         Data::Float(x) if x.is_finite() => Cell::Number(*x),
@@ -97,74 +96,91 @@ pub fn load(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Ta
 
 fn read(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table, LoadError> {
     let shown = path.display().to_string();
+    let streamable = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("xlsx") || e.eq_ignore_ascii_case("xlsm"));
+    if streamable {
+        let mut workbook: Xlsx<_> =
+            calamine::open_workbook(path).map_err(|e| unreadable(path, e))?;
+        let sheet = choose_sheet(&workbook.sheet_names(), options, &shown)?;
+        let mut cells = SheetCells::new(options);
+        let mut reader = workbook
+            .worksheet_cells_reader(&sheet)
+            .map_err(|e| unreadable(path, e))?;
+        let mut in_order = true;
+        while let Some(cell) = reader.next_cell().map_err(|e| unreadable(path, e))? {
+            let (row, column) = cell.get_position();
+            let value = cell.get_value();
+            if *value == DataRef::Empty {
+                continue;
+            }
+            let taken = cells.add(
+                row,
+                column,
+                || Data::from(value.clone()).to_string(),
+                |builder| match value {
+                    DataRef::SharedString(s) => builder.push_text(s),
+                    DataRef::String(s) => builder.push_text(s),
+                    other => builder.push(cell_of(&Data::from(other.clone()))),
+                },
+            );
+            if taken.is_err() {
+                in_order = false;
+                break;
+            }
+        }
+        drop(reader);
+        if in_order {
+            return cells.finish(&shown, sheet, source);
+        }
+        // Rows out of order (allowed, if rare): read the whole range instead.
+    }
     let mut workbook = open_workbook_auto(path).map_err(|e| unreadable(path, e))?;
-    let names = workbook.sheet_names();
-    let sheet = match &options.sheet {
-        Some(wanted) => names
-            .iter()
-            .find(|n| *n == wanted)
-            .cloned()
-            .ok_or_else(|| LoadError::NoSuchSheet {
-                path: shown.clone(),
-                sheet: wanted.clone(),
-                available: names
-                    .iter()
-                    .map(|n| format!("\"{n}\""))
-                    .collect::<Vec<_>>()
-                    .join(", "),
-            })?,
-        None => names
-            .first()
-            .cloned()
-            .ok_or_else(|| LoadError::EmptySheet {
-                path: shown.clone(),
-                sheet: "(none)".into(),
-            })?,
-    };
+    let sheet = choose_sheet(&workbook.sheet_names(), options, &shown)?;
     let range = workbook
         .worksheet_range(&sheet)
         .map_err(|e| unreadable(path, e))?;
-    let Some((top, left)) = range.start() else {
-        return Err(LoadError::EmptySheet { path: shown, sheet });
-    };
-    let header_row = options.header_row.unwrap_or(1);
-    // calamine's range starts at the first used cell; sheet rows are 1-based.
-    let header_index = header_row as i64 - 1 - i64::from(top);
-    if header_index < 0 || header_index as usize >= range.height() {
-        return Err(LoadError::NoHeaderRow {
-            path: shown,
-            sheet,
-            row: header_row,
-        });
+    let (top, left) = range.start().unwrap_or((0, 0));
+    let mut cells = SheetCells::new(options);
+    for (row, column, data) in range.used_cells() {
+        let (row, column) = (top + row as u32, left + column as u32);
+        cells
+            .add(
+                row,
+                column,
+                || data.to_string(),
+                |builder| match data {
+                    Data::String(s) => builder.push_text(s),
+                    other => builder.push(cell_of(other)),
+                },
+            )
+            .expect("a range's used cells come in row order");
     }
-    let header_index = header_index as usize;
-    let width = range.width() + left as usize;
-    let body_rows = range.height() - header_index - 1;
-    let mut names_in_sheet = vec![String::new(); width];
-    let mut grid: Vec<ColumnBuilder> = (0..width).map(|_| ColumnBuilder::default()).collect();
-    let left = left as usize;
-    for (r, row) in range.rows().enumerate().skip(header_index) {
-        if r == header_index {
-            for (c, data) in row.iter().enumerate() {
-                names_in_sheet[c + left] = match data {
-                    Data::Empty => String::new(),
-                    other => other.to_string().trim().to_string(),
-                };
-            }
-            continue;
+    cells.finish(&shown, sheet, source)
+}
+
+/// The sheet the options name, or the first.
+fn choose_sheet(names: &[String], options: &LoadOptions, shown: &str) -> Result<String, LoadError> {
+    match &options.sheet {
+        Some(wanted) => {
+            names
+                .iter()
+                .find(|n| *n == wanted)
+                .cloned()
+                .ok_or_else(|| LoadError::NoSuchSheet {
+                    path: shown.to_string(),
+                    sheet: wanted.clone(),
+                    available: names
+                        .iter()
+                        .map(|n| format!("\"{n}\""))
+                        .collect::<Vec<_>>()
+                        .join(", "),
+                })
         }
-        // Columns left of the used range are blank.
-        grid[..left].iter_mut().for_each(|b| b.push(Cell::Blank));
-        for (builder, data) in grid[left..].iter_mut().zip(row) {
-            builder.push(cell(data));
-        }
+        None => names.first().cloned().ok_or_else(|| LoadError::EmptySheet {
+            path: shown.to_string(),
+            sheet: "(none)".into(),
+        }),
     }
-    let columns = build_columns(&shown, names_in_sheet, grid, header_row)?;
-    Ok(Table {
-        source,
-        sheet,
-        header_row,
-        columns,
-        rows: body_rows,
-    })
 }
