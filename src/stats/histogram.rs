@@ -130,13 +130,22 @@ fn bin_of(x: f64, edges: &[f64]) -> usize {
 /// The mean of the values in the fullest of k equal bins over [min, max];
 /// every tied bin's mean, ascending.
 pub fn binned_mode(sample: &Sample, k: usize) -> Stat<Vec<f64>> {
-    let h = histogram(sample, BinRule::Fixed(k))?;
-    let fullest = *h.counts.iter().max().unwrap_or(&0);
-    let mut sums = vec![Neumaier::default(); h.counts.len()];
-    for &x in sample.values() {
-        sums[bin_of(x, &h.edges)].add(x);
+    if k == 0 {
+        return Err(Undefined::BadArgument(
+            "a histogram needs at least 1 bin".into(),
+        ));
     }
-    Ok(h.counts
+    let edges = equal_edges(sample.min()?, sample.max()?, k.min(MAX_BINS));
+    // Counts and sums in one pass: each value's bin is found once.
+    let mut counts = vec![0usize; edges.len() - 1];
+    let mut sums = vec![Neumaier::default(); counts.len()];
+    for &x in sample.values() {
+        let bin = bin_of(x, &edges);
+        counts[bin] += 1;
+        sums[bin].add(x);
+    }
+    let fullest = *counts.iter().max().unwrap_or(&0);
+    Ok(counts
         .iter()
         .zip(&sums)
         .filter(|(count, _)| **count == fullest)
