@@ -364,7 +364,7 @@ fn calc(expression: &str, data: &Path, options: LoadOptions) -> Result<ExitCode,
     let expr = recipe::parse_expression(expression, Some(&headers))
         .map_err(|d| Failure(recipe::render_all(&d, "expression", expression)))?;
     let lets = Default::default();
-    let rows: Vec<usize> = (0..table.rows).collect();
+    let rows: Vec<crate::eval::Row> = (0..table.rows as crate::eval::Row).collect();
     let scope = Scope::new(&table, &lets, &rows);
     let mut out = String::new();
     let line = |v: &One| match v {

@@ -20,7 +20,7 @@ pub use panel::{
     BoxSummary, CellName, CellPlace, Flagged, Influence, PANEL_LABELS, PanelEntry, Robustness,
     Status,
 };
-pub use value::{Context, One, Previous, Rows, Scope, Term, Value};
+pub use value::{Context, One, Previous, Row, Rows, Scope, Term, Value};
 
 /// The label of a group whose key cell is blank.
 pub const BLANK_KEY: &str = "(blank)";
@@ -170,7 +170,7 @@ fn key_ids(scope: &Scope, key: &ColumnRef) -> (Vec<u32>, Vec<String>) {
             .rows
             .iter()
             .map(|&r| {
-                let (slot, label) = match crate::load::Column::word_of(codes[r]) {
+                let (slot, label) = match crate::load::Column::word_of(codes[r as usize]) {
                     Some(w) => (&mut id_of_word[w], &words[w]),
                     None => (&mut blank_id, &BLANK_KEY.to_string()),
                 };
@@ -198,7 +198,7 @@ fn key_ids(scope: &Scope, key: &ColumnRef) -> (Vec<u32>, Vec<String>) {
 }
 
 /// Group keys of each row in `rows`, and the groups in order of first appearance.
-fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<usize>)>, EvalError> {
+fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<Row>)>, EvalError> {
     if keys.is_empty() {
         return Ok(vec![(Vec::new(), scope.rows.to_vec())]);
     }
@@ -218,7 +218,7 @@ fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<usi
         // appearance. Counting first sizes each group's row list exactly.
         let mut sizes = vec![0usize; labels.len()];
         ids.iter().for_each(|&id| sizes[id as usize] += 1);
-        let mut order: Vec<(Vec<String>, Vec<usize>)> = labels
+        let mut order: Vec<(Vec<String>, Vec<Row>)> = labels
             .iter()
             .zip(sizes)
             .map(|(label, size)| (vec![label.clone()], Vec::with_capacity(size)))
@@ -228,7 +228,7 @@ fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<usi
         }
         return Ok(order);
     }
-    let mut order: Vec<(Vec<String>, Vec<usize>)> = Vec::new();
+    let mut order: Vec<(Vec<String>, Vec<Row>)> = Vec::new();
     let mut index: HashMap<Vec<u32>, usize> = HashMap::new();
     let mut key = Vec::with_capacity(keys.len());
     for (i, &row) in scope.rows.iter().enumerate() {
@@ -257,7 +257,7 @@ fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<usi
 }
 
 /// Rows of `scope` where `condition` holds; the others counted by reason.
-fn filter(scope: &Scope, condition: &Expr) -> (Vec<usize>, usize, usize) {
+fn filter(scope: &Scope, condition: &Expr) -> (Vec<Row>, usize, usize) {
     let truths = match scope.eval(condition) {
         Value::Rows(rows) => value::truths(&rows),
         Value::One(One::Truth(b)) => vec![Some(b); scope.rows.len()],
@@ -353,7 +353,7 @@ pub fn evaluate_against(
     let mut lets = value::Lets::new();
     // For each let, the data columns it is computed from (for source cells).
     let mut sources: HashMap<String, Vec<String>> = HashMap::new();
-    let mut kept: Vec<usize> = (0..table.rows).collect();
+    let mut kept: Vec<Row> = (0..table.rows as Row).collect();
     let mut results = Results {
         title: None,
         blocks: Vec::new(),
@@ -437,7 +437,8 @@ pub fn evaluate_against(
                         let (group, group_rows) = &all_groups[g];
                         let sample = column_sample(table, &lets, group_rows, &column.name);
                         let cells = CellNamer::new(table, &sources, &column.name);
-                        let address = |i: usize| cells.name(group_rows[sample.position(i)]);
+                        let address =
+                            |i: usize| cells.name(group_rows[sample.position(i)] as usize);
                         PanelEntry {
                             group: group.clone(),
                             column: column.name.clone(),
@@ -557,18 +558,13 @@ pub fn evaluate_against(
 
 /// The sample of a column over some rows: straight from a numeric data
 /// column, or through the row-by-row evaluation for anything else.
-pub(crate) fn column_sample(
-    table: &Table,
-    lets: &value::Lets,
-    rows: &[usize],
-    name: &str,
-) -> Sample {
+pub(crate) fn column_sample(table: &Table, lets: &value::Lets, rows: &[Row], name: &str) -> Sample {
     let data = match lets.contains_key(name) {
         true => None,
         false => table.column(name).and_then(|c| c.numbers()),
     };
     match data {
-        Some(numbers) => Sample::from_column(rows.iter().map(|&r| Some(numbers[r]))),
+        Some(numbers) => Sample::from_column(rows.iter().map(|&r| Some(numbers[r as usize]))),
         None => Sample::from_column(Scope::new(table, lets, rows).column(name).numbers()),
     }
 }
@@ -625,9 +621,9 @@ impl<'a> CellNamer<'a> {
 fn block_rows<'a>(
     table: &Table,
     lets: &value::Lets,
-    kept: &'a [usize],
+    kept: &'a [Row],
     condition: &Option<Expr>,
-) -> std::borrow::Cow<'a, [usize]> {
+) -> std::borrow::Cow<'a, [Row]> {
     match condition {
         None => std::borrow::Cow::Borrowed(kept),
         Some(c) => std::borrow::Cow::Owned(filter(&Scope::new(table, lets, kept), c).0),
@@ -635,10 +631,12 @@ fn block_rows<'a>(
 }
 
 /// A value over `kept` rows spread to the whole table (missing elsewhere).
-fn widen(v: Value, kept: &[usize], total: usize) -> Rows {
-    fn scatter<T: Clone>(values: Vec<Option<T>>, kept: &[usize], total: usize) -> Vec<Option<T>> {
+fn widen(v: Value, kept: &[Row], total: usize) -> Rows {
+    fn scatter<T: Clone>(values: Vec<Option<T>>, kept: &[Row], total: usize) -> Vec<Option<T>> {
         let mut full = vec![None; total];
-        kept.iter().zip(values).for_each(|(&r, x)| full[r] = x);
+        kept.iter()
+            .zip(values)
+            .for_each(|(&r, x)| full[r as usize] = x);
         full
     }
     match value::spread(v, kept.len()) {

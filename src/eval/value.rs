@@ -107,12 +107,16 @@ pub struct Context {
     pub terms: RefCell<Vec<Term>>,
 }
 
+/// A table row index. Four bytes keep row lists small: a sheet holds at
+/// most 2^20 rows and a CSV file at most `load::MAX_ROWS`.
+pub type Row = u32;
+
 /// What an expression is evaluated over: some rows of the table.
 pub struct Scope<'a> {
     pub table: &'a Table,
     pub lets: &'a Lets,
     /// Table rows in this scope, ascending.
-    pub rows: &'a [usize],
+    pub rows: &'a [Row],
     /// The group these rows form ("(all rows)" when ungrouped).
     group: String,
     context: Option<&'a Context>,
@@ -122,7 +126,7 @@ pub struct Scope<'a> {
 }
 
 impl<'a> Scope<'a> {
-    pub fn new(table: &'a Table, lets: &'a Lets, rows: &'a [usize]) -> Scope<'a> {
+    pub fn new(table: &'a Table, lets: &'a Lets, rows: &'a [Row]) -> Scope<'a> {
         Scope {
             table,
             lets,
@@ -175,11 +179,6 @@ impl<'a> Scope<'a> {
         sample
     }
 
-    /// Table row of the i-th row of this scope.
-    pub fn table_row(&self, i: usize) -> usize {
-        self.rows[i]
-    }
-
     pub fn column(&self, name: &str) -> Rows {
         if let Some(rows) = self.lets.get(name) {
             return pick(rows, self.rows);
@@ -188,9 +187,21 @@ impl<'a> Scope<'a> {
             return Rows::Numbers(vec![None; self.rows.len()]);
         };
         match column.kind {
-            ColumnKind::Text => Rows::Texts(self.rows.iter().map(|&r| column.text(r)).collect()),
-            ColumnKind::Bool => Rows::Truths(self.rows.iter().map(|&r| column.truth(r)).collect()),
-            _ => Rows::Numbers(self.rows.iter().map(|&r| column.number(r)).collect()),
+            ColumnKind::Text => {
+                Rows::Texts(self.rows.iter().map(|&r| column.text(r as usize)).collect())
+            }
+            ColumnKind::Bool => Rows::Truths(
+                self.rows
+                    .iter()
+                    .map(|&r| column.truth(r as usize))
+                    .collect(),
+            ),
+            _ => Rows::Numbers(
+                self.rows
+                    .iter()
+                    .map(|&r| column.number(r as usize))
+                    .collect(),
+            ),
         }
     }
 
@@ -242,11 +253,11 @@ impl<'a> Scope<'a> {
     }
 }
 
-fn pick(rows: &Rows, at: &[usize]) -> Rows {
+fn pick(rows: &Rows, at: &[Row]) -> Rows {
     match rows {
-        Rows::Numbers(v) => Rows::Numbers(at.iter().map(|&r| v[r]).collect()),
-        Rows::Truths(v) => Rows::Truths(at.iter().map(|&r| v[r]).collect()),
-        Rows::Texts(v) => Rows::Texts(at.iter().map(|&r| v[r].clone()).collect()),
+        Rows::Numbers(v) => Rows::Numbers(at.iter().map(|&r| v[r as usize]).collect()),
+        Rows::Truths(v) => Rows::Truths(at.iter().map(|&r| v[r as usize]).collect()),
+        Rows::Texts(v) => Rows::Texts(at.iter().map(|&r| v[r as usize].clone()).collect()),
     }
 }
 
