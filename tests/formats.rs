@@ -67,3 +67,35 @@ fn a_missing_sheet_names_the_ones_there() {
         "{e}"
     );
 }
+
+/// The file is hashed as it streams past; the hash must be that of the
+/// whole file (checked with sha2 over the bytes read at once), for a CSV
+/// longer than the loader's first chunk and its read buffer, with a
+/// byte-order mark, and for a workbook.
+#[test]
+fn streamed_files_are_hashed_whole() {
+    use sha2::{Digest, Sha256};
+    let dir = tempfile::tempdir().unwrap();
+    let mut text = String::from("\u{feff}depot;weight\n");
+    for i in 0..200_000 {
+        text.push_str(&format!("D{};{}.5\n", i % 7, i % 100));
+    }
+    let csv = dir.path().join("long.csv");
+    std::fs::write(&csv, &text).unwrap();
+    for file in [csv, path("workbooks/depot-2026-10.xlsx")] {
+        let bytes = std::fs::read(&file).unwrap();
+        let t = load::load(&file, &LoadOptions::default()).unwrap();
+        let hex: String = Sha256::digest(&bytes)
+            .iter()
+            .map(|b| format!("{b:02x}"))
+            .collect();
+        assert_eq!(t.source.sha256, hex, "{}", file.display());
+        assert_eq!(t.source.size, bytes.len() as u64);
+    }
+    let t = load::load(&dir.path().join("long.csv"), &LoadOptions::default()).unwrap();
+    assert_eq!(
+        (t.rows, t.headers()),
+        (200_000, vec!["depot".into(), "weight".into()])
+    );
+    assert_eq!(t.column("weight").unwrap().number(199_999), Some(99.5));
+}

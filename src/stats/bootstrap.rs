@@ -162,7 +162,9 @@ fn direct_median(sorted: &[f64], rng: &mut SplitMix64) -> f64 {
 /// The percentile interval of the bootstrap distribution of the mean from
 /// its Cornish-Fisher expansion to order 1/n: with z the normal quantile,
 /// g1 and g2 the skewness and excess kurtosis of the resampled mean,
-/// w = z + (z^2 - 1) g1/6 + (z^3 - 3z) g2/24 - (2z^3 - 5z) g1^2/36.
+/// w = z + (z^2 - 1) g1/6 + (z^3 - 3z) g2/24 - (2z^3 - 5z) g1^2/36 (the
+/// standard Cornish-Fisher terms, typed from memory; the agreement test
+/// with full resampling below checks the result).
 fn mean_by_expansion(sample: &Sample, level: f64) -> Stat<Interval> {
     let m = sample.moments()?;
     let (lo, hi) = (sample.min()?, sample.max()?);
@@ -302,7 +304,7 @@ mod tests {
     /// The exact bootstrap distribution of the median of n = 2m - 1
     /// distinct values: P(median* <= x(l)) = P(Binomial(n, l/n) >= m)
     /// (Efron 1979, "Bootstrap methods: another look at the jackknife",
-    /// section 3; formula typed from memory). Directly drawn medians must
+    /// Annals of Statistics; formula typed from memory). Directly drawn medians must
     /// follow it.
     #[test]
     fn direct_medians_follow_the_exact_bootstrap_distribution() {
