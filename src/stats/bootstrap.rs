@@ -163,8 +163,8 @@ fn direct_median(sorted: &[f64], rng: &mut SplitMix64) -> f64 {
 /// its Cornish-Fisher expansion to order 1/n: with z the normal quantile,
 /// g1 and g2 the skewness and excess kurtosis of the resampled mean,
 /// w = z + (z^2 - 1) g1/6 + (z^3 - 3z) g2/24 - (2z^3 - 5z) g1^2/36 (the
-/// standard Cornish-Fisher terms, typed from memory; the agreement test
-/// with full resampling below checks the result).
+/// standard Cornish-Fisher terms, typed from memory; a test below checks
+/// them against full resampling of a short, skewed column).
 fn mean_by_expansion(sample: &Sample, level: f64) -> Stat<Interval> {
     let m = sample.moments()?;
     let (lo, hi) = (sample.min()?, sample.max()?);
@@ -365,6 +365,35 @@ mod tests {
             ] {
                 assert!((a - b).abs() < 0.25 * se, "n = {n}: {a} vs {b} (se {se})");
             }
+        }
+    }
+
+    /// The expansion's skewness and kurtosis terms matter on a short,
+    /// very skewed column: there they must bring the interval close to
+    /// full resampling (10^5 resamples, Monte Carlo error about 0.01
+    /// standard errors), much closer than the plain normal interval.
+    #[test]
+    fn expansion_terms_track_the_resampled_distribution() {
+        let n = 200;
+        let s = Sample::from_values((0..n).map(|i| {
+            let e = -(1.0 - (i as f64 + 0.5) / n as f64).ln();
+            e * e
+        }));
+        let expanded = mean_by_expansion(&s, 0.95).unwrap();
+        let (means, _) = full_resamples(s.sorted(), 100_000, &mut SplitMix64(3));
+        let resampled = percentiles(means, 0.95).unwrap();
+        let m = s.moments().unwrap();
+        let se = (m.m2 / n as f64).sqrt();
+        let z = normal_quantile(0.975);
+        let (plain_low, plain_high) = (m.mean - z * se, m.mean + z * se);
+        for (with_terms, plain, target) in [
+            (expanded.low, plain_low, resampled.low),
+            (expanded.high, plain_high, resampled.high),
+        ] {
+            let (off, plain_off) = ((with_terms - target) / se, (plain - target) / se);
+            // Seen: 0.005 and 0.001 se off with the terms, 0.15 without.
+            assert!(off.abs() < 0.03, "{off}");
+            assert!(plain_off.abs() > 0.1, "{plain_off}");
         }
     }
 
