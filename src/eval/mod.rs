@@ -197,8 +197,11 @@ fn key_ids(scope: &Scope, key: &ColumnRef) -> (Vec<u32>, Vec<String>) {
     (ids, labels)
 }
 
-/// Group keys of each row in `rows`, and the groups in order of first appearance.
-fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<Row>)>, EvalError> {
+/// Each group's key labels and its rows.
+type Groups = Vec<(Vec<String>, Vec<Row>)>;
+
+/// The groups the keys make of the scope's rows, in order of first appearance.
+fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Groups, EvalError> {
     if keys.is_empty() {
         return Ok(vec![(Vec::new(), scope.rows.to_vec())]);
     }
@@ -218,7 +221,7 @@ fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<Row
         // appearance. Counting first sizes each group's row list exactly.
         let mut sizes = vec![0usize; labels.len()];
         ids.iter().for_each(|&id| sizes[id as usize] += 1);
-        let mut order: Vec<(Vec<String>, Vec<Row>)> = labels
+        let mut order: Groups = labels
             .iter()
             .zip(sizes)
             .map(|(label, size)| (vec![label.clone()], Vec::with_capacity(size)))
@@ -228,7 +231,7 @@ fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Vec<(Vec<String>, Vec<Row
         }
         return Ok(order);
     }
-    let mut order: Vec<(Vec<String>, Vec<Row>)> = Vec::new();
+    let mut order: Groups = Vec::new();
     let mut index: HashMap<Vec<u32>, usize> = HashMap::new();
     let mut key = Vec::with_capacity(keys.len());
     for (i, &row) in scope.rows.iter().enumerate() {

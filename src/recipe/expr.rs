@@ -304,8 +304,8 @@ fn primary(input: &str) -> PResult<'_, Expr> {
             },
         ))
     };
-    if input.starts_with('(') {
-        return nested(&input[1..], |inner| {
+    if let Some(after) = input.strip_prefix('(') {
+        return nested(after, |inner| {
             let (rest, mut e) = expression(inner)?;
             let (rest, _) = space0(rest)?;
             match rest.strip_prefix(')') {

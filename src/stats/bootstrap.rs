@@ -308,8 +308,8 @@ mod tests {
     /// follow it.
     #[test]
     fn direct_medians_follow_the_exact_bootstrap_distribution() {
-        let n = 20_001;
-        let m = (n + 1) / 2;
+        let n: usize = 20_001;
+        let m = n.div_ceil(2);
         let s = skewed(n);
         let sorted = s.sorted();
         let mut rng = SplitMix64(11);
