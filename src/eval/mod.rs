@@ -442,11 +442,12 @@ pub fn evaluate_against(
                         let cells = CellNamer::new(table, &sources, &column.name);
                         let address =
                             |i: usize| cells.name(group_rows[sample.position(i)] as usize);
+                        let fenced = panel::fenced(&sample);
                         PanelEntry {
                             group: group.clone(),
                             column: column.name.clone(),
-                            figures: panel::panel_figures(&sample),
-                            robustness: panel::robustness(&sample, &address),
+                            figures: panel::panel_figures(&sample, &fenced),
+                            robustness: panel::robustness(&sample, &fenced, &address),
                             sample_summary: panel::box_summary(&sample),
                         }
                     })
@@ -567,7 +568,7 @@ pub(crate) fn column_sample(table: &Table, lets: &value::Lets, rows: &[Row], nam
         false => table.column(name).and_then(|c| c.numbers()),
     };
     match data {
-        Some(numbers) => Sample::from_column(rows.iter().map(|&r| Some(numbers[r as usize]))),
+        Some(numbers) => Sample::at_rows(numbers, rows),
         None => Sample::from_column(Scope::new(table, lets, rows).column(name).numbers()),
     }
 }

@@ -132,13 +132,25 @@ pub struct BoxSummary {
 }
 
 fn is_whole(values: &[f64]) -> bool {
-    values.iter().all(|x| x.fract() == 0.0)
+    values.iter().all(|&x| stats::is_whole(x))
 }
 
-/// Figures of the standard panel. `address` names the cell of a value by its index.
-pub fn panel_figures(s: &Sample) -> Vec<One> {
+/// A sample's outliers beyond Tukey's 1.5 and 3 IQR fences (type 7
+/// quartiles), found in one pass and shared by the panel and its checks.
+pub struct Fenced {
+    pub wide: stats::Stat<stats::Outliers>,
+    pub far: stats::Stat<stats::Outliers>,
+}
+
+pub fn fenced(s: &Sample) -> Fenced {
+    let (wide, far) = stats::outliers_near_and_far(s, 1.5, 3.0, QuantileMethod::default());
+    Fenced { wide, far }
+}
+
+/// Figures of the standard panel.
+pub fn panel_figures(s: &Sample, fenced: &Fenced) -> Vec<One> {
     let m = QuantileMethod::default();
-    let outliers = stats::outliers(s, 1.5, m);
+    let outliers = &fenced.wide;
     let (modes, basis) = if s.is_empty() {
         (
             One::Undefined("no values".into()),
@@ -259,7 +271,7 @@ fn influences(
 }
 
 /// Robustness of one (group, column). `address(i)` is the source cell of value i.
-pub fn robustness(s: &Sample, address: &dyn Fn(usize) -> CellName) -> Robustness {
+pub fn robustness(s: &Sample, fenced: &Fenced, address: &dyn Fn(usize) -> CellName) -> Robustness {
     let m = QuantileMethod::default();
     let flag = |indexes: &[usize]| {
         indexes
@@ -284,8 +296,7 @@ pub fn robustness(s: &Sample, address: &dyn Fn(usize) -> CellName) -> Robustness
         }
     };
     let (gap_in_sd, gap_in_iqr) = (gap(&sd, "sd is zero"), gap(&iqr, "IQR is zero"));
-    let wide = stats::outliers(s, 1.5, m).ok();
-    let far = stats::outliers(s, 3.0, m).ok();
+    let (wide, far) = (fenced.wide.as_ref().ok(), fenced.far.as_ref().ok());
     let outliers_wide = wide
         .as_ref()
         .map(|o| flag(&[o.low.clone(), o.high.clone()].concat()))
@@ -294,20 +305,22 @@ pub fn robustness(s: &Sample, address: &dyn Fn(usize) -> CellName) -> Robustness
         .as_ref()
         .map(|o| flag(&[o.low.clone(), o.high.clone()].concat()))
         .unwrap_or_default();
-    let kept: Vec<f64> = match &wide {
-        Some(o) => {
+    // Without the 1.5 IQR outliers; with none, that is the sample itself.
+    let trimmed = match wide {
+        Some(o) if o.count() > 0 => {
             let mut out = vec![false; s.count()];
             o.low.iter().chain(&o.high).for_each(|&i| out[i] = true);
-            s.values()
-                .iter()
-                .zip(&out)
-                .filter(|(_, gone)| !**gone)
-                .map(|(x, _)| *x)
-                .collect()
+            let kept = s.values().iter().zip(&out).filter(|(_, gone)| !**gone);
+            Some(Sample::from_finite(kept.map(|(x, _)| *x).collect()))
         }
-        None => Vec::new(),
+        _ => None,
     };
-    let trimmed = Sample::from_finite(kept);
+    let no_fences = Sample::from_finite(Vec::new());
+    let trimmed = match (wide, &trimmed) {
+        (Some(_), Some(t)) => t,
+        (Some(_), None) => s,
+        (None, _) => &no_fences,
+    };
     let (mean_without, sd_without, skewness_without) = (
         from_stat(trimmed.mean()),
         from_stat(trimmed.sd(Denominator::Sample)),
@@ -455,7 +468,7 @@ mod tests {
     #[test]
     fn a_typed_in_outlier_is_a_warning_with_its_cell() {
         let s = Sample::from_values([10.0, 11.0, 12.0, 11.5, 10.5, 11.2, 250.0]);
-        let r = robustness(&s, &column_c);
+        let r = robustness(&s, &fenced(&s), &column_c);
         assert_eq!(r.status, Status::Warn);
         assert_eq!(
             r.outliers_far,
@@ -467,6 +480,9 @@ mod tests {
         assert_eq!(r.outliers_far[0].address.to_string(), "Deliveries!C8");
         assert!(r.reason.contains("beyond the 3 IQR fences"), "{}", r.reason);
         let calm = Sample::from_values([10.0, 11.0, 12.0, 11.5, 10.5, 11.2, 10.8]);
-        assert_eq!(robustness(&calm, &column_c).status, Status::Ok);
+        assert_eq!(
+            robustness(&calm, &fenced(&calm), &column_c).status,
+            Status::Ok
+        );
     }
 }

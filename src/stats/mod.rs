@@ -31,10 +31,10 @@ pub use order::{
 };
 pub use outliers::{
     Fences, MODIFIED_Z_CONSTANT, MODIFIED_Z_CUTOFF, Outliers, fences, modified_z_beyond,
-    modified_z_scores, outliers,
+    modified_z_scores, outliers, outliers_near_and_far,
 };
 pub use quantile::{QuantileMethod, quantile_sorted};
 pub use random::SplitMix64;
-pub use sample::Sample;
+pub use sample::{Sample, is_whole};
 pub use summation::Neumaier;
 pub use undefined::{Stat, Undefined};

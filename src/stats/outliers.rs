@@ -59,6 +59,54 @@ pub fn outliers(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<Outlier
     Ok(Outliers { fences, low, high })
 }
 
+/// The outliers beyond two pairs of fences, `near` <= `far` IQRs out, in
+/// one pass: every value beyond the far fences is beyond the near ones.
+pub fn outliers_near_and_far(
+    sample: &Sample,
+    near: f64,
+    far: f64,
+    method: QuantileMethod,
+) -> (Stat<Outliers>, Stat<Outliers>) {
+    debug_assert!(near <= far);
+    let (near_fences, far_fences) =
+        match (fences(sample, near, method), fences(sample, far, method)) {
+            (Ok(n), Ok(f)) => (n, f),
+            _ => {
+                return (
+                    outliers(sample, near, method),
+                    outliers(sample, far, method),
+                );
+            }
+        };
+    let mut found = [
+        Outliers {
+            fences: near_fences,
+            low: Vec::new(),
+            high: Vec::new(),
+        },
+        Outliers {
+            fences: far_fences,
+            low: Vec::new(),
+            high: Vec::new(),
+        },
+    ];
+    for (i, &x) in sample.values().iter().enumerate() {
+        if x < near_fences.low {
+            found[0].low.push(i);
+            if x < far_fences.low {
+                found[1].low.push(i);
+            }
+        } else if x > near_fences.high {
+            found[0].high.push(i);
+            if x > far_fences.high {
+                found[1].high.push(i);
+            }
+        }
+    }
+    let [near, far] = found;
+    (Ok(near), Ok(far))
+}
+
 /// M_i = 0.6745 (x_i - median) / MAD for every value, in the sample's order.
 pub fn modified_z_scores(sample: &Sample) -> Stat<Vec<f64>> {
     let centre = median(sample)?;
@@ -134,5 +182,8 @@ mod tests {
         assert_eq!(modified_z_scores(&flat), Err(Undefined::ZeroMad));
         let big: Vec<usize> = (0..z.len()).filter(|&i| z[i].abs() > 3.5).collect();
         assert_eq!(modified_z_beyond(&s, 3.5), Ok(big));
+        let m = QuantileMethod::default();
+        let (near, far) = outliers_near_and_far(&s, 1.5, 3.0, m);
+        assert_eq!((near, far), (outliers(&s, 1.5, m), outliers(&s, 3.0, m)));
     }
 }

@@ -50,6 +50,16 @@ impl Sample {
         Sample::from_column(values.into_iter().map(Some))
     }
 
+    /// The entries of `numbers` (NaN where missing) at `rows`: one gather,
+    /// and the general path only when something is missing.
+    pub fn at_rows(numbers: &[f64], rows: &[u32]) -> Sample {
+        let values: Vec<f64> = rows.iter().map(|&r| numbers[r as usize]).collect();
+        if values.iter().all(|x| x.is_finite()) {
+            return Sample::build(values, None, 0);
+        }
+        Sample::from_column(values.into_iter().map(Some))
+    }
+
     /// Takes ownership of values already known to be finite, without a copy.
     pub(crate) fn from_finite(values: Vec<f64>) -> Sample {
         debug_assert!(values.iter().all(|x| x.is_finite()));
@@ -151,6 +161,9 @@ impl Sample {
 /// only the sign bit), and integers sort faster than doubles compared
 /// through `total_cmp`; the result is the same, bit for bit.
 fn sorted_copy(values: &[f64]) -> Vec<f64> {
+    if let Some(sorted) = counting_sort(values) {
+        return sorted;
+    }
     let mut keys: Vec<u64> = values
         .iter()
         .map(|x| {
@@ -166,6 +179,41 @@ fn sorted_copy(values: &[f64]) -> Vec<f64> {
     keys.into_iter()
         .map(|k| f64::from_bits(if k >> 63 == 1 { k ^ (1 << 63) } else { !k }))
         .collect()
+}
+
+/// True for a whole number. Every double of 2^52 or more in size is whole;
+/// below that, truncating to an integer is exact and cheap (`fract` calls
+/// a library function on baseline x86-64).
+pub fn is_whole(x: f64) -> bool {
+    x.abs() >= 4_503_599_627_370_496.0 || x == (x as i64) as f64
+}
+
+/// Whole numbers spanning no more values than there are: counted, not
+/// compared (counts, minutes, stops). None for anything else, including
+/// -0.0, which `total_cmp` puts before 0.0.
+fn counting_sort(values: &[f64]) -> Option<Vec<f64>> {
+    const EXACT: f64 = 9_007_199_254_740_992.0; // 2^53: every whole number below is a double
+    let first = *values.first()?;
+    let (mut lo, mut hi) = (first, first);
+    for &x in values {
+        if !is_whole(x) || x.to_bits() == (-0.0f64).to_bits() {
+            return None;
+        }
+        lo = lo.min(x);
+        hi = hi.max(x);
+    }
+    if hi - lo > values.len() as f64 || lo.abs().max(hi.abs()) >= EXACT {
+        return None;
+    }
+    let mut counts = vec![0u32; (hi - lo) as usize + 1];
+    for &x in values {
+        counts[(x - lo) as usize] += 1;
+    }
+    let mut sorted = Vec::with_capacity(values.len());
+    for (offset, &count) in counts.iter().enumerate() {
+        sorted.extend(std::iter::repeat_n(lo + offset as f64, count as usize));
+    }
+    Some(sorted)
 }
 
 #[cfg(test)]
@@ -187,6 +235,12 @@ mod tests {
         let whole = Sample::from_values([4.0, 5.0]);
         assert_eq!(whole.position(1), 1);
         assert_eq!(s.sum(), 7.0);
+        let gathered = Sample::at_rows(&[1.0, f64::NAN, 3.0, 4.0], &[3, 1, 2]);
+        assert_eq!(
+            (gathered.values(), gathered.missing()),
+            (&[4.0, 3.0][..], 1)
+        );
+        assert_eq!((gathered.position(0), gathered.position(1)), (0, 2));
     }
 
     #[test]
@@ -207,6 +261,24 @@ mod tests {
         expected.sort_unstable_by(f64::total_cmp);
         let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
         assert_eq!(bits(&sorted_copy(&values)), bits(&expected));
+        // Whole numbers take the counting path; -0.0 keeps them off it.
+        let whole: Vec<f64> = (0..500).map(|i| f64::from((i * 37) % 91) - 40.0).collect();
+        assert!(counting_sort(&whole).is_some());
+        let mut expected = whole.clone();
+        expected.sort_unstable_by(f64::total_cmp);
+        assert_eq!(bits(&sorted_copy(&whole)), bits(&expected));
+        assert!(counting_sort(&[3.0, -0.0, 1.0]).is_none());
+        assert!(counting_sort(&[1.0, 1e9]).is_none(), "too wide a span");
+        for (x, whole) in [
+            (3.0, true),
+            (-2.5, false),
+            (1e300, true),
+            (0.1, false),
+            (-0.0, true),
+        ] {
+            assert_eq!(is_whole(x), whole, "{x}");
+            assert_eq!(is_whole(x), x.fract() == 0.0, "{x}");
+        }
     }
 
     #[test]
