@@ -144,10 +144,12 @@ impl Sample {
     }
 
     /// True when every value is the same (shape statistics are undefined then).
+    /// (Stops at the first value that differs from the first, so it costs
+    /// nothing on ordinary data.)
     pub fn is_constant(&self) -> bool {
-        match (self.min(), self.max()) {
-            (Ok(lo), Ok(hi)) => lo == hi,
-            _ => false,
+        match self.values.split_first() {
+            Some((&first, rest)) => rest.iter().all(|&x| x == first),
+            None => false,
         }
     }
 
