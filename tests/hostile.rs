@@ -208,3 +208,75 @@ proptest! {
         let _ = load::load(&path, &LoadOptions::default());
     }
 }
+
+/// A minimal workbook written by hand, with its sheet's rows in the order given.
+fn handmade_xlsx(path: &Path, rows: &[(u32, &str)]) {
+    use zip::write::SimpleFileOptions;
+    let stored = SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
+    let mut zip = zip::ZipWriter::new(std::fs::File::create(path).unwrap());
+    let mut part = |name: &str, text: &str| {
+        zip.start_file(name, stored).unwrap();
+        zip.write_all(text.as_bytes()).unwrap();
+    };
+    part(
+        "[Content_Types].xml",
+        r#"<?xml version="1.0" encoding="UTF-8"?><Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types"><Default Extension="rels" ContentType="application/vnd.openxmlformats-package.relationships+xml"/><Default Extension="xml" ContentType="application/xml"/><Override PartName="/xl/workbook.xml" ContentType="application/vnd.openxmlformats-officedocument.spreadsheetml.sheet.main+xml"/><Override PartName="/xl/worksheets/sheet1.xml" ContentType="application/vnd.openxmlformats-officedocument.spreadsheetml.worksheet+xml"/></Types>"#,
+    );
+    part(
+        "_rels/.rels",
+        r#"<?xml version="1.0" encoding="UTF-8"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="rId1" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/officeDocument" Target="xl/workbook.xml"/></Relationships>"#,
+    );
+    part(
+        "xl/workbook.xml",
+        r#"<?xml version="1.0" encoding="UTF-8"?><workbook xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main" xmlns:r="http://schemas.openxmlformats.org/officeDocument/2006/relationships"><sheets><sheet name="Deliveries" sheetId="1" r:id="rId1"/></sheets></workbook>"#,
+    );
+    part(
+        "xl/_rels/workbook.xml.rels",
+        r#"<?xml version="1.0" encoding="UTF-8"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="rId1" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/worksheet" Target="worksheets/sheet1.xml"/></Relationships>"#,
+    );
+    let body: String = rows
+        .iter()
+        .map(|(r, cells)| format!(r#"<row r="{r}">{cells}</row>"#))
+        .collect();
+    part(
+        "xl/worksheets/sheet1.xml",
+        &format!(
+            r#"<?xml version="1.0" encoding="UTF-8"?><worksheet xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"><sheetData>{body}</sheetData></worksheet>"#
+        ),
+    );
+    zip.finish().unwrap();
+}
+
+/// The streamed reader meets row 4 before row 2 in the second file and falls
+/// back to reading the sheet as a whole range; both give the same table.
+#[test]
+fn workbook_rows_out_of_order_read_as_in_order() {
+    let dir = tempfile::tempdir().unwrap();
+    let header = (
+        1,
+        r#"<c r="A1" t="inlineStr"><is><t>depot</t></is></c><c r="B1" t="inlineStr"><is><t>weight_kg</t></is></c>"#,
+    );
+    let second = (
+        2,
+        r#"<c r="A2" t="inlineStr"><is><t>North</t></is></c><c r="B2"><v>2.5</v></c>"#,
+    );
+    let fourth = (
+        4,
+        r#"<c r="A4" t="inlineStr"><is><t>South</t></is></c><c r="B4"><v>7</v></c>"#,
+    );
+    let (in_order, shuffled) = (dir.path().join("a.xlsx"), dir.path().join("b.xlsx"));
+    handmade_xlsx(&in_order, &[header, second, fourth]);
+    handmade_xlsx(&shuffled, &[header, fourth, second]);
+    let a = load::load(&in_order, &LoadOptions::default()).unwrap();
+    let b = load::load(&shuffled, &LoadOptions::default()).unwrap();
+    for t in [&a, &b] {
+        assert_eq!(t.rows, 3, "rows 2 to 4 of the sheet");
+        let w = t.column("weight_kg").unwrap();
+        assert_eq!(
+            (w.number(0), w.number(1), w.number(2)),
+            (Some(2.5), None, Some(7.0))
+        );
+        assert_eq!(t.address(w, w.issues()[0].row), "Deliveries!B3");
+        assert_eq!(t.column("depot").unwrap().text(2).as_deref(), Some("South"));
+    }
+}
