@@ -8,7 +8,9 @@ use std::process::ExitCode;
 use indicatif::{ProgressBar, ProgressStyle};
 use rayon::prelude::*;
 
-use super::{Failure, checked_recipe, default_out, load_options, read_recipe, run_info};
+use super::{
+    Failure, check_headers, checked_recipe, default_out, load_options, read_recipe, run_info,
+};
 use crate::eval::{self, Results};
 use crate::history::{self, Record};
 use crate::load::{self, Table};
@@ -32,9 +34,8 @@ fn one_file(
     path: &Path,
 ) -> Result<(Recipe, Table), String> {
     let table = load::load(path, &load_options(syntax)).map_err(|e| e.to_string())?;
-    let recipe =
-        checked_recipe(recipe_path, text, Some(&table.headers())).map_err(|Failure(m)| m)?;
-    Ok((recipe, table))
+    check_headers(recipe_path, text, syntax, &table).map_err(|Failure(m)| m)?;
+    Ok((syntax.clone(), table))
 }
 
 fn uses_change(recipe: &Recipe) -> bool {

@@ -155,13 +155,33 @@ fn checked_recipe(
     if parsed.is_ok() {
         return Ok(parsed.recipe);
     }
-    let count = parsed.diagnostics.len();
-    let rendered = recipe::render_all(&parsed.diagnostics, &path.display().to_string(), text);
-    Err(Failure(format!(
+    Err(recipe_failure(path, text, &parsed.diagnostics))
+}
+
+/// The recipe's problems, rendered against its text.
+fn recipe_failure(path: &Path, text: &str, diagnostics: &[recipe::Diagnostic]) -> Failure {
+    let count = diagnostics.len();
+    let rendered = recipe::render_all(diagnostics, &path.display().to_string(), text);
+    Failure(format!(
         "{rendered}\n{}: {count} problem{} in the recipe; nothing was written",
         path.display(),
         if count == 1 { "" } else { "s" }
-    )))
+    ))
+}
+
+/// Checks a checked recipe against the headers of the data it will read.
+fn check_headers(
+    path: &Path,
+    text: &str,
+    recipe: &recipe::Recipe,
+    table: &Table,
+) -> Result<(), Failure> {
+    let diagnostics = recipe::check_against(recipe, &table.headers());
+    if diagnostics.is_empty() {
+        Ok(())
+    } else {
+        Err(recipe_failure(path, text, &diagnostics))
+    }
 }
 
 /// The `input` statement's settings.
@@ -184,9 +204,11 @@ fn load_for(
     text: &str,
     data: &Path,
 ) -> Result<(recipe::Recipe, Table), Failure> {
-    let syntax_only = checked_recipe(recipe_path, text, None)?;
-    let table = load::load(data, &load_options(&syntax_only))?;
-    let recipe = checked_recipe(recipe_path, text, Some(&table.headers()))?;
+    // Parsed once: the `input` statement says how to read the data, and the
+    // data's headers then complete the check.
+    let recipe = checked_recipe(recipe_path, text, None)?;
+    let table = load::load(data, &load_options(&recipe))?;
+    check_headers(recipe_path, text, &recipe, &table)?;
     Ok((recipe, table))
 }
 

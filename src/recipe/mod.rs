@@ -74,6 +74,14 @@ pub fn parse_and_check(source: &str, headers: Option<&[String]>) -> Parsed {
     parsed
 }
 
+/// Checks an already parsed and checked recipe against the data's headers:
+/// the columns it names must exist (the closest header is suggested).
+pub fn check_against(recipe: &Recipe, headers: &[String]) -> Vec<Diagnostic> {
+    let mut diagnostics = check::check(recipe, Some(headers));
+    diagnostics.sort_by_key(|d| d.span.start);
+    diagnostics
+}
+
 /// Parses one expression on its own (for `sheaf calc`) and checks its
 /// names and kinds against the data's headers.
 pub fn parse_expression(
