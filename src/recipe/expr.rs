@@ -142,23 +142,33 @@ fn and_level(input: &str) -> PResult<'_, Expr> {
 
 fn not_level(input: &str) -> PResult<'_, Expr> {
     if let Ok((rest, _)) = keyword("not")(input) {
-        let start = input.trim_start();
-        return nested(rest, |rest| {
-            let (rest, operand) = not_level(rest)?;
-            let kind = ExprKind::Unary {
-                op: UnaryOp::Not,
-                operand: Box::new(operand),
-            };
-            Ok((
-                rest,
-                Expr {
-                    kind,
-                    span: span_between(start, rest),
-                },
-            ))
-        });
+        return prefixed(input.trim_start(), rest, UnaryOp::Not, not_level);
     }
     comparison(input)
+}
+
+/// A prefix operator, read at `start`, applied to what `operand` parses
+/// from `rest` (one nesting level deeper).
+fn prefixed<'a>(
+    start: &'a str,
+    rest: &'a str,
+    op: UnaryOp,
+    operand: impl FnOnce(&'a str) -> PResult<'a, Expr>,
+) -> PResult<'a, Expr> {
+    nested(rest, |rest| {
+        let (rest, operand) = operand(rest)?;
+        let kind = ExprKind::Unary {
+            op,
+            operand: Box::new(operand),
+        };
+        Ok((
+            rest,
+            Expr {
+                kind,
+                span: span_between(start, rest),
+            },
+        ))
+    })
 }
 
 fn comparison_operator(input: &str) -> PResult<'_, BinaryOp> {
@@ -251,21 +261,8 @@ fn multiplicative(input: &str) -> PResult<'_, Expr> {
 
 fn unary(input: &str) -> PResult<'_, Expr> {
     if let Ok((rest, _)) = ws(char::<&str, SyntaxError>('-')).parse(input) {
-        let start = input.trim_start();
-        return nested(rest, |rest| {
-            let (rest, operand) =
-                unary(rest).map_err(|e| missing_operand(e, rest, BinaryOp::Subtract))?;
-            let kind = ExprKind::Unary {
-                op: UnaryOp::Negate,
-                operand: Box::new(operand),
-            };
-            Ok((
-                rest,
-                Expr {
-                    kind,
-                    span: span_between(start, rest),
-                },
-            ))
+        return prefixed(input.trim_start(), rest, UnaryOp::Negate, |rest| {
+            unary(rest).map_err(|e| missing_operand(e, rest, BinaryOp::Subtract))
         });
     }
     power(input)
