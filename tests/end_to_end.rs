@@ -475,3 +475,24 @@ fn text_that_looks_like_a_formula_is_written_as_text() {
         assert!(matches!(row[0], Data::String(_)), "{:?}", row[0]);
     }
 }
+
+/// The workbook's own properties carry the recorded run time as a proper
+/// W3C date (some readers refuse a workbook whose dates read 0-00-00).
+#[test]
+fn the_workbook_properties_carry_the_run_time() {
+    use std::io::Read;
+    let dir = tempfile::tempdir().unwrap();
+    let out = run_demo(dir.path());
+    let mut archive = zip::ZipArchive::new(std::fs::File::open(&out).unwrap()).unwrap();
+    let mut core = String::new();
+    archive
+        .by_name("docProps/core.xml")
+        .unwrap()
+        .read_to_string(&mut core)
+        .unwrap();
+    assert!(
+        core.contains(r#"<dcterms:created xsi:type="dcterms:W3CDTF">2026-11-01T09:00:00Z<"#),
+        "{core}"
+    );
+    assert!(!core.contains(">0-00-00"), "{core}");
+}

@@ -61,8 +61,10 @@ pub fn workbook_bytes(
     // The file's own creation time is the recorded run time, so a rerun with
     // the same SHEAF_RUN_TIME is byte for byte the same workbook.
     let iso = run.run_time.trim_end_matches(" UTC").replacen(' ', "T", 1);
-    if let Some(created) = crate::format::serial_from_iso(&iso)
-        .and_then(|serial| rust_xlsxwriter::ExcelDateTime::from_serial_datetime(serial).ok())
+    // Parsed from its parts: a date made from a serial number carries no
+    // year, month and day, and would be written as 0-00-00.
+    if crate::format::serial_from_iso(&iso).is_some()
+        && let Ok(created) = rust_xlsxwriter::ExcelDateTime::parse_from_str(&iso)
     {
         properties = properties.set_creation_datetime(&created);
     }
