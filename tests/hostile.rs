@@ -280,3 +280,17 @@ fn workbook_rows_out_of_order_read_as_in_order() {
         assert_eq!(t.column("depot").unwrap().text(2).as_deref(), Some("South"));
     }
 }
+
+#[test]
+fn a_file_of_unknown_type_is_named_with_the_types_sheaf_reads() {
+    let dir = tempfile::tempdir().unwrap();
+    for name in ["data", "data.pdf"] {
+        let path = write(dir.path(), name, b"x\n1\n");
+        for e in [
+            error_of(&path),
+            load::sheet_names(&path).unwrap_err().to_string(),
+        ] {
+            assert!(e.contains(name) && e.contains("sheaf reads .xlsx"), "{e}");
+        }
+    }
+}

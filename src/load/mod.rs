@@ -61,41 +61,53 @@ pub struct LoadOptions {
     pub header_row: Option<u32>,
 }
 
-/// Reads any supported file; the kind is taken from its ending.
-pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
-    let shown = path.display().to_string();
+/// The two ways in: delimited text, or a spreadsheet through calamine.
+enum FileKind {
+    Delimited,
+    Workbook,
+}
+
+/// The kind of a file, from its ending.
+fn kind_of(path: &Path) -> Result<FileKind, LoadError> {
     let ending = path
         .extension()
         .and_then(|e| e.to_str())
         .unwrap_or("")
         .to_ascii_lowercase();
     match ending.as_str() {
-        "csv" | "tsv" | "txt" => csv_file::load(path, options),
-        "xlsx" | "xlsm" | "xls" | "xlsb" | "ods" => {
+        "csv" | "tsv" | "txt" => Ok(FileKind::Delimited),
+        "xlsx" | "xlsm" | "xls" | "xlsb" | "ods" => Ok(FileKind::Workbook),
+        other => Err(LoadError::Unreadable {
+            path: path.display().to_string(),
+            reason: if other.is_empty() {
+                "the file name has no ending, so its type is unknown; sheaf reads .xlsx, .xlsm, .xls, .ods, .csv and .tsv".into()
+            } else {
+                format!(
+                    "unknown file type `.{other}`; sheaf reads .xlsx, .xlsm, .xls, .ods, .csv and .tsv"
+                )
+            },
+        }),
+    }
+}
+
+/// Reads any supported file; the kind is taken from its ending.
+pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
+    match kind_of(path)? {
+        FileKind::Delimited => csv_file::load(path, options),
+        FileKind::Workbook => {
             let source = SourceInfo::of_file(path).map_err(|e| LoadError::Unreadable {
-                path: shown.clone(),
+                path: path.display().to_string(),
                 reason: e.to_string(),
             })?;
             workbook::load(path, source, options)
         }
-        other => Err(LoadError::Unreadable {
-            path: shown,
-            reason: format!(
-                "unknown file type `.{other}`; sheaf reads .xlsx, .xlsm, .xls, .ods, .csv and .tsv"
-            ),
-        }),
     }
 }
 
 /// The sheets of a file and, for CSV, the one pseudo-sheet.
 pub fn sheet_names(path: &Path) -> Result<Vec<String>, LoadError> {
-    let ending = path
-        .extension()
-        .and_then(|e| e.to_str())
-        .unwrap_or("")
-        .to_ascii_lowercase();
-    if matches!(ending.as_str(), "csv" | "tsv" | "txt") {
-        return Ok(vec![csv_file::sheet_name(path)]);
+    match kind_of(path)? {
+        FileKind::Delimited => Ok(vec![csv_file::sheet_name(path)]),
+        FileKind::Workbook => workbook::sheet_names(path),
     }
-    workbook::sheet_names(path)
 }
