@@ -202,15 +202,28 @@ struct OtherCells {
 }
 
 impl OtherCells {
-    fn word(&mut self, text: String) -> u32 {
-        if let Some(&code) = self.word_index.get(&text) {
+    /// The code of a word, new words copied in once.
+    fn word(&mut self, text: &str) -> u32 {
+        if let Some(&code) = self.word_index.get(text) {
             return code;
         }
         let code = self.words.len() as u32;
-        self.words.push(text.clone());
-        self.word_index.insert(text, code);
+        self.words.push(text.to_string());
+        self.word_index.insert(text.to_string(), code);
         code
     }
+}
+
+/// Each row's number (NaN where none) and whether its cell was a date.
+fn rows_with_dates<'a>(
+    numbers: &'a [f64],
+    dates: &'a [u32],
+) -> impl Iterator<Item = (usize, f64, bool)> + 'a {
+    let mut date_rows = dates.iter().peekable();
+    numbers.iter().enumerate().map(move |(row, &x)| {
+        let is_date = date_rows.next_if(|&&d| d as usize == row).is_some();
+        (row, x, is_date)
+    })
 }
 
 /// Takes a column's cells in row order and stores them by type.
@@ -250,7 +263,7 @@ impl ColumnBuilder {
                 let rest = self.other.get_or_insert_with(Box::default);
                 match other {
                     Cell::Text(t) => {
-                        let code = rest.word(t);
+                        let code = rest.word(&t);
                         rest.texts.push((row, code));
                     }
                     Cell::Bool(b) => rest.bools.push((row, b)),
@@ -273,10 +286,7 @@ impl ColumnBuilder {
         }
         let row = self.numbers.len() as u32;
         let rest = self.other.get_or_insert_with(Box::default);
-        let code = match rest.word_index.get(text) {
-            Some(&code) => code,
-            None => rest.word(text.to_string()),
-        };
+        let code = rest.word(text);
         rest.texts.push((row, code));
         self.numbers.push(f64::NAN);
     }
@@ -288,7 +298,7 @@ impl ColumnBuilder {
             dates,
             other,
         } = self;
-        let other = other.map(|o| *o).unwrap_or_default();
+        let mut other = other.map(|o| *o).unwrap_or_default();
         let values_count = numbers.iter().filter(|x| !x.is_nan()).count();
         let kind = ColumnKind::from_counts(
             values_count - dates.len(),
@@ -315,35 +325,28 @@ impl ColumnBuilder {
                 .map(|(r, e)| issue(*r, IssueKind::FormulaError, e.clone())),
         );
         let values = if kind == ColumnKind::Text {
-            let mut words = other.words;
-            let mut index: HashMap<String, u32> = other.word_index;
+            // Numbers and true/false cells join the words, as their text.
             let mut codes = vec![NO_TEXT; numbers.len()];
             for &(row, code) in &other.texts {
                 codes[row as usize] = code;
             }
-            let mut code_of = |text: String| -> u32 {
-                *index.entry(text.clone()).or_insert_with(|| {
-                    words.push(text);
-                    (words.len() - 1) as u32
-                })
-            };
-            let mut date_rows = dates.iter().peekable();
-            for (row, &x) in numbers.iter().enumerate() {
-                if x.is_nan() {
-                    continue;
+            for (row, x, is_date) in rows_with_dates(&numbers, &dates) {
+                if !x.is_nan() {
+                    let text = if is_date {
+                        crate::format::date(x)
+                    } else {
+                        crate::format::shortest(x)
+                    };
+                    codes[row] = other.word(&text);
                 }
-                let is_date = date_rows.next_if(|&&d| d as usize == row).is_some();
-                let text = if is_date {
-                    crate::format::date(x)
-                } else {
-                    crate::format::shortest(x)
-                };
-                codes[row] = code_of(text);
             }
-            for &(row, b) in &other.bools {
-                codes[row as usize] = code_of(b.to_string());
+            for (row, b) in std::mem::take(&mut other.bools) {
+                codes[row as usize] = other.word(&b.to_string());
             }
-            Values::Texts { codes, words }
+            Values::Texts {
+                codes,
+                words: other.words,
+            }
         } else {
             if kind.is_numeric() {
                 issues.extend(other.texts.iter().map(|&(r, code)| {
@@ -368,15 +371,10 @@ impl ColumnBuilder {
                 );
             }
             let other_type = if kind == ColumnKind::Date {
-                let mut date_rows = dates.iter().peekable();
-                let mut plain = Vec::new();
-                for (row, x) in numbers.iter().enumerate() {
-                    let is_date = date_rows.next_if(|&&d| d as usize == row).is_some();
-                    if !x.is_nan() && !is_date {
-                        plain.push(row as u32);
-                    }
-                }
-                plain
+                rows_with_dates(&numbers, &dates)
+                    .filter(|&(_, x, is_date)| !x.is_nan() && !is_date)
+                    .map(|(row, _, _)| row as u32)
+                    .collect()
             } else {
                 dates
             };
