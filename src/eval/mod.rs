@@ -14,7 +14,7 @@ use rayon::prelude::*;
 
 use crate::load::{IssueKind, Table};
 use crate::recipe::ast::{Bins, CheckLevel, ColumnRef, Expr, ExprKind, Recipe, StatementKind};
-use crate::stats::{self, BinRule, Histogram, Sample};
+use crate::stats::{self, BinRule, Histogram};
 
 pub use panel::{
     BoxSummary, CellName, CellPlace, Flagged, Influence, PANEL_LABELS, PanelEntry, Robustness,
@@ -158,11 +158,7 @@ pub enum EvalError {
 /// keyed by its text.
 fn key_ids(scope: &Scope, key: &ColumnRef) -> (Vec<u32>, Vec<String>) {
     let mut labels: Vec<String> = Vec::new();
-    let data = match scope.lets.contains_key(&key.name) {
-        true => None,
-        false => scope.table.column(&key.name),
-    };
-    if let Some((codes, words)) = data.and_then(|c| c.text_codes()) {
+    if let Some((codes, words)) = scope.data_column(&key.name).and_then(|c| c.text_codes()) {
         // Codes renumbered in order of first appearance; u32::MAX = not seen yet.
         let mut id_of_word = vec![u32::MAX; words.len()];
         let mut blank_id = u32::MAX;
@@ -170,13 +166,14 @@ fn key_ids(scope: &Scope, key: &ColumnRef) -> (Vec<u32>, Vec<String>) {
             .rows
             .iter()
             .map(|&r| {
-                let (slot, label) = match crate::load::Column::word_of(codes[r as usize]) {
-                    Some(w) => (&mut id_of_word[w], &words[w]),
-                    None => (&mut blank_id, &BLANK_KEY.to_string()),
+                let word = crate::load::Column::word_of(codes[r as usize]);
+                let slot = match word {
+                    Some(w) => &mut id_of_word[w],
+                    None => &mut blank_id,
                 };
                 if *slot == u32::MAX {
                     *slot = labels.len() as u32;
-                    labels.push(label.clone());
+                    labels.push(word.map_or_else(|| BLANK_KEY.to_string(), |w| words[w].clone()));
                 }
                 *slot
             })
@@ -438,7 +435,8 @@ pub fn evaluate_against(
                     .par_iter()
                     .map(|&(g, column)| {
                         let (group, group_rows) = &all_groups[g];
-                        let sample = column_sample(table, &lets, group_rows, &column.name);
+                        let sample =
+                            Scope::new(table, &lets, group_rows).column_sample(&column.name);
                         let cells = CellNamer::new(table, &sources, &column.name);
                         let address =
                             |i: usize| cells.name(group_rows[sample.position(i)] as usize);
@@ -558,19 +556,6 @@ pub fn evaluate_against(
     terms.retain(|t| seen.insert((t.expression.clone(), t.group.clone())));
     results.terms = terms;
     Ok(results)
-}
-
-/// The sample of a column over some rows: straight from a numeric data
-/// column, or through the row-by-row evaluation for anything else.
-pub(crate) fn column_sample(table: &Table, lets: &value::Lets, rows: &[Row], name: &str) -> Sample {
-    let data = match lets.contains_key(name) {
-        true => None,
-        false => table.column(name).and_then(|c| c.numbers()),
-    };
-    match data {
-        Some(numbers) => Sample::at_rows(numbers, rows),
-        None => Sample::from_column(Scope::new(table, lets, rows).column(name).numbers()),
-    }
 }
 
 fn column_expr(column: &ColumnRef) -> Expr {

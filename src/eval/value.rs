@@ -6,7 +6,7 @@ use std::cell::RefCell;
 use std::collections::HashMap;
 use std::rc::Rc;
 
-use crate::load::{ColumnKind, Table};
+use crate::load::{Column, ColumnKind, Table};
 use crate::recipe::ast::{BinaryOp, Expr, ExprKind, UnaryOp};
 use crate::recipe::pretty;
 use crate::stats::Sample;
@@ -169,7 +169,7 @@ impl<'a> Scope<'a> {
             return Rc::clone(s);
         }
         let sample = Rc::new(match &argument.kind {
-            ExprKind::Column(c) => super::column_sample(self.table, self.lets, self.rows, &c.name),
+            ExprKind::Column(c) => self.column_sample(&c.name),
             _ => match self.eval(argument) {
                 Value::Rows(rows) => Sample::from_column(rows.numbers()),
                 Value::One(_) => Sample::from_column(Vec::new()),
@@ -177,6 +177,23 @@ impl<'a> Scope<'a> {
         });
         self.samples.borrow_mut().insert(key, Rc::clone(&sample));
         sample
+    }
+
+    /// A data column, unless a `let` of the same name hides it.
+    pub fn data_column(&self, name: &str) -> Option<&'a Column> {
+        match self.lets.contains_key(name) {
+            true => None,
+            false => self.table.column(name),
+        }
+    }
+
+    /// The sample of a column over this scope's rows: straight from a
+    /// numeric data column, or through the row-by-row view for anything else.
+    pub fn column_sample(&self, name: &str) -> Sample {
+        match self.data_column(name).and_then(|c| c.numbers()) {
+            Some(numbers) => Sample::at_rows(numbers, self.rows),
+            None => Sample::from_column(self.column(name).numbers()),
+        }
     }
 
     pub fn column(&self, name: &str) -> Rows {
