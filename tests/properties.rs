@@ -131,6 +131,9 @@ proptest! {
         if let Ok(z) = modified_z_scores(&s) {
             prop_assert!(z.iter().all(|v| v.is_finite()));
         }
+        // The one-pass pair of fences finds what each fence finds alone.
+        let m = QuantileMethod::default();
+        prop_assert_eq!(outliers_near_and_far(&s, 1.5, 3.0, m), (outliers(&s, 1.5, m), outliers(&s, 3.0, m)));
         for rule in [BinRule::Sturges, BinRule::Scott, BinRule::FreedmanDiaconis, BinRule::Fixed(3)] {
             if let Ok(h) = histogram(&s, rule) {
                 prop_assert_eq!(h.counts.iter().sum::<usize>(), s.count());

@@ -601,7 +601,7 @@ impl<'a> CellNamer<'a> {
     fn name(&self, row: usize) -> CellName {
         CellName {
             place: std::sync::Arc::clone(&self.place),
-            sheet_row: (self.table.header_row as usize + 1 + row) as u32,
+            sheet_row: self.table.sheet_row(row) as u32,
         }
     }
 }

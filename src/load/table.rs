@@ -65,12 +65,17 @@ impl Table {
         self.columns.iter().map(|c| c.name.clone()).collect()
     }
 
+    /// The 1-based sheet row of data row `row` (0-based).
+    pub fn sheet_row(&self, row: usize) -> usize {
+        self.header_row as usize + 1 + row
+    }
+
     /// `Deliveries!C17` for data row `row` (0-based) of `column`.
     pub fn address(&self, column: &Column, row: usize) -> String {
         format!(
             "{}!{}",
             quote_sheet(&self.sheet),
-            cell_address(column.sheet_column, self.header_row as usize + 1 + row)
+            cell_address(column.sheet_column, self.sheet_row(row))
         )
     }
 }

@@ -59,8 +59,9 @@ pub fn outliers(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<Outlier
     Ok(Outliers { fences, low, high })
 }
 
-/// The outliers beyond two pairs of fences, `near` <= `far` IQRs out, in
-/// one pass: every value beyond the far fences is beyond the near ones.
+/// The outliers beyond two pairs of fences, `near` <= `far` IQRs out, with
+/// one pass over the values: every value beyond the far fences is beyond
+/// the near ones, so the far outliers are picked from the near ones.
 pub fn outliers_near_and_far(
     sample: &Sample,
     near: f64,
@@ -68,69 +69,50 @@ pub fn outliers_near_and_far(
     method: QuantileMethod,
 ) -> (Stat<Outliers>, Stat<Outliers>) {
     debug_assert!(near <= far);
-    let (near_fences, far_fences) =
-        match (fences(sample, near, method), fences(sample, far, method)) {
-            (Ok(n), Ok(f)) => (n, f),
-            _ => {
-                return (
-                    outliers(sample, near, method),
-                    outliers(sample, far, method),
-                );
-            }
-        };
-    let mut found = [
-        Outliers {
-            fences: near_fences,
-            low: Vec::new(),
-            high: Vec::new(),
-        },
-        Outliers {
-            fences: far_fences,
-            low: Vec::new(),
-            high: Vec::new(),
-        },
-    ];
-    for (i, &x) in sample.values().iter().enumerate() {
-        if x < near_fences.low {
-            found[0].low.push(i);
-            if x < far_fences.low {
-                found[1].low.push(i);
-            }
-        } else if x > near_fences.high {
-            found[0].high.push(i);
-            if x > far_fences.high {
-                found[1].high.push(i);
-            }
+    let near_found = outliers(sample, near, method);
+    let far_found = match (&near_found, fences(sample, far, method)) {
+        (Ok(wide), Ok(fences)) => {
+            let values = sample.values();
+            let pick = |indexes: &[usize], beyond: &dyn Fn(f64) -> bool| {
+                indexes
+                    .iter()
+                    .copied()
+                    .filter(|&i| beyond(values[i]))
+                    .collect()
+            };
+            Ok(Outliers {
+                fences,
+                low: pick(&wide.low, &|x| x < fences.low),
+                high: pick(&wide.high, &|x| x > fences.high),
+            })
         }
-    }
-    let [near, far] = found;
-    (Ok(near), Ok(far))
+        _ => outliers(sample, far, method),
+    };
+    (near_found, far_found)
 }
 
-/// M_i = 0.6745 (x_i - median) / MAD for every value, in the sample's order.
-pub fn modified_z_scores(sample: &Sample) -> Stat<Vec<f64>> {
+/// The modified z-score M(x) = 0.6745 (x - median) / MAD of this sample.
+fn modified_z(sample: &Sample) -> Stat<impl Fn(f64) -> f64> {
     let centre = median(sample)?;
     let spread = super::order::mad(sample, false)?;
     if spread == 0.0 {
         return Err(Undefined::ZeroMad);
     }
-    Ok(sample
-        .values()
-        .iter()
-        .map(|x| MODIFIED_Z_CONSTANT * (x - centre) / spread)
-        .collect())
+    Ok(move |x: f64| MODIFIED_Z_CONSTANT * (x - centre) / spread)
+}
+
+/// M_i = 0.6745 (x_i - median) / MAD for every value, in the sample's order.
+pub fn modified_z_scores(sample: &Sample) -> Stat<Vec<f64>> {
+    let z = modified_z(sample)?;
+    Ok(sample.values().iter().map(|&x| z(x)).collect())
 }
 
 /// Indexes of the values whose modified z-score exceeds `cutoff` in size,
 /// without keeping every score.
 pub fn modified_z_beyond(sample: &Sample, cutoff: f64) -> Stat<Vec<usize>> {
-    let centre = median(sample)?;
-    let spread = super::order::mad(sample, false)?;
-    if spread == 0.0 {
-        return Err(Undefined::ZeroMad);
-    }
+    let z = modified_z(sample)?;
     Ok((0..sample.count())
-        .filter(|&i| (MODIFIED_Z_CONSTANT * (sample.values()[i] - centre) / spread).abs() > cutoff)
+        .filter(|&i| z(sample.values()[i]).abs() > cutoff)
         .collect())
 }
 
