@@ -306,20 +306,20 @@ pub fn robustness(s: &Sample, fenced: &Fenced, address: &dyn Fn(usize) -> CellNa
         .map(|o| flag(&[o.low.clone(), o.high.clone()].concat()))
         .unwrap_or_default();
     // Without the 1.5 IQR outliers; with none, that is the sample itself.
+    let trimmed_values;
     let trimmed = match wide {
-        Some(o) if o.count() > 0 => {
+        Some(o) if o.count() == 0 => s,
+        Some(o) => {
             let mut out = vec![false; s.count()];
             o.low.iter().chain(&o.high).for_each(|&i| out[i] = true);
             let kept = s.values().iter().zip(&out).filter(|(_, gone)| !**gone);
-            Some(Sample::from_finite(kept.map(|(x, _)| *x).collect()))
+            trimmed_values = Sample::from_finite(kept.map(|(x, _)| *x).collect());
+            &trimmed_values
         }
-        _ => None,
-    };
-    let no_fences = Sample::from_finite(Vec::new());
-    let trimmed = match (wide, &trimmed) {
-        (Some(_), Some(t)) => t,
-        (Some(_), None) => s,
-        (None, _) => &no_fences,
+        None => {
+            trimmed_values = Sample::from_finite(Vec::new());
+            &trimmed_values
+        }
     };
     let (mean_without, sd_without, skewness_without) = (
         from_stat(trimmed.mean()),

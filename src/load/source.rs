@@ -16,12 +16,6 @@ pub struct SourceInfo {
 }
 
 impl SourceInfo {
-    pub fn describe(path: &Path, bytes: &[u8]) -> SourceInfo {
-        let mut hashing = Hashing::new(bytes);
-        std::io::copy(&mut hashing, &mut std::io::sink()).expect("reading a slice cannot fail");
-        hashing.finish(path)
-    }
-
     /// Reads the file once to describe it.
     pub fn of_file(path: &Path) -> std::io::Result<SourceInfo> {
         let mut hashing = Hashing::new(std::fs::File::open(path)?);
@@ -81,7 +75,7 @@ mod tests {
     #[test]
     fn hash_of_the_empty_input() {
         // The SHA-256 of no bytes (typed from memory; `sha256sum < /dev/null` prints it).
-        let s = SourceInfo::describe(Path::new("a/b.csv"), b"");
+        let s = Hashing::new(&b""[..]).finish(Path::new("a/b.csv"));
         assert_eq!(
             s.sha256,
             "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855"

@@ -130,15 +130,22 @@ fn write_group(sheet: &mut Worksheet, row: u32, group: &[String]) -> Result<(), 
     Ok(())
 }
 
+/// Header labels of a per-(group, column) table: the group keys, then
+/// `column`, then the figures.
+fn entry_labels(keys: &[String], figures: &[&str]) -> Vec<String> {
+    let mut labels = keys.to_vec();
+    labels.push("column".into());
+    labels.extend(figures.iter().map(|s| s.to_string()));
+    labels
+}
+
 fn panel_sheet(
     sheet: &mut Worksheet,
     name: &str,
     keys: &[String],
     entries: &[PanelEntry],
 ) -> Result<(), XlsxError> {
-    let mut labels: Vec<String> = keys.to_vec();
-    labels.push("column".into());
-    labels.extend(PANEL_LABELS.iter().map(|s| s.to_string()));
+    let labels = entry_labels(keys, PANEL_LABELS);
     let top = heading(sheet, name, PANEL_NOTE, labels.len())?;
     style::table_header(sheet, top, &labels, keys.len() as u16 + 1)?;
     let whole = ["n", "missing", "low outliers", "high outliers"];
@@ -214,9 +221,7 @@ fn robustness_sheet(
     keys: &[String],
     entries: &[PanelEntry],
 ) -> Result<(), XlsxError> {
-    let mut labels: Vec<String> = keys.to_vec();
-    labels.push("column".into());
-    labels.extend(ROBUSTNESS_LABELS.iter().map(|s| s.to_string()));
+    let labels = entry_labels(keys, ROBUSTNESS_LABELS);
     let top = heading(
         sheet,
         &format!("{name}: robustness"),
