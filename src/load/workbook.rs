@@ -4,6 +4,7 @@ use std::path::Path;
 
 use calamine::{Data, DataRef, Reader, Xlsx, open_workbook_auto};
 
+use super::column::ColumnBuilder;
 use super::sheet_cells::SheetCells;
 use super::source::SourceInfo;
 use super::table::{Cell, Table};
@@ -100,44 +101,57 @@ fn read(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table,
         .extension()
         .and_then(|e| e.to_str())
         .is_some_and(|e| e.eq_ignore_ascii_case("xlsx") || e.eq_ignore_ascii_case("xlsm"));
-    if streamable {
-        let mut workbook: Xlsx<_> =
-            calamine::open_workbook(path).map_err(|e| unreadable(path, e))?;
-        let sheet = choose_sheet(&workbook.sheet_names(), options, &shown)?;
-        let mut cells = SheetCells::new(options);
-        let mut reader = workbook
-            .worksheet_cells_reader(&sheet)
-            .map_err(|e| unreadable(path, e))?;
-        let mut in_order = true;
-        while let Some(cell) = reader.next_cell().map_err(|e| unreadable(path, e))? {
-            let (row, column) = cell.get_position();
-            let value = cell.get_value();
-            if *value == DataRef::Empty {
-                continue;
-            }
-            let taken = cells.add(
-                row,
-                column,
-                || Data::from(value.clone()).to_string(),
-                |builder| match value {
-                    DataRef::SharedString(s) => builder.push_text(s),
-                    DataRef::String(s) => builder.push_text(s),
-                    other => builder.push(cell_of(&Data::from(other.clone()))),
-                },
-            );
-            if taken.is_err() {
-                in_order = false;
-                break;
-            }
-        }
-        drop(reader);
-        if in_order {
-            return cells.finish(&shown, sheet, source);
-        }
-        // Rows out of order (allowed, if rare): read the whole range instead.
+    if streamable && let Some((sheet, cells)) = stream_cells(path, options, &shown)? {
+        return cells.finish(&shown, sheet, source);
     }
+    let (sheet, cells) = range_cells(path, options, &shown)?;
+    cells.finish(&shown, sheet, source)
+}
+
+/// An xlsx sheet's cells as they stream from the file; None when its rows
+/// are out of order (allowed, if rare), for the whole range to be read instead.
+fn stream_cells(
+    path: &Path,
+    options: &LoadOptions,
+    shown: &str,
+) -> Result<Option<(String, SheetCells)>, LoadError> {
+    let mut workbook: Xlsx<_> = calamine::open_workbook(path).map_err(|e| unreadable(path, e))?;
+    let sheet = choose_sheet(&workbook.sheet_names(), options, shown)?;
+    let mut cells = SheetCells::new(options);
+    let mut reader = workbook
+        .worksheet_cells_reader(&sheet)
+        .map_err(|e| unreadable(path, e))?;
+    while let Some(cell) = reader.next_cell().map_err(|e| unreadable(path, e))? {
+        let (row, column) = cell.get_position();
+        let value = cell.get_value();
+        if *value == DataRef::Empty {
+            continue;
+        }
+        let taken = cells.add(
+            row,
+            column,
+            || Data::from(value.clone()).to_string(),
+            |builder| match value {
+                // Shared strings are pushed as borrowed text, not copied per cell.
+                DataRef::SharedString(s) => builder.push_text(s),
+                other => push_data(builder, &Data::from(other.clone())),
+            },
+        );
+        if taken.is_err() {
+            return Ok(None);
+        }
+    }
+    Ok(Some((sheet, cells)))
+}
+
+/// A sheet's cells from calamine's whole range (xls, ods, and xlsx out of order).
+fn range_cells(
+    path: &Path,
+    options: &LoadOptions,
+    shown: &str,
+) -> Result<(String, SheetCells), LoadError> {
     let mut workbook = open_workbook_auto(path).map_err(|e| unreadable(path, e))?;
-    let sheet = choose_sheet(&workbook.sheet_names(), options, &shown)?;
+    let sheet = choose_sheet(&workbook.sheet_names(), options, shown)?;
     let range = workbook
         .worksheet_range(&sheet)
         .map_err(|e| unreadable(path, e))?;
@@ -146,18 +160,17 @@ fn read(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table,
     for (row, column, data) in range.used_cells() {
         let (row, column) = (top + row as u32, left + column as u32);
         cells
-            .add(
-                row,
-                column,
-                || data.to_string(),
-                |builder| match data {
-                    Data::String(s) => builder.push_text(s),
-                    other => builder.push(cell_of(other)),
-                },
-            )
+            .add(row, column, || data.to_string(), |b| push_data(b, data))
             .expect("a range's used cells come in row order");
     }
-    cells.finish(&shown, sheet, source)
+    Ok((sheet, cells))
+}
+
+fn push_data(builder: &mut ColumnBuilder, data: &Data) {
+    match data {
+        Data::String(s) => builder.push_text(s),
+        other => builder.push(cell_of(other)),
+    }
 }
 
 /// The sheet the options name, or the first.
