@@ -55,19 +55,20 @@ fn column(header: &[Data], label: &str) -> usize {
         .unwrap_or_else(|| panic!("no column {label}"))
 }
 
+/// `sheaf run RECIPE --data <the demo October> EXTRA...` in `dir`.
+fn run_on_october(dir: &Path, recipe: &Path, extra: &[&str]) -> std::process::Output {
+    let (recipe, data) = (recipe.to_str().unwrap(), october());
+    let args = [
+        &["run", recipe, "--data", data.to_str().unwrap()][..],
+        extra,
+    ]
+    .concat();
+    sheaf(&args, dir)
+}
+
 fn run_demo(dir: &Path) -> PathBuf {
     let out = dir.join("october.xlsx");
-    let o = sheaf(
-        &[
-            "run",
-            demo_recipe().to_str().unwrap(),
-            "--data",
-            october().to_str().unwrap(),
-            "--out",
-            out.to_str().unwrap(),
-        ],
-        dir,
-    );
+    let o = run_on_october(dir, &demo_recipe(), &["--out", out.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(0), "{}", text(&o));
     out
 }
@@ -185,17 +186,7 @@ fn exit_status_one_when_a_fail_check_fails() {
         "check \"weights are plausible\" fail per depot: max(weight_kg) <= 100\n",
     )
     .unwrap();
-    let o = sheaf(
-        &[
-            "run",
-            recipe.to_str().unwrap(),
-            "--data",
-            october().to_str().unwrap(),
-            "--out",
-            "r.xlsx",
-        ],
-        dir.path(),
-    );
+    let o = run_on_october(dir.path(), &recipe, &["--out", "r.xlsx"]);
     assert_eq!(o.status.code(), Some(1), "{}", text(&o));
     assert!(
         text(&o).contains("fail: \"weights are plausible\" North"),
@@ -213,15 +204,7 @@ fn bad_recipes_and_data_exit_with_status_two_and_say_where() {
     let dir = tempfile::tempdir().unwrap();
     let bad = dir.path().join("bad.sheaf");
     std::fs::write(&bad, "title \"x\"\nlet late_h = {Minutes lat} / 60\n").unwrap();
-    let o = sheaf(
-        &[
-            "run",
-            bad.to_str().unwrap(),
-            "--data",
-            october().to_str().unwrap(),
-        ],
-        dir.path(),
-    );
+    let o = run_on_october(dir.path(), &bad, &[]);
     assert_eq!(o.status.code(), Some(2));
     let t = text(&o);
     assert!(
@@ -253,15 +236,7 @@ fn bad_recipes_and_data_exit_with_status_two_and_say_where() {
         "input sheet \"Deliverys\"\nboxplot weight_kg\n",
     )
     .unwrap();
-    let o = sheaf(
-        &[
-            "run",
-            wrong_sheet.to_str().unwrap(),
-            "--data",
-            october().to_str().unwrap(),
-        ],
-        dir.path(),
-    );
+    let o = run_on_october(dir.path(), &wrong_sheet, &[]);
     assert_eq!(o.status.code(), Some(2));
     assert!(
         text(&o).contains("no sheet named \"Deliverys\"; the sheets are: \"Deliveries\""),
@@ -291,32 +266,21 @@ fn results_are_not_replaced_without_force_and_the_input_is_never_written() {
     let before = std::fs::read(october()).unwrap();
     let out = run_demo(dir.path());
     let first = std::fs::read(&out).unwrap();
-    let (recipe, data) = (demo_recipe(), october());
-    let args = [
-        "run",
-        recipe.to_str().unwrap(),
-        "--data",
-        data.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ];
-    let o = sheaf(&args, dir.path());
+    let to_out = ["--out", out.to_str().unwrap()];
+    let o = run_on_october(dir.path(), &demo_recipe(), &to_out);
     assert_eq!(o.status.code(), Some(2));
     assert!(text(&o).contains("exists already; pass --force"));
     assert_eq!(std::fs::read(&out).unwrap(), first);
-    let o = sheaf(&[&args[..], &["--force"]].concat(), dir.path());
-    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
-    let o = sheaf(
-        &[
-            "run",
-            demo_recipe().to_str().unwrap(),
-            "--data",
-            october().to_str().unwrap(),
-            "--out",
-            october().to_str().unwrap(),
-            "--force",
-        ],
+    let o = run_on_october(
         dir.path(),
+        &demo_recipe(),
+        &[&to_out[..], &["--force"]].concat(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let o = run_on_october(
+        dir.path(),
+        &demo_recipe(),
+        &["--out", october().to_str().unwrap(), "--force"],
     );
     assert_eq!(o.status.code(), Some(2));
     assert!(text(&o).contains("is the input file"));
