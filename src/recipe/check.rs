@@ -587,71 +587,45 @@ impl Checker<'_> {
         if !ok {
             return None;
         }
-        match function.kind {
-            FunctionKind::Comparison => {
-                if first.shape == Shape::Rows {
-                    self.report(
-                        args[0].span,
-                        format!(
-                            "`{}` compares one value per group, but this is a value per row",
-                            function.name
-                        ),
-                        Some("give it an aggregate, as in change(mean(x))".into()),
-                    );
-                    return None;
-                }
-                self.operand(
-                    &args[0],
-                    first,
-                    Value::Number,
-                    &format!("`{}`", function.name),
-                )?;
-                Some(Typed {
-                    shape: Shape::One,
-                    value: Value::Number,
-                })
-            }
-            FunctionKind::Row => {
-                self.operand(
-                    &args[0],
-                    first,
-                    Value::Number,
-                    &format!("`{}`", function.name),
-                )?;
-                Some(Typed {
-                    shape: first.shape,
-                    value: Value::Number,
-                })
-            }
-            FunctionKind::Aggregate => {
-                if first.shape == Shape::One {
-                    self.report(
-                        args[0].span,
-                        format!(
-                            "`{}` reduces a column, but its argument is already one value",
-                            function.name
-                        ),
-                        Some(format!("give it a column, as in {}", function.signature())),
-                    );
-                    return None;
-                }
-                let wanted = if function.takes_condition {
-                    Value::Truth
-                } else {
-                    Value::Number
-                };
-                self.operand(&args[0], first, wanted, &format!("`{}`", function.name))?;
-                let value = if function.returns == Returns::List {
-                    Value::List
-                } else {
-                    Value::Number
-                };
-                Some(Typed {
-                    shape: Shape::One,
-                    value,
-                })
-            }
+        // Each kind refuses one shape of first argument.
+        let refused = match function.kind {
+            FunctionKind::Comparison if first.shape == Shape::Rows => Some((
+                format!(
+                    "`{}` compares one value per group, but this is a value per row",
+                    function.name
+                ),
+                "give it an aggregate, as in change(mean(x))".to_string(),
+            )),
+            FunctionKind::Aggregate if first.shape == Shape::One => Some((
+                format!(
+                    "`{}` reduces a column, but its argument is already one value",
+                    function.name
+                ),
+                format!("give it a column, as in {}", function.signature()),
+            )),
+            _ => None,
+        };
+        if let Some((message, help)) = refused {
+            self.report(args[0].span, message, Some(help));
+            return None;
         }
+        let wanted = if function.takes_condition {
+            Value::Truth
+        } else {
+            Value::Number
+        };
+        self.operand(&args[0], first, wanted, &format!("`{}`", function.name))?;
+        // A row function keeps its argument's shape; the others give one value per group.
+        let shape = match function.kind {
+            FunctionKind::Row => first.shape,
+            FunctionKind::Aggregate | FunctionKind::Comparison => Shape::One,
+        };
+        let value = if function.returns == Returns::List {
+            Value::List
+        } else {
+            Value::Number
+        };
+        Some(Typed { shape, value })
     }
 
     /// Arguments after the first: option words and numeric parameters.
