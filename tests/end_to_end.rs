@@ -97,7 +97,7 @@ fn the_demo_run_writes_every_sheet_and_its_figures_agree_with_the_core() {
         &october(),
         &LoadOptions {
             sheet: Some("Deliveries".into()),
-            header_row: None,
+            ..LoadOptions::default()
         },
     )
     .unwrap();

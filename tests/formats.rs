@@ -45,7 +45,7 @@ fn a_missing_sheet_names_the_ones_there() {
         &path("tests/fixtures/depot-2026-10.ods"),
         &LoadOptions {
             sheet: Some("Sheet9".into()),
-            header_row: None,
+            ..LoadOptions::default()
         },
     )
     .unwrap_err();
@@ -59,6 +59,7 @@ fn a_missing_sheet_names_the_ones_there() {
         &LoadOptions {
             sheet: None,
             header_row: Some(500),
+            ..LoadOptions::default()
         },
     )
     .unwrap_err();

@@ -125,21 +125,44 @@ fn name() -> impl Strategy<Value = Spanned<String>> {
     })
 }
 
+fn read_setting() -> impl Strategy<Value = Spanned<ReadSetting>> {
+    prop_oneof![
+        prop::sample::select(vec![',', '.']).prop_map(ReadSetting::Decimal),
+        prop::option::of(prop::sample::select(vec![',', '.', ' ', '\'']))
+            .prop_map(ReadSetting::Thousands),
+        "[a-z0-9-]{1,12}".prop_map(ReadSetting::Encoding),
+        Just(ReadSetting::KeepSummaryRows),
+        Just(ReadSetting::MergeSimilarKeys),
+    ]
+    .prop_map(|value| Spanned {
+        value,
+        span: Span::default(),
+    })
+}
+
 fn statement() -> impl Strategy<Value = StatementKind> {
     let ident =
         "[a-z][a-z0-9_]{0,6}".prop_filter("not a keyword", |s| !KEYWORDS.contains(&s.as_str()));
     let keys = prop::collection::vec(column(), 0..3);
     prop_oneof![
         name().prop_map(StatementKind::Title),
-        (prop::option::of(name()), prop::option::of(1u32..50))
-            .prop_filter("input needs a setting", |(s, r)| s.is_some() || r.is_some())
-            .prop_map(|(sheet, row)| StatementKind::Input {
+        (
+            prop::option::of(name()),
+            prop::option::of(1u32..50),
+            prop::collection::vec(read_setting(), 0..3)
+        )
+            .prop_filter("input needs a setting", |(s, r, reading)| s.is_some()
+                || r.is_some()
+                || !reading.is_empty())
+            .prop_map(|(sheet, row, reading)| StatementKind::Input {
                 sheet,
                 header_row: row.map(|value| Spanned {
                     value,
                     span: Span::default()
-                })
+                }),
+                reading,
             }),
+        prop::collection::vec(column(), 2..4).prop_map(|names| StatementKind::Header { names }),
         (ident.clone(), expression()).prop_map(|(n, value)| StatementKind::Let {
             name: Spanned {
                 value: n,

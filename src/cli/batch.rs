@@ -33,7 +33,8 @@ fn one_file(
     syntax: &Recipe,
     path: &Path,
 ) -> Result<(Recipe, Table), String> {
-    let table = load::load(path, &load_options(syntax)).map_err(|e| e.to_string())?;
+    let table = load::load_for(path, &load_options(syntax), &super::wanted(syntax, text))
+        .map_err(|e| e.to_string())?;
     check_headers(recipe_path, text, syntax, &table).map_err(|Failure(m)| m)?;
     Ok((syntax.clone(), table))
 }

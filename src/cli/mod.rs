@@ -123,13 +123,28 @@ pub fn main() -> ExitCode {
             file,
             sheet,
             header_row,
-        } => inspect(&file, LoadOptions { sheet, header_row }),
+        } => inspect(
+            &file,
+            LoadOptions {
+                sheet,
+                header_row,
+                ..LoadOptions::default()
+            },
+        ),
         Command::Calc {
             expression,
             data,
             sheet,
             header_row,
-        } => calc(&expression, &data, LoadOptions { sheet, header_row }),
+        } => calc(
+            &expression,
+            &data,
+            LoadOptions {
+                sheet,
+                header_row,
+                ..LoadOptions::default()
+            },
+        ),
     };
     match result {
         Ok(code) => code,
@@ -184,19 +199,52 @@ fn check_headers(
     }
 }
 
-/// The `input` statement's settings.
-fn load_options(recipe: &recipe::Recipe) -> LoadOptions {
-    recipe
-        .statements
-        .iter()
-        .find_map(|s| match &s.kind {
-            StatementKind::Input { sheet, header_row } => Some(LoadOptions {
-                sheet: sheet.as_ref().map(|s| s.value.clone()),
-                header_row: header_row.as_ref().map(|h| h.value),
-            }),
-            _ => None,
-        })
-        .unwrap_or_default()
+/// The data columns a recipe reads, and those it reads as numbers.
+pub fn wanted(recipe: &recipe::Recipe, text: &str) -> load::Wanted {
+    let uses = recipe::uses::column_uses(recipe, text);
+    load::Wanted {
+        columns: uses.read.into_iter().map(|u| u.name).collect(),
+        numeric: uses
+            .as_numbers
+            .into_iter()
+            .map(|u| (u.name, u.line))
+            .collect(),
+        keys: uses.as_keys.into_iter().map(|u| u.name).collect(),
+    }
+}
+
+/// How to read the data: the `input` line's settings and the `header` lines.
+pub fn load_options(recipe: &recipe::Recipe) -> LoadOptions {
+    use crate::recipe::ast::ReadSetting;
+    let mut options = LoadOptions::default();
+    for statement in &recipe.statements {
+        match &statement.kind {
+            StatementKind::Input {
+                sheet,
+                header_row,
+                reading,
+            } => {
+                options.sheet = sheet.as_ref().map(|s| s.value.clone());
+                options.header_row = header_row.as_ref().map(|h| h.value);
+                for setting in reading {
+                    match &setting.value {
+                        ReadSetting::Decimal(mark) => options.number_style.decimal = Some(*mark),
+                        ReadSetting::Thousands(mark) => {
+                            options.number_style.thousands = Some(*mark)
+                        }
+                        ReadSetting::Encoding(label) => options.encoding = Some(label.clone()),
+                        ReadSetting::KeepSummaryRows => options.keep_summary_rows = true,
+                        ReadSetting::MergeSimilarKeys => options.merge_similar_keys = true,
+                    }
+                }
+            }
+            StatementKind::Header { names } => options
+                .accepted_names
+                .push(names.iter().map(|n| n.name.clone()).collect()),
+            _ => {}
+        }
+    }
+    options
 }
 
 fn load_for(
@@ -207,7 +255,7 @@ fn load_for(
     // Parsed once: the `input` statement says how to read the data, and the
     // data's headers then complete the check.
     let recipe = checked_recipe(recipe_path, text, None)?;
-    let table = load::load(data, &load_options(&recipe))?;
+    let table = load::load_for(data, &load_options(&recipe), &wanted(&recipe, text))?;
     check_headers(recipe_path, text, &recipe, &table)?;
     Ok((recipe, table))
 }
@@ -265,10 +313,7 @@ fn run(
     let (recipe, table) = load_for(recipe_path, &text, data)?;
     let loaded = std::time::Instant::now();
     let previous = match compare {
-        Some(path) => Some(crate::history::Record::read(
-            path,
-            &crate::history::fingerprint(&recipe),
-        )?),
+        Some(path) => Some(crate::history::Record::read(path, &recipe)?),
         None => None,
     };
     let results = eval::evaluate_against(

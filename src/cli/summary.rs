@@ -42,6 +42,12 @@ pub fn render(results: &Results, table: &Table, out: &Path) -> String {
             )
         }
     );
+    for note in crate::load::reading_notes(table) {
+        text.push_str(&format!("{}: {}\n", note.topic, note.text));
+    }
+    if !text.ends_with("\n\n") {
+        text.push('\n');
+    }
     let mut lines = vec![[
         "block".to_string(),
         "groups".into(),

@@ -322,6 +322,7 @@ fn columns_used(recipe: &Recipe) -> Vec<String> {
             }
             StatementKind::Title(_)
             | StatementKind::Input { .. }
+            | StatementKind::Header { .. }
             | StatementKind::Period(_)
             | StatementKind::Drift(_) => {}
         }
@@ -379,7 +380,10 @@ pub fn evaluate_against(
     for statement in &recipe.statements {
         match &statement.kind {
             StatementKind::Title(t) => results.title = Some(t.value.clone()),
-            StatementKind::Input { .. } | StatementKind::Period(_) | StatementKind::Drift(_) => {}
+            StatementKind::Input { .. }
+            | StatementKind::Header { .. }
+            | StatementKind::Period(_)
+            | StatementKind::Drift(_) => {}
             StatementKind::Let { name, value: e } => {
                 let scope = Scope::new(table, &lets, &kept);
                 let full = widen(scope.eval(e), &kept, table.rows);

@@ -8,6 +8,7 @@ use calamine::{Data, Reader, open_workbook_auto};
 use sha2::{Digest, Sha256};
 
 use crate::eval::{Block, One, PANEL_LABELS, Results, group_label};
+use crate::recipe::ast::StatementKind;
 use crate::recipe::{Recipe, pretty};
 
 pub const RECORD_SHEET: &str = "Record";
@@ -47,8 +48,34 @@ pub enum RecordError {
     },
 }
 
-/// SHA-256 of the recipe's canonical text: layout and comments do not count.
+/// SHA-256 of the canonical text of what the recipe computes: layout and
+/// comments do not count, nor do the `input` and `header` lines, which say
+/// how to read a file (a header renamed this month, a decimal comma) and
+/// not what is computed; adding one keeps last month comparable.
 pub fn fingerprint(recipe: &Recipe) -> String {
+    let computing = Recipe {
+        statements: recipe
+            .statements
+            .iter()
+            .filter(|s| {
+                !matches!(
+                    s.kind,
+                    StatementKind::Input { .. } | StatementKind::Header { .. }
+                )
+            })
+            .cloned()
+            .collect(),
+    };
+    digest(&computing)
+}
+
+/// The fingerprint results made before `input` lines were left out of it
+/// (the whole canonical text); such results can still be compared with.
+fn earlier_fingerprint(recipe: &Recipe) -> String {
+    digest(recipe)
+}
+
+fn digest(recipe: &Recipe) -> String {
     Sha256::digest(pretty::recipe(recipe).as_bytes())
         .iter()
         .take(12)
@@ -129,7 +156,8 @@ impl Record {
     }
 
     /// Reads the Record sheet of a sheaf result; refuses another recipe's.
-    pub fn read(path: &Path, expected_fingerprint: &str) -> Result<Record, RecordError> {
+    pub fn read(path: &Path, recipe: &Recipe) -> Result<Record, RecordError> {
+        let expected_fingerprint = fingerprint(recipe);
         let shown = path.display().to_string();
         let mut workbook = open_workbook_auto(path)
             .map_err(|e| RecordError::Unreadable(shown.clone(), e.to_string()))?;
@@ -143,11 +171,11 @@ impl Record {
         let rows: Vec<&[Data]> = range.rows().collect();
         let cell = |r: usize, c: usize| text(rows.get(r).and_then(|row| row.get(c)));
         let fingerprint = cell(0, 1);
-        if fingerprint != expected_fingerprint {
+        if fingerprint != expected_fingerprint && fingerprint != earlier_fingerprint(recipe) {
             return Err(RecordError::OtherRecipe {
                 path: shown,
                 theirs: fingerprint,
-                ours: expected_fingerprint.to_string(),
+                ours: expected_fingerprint,
             });
         }
         let period = Some(cell(1, 1)).filter(|p| !p.is_empty() && p != "(none)");

@@ -109,6 +109,48 @@ pub struct Column {
     values: Values,
     /// Cells that count as missing in this column's numeric view, in row order.
     issues: Vec<CellIssue>,
+    /// Text cells read as numbers (a workbook's numbers stored as text).
+    converted: Converted,
+    /// Text keys that differ only in case or inner spaces.
+    near_duplicates: Vec<NearDuplicate>,
+}
+
+/// Text cells of a workbook that were read as numbers: how many, and the
+/// first few rows, for the terminal and the About sheet.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Converted {
+    pub count: usize,
+    /// The first rows (0-based data rows), at most [`Converted::SHOWN`].
+    pub first_rows: Vec<u32>,
+}
+
+impl Converted {
+    /// How many converted cells are named by their address.
+    pub const SHOWN: usize = 5;
+
+    fn add(&mut self, row: u32) {
+        self.count += 1;
+        if self.first_rows.len() < Converted::SHOWN {
+            self.first_rows.push(row);
+        }
+    }
+}
+
+/// Spellings of one key that differ only in case or inner spaces
+/// (`Line A`, `line  A`), each with the row of its first cell. When the
+/// recipe merges them, `merged_into` is the spelling kept.
+#[derive(Debug, Clone, PartialEq)]
+pub struct NearDuplicate {
+    pub spellings: Vec<(String, u32)>,
+    pub merged_into: Option<String>,
+}
+
+/// A key's form for comparing spellings: lower case, inner spaces folded.
+fn key_form(text: &str) -> String {
+    text.split_whitespace()
+        .map(str::to_lowercase)
+        .collect::<Vec<_>>()
+        .join(" ")
 }
 
 impl Column {
@@ -182,6 +224,120 @@ impl Column {
         &self.issues
     }
 
+    /// Text cells that were read as numbers.
+    pub fn converted(&self) -> &Converted {
+        &self.converted
+    }
+
+    /// Keys of this text column that differ only in case or inner spaces.
+    pub fn near_duplicates(&self) -> &[NearDuplicate] {
+        &self.near_duplicates
+    }
+
+    /// Rows whose cell is blank.
+    pub fn blank_rows(&self) -> impl Iterator<Item = usize> + '_ {
+        self.issues
+            .iter()
+            .filter(|i| i.kind == IssueKind::Blank)
+            .map(|i| i.row)
+    }
+
+    /// Keeps only the rows whose `new_row` is Some, renumbered to it.
+    pub fn keep_rows(&mut self, new_row: &[Option<u32>]) {
+        let renumber = |row: u32| new_row[row as usize];
+        match &mut self.values {
+            Values::Numbers {
+                numbers,
+                other_type,
+            } => {
+                let mut at = 0;
+                numbers.retain(|_| {
+                    at += 1;
+                    new_row[at - 1].is_some()
+                });
+                *other_type = other_type.iter().filter_map(|&r| renumber(r)).collect();
+            }
+            Values::Texts { codes, .. } => {
+                let mut at = 0;
+                codes.retain(|_| {
+                    at += 1;
+                    new_row[at - 1].is_some()
+                });
+            }
+        }
+        self.issues
+            .retain_mut(|issue| match renumber(issue.row as u32) {
+                Some(row) => {
+                    issue.row = row as usize;
+                    true
+                }
+                None => false,
+            });
+        let converted = std::mem::take(&mut self.converted.first_rows);
+        self.converted.first_rows = converted.into_iter().filter_map(renumber).collect();
+    }
+
+    /// Finds the keys of a text column that differ only in case or inner
+    /// spaces; with `merge`, every spelling becomes its group's most
+    /// common one (the first seen on a tie).
+    pub fn find_near_duplicates(&mut self, merge: bool) {
+        let Values::Texts { codes, words } = &mut self.values else {
+            return;
+        };
+        let mut first_row = vec![u32::MAX; words.len()];
+        let mut uses = vec![0usize; words.len()];
+        for (row, &code) in codes.iter().enumerate() {
+            if let Some(w) = Column::word_of(code) {
+                uses[w] += 1;
+                if first_row[w] == u32::MAX {
+                    first_row[w] = row as u32;
+                }
+            }
+        }
+        let mut by_form: HashMap<String, Vec<usize>> = HashMap::new();
+        let mut forms: Vec<String> = Vec::new();
+        for (w, word) in words.iter().enumerate() {
+            if uses[w] == 0 {
+                continue;
+            }
+            let form = key_form(word);
+            let entry = by_form.entry(form.clone()).or_default();
+            if entry.is_empty() {
+                forms.push(form);
+            }
+            entry.push(w);
+        }
+        let mut remap: Vec<u32> = (0..words.len() as u32).collect();
+        for form in forms {
+            let mut group = by_form.remove(&form).unwrap_or_default();
+            if group.len() < 2 {
+                continue;
+            }
+            group.sort_by_key(|&w| first_row[w]);
+            let kept = *group
+                .iter()
+                .max_by_key(|&&w| (uses[w], std::cmp::Reverse(first_row[w])))
+                .expect("a group has members");
+            if merge {
+                group.iter().for_each(|&w| remap[w] = kept as u32);
+            }
+            self.near_duplicates.push(NearDuplicate {
+                spellings: group
+                    .iter()
+                    .map(|&w| (words[w].clone(), first_row[w]))
+                    .collect(),
+                merged_into: merge.then(|| words[kept].clone()),
+            });
+        }
+        if merge && !self.near_duplicates.is_empty() {
+            for code in codes.iter_mut() {
+                if let Some(w) = Column::word_of(*code) {
+                    *code = remap[w];
+                }
+            }
+        }
+    }
+
     fn issue_at(&self, row: usize) -> Option<&CellIssue> {
         self.issues
             .binary_search_by_key(&row, |i| i.row)
@@ -203,7 +359,9 @@ struct OtherCells {
 
 impl OtherCells {
     /// The code of a word, new words copied in once.
+    /// Spaces around a text are dropped: `"Line A "` is the key `Line A`.
     fn word(&mut self, text: &str) -> u32 {
+        let text = text.trim();
         if let Some(&code) = self.word_index.get(text) {
             return code;
         }
@@ -292,20 +450,63 @@ impl ColumnBuilder {
     }
 
     /// The column, its kind decided from all its cells.
-    pub fn finish(self, name: String, sheet_column: u32) -> Column {
+    /// Shows the builder's distinct texts to `see` (to detect a number style).
+    pub fn for_each_text(&self, mut see: impl FnMut(&str)) {
+        if let Some(other) = &self.other {
+            other.words.iter().for_each(|w| see(w));
+        }
+    }
+
+    /// The column, its kind decided from all its cells. With `text_numbers`,
+    /// text cells that read as numbers in that style count as numbers, and
+    /// become numbers if the column is numeric.
+    pub fn finish(
+        self,
+        name: String,
+        sheet_column: u32,
+        text_numbers: Option<&super::numbers::NumberStyle>,
+    ) -> Column {
         let ColumnBuilder {
             mut numbers,
             dates,
             other,
         } = self;
         let mut other = other.map(|o| *o).unwrap_or_default();
+        let as_number: Vec<Option<f64>> = match text_numbers {
+            Some(style) if !other.texts.is_empty() => {
+                other.words.iter().map(|w| style.parse(w)).collect()
+            }
+            _ => Vec::new(),
+        };
+        let convertible = if as_number.is_empty() {
+            0
+        } else {
+            other
+                .texts
+                .iter()
+                .filter(|(_, code)| as_number[*code as usize].is_some())
+                .count()
+        };
         let values_count = numbers.iter().filter(|x| !x.is_nan()).count();
         let kind = ColumnKind::from_counts(
-            values_count - dates.len(),
+            values_count - dates.len() + convertible,
             dates.len(),
-            other.texts.len(),
+            other.texts.len() - convertible,
             other.bools.len(),
         );
+        let mut converted = Converted::default();
+        if convertible > 0 && kind.is_numeric() {
+            other
+                .texts
+                .retain(|&(row, code)| match as_number[code as usize] {
+                    Some(x) => {
+                        numbers[row as usize] = x;
+                        converted.add(row);
+                        false
+                    }
+                    None => true,
+                });
+        }
         let mut issues: Vec<CellIssue> = Vec::new();
         let issue = |row: u32, kind, content: String| CellIssue {
             row: row as usize,
@@ -391,6 +592,8 @@ impl ColumnBuilder {
             kind,
             values,
             issues,
+            converted,
+            near_duplicates: Vec::new(),
         }
     }
 }
@@ -402,7 +605,7 @@ mod tests {
     fn column(cells: Vec<Cell>) -> Column {
         let mut builder = ColumnBuilder::default();
         cells.into_iter().for_each(|c| builder.push(c));
-        builder.finish("x".into(), 0)
+        builder.finish("x".into(), 0, None)
     }
 
     #[test]

@@ -1,12 +1,20 @@
-//! CSV and TSV: delimiter and UTF-8 byte-order mark detected; each field
-//! typed as a number, or kept as text.
+//! CSV and TSV. From the file itself sheaf detects the encoding (UTF-8,
+//! UTF-16 by its byte-order mark, otherwise Windows-1252), the delimiter
+//! (a `sep=;` first line, or the most common of `,` `;` tab `|`), the
+//! number style (decimal comma, thousands marks) and the header row; the
+//! recipe's `input` line can fix each. Every decision goes into the notes.
 
 use std::io::Read;
 use std::path::Path;
 
-use super::column::{Column, ColumnBuilder, ColumnKind, MAX_ROWS};
-use super::source::Hashing;
-use super::table::{Cell, Table, cell_address};
+use encoding_rs::{Encoding, UTF_8, WINDOWS_1252};
+
+use super::assemble::{self, Parts, TextCells};
+use super::column::{ColumnBuilder, MAX_ROWS};
+use super::header::{self, TopRow};
+use super::numbers::{NumberStyle, StyleEvidence};
+use super::source::{Hashing, SourceInfo};
+use super::table::{Cell, ReadNotes, Table};
 use super::{LoadError, LoadOptions};
 
 /// The pseudo-sheet name of a CSV file: its name without the ending.
@@ -17,11 +25,10 @@ pub fn sheet_name(path: &Path) -> String {
 }
 
 /// The most frequent of `,` `;` tab `|` in the first line, outside quotes.
-fn detect_delimiter(text: &str) -> u8 {
-    let first = text.lines().next().unwrap_or("");
+fn detect_delimiter(first_line: &str) -> u8 {
     let mut counts = [(b',', 0), (b';', 0), (b'\t', 0), (b'|', 0)];
     let mut quoted = false;
-    for byte in first.bytes() {
+    for byte in first_line.bytes() {
         if byte == b'"' {
             quoted = !quoted;
         } else if !quoted && let Some(entry) = counts.iter_mut().find(|(d, _)| *d == byte) {
@@ -35,200 +42,524 @@ fn detect_delimiter(text: &str) -> u8 {
         .map_or(b',', |(d, _)| *d)
 }
 
-/// Adds a field to its column: a number if it reads as one (infinities and
-/// NaN do not count), otherwise as text, blank or a spreadsheet error code.
-fn push_field(column: &mut ColumnBuilder, field: &str) {
-    match field.trim().parse::<f64>() {
-        Ok(x) if x.is_finite() => column.push(Cell::Number(x)),
-        _ => column.push_text(field),
+/// A `sep=;` first line, as some spreadsheet programs write: its delimiter.
+fn separator_line(first_line: &str) -> Option<u8> {
+    let rest = first_line
+        .trim_end_matches(['\r', '\n'])
+        .strip_prefix("sep=")?;
+    match rest.as_bytes() {
+        [d] if !d.is_ascii_alphanumeric() && *d != b'"' => Some(*d),
+        _ => None,
     }
 }
 
-/// The first bytes of the file, enough to see its first line.
+fn delimiter_name(d: u8) -> String {
+    match d {
+        b'\t' => "tab".into(),
+        b',' => "comma".into(),
+        b';' => "semicolon".into(),
+        other => format!("`{}`", other as char),
+    }
+}
+
+/// How the text of a file is laid out: what sheaf detected (or was told).
+#[derive(Debug, Clone)]
+struct Layout {
+    delimiter: u8,
+    /// The file opens with a `sep=` line, which is not a row.
+    separator_line: bool,
+    style: NumberStyle,
+    notes: ReadNotes,
+}
+
+/// Detects the layout from the first part of the decoded text.
+fn layout(head: &str, options: &LoadOptions, mut notes: ReadNotes) -> Layout {
+    let first_line = head.lines().next().unwrap_or("");
+    let (delimiter, separator_line) = match separator_line(first_line) {
+        Some(d) => {
+            notes.delimiter = Some(format!(
+                "{} (from the file's `sep=` line)",
+                delimiter_name(d)
+            ));
+            (d, true)
+        }
+        None => {
+            let d = detect_delimiter(first_line);
+            if d != b',' {
+                notes.delimiter = Some(format!("{} (detected)", delimiter_name(d)));
+            }
+            (d, false)
+        }
+    };
+    let mut evidence = StyleEvidence::default();
+    let body = if separator_line {
+        head.split_once('\n').map_or("", |(_, rest)| rest)
+    } else {
+        head
+    };
+    let mut reader = csv::ReaderBuilder::new()
+        .delimiter(delimiter)
+        .has_headers(false)
+        .flexible(true)
+        .from_reader(body.as_bytes());
+    for record in reader.records().map_while(Result::ok) {
+        record.iter().for_each(|field| evidence.see(field));
+    }
+    let detected = evidence.decide(&options.number_style);
+    if detected.style != NumberStyle::POINT || options.number_style.is_set() {
+        let how = if options.number_style.is_set() {
+            "set by the recipe"
+        } else {
+            "detected"
+        };
+        notes.number_style = Some(format!("{} ({how})", detected.style.describe()));
+    }
+    notes.number_doubt = detected.doubt;
+    Layout {
+        delimiter,
+        separator_line,
+        style: detected.style,
+        notes,
+    }
+}
+
+/// Adds a field to its column: a number if it reads as one in the file's
+/// style (infinities and NaN do not count), otherwise text, blank or a
+/// spreadsheet error code.
+fn push_field(column: &mut ColumnBuilder, field: &str, style: &NumberStyle) {
+    let number = if *style == NumberStyle::POINT {
+        field.trim().parse::<f64>().ok().filter(|x| x.is_finite())
+    } else {
+        style.parse(field)
+    };
+    match number {
+        Some(x) => column.push(Cell::Number(x)),
+        None => column.push_text(field),
+    }
+}
+
+/// The first bytes of the file: enough to see its encoding, delimiter and style.
 const HEAD_BYTES: u64 = 1 << 16;
 
-/// Reads a CSV or TSV file as it streams past: only the columns are kept.
+/// The encoding the recipe names, or the one its byte-order mark shows.
+fn named_encoding(
+    head: &[u8],
+    options: &LoadOptions,
+    shown: &str,
+) -> Result<Option<(&'static Encoding, String)>, LoadError> {
+    if let Some(label) = &options.encoding {
+        let encoding = Encoding::for_label(label.trim().as_bytes()).ok_or_else(|| {
+            LoadError::Malformed {
+                path: shown.to_string(),
+                reason: format!(
+                    "the recipe names the encoding \"{label}\", which sheaf does not know; write for example \"utf-8\", \"utf-16le\", \"windows-1252\" or \"iso-8859-15\""
+                ),
+            }
+        })?;
+        return Ok(Some((
+            encoding,
+            format!("{} (set by the recipe)", encoding.name()),
+        )));
+    }
+    Ok(Encoding::for_bom(head)
+        .filter(|(e, _)| *e != UTF_8)
+        .map(|(e, _)| (e, format!("{} (byte-order mark)", e.name()))))
+}
+
+/// The 1-based line of the first bytes that are not UTF-8 (a character cut
+/// at the very end of the head does not count).
+fn first_non_utf8_line(head: &[u8]) -> Option<usize> {
+    match std::str::from_utf8(head) {
+        Ok(_) => None,
+        Err(e) if e.error_len().is_none() => None,
+        Err(e) => Some(
+            head[..e.valid_up_to()]
+                .iter()
+                .filter(|&&b| b == b'\n')
+                .count()
+                + 1,
+        ),
+    }
+}
+
+/// Why a streamed UTF-8 read stopped: bad data, or bytes that are not UTF-8.
+enum Stop {
+    Failed(LoadError),
+    NotUtf8 { line: u64 },
+}
+
+impl From<LoadError> for Stop {
+    fn from(e: LoadError) -> Self {
+        Stop::Failed(e)
+    }
+}
+
+fn unreadable(shown: &str, e: impl std::fmt::Display) -> LoadError {
+    LoadError::Unreadable {
+        path: shown.to_string(),
+        reason: e.to_string(),
+    }
+}
+
+/// Reads a CSV or TSV file. UTF-8 streams from the file (only the columns
+/// are kept); other encodings are decoded whole first.
 pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
     let shown = path.display().to_string();
-    let file = std::fs::File::open(path).map_err(|e| LoadError::Unreadable {
-        path: shown.clone(),
-        reason: e.to_string(),
-    })?;
+    let file = std::fs::File::open(path).map_err(|e| unreadable(&shown, e))?;
     let mut hashing = Hashing::new(std::io::BufReader::with_capacity(1 << 20, file));
     let mut head = Vec::new();
     (&mut hashing)
         .take(HEAD_BYTES)
         .read_to_end(&mut head)
-        .map_err(|e| LoadError::Unreadable {
-            path: shown.clone(),
-            reason: e.to_string(),
-        })?;
+        .map_err(|e| unreadable(&shown, e))?;
+    if let Some((encoding, how)) = named_encoding(&head, options, &shown)? {
+        return load_decoded(path, head, hashing, encoding, how, options);
+    }
+    if let Some(line) = first_non_utf8_line(&head) {
+        let how = format!(
+            "Windows-1252 (line {line} is not UTF-8, so the whole file was read as Windows-1252; detected)"
+        );
+        return load_decoded(path, head, hashing, WINDOWS_1252, how, options);
+    }
     if head.starts_with(b"\xEF\xBB\xBF") {
         head.drain(..3);
     }
-    let delimiter = detect_delimiter(&String::from_utf8_lossy(&head));
+    let layout = layout(
+        &String::from_utf8_lossy(&head),
+        options,
+        ReadNotes::default(),
+    );
     let mut input = std::io::Cursor::new(head).chain(hashing);
-    let (sheet, header_row, columns, rows) = read_records(&mut input, delimiter, &shown, options)?;
-    let (_, hashing) = input.into_inner();
-    Ok(Table {
-        source: hashing.finish(path),
-        sheet,
-        header_row,
-        columns,
-        rows,
-    })
+    match read_records(&mut input, &layout, &shown, options) {
+        Ok(parts) => {
+            let (_, hashing) = input.into_inner();
+            assemble::table(
+                &shown,
+                parts,
+                TextCells::AlreadyRead,
+                options,
+                hashing.finish(path),
+            )
+        }
+        Err(Stop::Failed(e)) => Err(e),
+        Err(Stop::NotUtf8 { line }) => {
+            // Valid UTF-8 at the top, not further down: read it all again.
+            let file = std::fs::File::open(path).map_err(|e| unreadable(&shown, e))?;
+            let how = format!(
+                "Windows-1252 (line {line} is not UTF-8, so the whole file was read as Windows-1252; detected)"
+            );
+            load_decoded(
+                path,
+                Vec::new(),
+                Hashing::new(file),
+                WINDOWS_1252,
+                how,
+                options,
+            )
+        }
+    }
 }
 
-/// A sheet's name, header row, columns and count of data rows.
-type Parts = (String, u32, Vec<Column>, usize);
-
-/// The records of a CSV file as columns.
-fn read_records(
-    input: impl Read,
-    delimiter: u8,
-    path: &str,
+/// Reads the rest of the file, decodes it whole and reads its records.
+fn load_decoded(
+    path: &Path,
+    mut bytes: Vec<u8>,
+    mut rest: Hashing<impl Read>,
+    encoding: &'static Encoding,
+    how: String,
     options: &LoadOptions,
-) -> Result<Parts, LoadError> {
-    let path = path.to_string();
-    let sheet = sheet_name(Path::new(&path));
-    if options.sheet.as_ref().is_some_and(|s| s != &sheet) {
-        return Err(LoadError::NoSuchSheet {
-            path,
-            sheet: options.sheet.clone().unwrap(),
-            available: format!("\"{sheet}\" (a CSV file has one sheet, named after the file)"),
-        });
+) -> Result<Table, LoadError> {
+    let shown = path.display().to_string();
+    rest.read_to_end(&mut bytes)
+        .map_err(|e| unreadable(&shown, e))?;
+    let source: SourceInfo = rest.finish(path);
+    let text = encoding.decode_with_bom_removal(&bytes).0.into_owned();
+    drop(bytes);
+    let notes = ReadNotes {
+        encoding: Some(how),
+        ..ReadNotes::default()
+    };
+    let head_end = text.floor_char_boundary(HEAD_BYTES as usize);
+    let layout = layout(&text[..head_end], options, notes);
+    match read_records(text.as_bytes(), &layout, &shown, options) {
+        Ok(parts) => assemble::table(&shown, parts, TextCells::AlreadyRead, options, source),
+        Err(Stop::Failed(e)) => Err(e),
+        Err(Stop::NotUtf8 { .. }) => unreachable!("decoded text is UTF-8"),
     }
-    let header_row = options.header_row.unwrap_or(1);
-    let mut reader = csv::ReaderBuilder::new()
-        .delimiter(delimiter)
-        .has_headers(false)
-        .flexible(true)
-        .from_reader(input);
-    // Stream the records into columns: only the header rows are kept whole.
-    let mut header: Option<csv::StringRecord> = None;
-    let mut grid: Vec<ColumnBuilder> = Vec::new();
-    let (mut seen, mut body_rows) = (0usize, 0usize);
-    let mut record = csv::StringRecord::new();
-    loop {
-        match reader.read_record(&mut record) {
-            Ok(false) => break,
-            Ok(true) => {}
-            Err(e) => {
-                let reason = match e.kind() {
-                    csv::ErrorKind::Utf8 { pos, .. } => format!(
-                        "line {} is not UTF-8 text; save the file as UTF-8 and run again",
-                        pos.as_ref().map_or(seen + 1, |p| p.line() as usize)
-                    ),
-                    _ => e.to_string(),
-                };
-                return Err(LoadError::Malformed {
-                    path: path.clone(),
-                    reason,
-                });
-            }
+}
+
+/// Columns filled from records, with the header row found or given.
+struct Filling {
+    header_row: Option<u32>,
+    names: Vec<String>,
+    grid: Vec<ColumnBuilder>,
+    body_rows: usize,
+}
+
+impl Filling {
+    /// Adds the record on 0-based sheet row `row`, under the header.
+    fn add(
+        &mut self,
+        row: u32,
+        record: &csv::StringRecord,
+        style: &NumberStyle,
+        path: &str,
+    ) -> Result<(), LoadError> {
+        let header = self.header_row.expect("the header row is known") - 1;
+        if row < header {
+            return Ok(());
         }
-        seen += 1;
-        if seen < header_row as usize {
-            continue;
-        }
-        if seen == header_row as usize {
-            grid = (0..record.len())
+        if row == header {
+            self.names = record.iter().map(|f| f.trim().to_string()).collect();
+            self.grid = (0..record.len())
                 .map(|_| ColumnBuilder::default())
                 .collect();
-            header = Some(record.clone());
-            continue;
+            return Ok(());
         }
-        if body_rows == MAX_ROWS {
+        let body_row = (row - header - 1) as usize;
+        if body_row >= MAX_ROWS {
             return Err(LoadError::Malformed {
-                path: path.clone(),
+                path: path.to_string(),
                 reason: format!(
                     "more than {MAX_ROWS} data rows; split the file or filter it before reading"
                 ),
             });
         }
-        while record.len() > grid.len() {
-            grid.push(ColumnBuilder::blanks(body_rows));
+        // Rows skipped as empty lines by the CSV reader are blank rows.
+        while self.body_rows < body_row {
+            self.grid.iter_mut().for_each(|c| c.push(Cell::Blank));
+            self.body_rows += 1;
         }
-        for (c, column) in grid.iter_mut().enumerate() {
-            push_field(column, record.get(c).unwrap_or(""));
+        while record.len() > self.grid.len() {
+            self.grid.push(ColumnBuilder::blanks(self.body_rows));
         }
-        body_rows += 1;
+        for (c, column) in self.grid.iter_mut().enumerate() {
+            push_field(column, record.get(c).unwrap_or(""), style);
+        }
+        self.body_rows += 1;
+        Ok(())
     }
-    if seen == 0 {
-        return Err(LoadError::EmptySheet { path, sheet });
-    }
-    let Some(header) = header else {
-        return Err(LoadError::NoHeaderRow {
-            path,
-            sheet,
-            row: header_row,
-        });
-    };
-    let width = grid.len();
-    let names: Vec<String> = (0..width)
-        .map(|c| header.get(c).unwrap_or("").trim().to_string())
-        .collect();
-    let columns = build_columns(&path, names, grid, header_row)?;
-    Ok((sheet, header_row, columns, body_rows))
 }
 
-/// Named columns from header names and cells, refusing blank and duplicate headers.
-pub fn build_columns(
+/// The cells of a record as the header finder sees them.
+fn top_row(row: u32, record: &csv::StringRecord, style: &NumberStyle) -> TopRow {
+    let cells = record
+        .iter()
+        .enumerate()
+        .filter(|(_, f)| !f.trim().is_empty())
+        .map(|(c, f)| {
+            let cell = match style.parse(f) {
+                Some(x) => Cell::Number(x),
+                None => Cell::from_text(f),
+            };
+            (c as u32, cell)
+        })
+        .collect();
+    (row, cells)
+}
+
+/// The records of a CSV file as columns. Rows are counted as a spreadsheet
+/// shows them: an empty line is a (blank) row, a quoted field with line
+/// breaks stays in one row.
+fn read_records(
+    input: impl Read,
+    layout: &Layout,
     path: &str,
-    names: Vec<String>,
-    grid: Vec<ColumnBuilder>,
-    header_row: u32,
-) -> Result<Vec<Column>, LoadError> {
-    let mut columns: Vec<Column> = Vec::new();
-    let mut seen: std::collections::HashMap<String, u32> = std::collections::HashMap::new();
-    for (index, (name, cells)) in names.into_iter().zip(grid).enumerate() {
-        let column = cells.finish(name.clone(), index as u32);
-        if name.is_empty() {
-            if column.kind == ColumnKind::Empty {
-                continue;
-            }
-            return Err(LoadError::BlankHeader {
-                path: path.to_string(),
-                address: cell_address(index as u32, header_row as usize),
-            });
+    options: &LoadOptions,
+) -> Result<Parts, Stop> {
+    let sheet = sheet_name(Path::new(path));
+    if options.sheet.as_ref().is_some_and(|s| s != &sheet) {
+        return Err(LoadError::NoSuchSheet {
+            path: path.to_string(),
+            sheet: options.sheet.clone().unwrap(),
+            available: format!("\"{sheet}\" (a CSV file has one sheet, named after the file)"),
         }
-        if let Some(&first) = seen.get(&name) {
-            return Err(LoadError::DuplicateHeader {
-                path: path.to_string(),
-                name,
-                first: cell_address(first, header_row as usize),
-                second: cell_address(index as u32, header_row as usize),
-            });
-        }
-        seen.insert(name, index as u32);
-        columns.push(column);
+        .into());
     }
-    Ok(columns)
+    let mut reader = csv::ReaderBuilder::new()
+        .delimiter(layout.delimiter)
+        .has_headers(false)
+        .flexible(true)
+        .from_reader(input);
+    let mut filling = Filling {
+        header_row: options.header_row,
+        names: Vec::new(),
+        grid: Vec::new(),
+        body_rows: 0,
+    };
+    let mut notes = layout.notes.clone();
+    // Until the header row is found, records wait here with their rows.
+    let mut waiting: Vec<(u32, csv::StringRecord)> = Vec::new();
+    let mut record = csv::StringRecord::new();
+    let (mut row, mut next_line, mut any) = (0u32, 1u64, false);
+    let mut skip_separator = layout.separator_line;
+    loop {
+        match reader.read_record(&mut record) {
+            Ok(false) => break,
+            Ok(true) => {}
+            Err(e) => {
+                return Err(match e.kind() {
+                    csv::ErrorKind::Utf8 { pos, .. } => Stop::NotUtf8 {
+                        line: pos.as_ref().map_or(next_line, |p| p.line()),
+                    },
+                    _ => LoadError::Malformed {
+                        path: path.to_string(),
+                        reason: e.to_string(),
+                    }
+                    .into(),
+                });
+            }
+        }
+        // The reader skips empty lines without a record; they are rows too.
+        // It stands on the line after this record now, so the record began
+        // that many lines back, less the line breaks inside its fields.
+        let after = reader.position().line();
+        let inner_breaks: usize = record.iter().map(|f| f.matches('\n').count()).sum();
+        let line = after.saturating_sub(1 + inner_breaks as u64);
+        row += line.saturating_sub(next_line) as u32;
+        next_line = after;
+        if std::mem::take(&mut skip_separator) {
+            continue;
+        }
+        any = true;
+        if filling.header_row.is_some() {
+            filling.add(row, &record, &layout.style, path)?;
+        } else {
+            waiting.push((row, record.clone()));
+            if waiting.len() == header::ROWS_LOOKED_AT {
+                settle_header(&mut filling, &mut waiting, layout, path, &mut notes)?;
+            }
+        }
+        row += 1;
+    }
+    if filling.header_row.is_none() {
+        settle_header(&mut filling, &mut waiting, layout, path, &mut notes)?;
+    }
+    let header_row = filling.header_row.unwrap_or(1);
+    if !any {
+        return Err(LoadError::EmptySheet {
+            path: path.to_string(),
+            sheet,
+        }
+        .into());
+    }
+    if filling.names.is_empty() && filling.grid.is_empty() {
+        return Err(LoadError::NoHeaderRow {
+            path: path.to_string(),
+            sheet,
+            row: header_row,
+        }
+        .into());
+    }
+    let width = filling.grid.len().max(filling.names.len());
+    filling.names.resize(width, String::new());
+    let rows = filling.body_rows;
+    filling
+        .grid
+        .resize_with(width, || ColumnBuilder::blanks(rows));
+    Ok(Parts {
+        sheet,
+        header_row,
+        names: filling.names,
+        builders: filling.grid,
+        rows,
+        notes,
+    })
+}
+
+/// Finds the header among the waiting records, then fills them in.
+fn settle_header(
+    filling: &mut Filling,
+    waiting: &mut Vec<(u32, csv::StringRecord)>,
+    layout: &Layout,
+    path: &str,
+    notes: &mut ReadNotes,
+) -> Result<(), LoadError> {
+    let top: Vec<TopRow> = waiting
+        .iter()
+        .map(|(row, record)| top_row(*row, record, &layout.style))
+        .filter(|(_, cells)| !cells.is_empty())
+        .collect();
+    let found = header::find(&top);
+    notes.header = found.as_ref().and_then(|f| f.note.clone());
+    filling.header_row = Some(found.map_or(1, |f| f.row + 1));
+    for (row, record) in waiting.drain(..) {
+        filling.add(row, &record, &layout.style, path)?;
+    }
+    Ok(())
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
 
-    fn table(text: &str) -> Result<Table, LoadError> {
+    fn table_with(text: &[u8], options: &LoadOptions) -> Result<Table, LoadError> {
         let dir = tempfile::tempdir().unwrap();
         let path = dir.path().join("deliveries.csv");
         std::fs::write(&path, text).unwrap();
-        load(&path, &LoadOptions::default())
+        load(&path, options)
+    }
+
+    fn table(text: &str) -> Result<Table, LoadError> {
+        table_with(text.as_bytes(), &LoadOptions::default())
     }
 
     #[test]
     fn delimiters_and_byte_order_mark() {
-        assert_eq!(detect_delimiter("a;b;c\n1;2;3"), b';');
-        assert_eq!(detect_delimiter("a\tb\n"), b'\t');
-        assert_eq!(detect_delimiter("\"x;y\",b\n"), b',');
+        assert_eq!(detect_delimiter("a;b;c"), b';');
+        assert_eq!(detect_delimiter("a\tb"), b'\t');
+        assert_eq!(detect_delimiter("\"x;y\",b"), b',');
         let t = table("\u{feff}depot;weight\nNorth;2,5\nSouth;3\n").unwrap();
         assert_eq!(t.headers(), ["depot", "weight"]);
         let weight = &t.columns[1];
+        assert_eq!((weight.number(0), weight.number(1)), (Some(2.5), Some(3.0)));
         assert_eq!(
-            (weight.text(0).as_deref(), weight.number(1)),
-            (Some("2,5"), Some(3.0))
+            t.notes.number_style.as_deref(),
+            Some("decimal comma (detected)")
         );
+    }
+
+    #[test]
+    fn a_separator_line_sets_the_delimiter_and_is_not_a_row() {
+        let t = table("sep=;\ndepot;weight\nNorth;1.5\n").unwrap();
+        assert_eq!(t.headers(), ["depot", "weight"]);
+        assert_eq!(t.header_row, 1);
+        assert_eq!(t.columns[1].number(0), Some(1.5));
+        assert!(t.notes.delimiter.as_deref().unwrap().contains("sep="));
+    }
+
+    #[test]
+    fn empty_lines_are_blank_rows_and_addresses_stay_true() {
+        let t = table("depot,weight\nNorth,1\n\nSouth,x\n").unwrap();
+        let weight = t.column("weight").unwrap();
+        assert_eq!(t.rows, 2);
+        assert_eq!(t.notes.blank_rows, [3]);
+        assert_eq!(t.address(weight, weight.issues()[0].row), "deliveries!B4");
+    }
+
+    #[test]
+    fn other_encodings_are_decoded_and_said() {
+        // "Qualität;Gewicht" and a Latin-1 umlaut in a key.
+        let latin1 = b"Linie;Gewicht\nM\xfcnchen;1,5\nKoeln;2\n";
+        let t = table_with(latin1, &LoadOptions::default()).unwrap();
+        assert_eq!(t.columns[0].text(0).as_deref(), Some("München"));
+        assert_eq!(t.columns[1].number(0), Some(1.5));
+        assert!(
+            t.notes
+                .encoding
+                .as_deref()
+                .unwrap()
+                .contains("Windows-1252"),
+            "{:?}",
+            t.notes
+        );
+        let text = "line,weight\nNord,1.5\n";
+        let mut utf16: Vec<u8> = vec![0xFF, 0xFE];
+        text.encode_utf16()
+            .for_each(|u| utf16.extend(u.to_le_bytes()));
+        let t = table_with(&utf16, &LoadOptions::default()).unwrap();
+        assert_eq!(t.columns[1].number(0), Some(1.5));
+        assert!(t.notes.encoding.as_deref().unwrap().contains("UTF-16LE"));
     }
 
     #[test]

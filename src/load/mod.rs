@@ -3,8 +3,14 @@
 //! through the csv crate. Nothing is skipped silently: every blank, text
 //! cell in a numeric column and formula error is counted and addressed.
 
+mod assemble;
 mod column;
 mod csv_file;
+mod fit;
+mod header;
+pub mod numbers;
+mod report;
+pub mod rows;
 mod sheet_cells;
 mod source;
 mod table;
@@ -12,9 +18,17 @@ mod workbook;
 
 use std::path::Path;
 
-pub use column::{CellIssue, Column, ColumnBuilder, ColumnKind, IssueKind, MAX_ROWS};
+pub use column::{
+    CellIssue, Column, ColumnBuilder, ColumnKind, Converted, IssueKind, MAX_ROWS, NearDuplicate,
+};
+pub use fit::{Wanted, load_for};
+pub use numbers::{NumberStyle, StyleSetting};
+pub use report::{ReadingNote, reading_notes};
 pub use source::SourceInfo;
-pub use table::{Cell, Table, column_letters, quote_sheet as table_sheet_ref};
+pub use table::{
+    Cell, ReadNotes, SummaryRow, Table, cell_address, column_letters,
+    quote_sheet as table_sheet_ref,
+};
 
 #[derive(Debug, thiserror::Error)]
 pub enum LoadError {
@@ -53,12 +67,24 @@ pub enum LoadError {
     Malformed { path: String, reason: String },
 }
 
-/// Which sheet and header row to read (from the recipe's `input`).
+/// How to read a file (from the recipe's `input` and `header` lines).
 #[derive(Debug, Clone, Default)]
 pub struct LoadOptions {
+    /// The sheet; default: the first.
     pub sheet: Option<String>,
-    /// 1-based; default 1.
+    /// 1-based; default: found (the first row of text headers with data under it).
     pub header_row: Option<u32>,
+    /// Decimal and thousands marks fixed by the recipe; the rest is detected.
+    pub number_style: StyleSetting,
+    /// A text file's encoding, by its label (`windows-1252`); default: detected.
+    pub encoding: Option<String>,
+    /// Keep rows such as `Total` at the bottom as data.
+    pub keep_summary_rows: bool,
+    /// Merge group keys that differ only in case or inner spaces.
+    pub merge_similar_keys: bool,
+    /// For each recipe column with `header NAME or ...`: its names, the
+    /// recipe's own first; a file may use any one of them.
+    pub accepted_names: Vec<Vec<String>>,
 }
 
 /// The two ways in: delimited text, or a spreadsheet through calamine.

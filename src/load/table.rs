@@ -53,7 +53,49 @@ pub struct Table {
     /// 1-based row of the headers.
     pub header_row: u32,
     pub columns: Vec<Column>,
+    /// Data rows kept (blank and summary rows below the header are left out).
     pub rows: usize,
+    /// For each kept row, its 0-based row under the header in the sheet;
+    /// empty when no row was left out (then the two are the same).
+    pub row_map: Vec<u32>,
+    /// What the loader decided while reading, for the terminal and About.
+    pub notes: ReadNotes,
+}
+
+/// A row below the data that summarises it, left out of every figure.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SummaryRow {
+    /// 1-based sheet row.
+    pub sheet_row: usize,
+    pub reason: String,
+}
+
+/// Everything the loader decided about a file that changes what is read:
+/// how text was decoded and numbers read, which row holds the headers,
+/// which rows were left out. Nothing here is silent: the terminal and the
+/// About sheet show all of it.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct ReadNotes {
+    /// How a text file was decoded, e.g. "UTF-16LE (byte-order mark)".
+    pub encoding: Option<String>,
+    /// How numbers written as text were read (CSV, or text cells of a workbook).
+    pub number_style: Option<String>,
+    /// Set when the number style could be read two ways, with the fix.
+    pub number_doubt: Option<String>,
+    /// The delimiter, and where it came from.
+    pub delimiter: Option<String>,
+    /// How the header row was found, when sheaf chose it.
+    pub header: Option<String>,
+    /// Why this sheet was read, when the recipe did not name it.
+    pub sheet: Option<String>,
+    /// 1-based sheet rows with no cell at all, left out.
+    pub blank_rows: Vec<usize>,
+    /// Rows at the bottom that summarise the data (Total, Average, ...).
+    pub summary_rows: Vec<SummaryRow>,
+    /// The recipe asked to keep summary rows as data.
+    pub summary_rows_kept: bool,
+    /// Recipe column name and the header the file used for it, when they differ.
+    pub renamed_headers: Vec<(String, String)>,
 }
 
 impl Table {
@@ -65,9 +107,22 @@ impl Table {
         self.columns.iter().map(|c| c.name.clone()).collect()
     }
 
+    /// Finds, in the named text columns, keys that differ only in case or
+    /// inner spaces; with `merge`, each such set becomes one key.
+    pub fn find_near_duplicates(&mut self, names: &[String], merge: bool) {
+        for column in self.columns.iter_mut().filter(|c| names.contains(&c.name)) {
+            column.find_near_duplicates(merge);
+        }
+    }
+
     /// The 1-based sheet row of data row `row` (0-based).
     pub fn sheet_row(&self, row: usize) -> usize {
-        self.header_row as usize + 1 + row
+        let below_header = if self.row_map.is_empty() {
+            row
+        } else {
+            self.row_map[row] as usize
+        };
+        self.header_row as usize + 1 + below_header
     }
 
     /// `Deliveries!C17` for data row `row` (0-based) of `column`.

@@ -4,8 +4,7 @@ use std::path::Path;
 
 use calamine::{Data, DataRef, Reader, Xlsx, open_workbook_auto};
 
-use super::column::ColumnBuilder;
-use super::sheet_cells::SheetCells;
+use super::sheet_cells::{CellIn, SheetCells};
 use super::source::SourceInfo;
 use super::table::{Cell, Table};
 use super::{LoadError, LoadOptions};
@@ -102,10 +101,10 @@ fn read(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table,
         .and_then(|e| e.to_str())
         .is_some_and(|e| e.eq_ignore_ascii_case("xlsx") || e.eq_ignore_ascii_case("xlsm"));
     if streamable && let Some((sheet, cells)) = stream_cells(path, options, &shown)? {
-        return cells.finish(&shown, sheet, source);
+        return cells.finish(&shown, sheet, source, options);
     }
     let (sheet, cells) = range_cells(path, options, &shown)?;
-    cells.finish(&shown, sheet, source)
+    cells.finish(&shown, sheet, source, options)
 }
 
 /// An xlsx sheet's cells as they stream from the file; None when its rows
@@ -127,17 +126,13 @@ fn stream_cells(
         if *value == DataRef::Empty {
             continue;
         }
-        let taken = cells.add(
-            row,
-            column,
-            || Data::from(value.clone()).to_string(),
-            |builder| match value {
-                // Shared strings are pushed as borrowed text, not copied per cell.
-                DataRef::SharedString(s) => builder.push_text(s),
-                other => push_data(builder, &Data::from(other.clone())),
-            },
-        );
-        if taken.is_err() {
+        let cell = match value {
+            // Shared strings are pushed as borrowed text, not copied per cell.
+            DataRef::SharedString(s) => CellIn::Text(s),
+            DataRef::String(s) => CellIn::Text(s),
+            other => CellIn::Other(cell_of(&Data::from(other.clone()))),
+        };
+        if cells.add(row, column, cell).is_err() {
             return Ok(None);
         }
     }
@@ -159,18 +154,15 @@ fn range_cells(
     let mut cells = SheetCells::new(options);
     for (row, column, data) in range.used_cells() {
         let (row, column) = (top + row as u32, left + column as u32);
+        let cell = match data {
+            Data::String(s) => CellIn::Text(s),
+            other => CellIn::Other(cell_of(other)),
+        };
         cells
-            .add(row, column, || data.to_string(), |b| push_data(b, data))
+            .add(row, column, cell)
             .expect("a range's used cells come in row order");
     }
     Ok((sheet, cells))
-}
-
-fn push_data(builder: &mut ColumnBuilder, data: &Data) {
-    match data {
-        Data::String(s) => builder.push_text(s),
-        other => builder.push(cell_of(other)),
-    }
 }
 
 /// The sheet the options name, or the first.

@@ -210,6 +210,21 @@ pub enum Bins {
     Count(u32),
 }
 
+/// A setting of the `input` line about how to read the file.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ReadSetting {
+    /// `decimal comma` or `decimal point`.
+    Decimal(char),
+    /// `thousands "."`, or `thousands none`.
+    Thousands(Option<char>),
+    /// `encoding "windows-1252"`.
+    Encoding(String),
+    /// `keep summary rows`: rows such as Total at the bottom stay data.
+    KeepSummaryRows,
+    /// `merge similar keys`: keys differing only in case or inner spaces are one.
+    MergeSimilarKeys,
+}
+
 #[derive(Debug, Clone, PartialEq)]
 pub struct Figure {
     pub name: Spanned<String>,
@@ -222,6 +237,13 @@ pub enum StatementKind {
     Input {
         sheet: Option<Spanned<String>>,
         header_row: Option<Spanned<u32>>,
+        /// How to read the file's text: number marks, encoding, rows, keys.
+        reading: Vec<Spanned<ReadSetting>>,
+    },
+    /// `header weight_mg or {Weight (mg)} or {Weight [mg]}`: a column the
+    /// recipe calls by its first name, whose header may be any of the names.
+    Header {
+        names: Vec<ColumnRef>,
     },
     Let {
         name: Spanned<String>,
@@ -285,14 +307,20 @@ impl Recipe {
                 |cols: &mut Vec<ColumnRef>| cols.iter_mut().for_each(|c| c.span = zero);
             match &mut statement.kind {
                 StatementKind::Title(t) => t.span = zero,
-                StatementKind::Input { sheet, header_row } => {
+                StatementKind::Input {
+                    sheet,
+                    header_row,
+                    reading,
+                } => {
                     if let Some(s) = sheet {
                         s.span = zero;
                     }
                     if let Some(h) = header_row {
                         h.span = zero;
                     }
+                    reading.iter_mut().for_each(|r| r.span = zero);
                 }
+                StatementKind::Header { names } => clear_columns(names),
                 StatementKind::Let { name, value } => {
                     name.span = zero;
                     value.clear_spans();

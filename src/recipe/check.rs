@@ -134,6 +134,8 @@ impl Checker<'_> {
                         );
                     }
                 }
+                // Accepted header names are checked against the data by the loader.
+                StatementKind::Header { .. } => {}
                 StatementKind::Let { name, value } => self.let_statement(name, value),
                 StatementKind::RowsWhere(condition) => self.condition(condition, "`rows where`"),
                 StatementKind::Panel {

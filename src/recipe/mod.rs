@@ -15,6 +15,7 @@ pub mod pretty;
 mod statement;
 mod suggest;
 mod syntax;
+pub mod uses;
 
 pub use ast::Recipe;
 pub use check::BIN_RULES;
@@ -169,7 +170,13 @@ fn expressions(recipe: &Recipe) -> Vec<&ast::Expr> {
                 found.extend(figures.iter().map(|f| &f.value));
             }
             Check { condition, .. } => found.push(condition),
-            Title(_) | Input { .. } | Histogram { .. } | Boxplot { .. } | Period(_) | Drift(_) => {}
+            Title(_)
+            | Input { .. }
+            | Header { .. }
+            | Histogram { .. }
+            | Boxplot { .. }
+            | Period(_)
+            | Drift(_) => {}
         }
     }
     found

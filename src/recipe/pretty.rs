@@ -53,10 +53,27 @@ pub fn quoted(text: &str) -> String {
     out
 }
 
+/// An `input` reading setting as written.
+fn read_setting(setting: &ReadSetting) -> String {
+    match setting {
+        ReadSetting::Decimal(',') => "decimal comma".into(),
+        ReadSetting::Decimal(_) => "decimal point".into(),
+        ReadSetting::Thousands(None) => "thousands none".into(),
+        ReadSetting::Thousands(Some(mark)) => format!("thousands {}", quoted(&mark.to_string())),
+        ReadSetting::Encoding(label) => format!("encoding {}", quoted(label)),
+        ReadSetting::KeepSummaryRows => "keep summary rows".into(),
+        ReadSetting::MergeSimilarKeys => "merge similar keys".into(),
+    }
+}
+
 fn statement(out: &mut String, s: &Statement) {
     let line = match &s.kind {
         StatementKind::Title(t) => format!("title {}", quoted(&t.value)),
-        StatementKind::Input { sheet, header_row } => {
+        StatementKind::Input {
+            sheet,
+            header_row,
+            reading,
+        } => {
             let mut parts = Vec::new();
             if let Some(sheet) = sheet {
                 parts.push(format!("sheet {}", quoted(&sheet.value)));
@@ -64,8 +81,13 @@ fn statement(out: &mut String, s: &Statement) {
             if let Some(row) = header_row {
                 parts.push(format!("header row {}", row.value));
             }
+            parts.extend(reading.iter().map(|r| read_setting(&r.value)));
             format!("input {}", parts.join(", "))
         }
+        StatementKind::Header { names } => format!(
+            "header {}",
+            names.iter().map(column).collect::<Vec<_>>().join(" or ")
+        ),
         StatementKind::Let { name, value } => format!("let {} = {}", name.value, expr(value)),
         StatementKind::RowsWhere(e) => format!("rows where {}", expr(e)),
         StatementKind::Panel {

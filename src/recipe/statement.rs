@@ -143,13 +143,16 @@ fn title(input: &str) -> PResult<'_, StatementKind> {
     Ok((rest, StatementKind::Title(text)))
 }
 
+/// The words of the `input` line's settings, for messages.
+const INPUT_SETTINGS: &str = "`sheet \"NAME\"`, `header row N`, `decimal comma`, `decimal point`, `thousands \".\"`, `thousands none`, `encoding \"NAME\"`, `keep summary rows` or `merge similar keys`";
+
 fn input_statement(input: &str) -> PResult<'_, StatementKind> {
     let (mut sheet, mut header_row) = (None, None);
+    let mut reading = Vec::new();
     let mut rest = input;
     loop {
-        let (after, word) = need(rest, "`sheet \"NAME\"` or `header row N`", |i| {
-            ws(identifier).parse(i)
-        })?;
+        let start = rest.trim_start();
+        let (after, word) = need(rest, INPUT_SETTINGS, |i| ws(identifier).parse(i))?;
         rest = match word {
             "sheet" => {
                 let (after, name) = need(after, "the sheet name in double quotes", spanned_string)?;
@@ -177,12 +180,21 @@ fn input_statement(input: &str) -> PResult<'_, StatementKind> {
                 }
                 after_digits
             }
+            "decimal" | "thousands" | "encoding" | "keep" | "merge" => {
+                let (after, setting) = read_setting(word, after)?;
+                reading.push(Spanned {
+                    value: setting,
+                    span: span_between(start, after),
+                });
+                after
+            }
             other => {
-                let at = rest.trim_start();
                 return failure(
-                    at,
+                    start,
                     format!("unknown input setting `{other}`"),
-                    Some("write `sheet \"NAME\"` and/or `header row N`, separated by a comma"),
+                    Some(&format!(
+                        "input settings are {INPUT_SETTINGS}, separated by commas"
+                    )),
                 );
             }
         };
@@ -195,7 +207,96 @@ fn input_statement(input: &str) -> PResult<'_, StatementKind> {
         rest,
         "`,` and another input setting, or the end of the line",
     )?;
-    Ok((rest, StatementKind::Input { sheet, header_row }))
+    Ok((
+        rest,
+        StatementKind::Input {
+            sheet,
+            header_row,
+            reading,
+        },
+    ))
+}
+
+/// The rest of a reading setting that opens with `word`.
+fn read_setting<'a>(word: &str, input: &'a str) -> PResult<'a, ReadSetting> {
+    match word {
+        "decimal" => {
+            let (rest, mark) = need(input, "`comma` or `point` after `decimal`", |i| {
+                ws(identifier).parse(i)
+            })?;
+            match mark {
+                "comma" => Ok((rest, ReadSetting::Decimal(','))),
+                "point" => Ok((rest, ReadSetting::Decimal('.'))),
+                other => failure(
+                    input.trim_start(),
+                    format!("expected `comma` or `point` after `decimal`, found `{other}`"),
+                    Some("write `decimal comma` for numbers such as 1,5"),
+                ),
+            }
+        }
+        "thousands" => {
+            if let Ok((rest, _)) = keyword("none")(input) {
+                return Ok((rest, ReadSetting::Thousands(None)));
+            }
+            let at = input.trim_start();
+            let (rest, mark) = need(
+                input,
+                "the thousands mark in double quotes, or `none`",
+                spanned_string,
+            )?;
+            let mut chars = mark.value.chars();
+            match (chars.next(), chars.next()) {
+                (Some(c), None) if matches!(c, ',' | '.' | ' ' | '\'' | '\u{a0}' | '\u{202f}') => {
+                    Ok((rest, ReadSetting::Thousands(Some(c))))
+                }
+                _ => failure(
+                    at,
+                    format!("`{}` cannot group thousands", mark.value),
+                    Some(
+                        "write one of `thousands \",\"`, `thousands \".\"`, `thousands \" \"`, `thousands \"'\"` or `thousands none`",
+                    ),
+                ),
+            }
+        }
+        "encoding" => {
+            let (rest, label) = need(
+                input,
+                "the encoding in double quotes, such as \"windows-1252\"",
+                spanned_string,
+            )?;
+            Ok((rest, ReadSetting::Encoding(label.value)))
+        }
+        "keep" => {
+            let (rest, _) = need(input, "`summary rows` after `keep`", keyword("summary"))?;
+            let (rest, _) = need(rest, "`rows` after `keep summary`", keyword("rows"))?;
+            Ok((rest, ReadSetting::KeepSummaryRows))
+        }
+        _ => {
+            let (rest, _) = need(input, "`similar keys` after `merge`", keyword("similar"))?;
+            let (rest, _) = need(rest, "`keys` after `merge similar`", keyword("keys"))?;
+            Ok((rest, ReadSetting::MergeSimilarKeys))
+        }
+    }
+}
+
+/// `header NAME or NAME ...`: the names a column's header may have.
+fn header_statement(input: &str) -> PResult<'_, StatementKind> {
+    let (mut rest, first) = need(input, "the column's name in the recipe", column)?;
+    let mut names = vec![first];
+    while let Ok((after, _)) = keyword("or")(rest) {
+        let (after, next) = need(after, "another header name after `or`", column)?;
+        names.push(next);
+        rest = after;
+    }
+    if names.len() < 2 {
+        return failure(
+            rest.trim_start(),
+            "a `header` line names the column and at least one other header it may have",
+            Some("write `header weight_mg or {Weight (mg)} or {Weight [mg]}`"),
+        );
+    }
+    let (rest, _) = end_of_line(rest, "`or` and another header name, or the end of the line")?;
+    Ok((rest, StatementKind::Header { names }))
 }
 
 /// How a `name = expression` line is worded in its messages.
@@ -397,6 +498,7 @@ fn boxplot_statement(input: &str) -> PResult<'_, StatementKind> {
 pub const STATEMENT_WORDS: &[&str] = &[
     "title",
     "input",
+    "header",
     "let",
     "rows",
     "panel",
@@ -458,6 +560,7 @@ fn statement_line(input: &str) -> PResult<'_, StatementKind> {
     match word {
         "title" => title(rest),
         "input" => input_statement(rest),
+        "header" => header_statement(rest),
         "let" => let_statement(rest),
         "rows" => rows_statement(rest),
         "panel" => panel_header(rest),

@@ -58,6 +58,9 @@ pub fn about(
     pair("input SHA-256", table.source.sha256.clone())?;
     pair("sheet", table.sheet.clone())?;
     pair("header row", table.header_row.to_string())?;
+    for note in crate::load::reading_notes(table) {
+        pair(note.topic, note.text)?;
+    }
     pair(
         "period",
         run.period.as_ref().map_or(
