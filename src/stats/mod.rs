@@ -9,6 +9,7 @@
 
 mod bootstrap;
 mod histogram;
+mod influence;
 mod moments;
 mod normal;
 mod order;
@@ -24,6 +25,9 @@ pub use bootstrap::{
     bootstrap_intervals, resampled_in_full,
 };
 pub use histogram::{BinRule, Histogram, MAX_BINS, binned_mode, histogram, sturges_bins};
+pub use influence::{
+    LeaveOneOut, OneLeftOut, leave_one_out, mean_change_without, mean_minus_median,
+};
 pub use moments::{Denominator, Moments};
 pub use normal::{normal_cdf, normal_quantile};
 pub use order::{
