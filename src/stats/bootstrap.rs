@@ -30,6 +30,13 @@ pub const DEFAULT_RESAMPLES: usize = 2000;
 /// Draws one interval may cost with full resampling; longer columns use
 /// the direct method described above. The robustness sheet says which.
 pub const DRAW_BUDGET: usize = 20_000_000;
+/// Fewest values an interval is given for. A resample of a few values
+/// repeats the same few numbers, so the percentile interval is too narrow:
+/// on simulated normal samples the "95%" interval of the mean covers the
+/// true mean about 77% of the time at n = 3, 84% at 5, 90% at 10 and 93%
+/// at 20 (numpy simulation, 2000 samples each). Below 10 values no
+/// interval is given; the cutoff is common practice, not from a source.
+pub const BOOTSTRAP_MIN_VALUES: usize = 10;
 /// Fixed so that reruns on the same data agree to the last digit.
 pub const DEFAULT_SEED: u64 = 0x5EAF_2026;
 
@@ -81,7 +88,7 @@ pub fn bootstrap_intervals(
     level: f64,
     seed: u64,
 ) -> Stat<BootstrapIntervals> {
-    need(sample.count(), 1)?;
+    need(sample.count(), BOOTSTRAP_MIN_VALUES)?;
     need(resamples, 2)?;
     let sorted = sample.sorted();
     let mut rng = SplitMix64(seed);
@@ -284,6 +291,17 @@ mod tests {
         assert_eq!(a, b);
         let c = bootstrap_intervals(&s, 500, 0.95, DEFAULT_SEED + 1).unwrap();
         assert_ne!(a.mean, c.mean);
+    }
+
+    #[test]
+    fn too_few_values_get_no_interval() {
+        for n in [0, 1, 2, 9] {
+            let s = Sample::from_values((0..n).map(|i| i as f64));
+            let got = bootstrap_intervals(&s, 100, 0.95, 7);
+            assert_eq!(got, Err(super::super::undefined::need(n, 10).unwrap_err()));
+        }
+        let ten = Sample::from_values((0..10).map(|i| i as f64));
+        assert!(bootstrap_intervals(&ten, 100, 0.95, 7).is_ok());
     }
 
     #[test]
