@@ -521,9 +521,10 @@ mod tests {
         );
     }
 
-    /// Twenty readings near 11 and a typo of -500 for 11: the typo drags
+    /// Twenty readings from 10 to 11.8 and a typo of -500: the typo drags
     /// the mean down and blows up the sd, so in sd units the gap looks
-    /// small; in IQR units it cannot hide.
+    /// small (-0.22 sd, a plain note would need 0.25); in IQR units it is
+    /// -27 and cannot hide.
     #[test]
     fn a_typo_cannot_hide_in_the_gap() {
         let mut values: Vec<f64> = (0..20).map(|i| 10.0 + f64::from(i % 7) * 0.3).collect();
@@ -584,20 +585,27 @@ mod tests {
 
     /// On normal data nothing is wrong, so every rule that fires there is
     /// a false alarm. Over 4000 seeded normal samples at each size, each
-    /// rule may fire on at most 5% of them (seen: skewed 1.1-1.6%, heavy
-    /// tails 1.6-2.5%, gap 1.5% at n = 20 and about 0 beyond, 3 IQR
-    /// outliers 2% at 20 and under 1% beyond).
+    /// rule may fire on at most 5% of them (seen: skewed 1.2-1.5%, heavy
+    /// tails 1.7-2.2%, gap 1.3% at n = 20 and about 0 beyond, 3 IQR
+    /// outliers 1.5% at 20 and under 1% beyond). Values beyond the 1.5 IQR
+    /// fences and modified z-scores above 3.5, which raise no status, are
+    /// counted too: they would cry wolf (seen: 30-75% and 9-13%).
     #[test]
     fn no_rule_cries_wolf_on_normal_samples() {
         let mut rng = stats::SplitMix64(2026);
         let samples = 4000;
         for n in [20, 50, 200] {
             let mut fired = std::collections::HashMap::new();
+            let (mut wide, mut modified_z) = (0, 0);
             for _ in 0..samples {
                 let s = Sample::from_values((0..n).map(|_| 40.0 + 3.0 * rng.normal()));
-                for f in findings(&Signals::of(&s, &fenced(&s))) {
+                let fenced = fenced(&s);
+                for f in findings(&Signals::of(&s, &fenced)) {
                     *fired.entry(format!("{:?}", f.rule)).or_insert(0usize) += 1;
                 }
+                wide += usize::from(fenced.wide.unwrap().count() > 0);
+                let big = stats::modified_z_beyond(&s, stats::MODIFIED_Z_CUTOFF).unwrap();
+                modified_z += usize::from(!big.is_empty());
             }
             for (rule, count) in &fired {
                 let rate = *count as f64 / samples as f64;
@@ -607,6 +615,12 @@ mod tests {
                     "n = {n}: {rule} fired on {rate} of normal samples"
                 );
             }
+            let (wide, modified_z) = (
+                wide as f64 / samples as f64,
+                modified_z as f64 / samples as f64,
+            );
+            eprintln!("n = {n}: 1.5 IQR outliers in {wide}, |modified z| > 3.5 in {modified_z}");
+            assert!(wide > 0.25 && modified_z > 0.08, "{wide} {modified_z}");
         }
     }
 

@@ -6,7 +6,7 @@ use super::sheets::SheetNames;
 use super::style;
 use crate::eval::{Block, Results};
 use crate::load::Table;
-use crate::stats::{DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET};
+use crate::stats::{BOOTSTRAP_MIN_VALUES, DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET};
 
 pub const DISCLAIMER: &str = "sheaf summarises data. Where a figure feeds a decision that can hurt someone (a safety limit, a product \
 release), it does not replace the rules and the qualified review that apply there.";
@@ -96,7 +96,7 @@ pub fn about(
     pair(
         "bootstrap",
         format!(
-            "{DEFAULT_RESAMPLES} resamples, seed {DEFAULT_SEED}, 95% percentile intervals; over {} values, medians from directly drawn order statistics and the mean by Cornish-Fisher expansion",
+            "{DEFAULT_RESAMPLES} resamples, seed {DEFAULT_SEED}, 95% percentile intervals, none below {BOOTSTRAP_MIN_VALUES} values; over {} values, medians from directly drawn order statistics and the mean by Cornish-Fisher expansion",
             DRAW_BUDGET / DEFAULT_RESAMPLES
         ),
     )?;
