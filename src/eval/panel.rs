@@ -349,10 +349,15 @@ pub struct Signals {
 
 impl Signals {
     pub fn of(s: &Sample, fenced: &Fenced) -> Signals {
+        Signals::with_gap(s, fenced, gaps(s).1)
+    }
+
+    /// With the gap in IQR units already computed.
+    fn with_gap(s: &Sample, fenced: &Fenced, gap_in_iqr: One) -> Signals {
         Signals {
             n: s.count(),
             far_outliers: fenced.far.as_ref().map_or(0, |o| o.count()),
-            gap_in_iqr: gaps(s).1,
+            gap_in_iqr,
             skewness: stats::skewness_against_noise(s),
             tails: stats::kurtosis_against_noise(s),
         }
@@ -429,7 +434,7 @@ pub fn robustness(s: &Sample, fenced: &Fenced, address: &dyn Fn(usize) -> CellNa
             .map(|o| flag(&[o.low.clone(), o.high.clone()].concat()))
             .unwrap_or_default()
     };
-    let gap_in_sd = gaps(s).0;
+    let (gap_in_sd, gap_in_iqr) = gaps(s);
     let without = without_outliers(s, &fenced.wide);
     let (mean_influence, sd_influence) = influences(s, address);
     let modified_z = stats::modified_z_beyond(s, stats::MODIFIED_Z_CUTOFF)
@@ -438,7 +443,7 @@ pub fn robustness(s: &Sample, fenced: &Fenced, address: &dyn Fn(usize) -> CellNa
     let bootstrap =
         stats::bootstrap_intervals(s, stats::DEFAULT_RESAMPLES, 0.95, stats::DEFAULT_SEED)
             .map_err(|e| e.to_string());
-    let signals = Signals::of(s, fenced);
+    let signals = Signals::with_gap(s, fenced, gap_in_iqr);
     let found = findings(&signals);
     let status = found.iter().map(|f| f.status).max().unwrap_or(Status::Ok);
     let reason = if found.is_empty() {

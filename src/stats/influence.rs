@@ -55,15 +55,19 @@ pub fn mean_change_without(sample: &Sample, left_out: &[usize]) -> Stat {
     let centred = Centred::of(sample)?;
     let mut gone = vec![false; sample.count()];
     left_out.iter().for_each(|&i| gone[i] = true);
-    let kept = sample
+    let mut kept = Neumaier::default();
+    let mut count = 0usize;
+    for (x, _) in sample
         .values()
         .iter()
         .zip(&gone)
         .filter(|(_, gone)| !**gone)
-        .map(|(x, _)| x - centred.centre);
-    let kept: Vec<f64> = kept.collect();
-    need(kept.len(), 1)?;
-    Ok(mean_of(kept.into_iter()) - centred.mean_deviation)
+    {
+        kept.add(x - centred.centre);
+        count += 1;
+    }
+    need(count, 1)?;
+    Ok(kept.total() / count as f64 - centred.mean_deviation)
 }
 
 /// One value's effect: the change (after leaving it out minus before) and

@@ -41,7 +41,7 @@ impl SheetNames {
 
 pub const PANEL_NOTE: &str = "Conventions: n counts numeric cells; missing counts blank, text and error cells. sd is the sample sd (n - 1). \
 Quartiles, median and IQR by Hyndman-Fan type 7 (linear interpolation). Skewness g1 = m3 / m2^1.5 and kurtosis b2 = m4 / m2^2 \
-(about 3 for normal data) are the moment forms. Bowley skewness = (Q3 + Q1 - 2 Q2) / (Q3 - Q1). Outliers lie strictly beyond \
+(about 3 for normal data) are the moment forms; two values lie symmetrically about their mean, so their skewness is exactly 0. Bowley skewness = (Q3 + Q1 - 2 Q2) / (Q3 - Q1). Outliers lie strictly beyond \
 Tukey's fences Q1 - 1.5 IQR and Q3 + 1.5 IQR. Modes: every most frequent value for whole-number data; otherwise the mean of the \
 values in the fullest of Sturges' equal bins. A cell without a number says why.";
 
