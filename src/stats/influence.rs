@@ -32,7 +32,7 @@ impl Centred {
     }
 
     /// x - mean, as (x - c) - (mean - c).
-    fn from_mean(&self, x: f64) -> f64 {
+    fn off_mean(&self, x: f64) -> f64 {
         (x - self.centre) - self.mean_deviation
     }
 }
@@ -103,7 +103,7 @@ pub fn leave_one_out(sample: &Sample) -> Stat<LeaveOneOut> {
     let values = sample.values();
     let n = values.len() as f64;
     let m2 = Neumaier::of(values.iter().map(|&x| {
-        let e = centred.from_mean(x);
+        let e = centred.off_mean(x);
         e * e
     }));
     let (mut lowest, mut highest, mut nearest) = (0, 0, 0);
@@ -114,7 +114,7 @@ pub fn leave_one_out(sample: &Sample) -> Stat<LeaveOneOut> {
         if x > values[highest] {
             highest = i;
         }
-        if centred.from_mean(x).abs() < centred.from_mean(values[nearest]).abs() {
+        if centred.off_mean(x).abs() < centred.off_mean(values[nearest]).abs() {
             nearest = i;
         }
     }
@@ -122,7 +122,7 @@ pub fn leave_one_out(sample: &Sample) -> Stat<LeaveOneOut> {
     candidates.sort_unstable();
     let sd = (m2 / (n - 1.0)).sqrt();
     let effect = |index: usize| {
-        let e = centred.from_mean(values[index]);
+        let e = centred.off_mean(values[index]);
         let sd_without = ((m2 - n / (n - 1.0) * e * e).max(0.0) / (n - 2.0)).sqrt();
         let variance_change = (m2 - n * e * e) / ((n - 1.0) * (n - 2.0));
         let sd_change = if sd_without + sd > 0.0 {
