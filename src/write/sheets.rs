@@ -221,12 +221,14 @@ const ROBUSTNESS_COLUMNS: &[RobustnessColumn] = &[
         "leave-one-out mean change (after - before, largest in size)",
         |b| influence(&b.mean_influence, |i| One::Number(i.change)),
     ),
-    column("its cell", |b| influence(&b.mean_influence, influence_cell)),
+    column("its cell (first row if tied)", |b| {
+        influence(&b.mean_influence, influence_cell)
+    }),
     column(
         "leave-one-out sd change (after - before, largest in size)",
         |b| influence(&b.sd_influence, |i| One::Number(i.change)),
     ),
-    column("its cell (sd)", |b| {
+    column("its cell, sd (first row if tied)", |b| {
         influence(&b.sd_influence, influence_cell)
     }),
     count("|modified z| above 3.5", |b| match &b.modified_z {
