@@ -20,7 +20,7 @@ pub const CONVENTIONS: &[&str] = &[
     "mad is the median absolute deviation; scaled multiplies it by 1.4826.",
     "trimmed and winsorized means cut floor(a n) values at each end.",
     "Tukey's fences: Q1 - k IQR and Q3 + k IQR, k = 1.5 unless given; outliers lie strictly beyond them.",
-    "Modified z-score: 0.6745 (x - median) / MAD, flagged above 3.5 (Iglewicz and Hoaglin 1993).",
+    "Modified z-score: 0.6745 (x - median) / MAD, flagged when above 3.5 in absolute value (Iglewicz and Hoaglin 1993).",
     "Groups appear in the order of their first row in the data; a blank key forms the group (blank).",
     "A let column is computed over the rows kept at its line; its aggregates reduce over those rows, not per group.",
 ];
