@@ -332,7 +332,7 @@ pub struct Finding {
 }
 
 /// The mean-median gap in IQR units above which the status is a note and
-/// a warning. On simulated normal samples the note fires on about 1.7% of
+/// a warning. On simulated normal samples the note fires on about 1-2% of
 /// samples of 20 values and almost never at 50 or 200 (the false-alarm
 /// test below); common practice, not from a published source.
 pub const GAP_NOTE_IQR: f64 = 0.3;
@@ -367,7 +367,7 @@ impl Signals {
 /// Every rule's finding, in the rules' order.
 /// Values beyond the 1.5 IQR fences and modified z-scores above 3.5 are
 /// listed on the sheet but raise no status: on normal data they turn up
-/// in 30-74% and 10-13% of samples of 20 to 200 values.
+/// in about 30-75% and 9-13% of samples of 20 to 200 values.
 pub fn findings(signals: &Signals) -> Vec<Finding> {
     let mut found = Vec::new();
     let mut raise = |rule, status, why: String| found.push(Finding { rule, status, why });
