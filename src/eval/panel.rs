@@ -66,7 +66,8 @@ pub struct Flagged {
     pub value: f64,
 }
 
-/// The largest change that leaving out one value causes.
+/// The largest change in size that leaving out one value causes (after
+/// minus before), and that value's cell; the first row wins a tie.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Influence {
     pub change: f64,
@@ -92,8 +93,12 @@ impl Status {
 
 #[derive(Debug, Clone, PartialEq)]
 pub struct Robustness {
+    /// (mean - median) / sd and / IQR.
     pub gap_in_sd: One,
     pub gap_in_iqr: One,
+    /// Why there are no fences ("no values"); both outlier lists are then
+    /// empty and the sheet says why instead of a count of 0.
+    pub fences_undefined: Option<String>,
     pub outliers_wide: Vec<Flagged>,
     pub outliers_far: Vec<Flagged>,
     pub mean_without: One,
@@ -102,10 +107,14 @@ pub struct Robustness {
     pub mean_change: One,
     pub sd_change: One,
     pub skewness_change: One,
-    pub mean_influence: Option<Influence>,
-    pub sd_influence: Option<Influence>,
+    pub mean_influence: Result<Influence, String>,
+    pub sd_influence: Result<Influence, String>,
+    /// Values whose modified z-score is above 3.5 in absolute value.
     pub modified_z: Result<Vec<Flagged>, String>,
-    pub heavy_tails: bool,
+    /// Adjusted skewness G1 against its standard error under normality.
+    pub skewness: Result<stats::AgainstNoise, String>,
+    /// Adjusted excess kurtosis G2 against its standard error under normality.
+    pub tails: Result<stats::AgainstNoise, String>,
     pub bootstrap: Result<stats::BootstrapIntervals, String>,
     pub status: Status,
     pub reason: String,
@@ -162,7 +171,10 @@ pub fn panel_figures(s: &Sample, fenced: &Fenced) -> Vec<One> {
         let k = stats::sturges_bins(s.count());
         (
             list(stats::binned_mode(s, k)),
-            One::Text(format!("binned, {k} equal bins (Sturges)")),
+            One::Text(format!(
+                "binned, {k} equal bin{} (Sturges)",
+                if k == 1 { "" } else { "s" }
+            )),
         )
     };
     vec![
@@ -179,7 +191,7 @@ pub fn panel_figures(s: &Sample, fenced: &Fenced) -> Vec<One> {
         from_stat(stats::iqr(s, m)),
         modes,
         basis,
-        from_stat(s.skewness(false)),
+        from_stat(moment_skewness(s)),
         from_stat(stats::bowley(s, m)),
         from_stat(s.kurtosis(false)),
         from_stat(
@@ -210,69 +222,204 @@ fn change(after: &One, before: stats::Stat) -> One {
     }
 }
 
-/// Leave-one-out: the value whose removal moves the mean, and the sd, most.
-/// Leaving out x moves the mean by (mean - x) / (n - 1), most at the
-/// smallest or largest value, and the sum of squares by -n/(n-1) (x - mean)^2,
-/// most at the value farthest from or nearest to the mean. So only those
-/// candidates (first occurrences, in row order) are evaluated, with the
-/// update formulas for the mean and the sum of squares.
+/// Moment skewness g1, exactly 0 for two distinct values: they lie
+/// symmetrically about their mean, so m3 is 0, but the rounded mean can
+/// leave a residue such as -1.8e-17 in the computed m3.
+pub fn moment_skewness(s: &Sample) -> stats::Stat {
+    let g1 = s.skewness(false)?;
+    Ok(if s.count() == 2 { 0.0 } else { g1 })
+}
+
+/// mean - median over each of two scales, each undefined (with why) when
+/// its scale is zero.
+fn gaps(s: &Sample) -> (One, One) {
+    let gap = stats::mean_minus_median(s);
+    let over = |scale: stats::Stat, zero: &str| -> One {
+        match (&gap, &scale) {
+            (Ok(g), Ok(u)) if *u > 0.0 => One::number(g / u),
+            (Ok(_), Ok(_)) => One::Undefined(zero.into()),
+            (Err(e), _) | (_, Err(e)) => One::Undefined(e.to_string()),
+        }
+    };
+    (
+        over(s.sd(Denominator::Sample), "sd is zero"),
+        over(
+            stats::iqr(s, QuantileMethod::default()),
+            "quartiles coincide (IQR is zero)",
+        ),
+    )
+}
+
+/// Leave-one-out: the values whose removal moves the mean, and the sd,
+/// most in size (see [`stats::leave_one_out`]), with their cells.
 fn influences(
     s: &Sample,
     address: &dyn Fn(usize) -> CellName,
-) -> (Option<Influence>, Option<Influence>) {
-    let n = s.count();
-    let Ok(moments) = s.moments() else {
-        return (None, None);
-    };
-    if n < 3 {
-        return (None, None);
-    }
-    let (nf, mean) = (n as f64, moments.mean);
-    let values = s.values();
-    let (mut lowest, mut highest, mut nearest) = (0, 0, 0);
-    for (i, &x) in values.iter().enumerate() {
-        if x < values[lowest] {
-            lowest = i;
-        }
-        if x > values[highest] {
-            highest = i;
-        }
-        if (x - mean).abs() < (values[nearest] - mean).abs() {
-            nearest = i;
-        }
-    }
-    let mut candidates = [lowest, highest, nearest];
-    candidates.sort_unstable();
-    let m2 = moments.m2 * nf;
-    let sd = (m2 / (nf - 1.0)).sqrt();
-    let mut best_mean: Option<(f64, usize)> = None;
-    let mut best_sd: Option<(f64, usize)> = None;
-    for i in candidates {
-        let x = values[i];
-        let mean_without = (nf * mean - x) / (nf - 1.0);
-        let m2_without = (m2 - (x - mean) * (x - mean_without)).max(0.0);
-        let sd_without = (m2_without / (nf - 2.0)).sqrt();
-        let (dm, ds) = (mean_without - mean, sd_without - sd);
-        if best_mean.is_none_or(|(b, _)| dm.abs() > b.abs()) {
-            best_mean = Some((dm, i));
-        }
-        if best_sd.is_none_or(|(b, _)| ds.abs() > b.abs()) {
-            best_sd = Some((ds, i));
-        }
-    }
-    let make = |(change, i): (f64, usize)| Influence {
-        change,
+) -> (Result<Influence, String>, Result<Influence, String>) {
+    let make = |one: stats::OneLeftOut| Influence {
+        change: one.change,
         cell: Flagged {
-            address: address(i),
-            value: values[i],
+            address: address(one.index),
+            value: s.values()[one.index],
         },
     };
-    (best_mean.map(make), best_sd.map(make))
+    match stats::leave_one_out(s) {
+        Ok(l) => (Ok(make(l.mean)), Ok(make(l.sd))),
+        Err(e) => (Err(e.to_string()), Err(e.to_string())),
+    }
+}
+
+/// Mean, sd and skewness without the 1.5 IQR outliers, and their changes
+/// (without minus with).
+struct WithoutOutliers {
+    mean: One,
+    sd: One,
+    skewness: One,
+    mean_change: One,
+    sd_change: One,
+    skewness_change: One,
+}
+
+fn without_outliers(s: &Sample, wide: &stats::Stat<stats::Outliers>) -> WithoutOutliers {
+    let out: Vec<usize> = match wide {
+        Ok(o) => o.low.iter().chain(&o.high).copied().collect(),
+        Err(_) => Vec::new(),
+    };
+    // With no outliers, the sample itself.
+    let kept_values;
+    let kept = if out.is_empty() {
+        s
+    } else {
+        let mut gone = vec![false; s.count()];
+        out.iter().for_each(|&i| gone[i] = true);
+        let kept = s.values().iter().zip(&gone).filter(|(_, gone)| !**gone);
+        kept_values = Sample::from_finite(kept.map(|(x, _)| *x).collect());
+        &kept_values
+    };
+    let (mean, sd, skewness) = (
+        from_stat(kept.mean()),
+        from_stat(kept.sd(Denominator::Sample)),
+        from_stat(moment_skewness(kept)),
+    );
+    WithoutOutliers {
+        // The mean's change from deviations about a middle value, so it
+        // keeps its digits on data far from zero.
+        mean_change: from_stat(stats::mean_change_without(s, &out)),
+        sd_change: change(&sd, s.sd(Denominator::Sample)),
+        skewness_change: change(&skewness, moment_skewness(s)),
+        mean,
+        sd,
+        skewness,
+    }
+}
+
+/// A robustness rule whose finding raises the status.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Rule {
+    FarOutliers,
+    Gap,
+    Skewed,
+    HeavyTails,
+    FewValues,
+}
+
+/// What one rule found: the status it raises to and why, in words.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Finding {
+    pub rule: Rule,
+    pub status: Status,
+    pub why: String,
+}
+
+/// The mean-median gap in IQR units above which the status is a note and
+/// a warning. On simulated normal samples the note fires on about 1-2% of
+/// samples of 20 values and almost never at 50 or 200 (the false-alarm
+/// test below); common practice, not from a published source.
+pub const GAP_NOTE_IQR: f64 = 0.3;
+pub const GAP_WARN_IQR: f64 = 0.5;
+
+/// What the status rules look at, computed once per (group, column).
+pub struct Signals {
+    pub n: usize,
+    pub far_outliers: usize,
+    pub gap_in_iqr: One,
+    pub skewness: stats::Stat<stats::AgainstNoise>,
+    pub tails: stats::Stat<stats::AgainstNoise>,
+}
+
+impl Signals {
+    pub fn of(s: &Sample, fenced: &Fenced) -> Signals {
+        Signals::with_gap(s, fenced, gaps(s).1)
+    }
+
+    /// With the gap in IQR units already computed.
+    fn with_gap(s: &Sample, fenced: &Fenced, gap_in_iqr: One) -> Signals {
+        Signals {
+            n: s.count(),
+            far_outliers: fenced.far.as_ref().map_or(0, |o| o.count()),
+            gap_in_iqr,
+            skewness: stats::skewness_against_noise(s),
+            tails: stats::kurtosis_against_noise(s),
+        }
+    }
+}
+
+/// Every rule's finding, in the rules' order.
+/// Values beyond the 1.5 IQR fences and modified z-scores above 3.5 are
+/// listed on the sheet but raise no status: on normal data they turn up
+/// in about 30-75% and 9-13% of samples of 20 to 200 values.
+pub fn findings(signals: &Signals) -> Vec<Finding> {
+    let mut found = Vec::new();
+    let mut raise = |rule, status, why: String| found.push(Finding { rule, status, why });
+    if signals.far_outliers > 0 {
+        let why = format!("{} value(s) beyond the 3 IQR fences", signals.far_outliers);
+        raise(Rule::FarOutliers, Status::Warn, why);
+    }
+    if let One::Number(g) = signals.gap_in_iqr {
+        let (status, limit) = if g.abs() > GAP_WARN_IQR {
+            (Status::Warn, GAP_WARN_IQR)
+        } else {
+            (Status::Note, GAP_NOTE_IQR)
+        };
+        if g.abs() > GAP_NOTE_IQR {
+            let why = format!(
+                "mean - median = {g:.2} IQR ({} above {limit} in size)",
+                status.word()
+            );
+            raise(Rule::Gap, status, why);
+        }
+    }
+    let cutoff = stats::SHAPE_NOTE_CUTOFF;
+    if let Ok(k) = &signals.skewness
+        && k.beyond
+    {
+        let why = format!(
+            "skewed: G1 = {:.2} is {:.1} standard errors from 0 (note beyond {cutoff})",
+            k.estimate, k.ratio
+        );
+        raise(Rule::Skewed, Status::Note, why);
+    }
+    if let Ok(k) = &signals.tails
+        && k.beyond
+    {
+        let why = format!(
+            "tails heavier than normal: G2 = {:.2} is {:.1} standard errors above 0 (note above {cutoff})",
+            k.estimate, k.ratio
+        );
+        raise(Rule::HeavyTails, Status::Note, why);
+    }
+    if signals.n < 3 {
+        let why = match signals.n {
+            0 => "no values".to_string(),
+            n => format!("only {n} value(s)"),
+        };
+        raise(Rule::FewValues, Status::Note, why);
+    }
+    found
 }
 
 /// Robustness of one (group, column). `address(i)` is the source cell of value i.
 pub fn robustness(s: &Sample, fenced: &Fenced, address: &dyn Fn(usize) -> CellName) -> Robustness {
-    let m = QuantileMethod::default();
     let flag = |indexes: &[usize]| {
         indexes
             .iter()
@@ -282,135 +429,49 @@ pub fn robustness(s: &Sample, fenced: &Fenced, address: &dyn Fn(usize) -> CellNa
             })
             .collect::<Vec<_>>()
     };
-    let (mean, median, sd, iqr) = (
-        s.mean(),
-        stats::median(s),
-        s.sd(Denominator::Sample),
-        stats::iqr(s, m),
-    );
-    let gap = |scale: &stats::Stat, zero: &str| -> One {
-        match (&mean, &median, scale) {
-            (Ok(a), Ok(b), Ok(u)) if *u > 0.0 => One::number((a - b) / u),
-            (Ok(_), Ok(_), Ok(_)) => One::Undefined(zero.into()),
-            (Err(e), _, _) | (_, Err(e), _) | (_, _, Err(e)) => One::Undefined(e.to_string()),
-        }
+    let flag_all = |o: &stats::Stat<stats::Outliers>| {
+        o.as_ref()
+            .map(|o| flag(&[o.low.clone(), o.high.clone()].concat()))
+            .unwrap_or_default()
     };
-    let (gap_in_sd, gap_in_iqr) = (gap(&sd, "sd is zero"), gap(&iqr, "IQR is zero"));
-    let (wide, far) = (fenced.wide.as_ref().ok(), fenced.far.as_ref().ok());
-    let outliers_wide = wide
-        .as_ref()
-        .map(|o| flag(&[o.low.clone(), o.high.clone()].concat()))
-        .unwrap_or_default();
-    let outliers_far = far
-        .as_ref()
-        .map(|o| flag(&[o.low.clone(), o.high.clone()].concat()))
-        .unwrap_or_default();
-    // Without the 1.5 IQR outliers; with none, that is the sample itself.
-    let trimmed_values;
-    let trimmed = match wide {
-        Some(o) if o.count() == 0 => s,
-        Some(o) => {
-            let mut out = vec![false; s.count()];
-            o.low.iter().chain(&o.high).for_each(|&i| out[i] = true);
-            let kept = s.values().iter().zip(&out).filter(|(_, gone)| !**gone);
-            trimmed_values = Sample::from_finite(kept.map(|(x, _)| *x).collect());
-            &trimmed_values
-        }
-        None => {
-            trimmed_values = Sample::from_finite(Vec::new());
-            &trimmed_values
-        }
-    };
-    let (mean_without, sd_without, skewness_without) = (
-        from_stat(trimmed.mean()),
-        from_stat(trimmed.sd(Denominator::Sample)),
-        from_stat(trimmed.skewness(false)),
-    );
-    let (mean_change, sd_change, skewness_change) = (
-        change(&mean_without, mean.clone()),
-        change(&sd_without, sd.clone()),
-        change(&skewness_without, s.skewness(false)),
-    );
+    let (gap_in_sd, gap_in_iqr) = gaps(s);
+    let without = without_outliers(s, &fenced.wide);
     let (mean_influence, sd_influence) = influences(s, address);
     let modified_z = stats::modified_z_beyond(s, stats::MODIFIED_Z_CUTOFF)
         .map_err(|e| e.to_string())
         .map(|big| flag(&big));
-    let heavy_tails = s.kurtosis(false).is_ok_and(|k| k > 3.0);
     let bootstrap =
         stats::bootstrap_intervals(s, stats::DEFAULT_RESAMPLES, 0.95, stats::DEFAULT_SEED)
             .map_err(|e| e.to_string());
-
-    // Status thresholds are common practice, not from a published source.
-    let mut reasons = Vec::new();
-    let mut status = Status::Ok;
-    let mut raise = |to: Status, why: String| {
-        status = status.max(to);
-        reasons.push(why);
-    };
-    if !outliers_far.is_empty() {
-        raise(
-            Status::Warn,
-            format!("{} value(s) beyond the 3 IQR fences", outliers_far.len()),
-        );
-    }
-    if let Ok(big) = &modified_z
-        && !big.is_empty()
-    {
-        raise(
-            Status::Warn,
-            format!("{} modified z-score(s) above 3.5", big.len()),
-        );
-    }
-    if let One::Number(g) = gap_in_sd
-        && g.abs() > 0.5
-    {
-        raise(
-            Status::Warn,
-            format!("mean and median differ by {:.2} sd", g.abs()),
-        );
-    } else if let One::Number(g) = gap_in_sd
-        && g.abs() > 0.25
-    {
-        raise(
-            Status::Note,
-            format!("mean and median differ by {:.2} sd", g.abs()),
-        );
-    }
-    if outliers_far.is_empty() && !outliers_wide.is_empty() {
-        raise(
-            Status::Note,
-            format!("{} value(s) beyond the 1.5 IQR fences", outliers_wide.len()),
-        );
-    }
-    if heavy_tails {
-        raise(
-            Status::Note,
-            "kurtosis above 3: tails heavier than normal".into(),
-        );
-    }
-    if s.count() < 3 {
-        raise(Status::Note, format!("only {} value(s)", s.count()));
-    }
-    let reason = if reasons.is_empty() {
+    let signals = Signals::with_gap(s, fenced, gap_in_iqr);
+    let found = findings(&signals);
+    let status = found.iter().map(|f| f.status).max().unwrap_or(Status::Ok);
+    let reason = if found.is_empty() {
         "no sign that a few values drive the figures".to_string()
     } else {
-        reasons.join("; ")
+        found
+            .iter()
+            .map(|f| f.why.as_str())
+            .collect::<Vec<_>>()
+            .join("; ")
     };
     Robustness {
         gap_in_sd,
-        gap_in_iqr,
-        outliers_wide,
-        outliers_far,
-        mean_without,
-        sd_without,
-        skewness_without,
-        mean_change,
-        sd_change,
-        skewness_change,
+        gap_in_iqr: signals.gap_in_iqr,
+        fences_undefined: fenced.wide.as_ref().err().map(|e| e.to_string()),
+        outliers_wide: flag_all(&fenced.wide),
+        outliers_far: flag_all(&fenced.far),
+        mean_without: without.mean,
+        sd_without: without.sd,
+        skewness_without: without.skewness,
+        mean_change: without.mean_change,
+        sd_change: without.sd_change,
+        skewness_change: without.skewness_change,
         mean_influence,
         sd_influence,
         modified_z,
-        heavy_tails,
+        skewness: signals.skewness.map_err(|e| e.to_string()),
+        tails: signals.tails.map_err(|e| e.to_string()),
         bootstrap,
         status,
         reason,
@@ -463,6 +524,109 @@ mod tests {
             .abs()
                 < 1e-12
         );
+    }
+
+    /// Twenty readings from 10 to 11.8 and a typo of -500: the typo drags
+    /// the mean down and blows up the sd, so in sd units the gap looks
+    /// small (-0.22 sd, a plain note would need 0.25); in IQR units it is
+    /// -27 and cannot hide.
+    #[test]
+    fn a_typo_cannot_hide_in_the_gap() {
+        let mut values: Vec<f64> = (0..20).map(|i| 10.0 + f64::from(i % 7) * 0.3).collect();
+        values.push(-500.0);
+        let s = Sample::from_values(values);
+        let r = robustness(&s, &fenced(&s), &column_c);
+        let (One::Number(in_sd), One::Number(in_iqr)) = (&r.gap_in_sd, &r.gap_in_iqr) else {
+            panic!("{r:?}")
+        };
+        assert!(
+            in_sd.abs() < 0.25 && *in_iqr < -GAP_WARN_IQR,
+            "{in_sd} {in_iqr}"
+        );
+        let found = findings(&Signals::of(&s, &fenced(&s)));
+        assert!(
+            found
+                .iter()
+                .any(|f| f.rule == Rule::Gap && f.status == Status::Warn)
+        );
+        assert!(r.reason.contains("IQR (warn above 0.5"), "{}", r.reason);
+    }
+
+    #[test]
+    fn no_values_and_too_few_values_say_why() {
+        let empty = Sample::from_values([]);
+        let r = robustness(&empty, &fenced(&empty), &column_c);
+        let no = || "no values".to_string();
+        assert_eq!(r.fences_undefined, Some(no()));
+        assert_eq!(r.modified_z, Err(no()));
+        assert_eq!(
+            (r.skewness.clone().err(), r.tails.clone().err()),
+            (Some(no()), Some(no()))
+        );
+        assert_eq!(r.mean_influence, Err(no()));
+        assert_eq!(r.bootstrap, Err(no()));
+        assert_eq!(r.gap_in_iqr, One::Undefined(no()));
+        assert_eq!((r.status, r.reason.as_str()), (Status::Note, "no values"));
+
+        let two = Sample::from_values([0.1, 0.7]);
+        let r = robustness(&two, &fenced(&two), &column_c);
+        assert_eq!(r.bootstrap, Err("needs at least 10 values, has 2".into()));
+        assert_eq!(r.sd_influence, Err("needs at least 3 values, has 2".into()));
+        assert_eq!(r.skewness, Err("needs at least 3 values, has 2".into()));
+        // Two values are symmetric about their mean: skewness exactly 0.
+        let figures = panel_figures(&two, &fenced(&two));
+        let at = |label: &str| &figures[PANEL_LABELS.iter().position(|l| *l == label).unwrap()];
+        assert_eq!(at("skewness g1"), &One::Number(0.0));
+        assert_eq!(r.skewness_without, One::Number(0.0));
+        assert_eq!(r.reason, "only 2 value(s)");
+    }
+
+    #[test]
+    fn one_bin_is_one_bin() {
+        let s = Sample::from_values([0.5]);
+        let figures = panel_figures(&s, &fenced(&s));
+        assert!(figures.contains(&One::Text("binned, 1 equal bin (Sturges)".into())));
+    }
+
+    /// On normal data nothing is wrong, so every rule that fires there is
+    /// a false alarm. Over 4000 seeded normal samples at each size, each
+    /// rule may fire on at most 5% of them (seen: skewed 1.2-1.5%, heavy
+    /// tails 1.7-2.2%, gap 1.3% at n = 20 and about 0 beyond, 3 IQR
+    /// outliers 1.5% at 20 and under 1% beyond). Values beyond the 1.5 IQR
+    /// fences and modified z-scores above 3.5, which raise no status, are
+    /// counted too: they would cry wolf (seen: 30-75% and 9-13%).
+    #[test]
+    fn no_rule_cries_wolf_on_normal_samples() {
+        let mut rng = stats::SplitMix64(2026);
+        let samples = 4000;
+        for n in [20, 50, 200] {
+            let mut fired = std::collections::HashMap::new();
+            let (mut wide, mut modified_z) = (0, 0);
+            for _ in 0..samples {
+                let s = Sample::from_values((0..n).map(|_| 40.0 + 3.0 * rng.normal()));
+                let fenced = fenced(&s);
+                for f in findings(&Signals::of(&s, &fenced)) {
+                    *fired.entry(format!("{:?}", f.rule)).or_insert(0usize) += 1;
+                }
+                wide += usize::from(fenced.wide.unwrap().count() > 0);
+                let big = stats::modified_z_beyond(&s, stats::MODIFIED_Z_CUTOFF).unwrap();
+                modified_z += usize::from(!big.is_empty());
+            }
+            for (rule, count) in &fired {
+                let rate = *count as f64 / samples as f64;
+                eprintln!("n = {n}: {rule} on {:.2}% of normal samples", 100.0 * rate);
+                assert!(
+                    rate <= 0.05,
+                    "n = {n}: {rule} fired on {rate} of normal samples"
+                );
+            }
+            let (wide, modified_z) = (
+                wide as f64 / samples as f64,
+                modified_z as f64 / samples as f64,
+            );
+            eprintln!("n = {n}: 1.5 IQR outliers in {wide}, |modified z| > 3.5 in {modified_z}");
+            assert!(wide > 0.25 && modified_z > 0.08, "{wide} {modified_z}");
+        }
     }
 
     #[test]

@@ -30,6 +30,13 @@ pub const DEFAULT_RESAMPLES: usize = 2000;
 /// Draws one interval may cost with full resampling; longer columns use
 /// the direct method described above. The robustness sheet says which.
 pub const DRAW_BUDGET: usize = 20_000_000;
+/// Fewest values an interval is given for. A resample of a few values
+/// repeats the same few numbers, so the percentile interval is too narrow:
+/// on simulated normal samples the "95%" interval of the mean covers the
+/// true mean about 77% of the time at n = 3, 84% at 5, 90% at 10 and 93%
+/// at 20 (numpy simulation, 2000 samples each). Below 10 values no
+/// interval is given; the cutoff is common practice, not from a source.
+pub const BOOTSTRAP_MIN_VALUES: usize = 10;
 /// Fixed so that reruns on the same data agree to the last digit.
 pub const DEFAULT_SEED: u64 = 0x5EAF_2026;
 
@@ -81,7 +88,7 @@ pub fn bootstrap_intervals(
     level: f64,
     seed: u64,
 ) -> Stat<BootstrapIntervals> {
-    need(sample.count(), 1)?;
+    need(sample.count(), BOOTSTRAP_MIN_VALUES)?;
     need(resamples, 2)?;
     let sorted = sample.sorted();
     let mut rng = SplitMix64(seed);
@@ -128,14 +135,18 @@ fn full_resamples(sorted: &[f64], resamples: usize, rng: &mut SplitMix64) -> (Ve
     let mut means = Vec::with_capacity(resamples);
     let mut medians = Vec::with_capacity(resamples);
     let threshold = (n as u64).wrapping_neg() % n as u64;
+    // Means are summed as deviations from a middle value, so that data far
+    // from zero (1e8 plus small amounts) keep the digits of their spread.
+    let centre = sorted[(n - 1) / 2];
+    let deviations: Vec<f64> = sorted.iter().map(|x| x - centre).collect();
     for _ in 0..resamples {
         counts.fill(0);
         for _ in 0..n {
             counts[rng.below_with(n as u64, threshold) as usize] += 1;
         }
-        let (sum, median) = sum_and_median(sorted, &counts);
+        let (sum, median) = sum_and_median(sorted, &deviations, &counts);
         // A mean lies within the data's range; rounding of c x / n must not push it out.
-        means.push((sum / n as f64).clamp(sorted[0], sorted[n - 1]));
+        means.push((centre + sum / n as f64).clamp(sorted[0], sorted[n - 1]));
         medians.push(median);
     }
     (means, medians)
@@ -190,10 +201,12 @@ fn mean_by_expansion(sample: &Sample, level: f64) -> Stat<Interval> {
     })
 }
 
-/// The sum and the median of a resample, in one pass over the counts. The
-/// sum is plain (a resampled mean needs no more than about 13 digits); the
-/// loop has no data-dependent branch until the middle rank is reached.
-fn sum_and_median(sorted: &[f64], counts: &[u32]) -> (f64, f64) {
+/// The sum of `deviations` (the sorted values' differences from a centre)
+/// and the median of the values of a resample, in one pass over the
+/// counts. The sum is plain (a resampled mean needs no more than about 13
+/// digits of the spread); the loop has no data-dependent branch until the
+/// middle rank is reached.
+fn sum_and_median(sorted: &[f64], deviations: &[f64], counts: &[u32]) -> (f64, f64) {
     let n = sorted.len();
     let (lower_rank, upper_rank) = ((n - 1) / 2, n / 2);
     let mut seen = 0usize;
@@ -201,20 +214,20 @@ fn sum_and_median(sorted: &[f64], counts: &[u32]) -> (f64, f64) {
     let mut sum = 0.0;
     // Up to the lower middle rank: only sum and count.
     while i < n && seen + counts[i] as usize <= lower_rank {
-        sum += sorted[i] * f64::from(counts[i]);
+        sum += deviations[i] * f64::from(counts[i]);
         seen += counts[i] as usize;
         i += 1;
     }
     let lower = sorted[i.min(n - 1)];
     let mut j = i;
     while j < n && seen + counts[j] as usize <= upper_rank {
-        sum += sorted[j] * f64::from(counts[j]);
+        sum += deviations[j] * f64::from(counts[j]);
         seen += counts[j] as usize;
         j += 1;
     }
     let upper = sorted[j.min(n - 1)];
     for k in j..n {
-        sum += sorted[k] * f64::from(counts[k]);
+        sum += deviations[k] * f64::from(counts[k]);
     }
     (sum, lower / 2.0 + upper / 2.0)
 }
@@ -263,7 +276,7 @@ mod tests {
             [1, 1, 1, 1, 1],
             [0, 3, 0, 2, 0],
         ] {
-            let (sum, median) = sum_and_median(&sorted, &counts);
+            let (sum, median) = sum_and_median(&sorted, &sorted, &counts);
             let direct: f64 = sorted
                 .iter()
                 .zip(counts)
@@ -284,6 +297,41 @@ mod tests {
         assert_eq!(a, b);
         let c = bootstrap_intervals(&s, 500, 0.95, DEFAULT_SEED + 1).unwrap();
         assert_ne!(a.mean, c.mean);
+    }
+
+    #[test]
+    fn too_few_values_get_no_interval() {
+        for n in [0, 1, 2, 9] {
+            let s = Sample::from_values((0..n).map(|i| i as f64));
+            let got = bootstrap_intervals(&s, 100, 0.95, 7);
+            assert_eq!(got, Err(super::super::undefined::need(n, 10).unwrap_err()));
+        }
+        let ten = Sample::from_values((0..10).map(|i| i as f64));
+        assert!(bootstrap_intervals(&ten, 100, 0.95, 7).is_ok());
+    }
+
+    /// Readings 1e8 + k/1000 for 2000 values of k: their intervals must be
+    /// those of k/1000 moved by 1e8, to about the spacing of the doubles
+    /// there (1.5e-8; each reading is itself rounded to that). Summing the
+    /// values themselves (sums near 2e11, spaced 3e-5) put each resampled
+    /// mean off by some 20 times that.
+    #[test]
+    fn far_from_zero_the_intervals_keep_their_width() {
+        let grid: Vec<f64> = (0..2000)
+            .map(|i| f64::from((i * 37) % 101) / 1000.0)
+            .collect();
+        let near = bootstrap_intervals(&Sample::from_values(grid.clone()), 500, 0.95, 3).unwrap();
+        let far = Sample::from_values(grid.iter().map(|x| x + 1e8));
+        let far = bootstrap_intervals(&far, 500, 0.95, 3).unwrap();
+        let ulp = 1e8 * f64::EPSILON;
+        for (a, b) in [
+            (far.mean.low, near.mean.low),
+            (far.mean.high, near.mean.high),
+            (far.median.low, near.median.low),
+            (far.median.high, near.median.high),
+        ] {
+            assert!((a - 1e8 - b).abs() <= 1.5 * ulp, "{a} vs 1e8 + {b}");
+        }
     }
 
     #[test]

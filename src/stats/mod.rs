@@ -9,6 +9,7 @@
 
 mod bootstrap;
 mod histogram;
+mod influence;
 mod moments;
 mod normal;
 mod order;
@@ -16,14 +17,18 @@ mod outliers;
 mod quantile;
 mod random;
 mod sample;
+mod shape_noise;
 mod summation;
 mod undefined;
 
 pub use bootstrap::{
-    BootstrapIntervals, BootstrapMethod, DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET, Interval,
-    bootstrap_intervals, resampled_in_full,
+    BOOTSTRAP_MIN_VALUES, BootstrapIntervals, BootstrapMethod, DEFAULT_RESAMPLES, DEFAULT_SEED,
+    DRAW_BUDGET, Interval, bootstrap_intervals, resampled_in_full,
 };
 pub use histogram::{BinRule, Histogram, MAX_BINS, binned_mode, histogram, sturges_bins};
+pub use influence::{
+    LeaveOneOut, OneLeftOut, leave_one_out, mean_change_without, mean_minus_median,
+};
 pub use moments::{Denominator, Moments};
 pub use normal::{normal_cdf, normal_quantile};
 pub use order::{
@@ -36,5 +41,9 @@ pub use outliers::{
 pub use quantile::{QuantileMethod, quantile_sorted};
 pub use random::SplitMix64;
 pub use sample::{Sample, is_whole};
+pub use shape_noise::{
+    AgainstNoise, SHAPE_NOTE_CUTOFF, kurtosis_against_noise, kurtosis_se, skewness_against_noise,
+    skewness_se,
+};
 pub use summation::Neumaier;
 pub use undefined::{Stat, Undefined};

@@ -1,7 +1,7 @@
 //! Statistics read off the sorted values: median, IQR, Bowley, MAD,
 //! trimmed and winsorized means, modes. All share the sample's one sort.
 
-use super::quantile::{QuantileMethod, quantile_sorted};
+use super::quantile::{QuantileMethod, quantile_about, quantile_sorted};
 use super::sample::Sample;
 use super::summation::Neumaier;
 use super::undefined::{Stat, Undefined};
@@ -43,17 +43,49 @@ pub fn quartile(sample: &Sample, k: u8, method: QuantileMethod) -> Stat {
     quantile_sorted(sample.sorted(), f64::from(k) / 4.0, method)
 }
 
-/// Q3 - Q1.
-pub fn iqr(sample: &Sample, method: QuantileMethod) -> Stat {
-    Ok(quartile(sample, 3, method)? - quartile(sample, 1, method)?)
+/// A data value in the middle of the sorted values (the lower middle one):
+/// the centre that order statistics are measured from. Values near it
+/// differ from it exactly (Sterbenz), so differences of quantiles taken
+/// about it keep their digits however far the data sit from zero.
+pub(crate) fn middle_value(sorted: &[f64]) -> Stat {
+    match sorted.len() {
+        0 => Err(Undefined::NoValues),
+        n => Ok(sorted[(n - 1) / 2]),
+    }
 }
 
-/// Bowley's quartile skewness (Q3 + Q1 - 2 Q2) / (Q3 - Q1).
+/// The k-th quartile minus `centre` (see [`quantile_about`]).
+pub(crate) fn quartile_about(sample: &Sample, k: u8, method: QuantileMethod, centre: f64) -> Stat {
+    quantile_about(sample.sorted(), f64::from(k) / 4.0, method, centre)
+}
+
+/// The median minus `centre`, as the midpoint of the two middle values'
+/// differences from it.
+pub(crate) fn median_about(sorted: &[f64], centre: f64) -> Stat {
+    let n = sorted.len();
+    if n == 0 {
+        return Err(Undefined::NoValues);
+    }
+    Ok(midpoint(
+        sorted[(n - 1) / 2] - centre,
+        sorted[n / 2] - centre,
+    ))
+}
+
+/// Q3 - Q1, from the quartiles' differences from a middle value.
+pub fn iqr(sample: &Sample, method: QuantileMethod) -> Stat {
+    let centre = middle_value(sample.sorted())?;
+    Ok(quartile_about(sample, 3, method, centre)? - quartile_about(sample, 1, method, centre)?)
+}
+
+/// Bowley's quartile skewness (Q3 + Q1 - 2 Q2) / (Q3 - Q1), from the
+/// quartiles' differences from a middle value.
 pub fn bowley(sample: &Sample, method: QuantileMethod) -> Stat {
+    let centre = middle_value(sample.sorted())?;
     let (q1, q2, q3) = (
-        quartile(sample, 1, method)?,
-        quartile(sample, 2, method)?,
-        quartile(sample, 3, method)?,
+        quartile_about(sample, 1, method, centre)?,
+        quartile_about(sample, 2, method, centre)?,
+        quartile_about(sample, 3, method, centre)?,
     );
     if q3 == q1 {
         return Err(Undefined::ZeroIqr);
@@ -62,9 +94,16 @@ pub fn bowley(sample: &Sample, method: QuantileMethod) -> Stat {
 }
 
 /// Median absolute deviation from the median; `scaled` multiplies by 1.4826.
+/// Each |x - median| is taken as |(x - c) - (median - c)| about a middle
+/// value c, so it keeps its digits on data far from zero.
 pub fn mad(sample: &Sample, scaled: bool) -> Stat {
-    let centre = median(sample)?;
-    let mut deviations: Vec<f64> = sample.values().iter().map(|x| (x - centre).abs()).collect();
+    let centre = middle_value(sample.sorted())?;
+    let median = median_about(sample.sorted(), centre)?;
+    let mut deviations: Vec<f64> = sample
+        .values()
+        .iter()
+        .map(|x| ((x - centre) - median).abs())
+        .collect();
     let raw = median_by_selection(&mut deviations)?;
     Ok(if scaled { raw * MAD_NORMAL_SCALE } else { raw })
 }
@@ -202,6 +241,31 @@ mod tests {
             trimmed_mean(&with_outlier, 0.1),
             Ok(Neumaier::of((4..=27).map(f64::from)) / 24.0)
         );
+    }
+
+    // Hand-checked, in units of 1/4096 (every value an exact double even
+    // beside 1e12): x = 0 1 2 4 6 20. Type 7 puts Q1 at rank 2.25 -> 1.25,
+    // Q2 at 3.5 -> 3, Q3 at 4.75 -> 5.5, so IQR = 4.25 and Bowley =
+    // (5.5 + 1.25 - 6) / 4.25 = 3/17; |x - 3| = 3 2 1 1 3 17 has median 2.5.
+    // Beside 1e12 the doubles are 1/8192 apart, so Q1 = 1e12 + 1.25 units
+    // is not a double and Q3 - Q1 computed after the quartiles is off;
+    // about a middle value nothing is lost, so the figures must be the
+    // same to the bit at every offset.
+    #[test]
+    fn spread_and_shape_keep_their_digits_far_from_zero() {
+        let unit = 1.0 / 4096.0;
+        for offset in [0.0, 1e8, 1e12] {
+            let s = Sample::from_values([0.0, 1.0, 2.0, 4.0, 6.0, 20.0].map(|k| offset + k * unit));
+            let m = QuantileMethod::default();
+            assert_eq!(iqr(&s, m), Ok(4.25 * unit), "offset {offset}");
+            assert_eq!(bowley(&s, m), Ok(3.0 / 17.0), "offset {offset}");
+            assert_eq!(mad(&s, false), Ok(2.5 * unit), "offset {offset}");
+            assert_eq!(
+                quartile_about(&s, 1, m, offset),
+                Ok(1.25 * unit),
+                "offset {offset}"
+            );
+        }
     }
 
     #[test]

@@ -1,6 +1,6 @@
 //! Tukey's fences and the modified z-scores of Iglewicz and Hoaglin.
 
-use super::order::{iqr, median, quartile};
+use super::order::{mad, median_about, middle_value, quartile_about};
 use super::quantile::QuantileMethod;
 use super::sample::Sample;
 use super::undefined::{Stat, Undefined};
@@ -19,16 +19,34 @@ pub struct Fences {
 }
 
 pub fn fences(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<Fences> {
+    let (centre, about) = fences_about(sample, k, method)?;
+    Ok(Fences {
+        low: centre + about.low,
+        high: centre + about.high,
+    })
+}
+
+/// The fences minus a middle value c (which is returned too): Q1 - c - k IQR
+/// and Q3 - c + k IQR, every term a difference of nearby values, so the
+/// fences and the comparisons with them keep their digits on data far
+/// from zero.
+fn fences_about(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<(f64, Fences)> {
     if !(k.is_finite() && k >= 0.0) {
         return Err(Undefined::BadArgument(format!(
             "the fence factor must be 0 or more, not {k}"
         )));
     }
-    let spread = iqr(sample, method)?;
-    Ok(Fences {
-        low: quartile(sample, 1, method)? - k * spread,
-        high: quartile(sample, 3, method)? + k * spread,
-    })
+    let centre = middle_value(sample.sorted())?;
+    let q1 = quartile_about(sample, 1, method, centre)?;
+    let q3 = quartile_about(sample, 3, method, centre)?;
+    let spread = q3 - q1;
+    Ok((
+        centre,
+        Fences {
+            low: q1 - k * spread,
+            high: q3 + k * spread,
+        },
+    ))
 }
 
 /// Values strictly beyond the fences, as indexes into `sample.values()`.
@@ -46,16 +64,21 @@ impl Outliers {
 }
 
 pub fn outliers(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<Outliers> {
-    let fences = fences(sample, k, method)?;
+    let (centre, about) = fences_about(sample, k, method)?;
     let mut low = Vec::new();
     let mut high = Vec::new();
     for (i, &x) in sample.values().iter().enumerate() {
-        if x < fences.low {
+        let d = x - centre;
+        if d < about.low {
             low.push(i);
-        } else if x > fences.high {
+        } else if d > about.high {
             high.push(i);
         }
     }
+    let fences = Fences {
+        low: centre + about.low,
+        high: centre + about.high,
+    };
     Ok(Outliers { fences, low, high })
 }
 
@@ -70,20 +93,23 @@ pub fn outliers_near_and_far(
 ) -> (Stat<Outliers>, Stat<Outliers>) {
     debug_assert!(near <= far);
     let near_found = outliers(sample, near, method);
-    let far_found = match (&near_found, fences(sample, far, method)) {
-        (Ok(wide), Ok(fences)) => {
+    let far_found = match (&near_found, fences_about(sample, far, method)) {
+        (Ok(wide), Ok((centre, about))) => {
             let values = sample.values();
             let pick = |indexes: &[usize], beyond: &dyn Fn(f64) -> bool| {
                 indexes
                     .iter()
                     .copied()
-                    .filter(|&i| beyond(values[i]))
+                    .filter(|&i| beyond(values[i] - centre))
                     .collect()
             };
             Ok(Outliers {
-                fences,
-                low: pick(&wide.low, &|x| x < fences.low),
-                high: pick(&wide.high, &|x| x > fences.high),
+                fences: Fences {
+                    low: centre + about.low,
+                    high: centre + about.high,
+                },
+                low: pick(&wide.low, &|d| d < about.low),
+                high: pick(&wide.high, &|d| d > about.high),
             })
         }
         _ => outliers(sample, far, method),
@@ -91,14 +117,17 @@ pub fn outliers_near_and_far(
     (near_found, far_found)
 }
 
-/// The modified z-score M(x) = 0.6745 (x - median) / MAD of this sample.
+/// The modified z-score M(x) = 0.6745 (x - median) / MAD of this sample,
+/// with x - median taken as (x - c) - (median - c) about a middle value c
+/// so that it keeps its digits on data far from zero.
 fn modified_z(sample: &Sample) -> Stat<impl Fn(f64) -> f64> {
-    let centre = median(sample)?;
-    let spread = super::order::mad(sample, false)?;
+    let centre = middle_value(sample.sorted())?;
+    let median = median_about(sample.sorted(), centre)?;
+    let spread = mad(sample, false)?;
     if spread == 0.0 {
         return Err(Undefined::ZeroMad);
     }
-    Ok(move |x: f64| MODIFIED_Z_CONSTANT * (x - centre) / spread)
+    Ok(move |x: f64| MODIFIED_Z_CONSTANT * ((x - centre) - median) / spread)
 }
 
 /// M_i = 0.6745 (x_i - median) / MAD for every value, in the sample's order.
@@ -149,6 +178,27 @@ mod tests {
                 high: 16.0
             })
         );
+    }
+
+    // The data of order.rs's far-from-zero test (units of 1/4096): 0 1 2 4
+    // 6 20, median 3, MAD 2.5, Q1 1.25, Q3 5.5, IQR 4.25. M(20) = 0.6745 *
+    // 17 / 2.5 and M(0) = -0.6745 * 3 / 2.5 whatever the offset; the 1.5
+    // IQR fences are -5.125 and 11.875 units from the offset (to the
+    // nearest double there).
+    #[test]
+    fn scores_and_fences_keep_their_digits_far_from_zero() {
+        let unit = 1.0 / 4096.0;
+        for offset in [0.0, 1e8, 1e12] {
+            let s = Sample::from_values([0.0, 1.0, 2.0, 4.0, 6.0, 20.0].map(|k| offset + k * unit));
+            let z = modified_z_scores(&s).unwrap();
+            assert_eq!(z[5], 0.6745 * 17.0 / 2.5, "offset {offset}");
+            assert_eq!(z[0], -0.6745 * 3.0 / 2.5, "offset {offset}");
+            let o = outliers(&s, 1.5, QuantileMethod::default()).unwrap();
+            assert_eq!((o.low.len(), o.high.clone()), (0, vec![5]));
+            let ulp = offset * f64::EPSILON;
+            assert!((o.fences.low - offset + 5.125 * unit).abs() <= ulp);
+            assert!((o.fences.high - offset - 11.875 * unit).abs() <= ulp);
+        }
     }
 
     // Hand-checked: median 6, |x - 6| = 5 4 3 2 1 0 1 2 3 4 94 -> MAD 3,

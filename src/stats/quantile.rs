@@ -42,6 +42,34 @@ impl QuantileMethod {
 
 /// The p-quantile (p in [0, 1]) of values sorted ascending.
 pub fn quantile_sorted(sorted: &[f64], p: f64, method: QuantileMethod) -> Stat {
+    quantile_about(sorted, p, method, 0.0)
+}
+
+/// The p-quantile minus `centre`, computed as (lo - centre) + gamma (hi - lo)
+/// from the two order statistics it lies between. With `centre` a data
+/// value near the quantile, both differences are exact or nearly so, so the
+/// result keeps its digits when the data sit far from zero (1e8 + small
+/// values), where Q - centre computed after Q would not.
+pub fn quantile_about(sorted: &[f64], p: f64, method: QuantileMethod, centre: f64) -> Stat {
+    let Between { lo, hi, gamma } = between(sorted, p, method)?;
+    // Written so that gamma = 0 or 1 gives a data value (minus the centre) exactly.
+    Ok(if gamma == 0.0 {
+        lo - centre
+    } else if gamma == 1.0 {
+        hi - centre
+    } else {
+        (lo - centre) + gamma * (hi - lo)
+    })
+}
+
+/// A quantile as (1 - gamma) lo + gamma hi, lo and hi adjacent order statistics.
+struct Between {
+    lo: f64,
+    hi: f64,
+    gamma: f64,
+}
+
+fn between(sorted: &[f64], p: f64, method: QuantileMethod) -> Stat<Between> {
     if !(0.0..=1.0).contains(&p) {
         return Err(Undefined::BadArgument(format!(
             "quantile level {p} is outside 0 to 1"
@@ -56,7 +84,7 @@ pub fn quantile_sorted(sorted: &[f64], p: f64, method: QuantileMethod) -> Stat {
     }
 }
 
-fn hyndman_fan(x: &[f64], p: f64, kind: u8) -> Stat {
+fn hyndman_fan(x: &[f64], p: f64, kind: u8) -> Stat<Between> {
     let n = x.len() as f64;
     // Hyndman and Fan's notation: Q(p) = (1 - gamma) x[j] + gamma x[j+1],
     // 1-based, with j = floor(np + m) and x[0] = x[1], x[n+1] = x[n].
@@ -90,14 +118,10 @@ fn hyndman_fan(x: &[f64], p: f64, kind: u8) -> Stat {
         _ => g,
     };
     let at = |k: f64| x[(k.clamp(1.0, n) as usize) - 1];
-    let (lo, hi) = (at(j), at(j + 1.0));
-    // Written so that gamma = 0 or 1 returns a data value exactly.
-    Ok(if gamma == 0.0 {
-        lo
-    } else if gamma == 1.0 {
-        hi
-    } else {
-        lo + gamma * (hi - lo)
+    Ok(Between {
+        lo: at(j),
+        hi: at(j + 1.0),
+        gamma,
     })
 }
 
@@ -117,33 +141,35 @@ fn snap_to_integer(h: f64) -> f64 {
     }
 }
 
-fn hinges(x: &[f64], p: f64) -> Stat {
+fn hinges(x: &[f64], p: f64) -> Stat<Between> {
     let n = x.len();
     // Depths as in Tukey (1977): median depth (n+1)/2, hinge depth
-    // (floor(median depth) + 1) / 2, counted from either end.
+    // (floor(median depth) + 1) / 2, counted from either end. A depth
+    // ending in .5 is halfway between two values.
     let hinge_depth = ((n + 1) / 2 + 1) as f64 / 2.0;
+    let half = |depth: f64| if depth.fract() == 0.0 { 0.0 } else { 0.5 };
     let from_low = |depth: f64| {
         let i = depth.floor() as usize - 1;
-        if depth.fract() == 0.0 {
-            x[i]
-        } else {
-            (x[i] + x[i + 1]) / 2.0
+        Between {
+            lo: x[i],
+            hi: x[(i + 1).min(n - 1)],
+            gamma: half(depth),
         }
     };
     let from_high = |depth: f64| {
         let i = n - depth.floor() as usize;
-        if depth.fract() == 0.0 {
-            x[i]
-        } else {
-            (x[i] + x[i - 1]) / 2.0
+        Between {
+            lo: x[i.saturating_sub(1)],
+            hi: x[i],
+            gamma: 1.0 - half(depth),
         }
     };
     match p {
-        0.0 => Ok(x[0]),
+        0.0 => Ok(from_low(1.0)),
         0.25 => Ok(from_low(hinge_depth)),
         0.5 => Ok(from_low((n + 1) as f64 / 2.0)),
         0.75 => Ok(from_high(hinge_depth)),
-        1.0 => Ok(x[n - 1]),
+        1.0 => Ok(from_high(1.0)),
         _ => Err(Undefined::BadArgument(
             "Tukey's hinges give only the quartiles (0, 25, 50, 75, 100); use an hf method for other percentiles".into(),
         )),

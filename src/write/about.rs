@@ -6,7 +6,7 @@ use super::sheets::SheetNames;
 use super::style;
 use crate::eval::{Block, Results};
 use crate::load::Table;
-use crate::stats::{DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET};
+use crate::stats::{BOOTSTRAP_MIN_VALUES, DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET};
 
 pub const DISCLAIMER: &str = "sheaf summarises data. Where a figure feeds a decision that can hurt someone (a safety limit, a product \
 release), it does not replace the rules and the qualified review that apply there.";
@@ -20,7 +20,7 @@ pub const CONVENTIONS: &[&str] = &[
     "mad is the median absolute deviation; scaled multiplies it by 1.4826.",
     "trimmed and winsorized means cut floor(a n) values at each end.",
     "Tukey's fences: Q1 - k IQR and Q3 + k IQR, k = 1.5 unless given; outliers lie strictly beyond them.",
-    "Modified z-score: 0.6745 (x - median) / MAD, flagged above 3.5 (Iglewicz and Hoaglin 1993).",
+    "Modified z-score: 0.6745 (x - median) / MAD, flagged when above 3.5 in absolute value (Iglewicz and Hoaglin 1993).",
     "Groups appear in the order of their first row in the data; a blank key forms the group (blank).",
     "A let column is computed over the rows kept at its line; its aggregates reduce over those rows, not per group.",
 ];
@@ -99,7 +99,7 @@ pub fn about(
     pair(
         "bootstrap",
         format!(
-            "{DEFAULT_RESAMPLES} resamples, seed {DEFAULT_SEED}, 95% percentile intervals; over {} values, medians from directly drawn order statistics and the mean by Cornish-Fisher expansion",
+            "{DEFAULT_RESAMPLES} resamples, seed {DEFAULT_SEED}, 95% percentile intervals, none below {BOOTSTRAP_MIN_VALUES} values; over {} values, medians from directly drawn order statistics and the mean by Cornish-Fisher expansion",
             DRAW_BUDGET / DEFAULT_RESAMPLES
         ),
     )?;

@@ -5,8 +5,14 @@ use std::collections::HashSet;
 use rust_xlsxwriter::{Workbook, Worksheet, XlsxError};
 
 use super::style::{self, write_one};
-use crate::eval::{Block, Flagged, One, PANEL_LABELS, PanelEntry, Results, group_label};
-use crate::stats::{DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET};
+use crate::eval::{
+    Block, Flagged, GAP_NOTE_IQR, GAP_WARN_IQR, Influence, One, PANEL_LABELS, PanelEntry, Results,
+    Robustness, group_label,
+};
+use crate::stats::{
+    AgainstNoise, BOOTSTRAP_MIN_VALUES, BootstrapIntervals, DEFAULT_RESAMPLES, DEFAULT_SEED,
+    DRAW_BUDGET, SHAPE_NOTE_CUTOFF,
+};
 
 /// Sheet names in use, so every new one is unique and at most 31 characters.
 #[derive(Default)]
@@ -35,22 +41,29 @@ impl SheetNames {
 
 pub const PANEL_NOTE: &str = "Conventions: n counts numeric cells; missing counts blank, text and error cells. sd is the sample sd (n - 1). \
 Quartiles, median and IQR by Hyndman-Fan type 7 (linear interpolation). Skewness g1 = m3 / m2^1.5 and kurtosis b2 = m4 / m2^2 \
-(about 3 for normal data) are the moment forms. Bowley skewness = (Q3 + Q1 - 2 Q2) / (Q3 - Q1). Outliers lie strictly beyond \
+(about 3 for normal data) are the moment forms; two values lie symmetrically about their mean, so their skewness is exactly 0. Bowley skewness = (Q3 + Q1 - 2 Q2) / (Q3 - Q1). Outliers lie strictly beyond \
 Tukey's fences Q1 - 1.5 IQR and Q3 + 1.5 IQR. Modes: every most frequent value for whole-number data; otherwise the mean of the \
 values in the fullest of Sturges' equal bins. A cell without a number says why.";
 
 fn robustness_note() -> String {
     format!(
-        "Each row asks whether a few values drive the figures. Gap = (mean - median) / sd and / IQR. Outliers by Tukey's 1.5 and 3 IQR \
-fences (type 7 quartiles), each with its source cell. 'Without' recomputes mean, sd and skewness leaving out the 1.5 IQR outliers. \
-Leave-one-out: the largest change in the mean and in the sd that removing one value causes, and its cell. Modified z-scores \
-0.6745 (x - median) / MAD above 3.5 (Iglewicz and Hoaglin 1993). Bootstrap: 95% percentile intervals from {DEFAULT_RESAMPLES} \
-resamples, seed {DEFAULT_SEED}, so reruns agree. Columns over {} values are not resampled in full: the median's resamples draw \
-their middle order statistics directly (the same distribution) and the mean's interval is the Cornish-Fisher expansion of its \
-bootstrap distribution (Hall 1992); the 'bootstrap method' column says which. Status: warn for values beyond the 3 IQR fences, modified z above 3.5 or a \
-mean-median gap above 0.5 sd; note for 1.5 IQR outliers, kurtosis above 3, a gap above 0.25 sd or fewer than 3 values \
-(thresholds are common practice, not from a published source).",
-        DRAW_BUDGET / DEFAULT_RESAMPLES
+        "Each row asks whether a few values drive the figures. Gap = (mean - median) / sd and / IQR, computed from deviations \
+about a middle value so data far from zero keep their digits. Outliers lie strictly beyond Tukey's 1.5 and 3 IQR fences (type 7 \
+quartiles), each listed with its source cell. 'Without' recomputes mean, sd and skewness leaving out the 1.5 IQR outliers; \
+'change' is without minus with. Leave-one-out: of all values, the one whose removal changes the mean (or the sd) most in size; \
+the change is signed (after minus before), and of equal changes the first row's is shown. |modified z| = |0.6745 (x - median) \
+/ MAD| above 3.5 (Iglewicz and Hoaglin 1993), in either direction. Skewness G1 and excess kurtosis G2 (adjusted, Joanes and Gill \
+1998) are set against their standard errors for normal samples of the same size, SES = sqrt(6n(n-1)/((n-2)(n+1)(n+3))) and \
+SEK = 2 SES sqrt((n^2-1)/((n-3)(n+5))); 'skewed' when |G1 / SES| is above {cutoff}, 'heavy tails' when G2 / SEK is above \
+{cutoff}. Bootstrap: 95% percentile intervals from {DEFAULT_RESAMPLES} resamples, seed {DEFAULT_SEED}, so reruns agree; none \
+below {BOOTSTRAP_MIN_VALUES} values, where resamples repeat a few values and the interval is too narrow to be 95%. Columns over \
+{full} values are not resampled in full: the median's resamples draw their middle order statistics directly (the same \
+distribution) and the mean's interval is the Cornish-Fisher expansion of its bootstrap distribution (Hall 1992); the 'bootstrap \
+method' column says which. Status: warn for values beyond the 3 IQR fences or a mean-median gap above {GAP_WARN_IQR} IQR; note \
+for a gap above {GAP_NOTE_IQR} IQR, skewed, heavy tails, or fewer than 3 values. 1.5 IQR outliers and |modified z| above 3.5 are \
+listed but raise no status: normal data show them often. Thresholds are common practice, not from a published source.",
+        cutoff = SHAPE_NOTE_CUTOFF,
+        full = DRAW_BUDGET / DEFAULT_RESAMPLES
     )
 }
 
@@ -166,40 +179,158 @@ fn panel_sheet(
     style::filter(sheet, top, top + entries.len() as u32, labels.len())
 }
 
-pub const ROBUSTNESS_LABELS: &[&str] = &[
-    "status",
-    "reason",
-    "gap in sd",
-    "gap in IQR",
-    "outliers 1.5 IQR",
-    "1.5 IQR cells",
-    "outliers 3 IQR",
-    "3 IQR cells",
-    "mean without",
-    "mean change",
-    "sd without",
-    "sd change",
-    "skewness without",
-    "skewness change",
-    "largest mean change (one value)",
-    "its cell",
-    "largest sd change (one value)",
-    "its cell (sd)",
-    "modified z above 3.5",
-    "modified z cells",
-    "kurtosis above 3",
-    "mean 95% low",
-    "mean 95% high",
-    "median 95% low",
-    "median 95% high",
-    "resamples",
-    "bootstrap method",
+/// One column of the robustness sheet: its header, whether it holds a
+/// count, and how its cell is read off an entry's robustness.
+struct RobustnessColumn {
+    label: &'static str,
+    count: bool,
+    value: fn(&Robustness) -> One,
+}
+
+const fn column(label: &'static str, value: fn(&Robustness) -> One) -> RobustnessColumn {
+    RobustnessColumn {
+        label,
+        count: false,
+        value,
+    }
+}
+
+const fn count(label: &'static str, value: fn(&Robustness) -> One) -> RobustnessColumn {
+    RobustnessColumn {
+        label,
+        count: true,
+        value,
+    }
+}
+
+/// The robustness sheet's columns after group, column, status and reason.
+const ROBUSTNESS_COLUMNS: &[RobustnessColumn] = &[
+    column("(mean - median) / sd", |b| b.gap_in_sd.clone()),
+    column("(mean - median) / IQR", |b| b.gap_in_iqr.clone()),
+    count("outliers 1.5 IQR", |b| fenced_count(b, &b.outliers_wide)),
+    column("1.5 IQR cells", |b| fenced_cells(b, &b.outliers_wide)),
+    count("outliers 3 IQR", |b| fenced_count(b, &b.outliers_far)),
+    column("3 IQR cells", |b| fenced_cells(b, &b.outliers_far)),
+    column("mean without", |b| b.mean_without.clone()),
+    column("mean change", |b| b.mean_change.clone()),
+    column("sd without", |b| b.sd_without.clone()),
+    column("sd change", |b| b.sd_change.clone()),
+    column("skewness without", |b| b.skewness_without.clone()),
+    column("skewness change", |b| b.skewness_change.clone()),
+    column(
+        "leave-one-out mean change (after - before, largest in size)",
+        |b| influence(&b.mean_influence, |i| One::Number(i.change)),
+    ),
+    column("its cell (first row if tied)", |b| {
+        influence(&b.mean_influence, influence_cell)
+    }),
+    column(
+        "leave-one-out sd change (after - before, largest in size)",
+        |b| influence(&b.sd_influence, |i| One::Number(i.change)),
+    ),
+    column("its cell, sd (first row if tied)", |b| {
+        influence(&b.sd_influence, influence_cell)
+    }),
+    count("|modified z| above 3.5", |b| match &b.modified_z {
+        Ok(list) => One::Number(list.len() as f64),
+        Err(why) => One::Undefined(why.clone()),
+    }),
+    column("|modified z| cells", |b| match &b.modified_z {
+        Ok(list) => One::Text(cells(list)),
+        Err(why) => One::Undefined(why.clone()),
+    }),
+    column("skewness G1", |b| shape(&b.skewness, |k| k.estimate)),
+    column("SE of G1 if normal", |b| {
+        shape(&b.skewness, |k| k.standard_error)
+    }),
+    column("G1 / SE", |b| shape(&b.skewness, |k| k.ratio)),
+    column("skewed", |b| {
+        shape_note(
+            &b.skewness,
+            &format!("yes: |G1 / SE| above {SHAPE_NOTE_CUTOFF}"),
+        )
+    }),
+    column("excess kurtosis G2", |b| shape(&b.tails, |k| k.estimate)),
+    column("SE of G2 if normal", |b| {
+        shape(&b.tails, |k| k.standard_error)
+    }),
+    column("G2 / SE", |b| shape(&b.tails, |k| k.ratio)),
+    column("heavy tails", |b| {
+        shape_note(&b.tails, &format!("yes: G2 / SE above {SHAPE_NOTE_CUTOFF}"))
+    }),
+    column("mean 95% low", |b| {
+        bootstrap(b, |i| One::Number(i.mean.low))
+    }),
+    column("mean 95% high", |b| {
+        bootstrap(b, |i| One::Number(i.mean.high))
+    }),
+    column("median 95% low", |b| {
+        bootstrap(b, |i| One::Number(i.median.low))
+    }),
+    column("median 95% high", |b| {
+        bootstrap(b, |i| One::Number(i.median.high))
+    }),
+    count("resamples", |b| {
+        bootstrap(b, |i| One::Number(i.resamples as f64))
+    }),
+    column("bootstrap method", |b| {
+        bootstrap(b, |i| One::Text(i.method.words().into()))
+    }),
 ];
+
+/// The number of outliers, or why there are no fences.
+fn fenced_count(b: &Robustness, list: &[Flagged]) -> One {
+    match &b.fences_undefined {
+        Some(why) => One::Undefined(why.clone()),
+        None => One::Number(list.len() as f64),
+    }
+}
+
+/// The outliers' cells, or why there are no fences.
+fn fenced_cells(b: &Robustness, list: &[Flagged]) -> One {
+    match &b.fences_undefined {
+        Some(why) => One::Undefined(why.clone()),
+        None => One::Text(cells(list)),
+    }
+}
+
+fn influence(found: &Result<Influence, String>, part: fn(&Influence) -> One) -> One {
+    found
+        .as_ref()
+        .map_or_else(|why| One::Undefined(why.clone()), part)
+}
+
+fn influence_cell(i: &Influence) -> One {
+    One::Text(cells(std::slice::from_ref(&i.cell)))
+}
+
+fn shape(found: &Result<AgainstNoise, String>, part: fn(&AgainstNoise) -> f64) -> One {
+    found
+        .as_ref()
+        .map_or_else(|why| One::Undefined(why.clone()), |k| One::number(part(k)))
+}
+
+fn shape_note(found: &Result<AgainstNoise, String>, yes: &str) -> One {
+    match found {
+        Ok(k) if k.beyond => One::Text(yes.into()),
+        Ok(_) => One::Text("no".into()),
+        Err(why) => One::Undefined(why.clone()),
+    }
+}
+
+fn bootstrap(b: &Robustness, part: fn(&BootstrapIntervals) -> One) -> One {
+    b.bootstrap
+        .as_ref()
+        .map_or_else(|why| One::Undefined(why.clone()), part)
+}
 
 /// Cells listed in one spreadsheet cell; the rest are counted, not listed.
 const LISTED_CELLS: usize = 100;
 
 fn cells(list: &[Flagged]) -> String {
+    if list.is_empty() {
+        return "none".into();
+    }
     let mut text = list
         .iter()
         .take(LISTED_CELLS)
@@ -221,7 +352,9 @@ fn robustness_sheet(
     keys: &[String],
     entries: &[PanelEntry],
 ) -> Result<(), XlsxError> {
-    let labels = entry_labels(keys, ROBUSTNESS_LABELS);
+    let mut figures = vec!["status", "reason"];
+    figures.extend(ROBUSTNESS_COLUMNS.iter().map(|c| c.label));
+    let labels = entry_labels(keys, &figures);
     let top = heading(
         sheet,
         &format!("{name}: robustness"),
@@ -233,69 +366,17 @@ fn robustness_sheet(
         let r = top + 1 + i as u32;
         let b = &e.robustness;
         write_group(sheet, r, &e.group)?;
-        let mut c = keys.len() as u16;
+        let c = keys.len() as u16;
         sheet.write_string(r, c, &e.column)?;
-        c += 1;
-        sheet.write_string_with_format(r, c, b.status.word(), &style::status(b.status.word()))?;
-        sheet.write_string(r, c + 1, &b.reason)?;
-        let mut values: Vec<(One, bool)> =
-            vec![(b.gap_in_sd.clone(), false), (b.gap_in_iqr.clone(), false)];
-        values.push((One::Number(b.outliers_wide.len() as f64), true));
-        values.push((One::Text(cells(&b.outliers_wide)), false));
-        values.push((One::Number(b.outliers_far.len() as f64), true));
-        values.push((One::Text(cells(&b.outliers_far)), false));
-        for v in [
-            &b.mean_without,
-            &b.mean_change,
-            &b.sd_without,
-            &b.sd_change,
-            &b.skewness_without,
-            &b.skewness_change,
-        ] {
-            values.push((v.clone(), false));
-        }
-        for influence in [&b.mean_influence, &b.sd_influence] {
-            match influence {
-                Some(inf) => {
-                    values.push((One::Number(inf.change), false));
-                    values.push((One::Text(cells(std::slice::from_ref(&inf.cell))), false));
-                }
-                None => {
-                    values.push((One::Undefined("needs at least 3 values".into()), false));
-                    values.push((One::Text(String::new()), false));
-                }
-            }
-        }
-        match &b.modified_z {
-            Ok(list) => {
-                values.push((One::Number(list.len() as f64), true));
-                values.push((One::Text(cells(list)), false));
-            }
-            Err(why) => {
-                values.push((One::Undefined(why.clone()), false));
-                values.push((One::Text(String::new()), false));
-            }
-        }
-        values.push((
-            One::Text(if b.heavy_tails {
-                "yes: tails heavier than normal".into()
-            } else {
-                "no".into()
-            }),
-            false,
-        ));
-        match &b.bootstrap {
-            Ok(bi) => {
-                for x in [bi.mean.low, bi.mean.high, bi.median.low, bi.median.high] {
-                    values.push((One::Number(x), false));
-                }
-                values.push((One::Number(bi.resamples as f64), true));
-                values.push((One::Text(bi.method.words().into()), false));
-            }
-            Err(why) => (0..6).for_each(|_| values.push((One::Undefined(why.clone()), false))),
-        }
-        for (j, (value, whole)) in values.iter().enumerate() {
-            write_one(sheet, r, c + 2 + j as u16, value, *whole)?;
+        sheet.write_string_with_format(
+            r,
+            c + 1,
+            b.status.word(),
+            &style::status(b.status.word()),
+        )?;
+        sheet.write_string(r, c + 2, &b.reason)?;
+        for (j, column) in ROBUSTNESS_COLUMNS.iter().enumerate() {
+            write_one(sheet, r, c + 3 + j as u16, &(column.value)(b), column.count)?;
         }
     }
     style::filter(sheet, top, top + entries.len() as u32, labels.len())
@@ -370,16 +451,21 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
         match block {
             Block::Panel { name, entries, .. } => {
                 for e in entries {
+                    let place = |sheet: &str, label: &str| {
+                        format!(
+                            "{sheet} / {} / {} / {label}",
+                            group_label(&e.group),
+                            e.column
+                        )
+                    };
                     for (label, value) in PANEL_LABELS.iter().zip(&e.figures) {
                         if let One::Undefined(why) = value {
-                            found.push((
-                                format!(
-                                    "{name} / {} / {} / {label}",
-                                    group_label(&e.group),
-                                    e.column
-                                ),
-                                why.clone(),
-                            ));
+                            found.push((place(name, label), why.clone()));
+                        }
+                    }
+                    for column in ROBUSTNESS_COLUMNS {
+                        if let One::Undefined(why) = (column.value)(&e.robustness) {
+                            found.push((place(&format!("{name} robustness"), column.label), why));
                         }
                     }
                 }

@@ -5,7 +5,12 @@ Reads every datasets/*.csv (lines starting with '#' are notes, then a header
 line, then one value a line) and writes expected.tsv: dataset, statistic,
 value(s) as Python's repr (comma separated for lists). tests/reference.rs
 compares sheaf's figures with these to 1e-12 relative. Rows named exact_*
-are the moment statistics in exact rational arithmetic (stdlib only).
+are in exact rational arithmetic (stdlib fractions, square roots to 50
+digits): the moment statistics, and the order statistics and robustness
+figures (quartiles, IQR, Bowley, MAD, fences, mean-median gaps,
+leave-one-out changes, the standard errors of G1 and G2 under normality).
+A dataset whose notes say "exact only" sits far from zero, where numpy
+and scipy lose digits: it gets the exact rows alone.
 
 Usage: python3 generate.py [OUTPUT]   (default: expected.tsv beside this file)
 Pinned versions: requirements.txt.
@@ -36,6 +41,11 @@ MAD_SCALE = 1.4826  # the rounding sheaf's spec fixes
 def read(path):
     lines = [l.strip() for l in path.read_text().splitlines() if l.strip() and not l.startswith("#")]
     return np.array([float(v) for v in lines[1:]])
+
+
+def exact_only(path):
+    """Whether the dataset's notes ask for the exact rows alone."""
+    return any(l.startswith("# exact only") for l in path.read_text().splitlines())
 
 
 def rows(x):
@@ -107,7 +117,81 @@ def exact_rows(x):
     yield "exact_skewness_adjusted", float(g1 * (N * (N - 1)).sqrt() / (N - 2))
     yield "exact_kurtosis", float(g2 + 3)
     yield "exact_excess_kurtosis", float(g2)
-    yield "exact_excess_kurtosis_adjusted", float(((N + 1) * g2 + 6) * (N - 1) / ((N - 2) * (N - 3)))
+    G1 = g1 * (N * (N - 1)).sqrt() / (N - 2)
+    G2 = ((N + 1) * g2 + 6) * (N - 1) / ((N - 2) * (N - 3))
+    yield "exact_excess_kurtosis_adjusted", float(G2)
+    # Standard errors of G1 and G2 for normal samples (Joanes and Gill 1998).
+    ses = (Decimal(6 * n * (n - 1)) / Decimal((n - 2) * (n + 1) * (n + 3))).sqrt()
+    sek = 2 * ses * (Decimal(n * n - 1) / Decimal((n - 3) * (n + 5))).sqrt()
+    yield "exact_skewness_se", float(ses)
+    yield "exact_kurtosis_se", float(sek)
+    yield "exact_skewness_ratio", float(G1 / ses)
+    yield "exact_kurtosis_ratio", float(G2 / sek)
+    yield from exact_robustness_rows(xs)
+
+
+def exact_quantile(sorted_xs, p):
+    """Hyndman and Fan type 7 in exact arithmetic: h = (n - 1) p + 1 (1-based)."""
+    h = (len(sorted_xs) - 1) * Fraction(p) + 1
+    j = math.floor(h)
+    lo, hi = sorted_xs[j - 1], sorted_xs[min(j, len(sorted_xs) - 1)]
+    return lo + (h - j) * (hi - lo)
+
+
+def exact_median(values):
+    v = sorted(values)
+    n = len(v)
+    return v[n // 2] if n % 2 else (v[n // 2 - 1] + v[n // 2]) / 2
+
+
+def sample_sd(values):
+    """Sample sd (n - 1) to 50 digits."""
+    n = len(values)
+    mean = sum(values) / n
+    m2 = sum((v - mean) ** 2 for v in values)
+    return (Decimal(m2.numerator) / Decimal(m2.denominator) / (n - 1)).sqrt()
+
+
+def largest_in_size(changes):
+    """(change, index) of the largest change in size; the first of equals."""
+    best = 0
+    for i, c in enumerate(changes):
+        if abs(c) > abs(changes[best]):
+            best = i
+    return changes[best], best
+
+
+def exact_robustness_rows(xs):
+    """Order statistics and the robustness sheet's figures, exactly."""
+    n = len(xs)
+    dec = lambda f: Decimal(f.numerator) / Decimal(f.denominator)
+    s = sorted(xs)
+    q1, q2, q3 = (exact_quantile(s, p) for p in (Fraction(1, 4), Fraction(1, 2), Fraction(3, 4)))
+    iqr = q3 - q1
+    median = exact_median(xs)
+    mean = sum(xs) / n
+    sd = sample_sd(xs)
+    yield "exact_iqr_hf7", float(iqr)
+    yield "exact_bowley", float((q3 + q1 - 2 * q2) / iqr)
+    mad = exact_median([abs(v - median) for v in xs])
+    yield "exact_mad", float(mad)
+    yield "exact_modified_z", [float(Fraction(6745, 10000) * (v - median) / mad) for v in xs]
+    for k in (Fraction(3, 2), Fraction(3)):
+        yield f"exact_fence_low_{float(k)}", float(q1 - k * iqr)
+        yield f"exact_fence_high_{float(k)}", float(q3 + k * iqr)
+    yield "exact_gap_sd", float(dec(mean - median) / sd)
+    yield "exact_gap_iqr", float((mean - median) / iqr)
+    # Without the values strictly beyond the 1.5 IQR fences.
+    kept = [v for v in xs if q1 - Fraction(3, 2) * iqr <= v <= q3 + Fraction(3, 2) * iqr]
+    yield "exact_mean_change_without_outliers", float(sum(kept) / len(kept) - mean)
+    # Leave one out: every value in turn, by the definition.
+    rest = [xs[:i] + xs[i + 1:] for i in range(n)]
+    mean_change, mean_row = largest_in_size([sum(r) / (n - 1) - mean for r in rest])
+    sd_change, sd_row = largest_in_size([sample_sd(r) - sd for r in rest])
+    yield "exact_leave_one_out_mean_change", float(mean_change)
+    yield "exact_leave_one_out_mean_index", mean_row
+    yield "exact_leave_one_out_sd_change", float(sd_change)
+    yield "exact_leave_one_out_sd_index", sd_row
 
 
 def text(value):
@@ -123,7 +207,8 @@ def main():
     lines = [f"# generated by generate.py with numpy {np.__version__}, scipy {__import__('scipy').__version__}"]
     for path in sorted((HERE / "datasets").glob("*.csv")):
         x = read(path)
-        lines += [f"{path.stem}\t{name}\t{text(value)}" for name, value in [*rows(x), *exact_rows(x)]]
+        figures = [*exact_rows(x)] if exact_only(path) else [*rows(x), *exact_rows(x)]
+        lines += [f"{path.stem}\t{name}\t{text(value)}" for name, value in figures]
     out.write_text("\n".join(lines) + "\n")
 
 
