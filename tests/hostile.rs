@@ -6,6 +6,9 @@ use std::path::{Path, PathBuf};
 use std::process::Command;
 
 use proptest::prelude::*;
+
+mod common;
+use common::{root, sheaf, text};
 use sheaf::load::{self, LoadOptions};
 
 fn demo() -> Vec<u8> {
@@ -292,5 +295,96 @@ fn a_file_of_unknown_type_is_named_with_the_types_sheaf_reads() {
         ] {
             assert!(e.contains(name) && e.contains("sheaf reads .xlsx"), "{e}");
         }
+    }
+}
+
+/// The demo recipe over the demo month, written to `out` (relative to `dir`).
+fn run_demo(dir: &Path, out: &str, extra: &[&str]) -> std::process::Output {
+    let recipe = root().join("workbooks/depot-monthly.sheaf");
+    let data = root().join("workbooks/depot-2026-10.xlsx");
+    let mut args = vec![
+        "run",
+        recipe.to_str().unwrap(),
+        "--data",
+        data.to_str().unwrap(),
+        "--out",
+        out,
+    ];
+    args.extend_from_slice(extra);
+    sheaf(&args, dir)
+}
+
+fn partial_files(dir: &Path) -> Vec<String> {
+    std::fs::read_dir(dir)
+        .unwrap()
+        .flatten()
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .filter(|n| n.ends_with(".partial"))
+        .collect()
+}
+
+/// A run killed with -9 while writing leaves `.NAME.PID.partial`; the next
+/// run writing that target removes it and says so.
+#[cfg(target_os = "linux")]
+#[test]
+fn a_partial_file_of_a_killed_run_is_cleaned() {
+    let dir = tempfile::tempdir().unwrap();
+    // No process has this id (Linux's pid_max is at most 2^22).
+    let stale = dir.path().join(".out.xlsx.4000000000.partial");
+    std::fs::write(&stale, b"half a workbook").unwrap();
+    let o = run_demo(dir.path(), "out.xlsx", &[]);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    assert!(!stale.exists());
+    assert!(text(&o).contains("left by an earlier run"), "{}", text(&o));
+    assert!(partial_files(dir.path()).is_empty());
+}
+
+/// Two runs writing one new target at once: exactly one writes it, the
+/// other fails and asks for --force; no partial file is left.
+#[test]
+fn two_runs_writing_one_new_target_do_not_both_succeed() {
+    let dir = tempfile::tempdir().unwrap();
+    let codes: Vec<Option<i32>> = std::thread::scope(|s| {
+        let runs: Vec<_> = (0..2)
+            .map(|_| s.spawn(|| run_demo(dir.path(), "same.xlsx", &[])))
+            .collect();
+        runs.into_iter()
+            .map(|r| {
+                let o = r.join().unwrap();
+                if o.status.code() != Some(0) {
+                    assert!(text(&o).contains("--force"), "{}", text(&o));
+                }
+                o.status.code()
+            })
+            .collect()
+    });
+    assert_eq!(
+        codes.iter().filter(|&&c| c == Some(0)).count(),
+        1,
+        "{codes:?}"
+    );
+    assert!(codes.contains(&Some(2)), "{codes:?}");
+    assert!(partial_files(dir.path()).is_empty());
+}
+
+/// A folder that cannot be written (here /proc, refused even to root) ends in
+/// a clear error naming the target; a folder given as --out is named as one.
+#[test]
+fn an_unwritable_target_ends_in_a_clear_error() {
+    let dir = tempfile::tempdir().unwrap();
+    if Path::new("/proc/self").exists() {
+        let o = run_demo(dir.path(), "/proc/sheaf-result.xlsx", &[]);
+        assert_eq!(o.status.code(), Some(2));
+        assert!(
+            text(&o).contains("cannot write /proc/sheaf-result.xlsx"),
+            "{}",
+            text(&o)
+        );
+    }
+    std::fs::create_dir(dir.path().join("results")).unwrap();
+    for extra in [&[][..], &["--force"][..]] {
+        let o = run_demo(dir.path(), "results", extra);
+        assert_eq!(o.status.code(), Some(2));
+        assert!(text(&o).contains("is a folder"), "{}", text(&o));
     }
 }
