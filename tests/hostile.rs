@@ -388,3 +388,149 @@ fn an_unwritable_target_ends_in_a_clear_error() {
         assert!(text(&o).contains("is a folder"), "{}", text(&o));
     }
 }
+
+/// Runs `sheaf ARGS` with its address space capped at `megabytes`, so an
+/// allocation far beyond the input's size aborts the run instead of passing.
+#[cfg(unix)]
+fn sheaf_within(megabytes: u64, args: &[&str], dir: &Path) -> std::process::Output {
+    let line = format!("ulimit -v {}; exec \"$0\" \"$@\"", megabytes * 1024);
+    Command::new("sh")
+        .arg("-c")
+        .arg(line)
+        .arg(env!("CARGO_BIN_EXE_sheaf"))
+        .args(args)
+        .current_dir(dir)
+        .output()
+        .unwrap()
+}
+
+/// Tiny xlsx files whose cells claim places no sheet has (row 4,000,000,000,
+/// column ZZZZZZ) or, with rows out of order, a dense block of 16,384 x
+/// 1,048,576 cells: each ends in a clear error naming the file and the
+/// place, within a memory cap far below what the claims imply.
+#[cfg(unix)]
+#[test]
+fn cells_beyond_the_sheet_or_scattered_are_refused_early() {
+    let dir = tempfile::tempdir().unwrap();
+    let header = (1, r#"<c r="A1" t="inlineStr"><is><t>x</t></is></c>"#);
+    let cases: [(&str, Vec<(u32, &str)>, &str); 3] = [
+        (
+            "far-row.xlsx",
+            vec![
+                header,
+                (4_000_000_000, r#"<c r="A4000000000"><v>1</v></c>"#),
+            ],
+            "Deliveries!A4000000000",
+        ),
+        (
+            "far-column.xlsx",
+            vec![header, (2, r#"<c r="ZZZZZZ2"><v>1</v></c>"#)],
+            "column 321272406",
+        ),
+        (
+            "scattered.xlsx",
+            vec![
+                header,
+                (1_048_576, r#"<c r="XFD1048576"><v>1</v></c>"#),
+                (2, r#"<c r="A2"><v>1</v></c>"#),
+            ],
+            "Deliveries!A1 to XFD1048576",
+        ),
+    ];
+    for (name, rows, place) in cases {
+        let path = dir.path().join(name);
+        handmade_xlsx(&path, &rows);
+        assert!(std::fs::metadata(&path).unwrap().len() < 4000);
+        for command in ["inspect", "calc"] {
+            let mut args = vec![command, path.to_str().unwrap()];
+            if command == "calc" {
+                args = vec!["calc", "count(x)", "--data", path.to_str().unwrap()];
+            }
+            let o = sheaf_within(1024, &args, dir.path());
+            let said = text(&o);
+            assert_eq!(o.status.code(), Some(2), "{name} {command}: {said}");
+            assert!(
+                said.contains(name) && said.contains(place),
+                "{name}: {said}"
+            );
+        }
+    }
+}
+
+/// An endless input named .csv (a link to /dev/zero) stops at the line
+/// limit with the file and the line named; a device named .xlsx is refused
+/// before it is read.
+#[cfg(target_os = "linux")]
+#[test]
+fn endless_inputs_stop_at_a_limit() {
+    let dir = tempfile::tempdir().unwrap();
+    for name in ["zero.csv", "zero.xlsx"] {
+        std::os::unix::fs::symlink("/dev/zero", dir.path().join(name)).unwrap();
+    }
+    let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .args(["inspect", "zero.csv"])
+        .env("SHEAF_MAX_LINE_BYTES", "1000000")
+        .current_dir(dir.path())
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    assert!(
+        text(&o).contains("zero.csv: line 1 is longer than 1000000 bytes"),
+        "{}",
+        text(&o)
+    );
+    let o = sheaf(&["inspect", "zero.xlsx"], dir.path());
+    assert_eq!(o.status.code(), Some(2));
+    assert!(text(&o).contains("not a regular file"), "{}", text(&o));
+}
+
+/// A minimal ods whose content.xml is `content` as given.
+fn handmade_ods(path: &Path, content: &str) {
+    use zip::write::SimpleFileOptions;
+    let stored = SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
+    let mut zip = zip::ZipWriter::new(std::fs::File::create(path).unwrap());
+    zip.start_file("mimetype", stored).unwrap();
+    zip.write_all(b"application/vnd.oasis.opendocument.spreadsheet")
+        .unwrap();
+    zip.start_file("META-INF/manifest.xml", stored).unwrap();
+    zip.write_all(br#"<?xml version="1.0" encoding="UTF-8"?><manifest:manifest xmlns:manifest="urn:oasis:names:tc:opendocument:xmlns:manifest:1.0"><manifest:file-entry manifest:full-path="/" manifest:media-type="application/vnd.oasis.opendocument.spreadsheet"/><manifest:file-entry manifest:full-path="content.xml" manifest:media-type="text/xml"/></manifest:manifest>"#).unwrap();
+    zip.start_file("content.xml", stored).unwrap();
+    zip.write_all(content.as_bytes()).unwrap();
+    zip.finish().unwrap();
+}
+
+const ODS_HEAD: &str = r#"<?xml version="1.0" encoding="UTF-8"?><office:document-content xmlns:office="urn:oasis:names:tc:opendocument:xmlns:office:1.0" xmlns:table="urn:oasis:names:tc:opendocument:xmlns:table:1.0" xmlns:text="urn:oasis:names:tc:opendocument:xmlns:text:1.0" office:version="1.2"><office:body><office:spreadsheet><table:table table:name="Depots">"#;
+
+/// An ods whose content.xml ends right after a table's opening tag made the
+/// reader spin for ever (calamine 0.38): it is refused at once, in `run`
+/// and `inspect`; the same file completed reads.
+#[test]
+fn an_ods_cut_after_a_table_tag_is_refused_not_spun_on() {
+    let dir = tempfile::tempdir().unwrap();
+    let cut = dir.path().join("cut.ods");
+    handmade_ods(&cut, ODS_HEAD);
+    let whole = dir.path().join("whole.ods");
+    handmade_ods(
+        &whole,
+        &format!(
+            r#"{ODS_HEAD}<table:table-row><table:table-cell office:value-type="string"><text:p>x</text:p></table:table-cell></table:table-row><table:table-row><table:table-cell office:value-type="float" office:value="4"><text:p>4</text:p></table:table-cell></table:table-row></table:table></office:spreadsheet></office:body></office:document-content>"#
+        ),
+    );
+    let started = std::time::Instant::now();
+    for args in [
+        vec!["inspect", "cut.ods"],
+        vec!["calc", "mean(x)", "--data", "cut.ods"],
+    ] {
+        let o = sheaf(&args, dir.path());
+        assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+        assert!(
+            text(&o).contains("cut.ods: content.xml opens 1 <table:table> elements but closes 0"),
+            "{}",
+            text(&o)
+        );
+    }
+    assert!(started.elapsed() < std::time::Duration::from_secs(20));
+    let o = sheaf(&["calc", "mean(x)", "--data", "whole.ods"], dir.path());
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    assert_eq!(String::from_utf8_lossy(&o.stdout).trim(), "4");
+}

@@ -5,6 +5,7 @@ use std::io::Read;
 use std::path::Path;
 
 use super::column::{Column, ColumnBuilder, ColumnKind, MAX_ROWS};
+use super::limits::Bounded;
 use super::source::Hashing;
 use super::table::{Cell, Table, cell_address};
 use super::{LoadError, LoadOptions};
@@ -67,9 +68,9 @@ pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
         head.drain(..3);
     }
     let delimiter = detect_delimiter(&String::from_utf8_lossy(&head));
-    let mut input = std::io::Cursor::new(head).chain(hashing);
+    let mut input = Bounded::new(std::io::Cursor::new(head).chain(hashing), &shown);
     let (sheet, header_row, columns, rows) = read_records(&mut input, delimiter, &shown, options)?;
-    let (_, hashing) = input.into_inner();
+    let (_, hashing) = input.into_inner().into_inner();
     Ok(Table {
         source: hashing.finish(path),
         sheet,

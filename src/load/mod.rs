@@ -5,6 +5,7 @@
 
 mod column;
 mod csv_file;
+mod limits;
 mod sheet_cells;
 mod source;
 mod table;
@@ -93,8 +94,12 @@ fn kind_of(path: &Path) -> Result<FileKind, LoadError> {
 /// Reads any supported file; the kind is taken from its ending.
 pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
     match kind_of(path)? {
-        FileKind::Delimited => csv_file::load(path, options),
+        FileKind::Delimited => {
+            limits::check_file(path, false)?;
+            csv_file::load(path, options)
+        }
         FileKind::Workbook => {
+            limits::check_spreadsheet(path)?;
             let source = SourceInfo::of_file(path).map_err(|e| LoadError::Unreadable {
                 path: path.display().to_string(),
                 reason: e.to_string(),
@@ -108,6 +113,10 @@ pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
 pub fn sheet_names(path: &Path) -> Result<Vec<String>, LoadError> {
     match kind_of(path)? {
         FileKind::Delimited => Ok(vec![csv_file::sheet_name(path)]),
-        FileKind::Workbook => workbook::sheet_names(path),
+        FileKind::Workbook => {
+            limits::check_spreadsheet(path)?;
+            let owned = path.to_path_buf();
+            limits::guarded(path, move || workbook::sheet_names(&owned))
+        }
     }
 }
