@@ -534,3 +534,69 @@ fn an_ods_cut_after_a_table_tag_is_refused_not_spun_on() {
     assert_eq!(o.status.code(), Some(0), "{}", text(&o));
     assert_eq!(String::from_utf8_lossy(&o.stdout).trim(), "4");
 }
+
+/// Inputs found by fuzzing (fuzz/, see its README), kept in tests/hostile/:
+/// each is read by `inspect` and `calc` under a 1 GB memory cap and ends in
+/// exit status 0 or a clear error (2), never a crash, an abort or a hang.
+/// - xls-cells-scattered.xls: a fuzzed demo .xls whose cells span a block
+///   that calamine would allocate as 56 GB at open.
+#[cfg(unix)]
+#[test]
+fn inputs_found_by_fuzzing_end_cleanly() {
+    let dir = root().join("tests/hostile");
+    let mut seen = 0;
+    for entry in std::fs::read_dir(&dir).unwrap().flatten() {
+        let path = entry.path();
+        let shown = path.to_str().unwrap();
+        for args in [
+            vec!["inspect", shown],
+            vec!["calc", "count(weight_kg)", "--data", shown],
+        ] {
+            let o = sheaf_within(1024, &args, &dir);
+            assert!(
+                matches!(o.status.code(), Some(0 | 2)),
+                "{shown}: {:?} {}",
+                o.status,
+                text(&o)
+            );
+            assert!(!text(&o).contains("panicked"), "{}", text(&o));
+        }
+        seen += 1;
+    }
+    assert!(seen >= 1);
+}
+
+/// A recipe saved with a UTF-8 byte-order mark reads like the same recipe
+/// without one; a CSV file with a quote that is never closed is refused
+/// with the line where the quote opened, not read as one long field.
+#[test]
+fn byte_order_marks_and_unclosed_quotes() {
+    let dir = tempfile::tempdir().unwrap();
+    let recipe = "figures \"F\":\n    n = count(weight_kg)\n";
+    write(dir.path(), "plain.sheaf", recipe.as_bytes());
+    write(
+        dir.path(),
+        "marked.sheaf",
+        format!("\u{feff}{recipe}").as_bytes(),
+    );
+    write(dir.path(), "ok.csv", b"weight_kg\n1\n2\n");
+    let mut outputs = Vec::new();
+    for name in ["plain.sheaf", "marked.sheaf"] {
+        let o = sheaf(&["validate", name, "--data", "ok.csv"], dir.path());
+        assert_eq!(o.status.code(), Some(0), "{name}: {}", text(&o));
+        outputs.push(String::from_utf8_lossy(&o.stdout).replace("marked", "plain"));
+    }
+    assert_eq!(outputs[0], outputs[1]);
+    write(
+        dir.path(),
+        "open.csv",
+        b"depot,weight_kg\nNorth,2\n\"South,3\nEast,4\n",
+    );
+    let o = sheaf(&["inspect", "open.csv"], dir.path());
+    assert_eq!(o.status.code(), Some(2));
+    assert!(
+        text(&o).contains("open.csv: the quoted field opened on line 3 is never closed"),
+        "{}",
+        text(&o)
+    );
+}

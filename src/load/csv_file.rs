@@ -68,7 +68,7 @@ pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
         head.drain(..3);
     }
     let delimiter = detect_delimiter(&String::from_utf8_lossy(&head));
-    let mut input = Bounded::new(std::io::Cursor::new(head).chain(hashing), &shown);
+    let mut input = Bounded::new(std::io::Cursor::new(head).chain(hashing), &shown, delimiter);
     let (sheet, header_row, columns, rows) = read_records(&mut input, delimiter, &shown, options)?;
     let (_, hashing) = input.into_inner().into_inner();
     Ok(Table {

@@ -103,12 +103,18 @@ pub fn check_spreadsheet(path: &Path) -> Result<(), LoadError> {
     if ending.eq_ignore_ascii_case("ods") {
         check_ods_content(path)?;
     }
+    if ending.eq_ignore_ascii_case("xls") {
+        let size = std::fs::metadata(path).map(|m| m.len()).unwrap_or(0);
+        super::xls_check::check(path, |cells| dense_allowance(cells, size))?;
+    }
     Ok(())
 }
 
 /// A reader that stops with a clear error at a line longer than the line
-/// limit or a stream longer than the file limit (a device such as
-/// /dev/zero named .csv, or a file of one endless line).
+/// limit, a stream longer than the file limit (a device such as /dev/zero
+/// named .csv, or a file of one endless line), or an end of file inside a
+/// quoted field (the csv reader would take the rest of the file as that
+/// field without a word).
 pub struct Bounded<R> {
     inner: R,
     path: String,
@@ -117,10 +123,39 @@ pub struct Bounded<R> {
     total: u64,
     max_line: u64,
     max_total: u64,
+    delimiter: u8,
+    quote: Quote,
+}
+
+/// Where the reader is in the CSV quoting rules (RFC 4180).
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum Quote {
+    FieldStart,
+    Unquoted,
+    /// Inside a quoted field opened on this line.
+    Quoted(u64),
+    /// A quote inside a quoted field: its end, or the first of a doubled quote.
+    QuoteInQuoted(u64),
+}
+
+impl Quote {
+    fn next(self, byte: u8, delimiter: u8, line: u64) -> Quote {
+        let ends_field = byte == delimiter || byte == b'\n';
+        match self {
+            Quote::FieldStart | Quote::Unquoted if ends_field => Quote::FieldStart,
+            Quote::FieldStart if byte == b'"' => Quote::Quoted(line),
+            Quote::FieldStart | Quote::Unquoted => Quote::Unquoted,
+            Quote::Quoted(at) if byte == b'"' => Quote::QuoteInQuoted(at),
+            Quote::Quoted(at) => Quote::Quoted(at),
+            Quote::QuoteInQuoted(at) if byte == b'"' => Quote::Quoted(at),
+            Quote::QuoteInQuoted(_) if ends_field => Quote::FieldStart,
+            Quote::QuoteInQuoted(_) => Quote::Unquoted,
+        }
+    }
 }
 
 impl<R: Read> Bounded<R> {
-    pub fn new(inner: R, path: &str) -> Self {
+    pub fn new(inner: R, path: &str, delimiter: u8) -> Self {
         Bounded {
             inner,
             path: path.to_string(),
@@ -129,6 +164,8 @@ impl<R: Read> Bounded<R> {
             total: 0,
             max_line: limit("SHEAF_MAX_LINE_BYTES", MAX_LINE_BYTES),
             max_total: limit("SHEAF_MAX_FILE_BYTES", MAX_FILE_BYTES),
+            delimiter,
+            quote: Quote::FieldStart,
         }
     }
 
@@ -144,7 +181,15 @@ impl<R: Read> Bounded<R> {
 impl<R: Read> Read for Bounded<R> {
     fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
         let n = self.inner.read(buf)?;
+        if n == 0 && !buf.is_empty() {
+            if let Quote::Quoted(at) = self.quote {
+                return Err(self.error(format!(
+                    "the quoted field opened on line {at} is never closed (a \" is missing); the rest of the file would be read as that one field"
+                )));
+            }
+        }
         for &byte in &buf[..n] {
+            self.quote = self.quote.next(byte, self.delimiter, self.line);
             if byte == b'\n' {
                 self.line += 1;
                 self.line_bytes = 0;
@@ -408,7 +453,7 @@ mod tests {
     #[test]
     fn endless_lines_stop_at_the_limit() {
         let endless = std::io::repeat(0).take(1 << 30);
-        let mut bounded = Bounded::new(endless, "zero.csv");
+        let mut bounded = Bounded::new(endless, "zero.csv", b',');
         bounded.max_line = 1000;
         let e = std::io::copy(&mut bounded, &mut std::io::sink())
             .unwrap_err()
@@ -417,9 +462,28 @@ mod tests {
             e.contains("zero.csv: line 1 is longer than 1000 bytes"),
             "{e}"
         );
-        let mut lines = Bounded::new(&b"a\nbb\nccc\n"[..], "ok.csv");
+        let mut lines = Bounded::new(&b"a\nbb\nccc\n"[..], "ok.csv", b',');
         lines.max_line = 3;
         assert!(std::io::copy(&mut lines, &mut std::io::sink()).is_ok());
+    }
+
+    fn read_all(text: &[u8]) -> Result<u64, String> {
+        let mut r = Bounded::new(text, "q.csv", b',');
+        std::io::copy(&mut r, &mut std::io::sink()).map_err(|e| e.to_string())
+    }
+
+    #[test]
+    fn an_unclosed_quote_is_named_with_its_line() {
+        assert!(read_all(b"a,b\n\"x, \"\"y\"\"\",2\n\"multi\nline\",3\n").is_ok());
+        assert!(
+            read_all(b"a,b\n5\" pipe,2\n").is_ok(),
+            "a quote inside a field is text"
+        );
+        let e = read_all(b"a,b\n1,2\n\"open,3\n4,5\n").unwrap_err();
+        assert!(
+            e.contains("q.csv: the quoted field opened on line 3 is never closed"),
+            "{e}"
+        );
     }
 
     #[test]

@@ -10,6 +10,7 @@ mod sheet_cells;
 mod source;
 mod table;
 mod workbook;
+mod xls_check;
 
 use std::path::Path;
 
