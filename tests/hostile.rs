@@ -600,3 +600,118 @@ fn byte_order_marks_and_unclosed_quotes() {
         text(&o)
     );
 }
+
+/// Runs `recipe` over `csv` (both written to `dir`) into out.xlsx.
+fn run_recipe(dir: &Path, recipe: &str, csv: &str, extra: &[&str]) -> std::process::Output {
+    write(dir, "r.sheaf", recipe.as_bytes());
+    write(dir, "d.csv", csv.as_bytes());
+    let mut args = vec![
+        "run", "r.sheaf", "--data", "d.csv", "--out", "out.xlsx", "--force",
+    ];
+    args.extend_from_slice(extra);
+    sheaf(&args, dir)
+}
+
+/// A block named `Record` or with apostrophes at its ends gets a sheet name
+/// a spreadsheet accepts, and `--compare` still finds the Record sheet.
+#[test]
+fn block_names_never_break_sheet_names_or_the_record() {
+    let dir = tempfile::tempdir().unwrap();
+    let recipe = "figures \"Record\" per depot:\n    m = mean(x)\nfigures \"'quoted'\":\n    n = count(x)\nfigures \"History\":\n    s = sum(x)\n";
+    let csv = "depot,x\nNorth,1\nNorth,3\nSouth,5\n";
+    let o = run_recipe(dir.path(), recipe, csv, &[]);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    std::fs::rename(dir.path().join("out.xlsx"), dir.path().join("before.xlsx")).unwrap();
+    let o = run_recipe(dir.path(), recipe, csv, &["--compare", "before.xlsx"]);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let out = dir.path().join("out.xlsx");
+    let sheets = calamine::Reader::sheet_names(&calamine::open_workbook_auto(&out).unwrap());
+    for wanted in ["Record 2", "quoted", "History 2", "Changes", "Record"] {
+        assert!(sheets.iter().any(|s| s == wanted), "{wanted}: {sheets:?}");
+    }
+    // The Record sheet holds the recipe's fingerprint, not the block's figures.
+    let record = common::cells(&out, "Record");
+    assert_eq!(record[0][0].to_string(), "recipe fingerprint");
+}
+
+/// Texts longer than the 32,767 characters a cell holds (a title, a check's
+/// name, a group key, a period) are cut with a visible mark, and About says
+/// so; the run does not fail at the end.
+#[test]
+fn texts_longer_than_a_cell_are_cut_with_a_mark() {
+    let dir = tempfile::tempdir().unwrap();
+    let long = "w".repeat(40_000);
+    let recipe = format!(
+        "title \"{long}\"\nperiod \"{long}\"\nfigures \"F\" per depot:\n    m = mean(x)\ncheck \"{long}\" warn: mean(x) > 0\n"
+    );
+    let csv = format!("depot,x\n{long},1\nNorth,3\n");
+    let o = run_recipe(dir.path(), &recipe, &csv, &[]);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let out = dir.path().join("out.xlsx");
+    let mark = "... (cut: a cell holds 32,767 characters)";
+    let figures = common::cells(&out, "F");
+    let cut = figures
+        .iter()
+        .flatten()
+        .map(|c| c.to_string())
+        .find(|t| t.starts_with("www"))
+        .unwrap();
+    assert!(cut.ends_with(mark) && cut.chars().count() == 32_767);
+    let checks = common::cells(&out, "Checks");
+    assert!(
+        checks
+            .iter()
+            .flatten()
+            .any(|c| c.to_string().ends_with(mark))
+    );
+    let about = common::cells(&out, "About");
+    assert!(about[0][0].to_string().ends_with(mark));
+    assert!(
+        about
+            .iter()
+            .flatten()
+            .any(|c| c.to_string().contains("is cut and ends in"))
+    );
+}
+
+/// More missing cells than About lists: the first 100,000 are listed, then
+/// how many more there are.
+#[test]
+fn a_long_list_of_missing_cells_is_capped_with_a_count() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut csv = String::from("x,y\n");
+    for i in 0..100_012 {
+        csv.push_str(&format!("{i},\n"));
+    }
+    let o = run_recipe(dir.path(), "figures \"F\":\n    n = count(y)\n", &csv, &[]);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let about = common::cells(&dir.path().join("out.xlsx"), "About");
+    assert!(about.iter().flatten().any(|c| {
+        c.to_string()
+            .starts_with("... and 12 more cells counted as missing")
+    }),);
+}
+
+/// A panel whose (group, column) rows cannot fit one sheet is refused as
+/// soon as its groups are known, before any figure is computed, with the
+/// block named.
+#[test]
+fn a_panel_larger_than_a_sheet_is_refused_before_the_work() {
+    let dir = tempfile::tempdir().unwrap();
+    let columns: Vec<String> = (0..16).map(|c| format!("c{c}")).collect();
+    let mut csv = format!("key,{}\n", columns.join(","));
+    for i in 0..70_000 {
+        csv.push_str(&format!("k{i}{}\n", ",1".repeat(16)));
+    }
+    let recipe = format!("panel \"Wide\" of {} per key:\n", columns.join(", "));
+    let started = std::time::Instant::now();
+    let o = run_recipe(dir.path(), &recipe, &csv, &[]);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(
+        text(&o).contains("panel \"Wide\" would have 1120000 (group, column) rows"),
+        "{}",
+        text(&o)
+    );
+    assert!(started.elapsed() < std::time::Duration::from_secs(60));
+    assert!(!dir.path().join("out.xlsx").exists());
+}

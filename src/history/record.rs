@@ -11,6 +11,9 @@ use crate::eval::{Block, One, PANEL_LABELS, Results, group_label};
 use crate::recipe::{Recipe, pretty};
 
 pub const RECORD_SHEET: &str = "Record";
+/// Columns from one band of entries on the Record sheet to the next (four
+/// and a blank); a long record continues in the next band.
+pub const RECORD_BAND_WIDTH: u16 = 5;
 /// The block name under which `change(...)` arguments are recorded.
 pub const TERM_BLOCK: &str = "(compared values)";
 
@@ -151,20 +154,23 @@ impl Record {
             });
         }
         let period = Some(cell(1, 1)).filter(|p| !p.is_empty() && p != "(none)");
-        let entries = rows
-            .iter()
-            .skip(3)
-            .filter_map(|row| {
-                let value = match row.get(3)? {
-                    Data::Float(x) => *x,
-                    Data::Int(i) => *i as f64,
-                    _ => return None,
-                };
-                Some(Entry {
-                    block: text(row.first()),
-                    group: text(row.get(1)),
-                    name: text(row.get(2)),
-                    value,
+        let width = rows.iter().map(|r| r.len()).max().unwrap_or(0);
+        let bands = width.div_ceil(RECORD_BAND_WIDTH as usize);
+        let entries = (0..bands)
+            .flat_map(|band| {
+                let left = band * RECORD_BAND_WIDTH as usize;
+                rows.iter().skip(3).filter_map(move |row| {
+                    let value = match row.get(left + 3)? {
+                        Data::Float(x) => *x,
+                        Data::Int(i) => *i as f64,
+                        _ => return None,
+                    };
+                    Some(Entry {
+                        block: text(row.get(left)),
+                        group: text(row.get(left + 1)),
+                        name: text(row.get(left + 2)),
+                        value,
+                    })
                 })
             })
             .collect();

@@ -6,8 +6,9 @@ mod about;
 pub mod atomic;
 mod changes;
 mod charts;
+mod plan;
 mod sheets;
-mod style;
+pub(crate) mod style;
 
 use std::path::Path;
 
@@ -41,6 +42,8 @@ pub enum WriteError {
     WouldOverwriteInput(String),
     #[error("cannot write {path}: {reason}")]
     Io { path: String, reason: String },
+    #[error("the result is too large for a workbook: {0}")]
+    TooLarge(String),
     #[error("cannot build the workbook: {0}")]
     Workbook(#[from] rust_xlsxwriter::XlsxError),
 }
@@ -51,6 +54,7 @@ pub fn workbook_bytes(
     table: &Table,
     run: &RunInfo,
 ) -> Result<Vec<u8>, WriteError> {
+    plan::check(results)?;
     let mut workbook = Workbook::new();
     let mut properties = DocProperties::new().set_title(
         results
