@@ -715,3 +715,81 @@ fn a_panel_larger_than_a_sheet_is_refused_before_the_work() {
     assert!(started.elapsed() < std::time::Duration::from_secs(60));
     assert!(!dir.path().join("out.xlsx").exists());
 }
+
+/// `calc` over one CSV column, each printed value.
+fn calc_values(dir: &Path, expression: &str, values: &[&str]) -> Vec<String> {
+    write(
+        dir,
+        "v.csv",
+        format!("x\n{}\n", values.join("\n")).as_bytes(),
+    );
+    let o = sheaf(&["calc", expression, "--data", "v.csv"], dir);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    String::from_utf8_lossy(&o.stdout)
+        .lines()
+        .map(str::to_string)
+        .collect()
+}
+
+/// Moments at the doubles' extremes, against exact rationals: the data are
+/// integers, so the mean of {1e15, 1, -1e15} is exactly 1/3 and of {1e17,
+/// -1e17, 5} exactly 5/3, and 1.0 / 3.0 and 5.0 / 3.0 are the nearest
+/// doubles (IEEE 754 division rounds correctly). The sd of {x, -x} is
+/// exactly sqrt(2) |x|; for x = 1e154 the fourth powers overflow, which once
+/// made it 0.
+#[test]
+fn extreme_values_give_exact_moments() {
+    let dir = tempfile::tempdir().unwrap();
+    let mean = |values: &[&str]| {
+        calc_values(dir.path(), "mean(x)", values)[0]
+            .parse::<f64>()
+            .unwrap()
+    };
+    assert_eq!(mean(&["1e15", "1", "-1e15"]), 1.0 / 3.0);
+    assert_eq!(mean(&["1e17", "-1e17", "5"]), 5.0 / 3.0);
+    let sd: f64 = calc_values(dir.path(), "sd(x)", &["1e154", "-1e154"])[0]
+        .parse()
+        .unwrap();
+    let exact = std::f64::consts::SQRT_2 * 1e154;
+    assert!((sd - exact).abs() <= 2.0 * f64::EPSILON * exact, "{sd}");
+    // The variance, 2e308, is beyond the doubles: it says so instead of a number.
+    let variance = calc_values(dir.path(), "variance(x)", &["1e154", "-1e154"]);
+    assert!(
+        variance[0].contains("beyond the largest number"),
+        "{variance:?}"
+    );
+}
+
+/// A recipe of 10^4 nesting levels, or a 120,000-row CSV file given as the
+/// recipe: the diagnostics come in time proportional to the recipe's size
+/// (once 57 s for 30,000 rows), and only the first 20 are printed.
+#[test]
+fn diagnostics_of_huge_bad_recipes_are_quick_and_capped() {
+    let dir = tempfile::tempdir().unwrap();
+    let nested: String = (0..10_000)
+        .map(|i| format!("{}figures \"x{i}\":\n", " ".repeat(i % 64 + i / 64)))
+        .collect();
+    let mut rows = String::from("depot,status,weight_kg\n");
+    for i in 0..120_000 {
+        rows.push_str(&format!("North,delivered,{i}.5\n"));
+    }
+    write(dir.path(), "d.csv", b"weight_kg\n1\n");
+    for (name, text_of) in [("nested.sheaf", nested), ("rows.sheaf", rows)] {
+        write(dir.path(), name, text_of.as_bytes());
+        let started = std::time::Instant::now();
+        let o = sheaf(&["validate", name], dir.path());
+        let took = started.elapsed();
+        assert_eq!(o.status.code(), Some(2));
+        let said = text(&o);
+        assert!(
+            said.len() < 20_000,
+            "{name}: {} bytes of diagnostics",
+            said.len()
+        );
+        assert!(said.contains("more problems in"), "{name}: {said}");
+        assert!(
+            took < std::time::Duration::from_secs(30),
+            "{name}: {took:?}"
+        );
+    }
+}
