@@ -793,3 +793,25 @@ fn diagnostics_of_huge_bad_recipes_are_quick_and_capped() {
         );
     }
 }
+
+/// A tiny ods whose one row of values repeats across 16,384 columns and
+/// thousands of rows: calamine would expand it to about 10^8 cells (3 GB);
+/// it is refused from its repeat counts before it is read.
+#[cfg(unix)]
+#[test]
+fn an_ods_repeating_its_cells_into_a_huge_block_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    handmade_ods(
+        &dir.path().join("repeats.ods"),
+        &format!(
+            r#"{ODS_HEAD}<table:table-row><table:table-cell office:value-type="string"><text:p>x</text:p></table:table-cell></table:table-row><table:table-row table:number-rows-repeated="6000"><table:table-cell table:number-columns-repeated="16384" office:value-type="float" office:value="4"><text:p>4</text:p></table:table-cell></table:table-row></table:table></office:spreadsheet></office:body></office:document-content>"#
+        ),
+    );
+    let o = sheaf_within(1024, &["inspect", "repeats.ods"], dir.path());
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(
+        text(&o).contains("repeats.ods") && text(&o).contains("repeat"),
+        "{}",
+        text(&o)
+    );
+}

@@ -95,17 +95,19 @@ pub fn check_file(path: &Path, regular_only: bool) -> Result<(), LoadError> {
     Ok(())
 }
 
-/// The checks before a spreadsheet is opened: a regular file of a
-/// readable size and, for ods, a content.xml that closes what it opens.
+/// The checks before a spreadsheet is opened: a regular file of a readable
+/// size and, for ods and xls, no claim that makes calamine allocate without
+/// bound or read for ever.
 pub fn check_spreadsheet(path: &Path) -> Result<(), LoadError> {
     check_file(path, true)?;
     let ending = path.extension().and_then(|e| e.to_str()).unwrap_or("");
+    let size = std::fs::metadata(path).map(|m| m.len()).unwrap_or(0);
+    let allowance = |cells| dense_allowance(cells, size);
     if ending.eq_ignore_ascii_case("ods") {
-        check_ods_content(path)?;
+        super::ods_check::check(path, allowance)?;
     }
     if ending.eq_ignore_ascii_case("xls") {
-        let size = std::fs::metadata(path).map(|m| m.len()).unwrap_or(0);
-        super::xls_check::check(path, |cells| dense_allowance(cells, size))?;
+        super::xls_check::check(path, allowance)?;
     }
     Ok(())
 }
@@ -268,100 +270,6 @@ fn dense_allowance(cells: u64, file_bytes: u64) -> u64 {
     (8 * cells).max(3 * file_bytes).max(1 << 20)
 }
 
-/// An ods whose content.xml ends inside a table or a row makes calamine
-/// 0.38 read for ever (it waits for the closing tag past the end of the
-/// file); such a file is refused before calamine reads it. A file whose
-/// counts of opening and closing tags match ends each table it starts.
-fn check_ods_content(path: &Path) -> Result<(), LoadError> {
-    let shown = path.display().to_string();
-    let Ok(file) = std::fs::File::open(path) else {
-        return Ok(());
-    };
-    let Ok(mut archive) = zip::ZipArchive::new(file) else {
-        return Ok(()); // not a zip: calamine says so
-    };
-    let Ok(content) = archive.by_name("content.xml") else {
-        return Ok(());
-    };
-    let mut counts = TagCounts::default();
-    let mut reader = std::io::BufReader::new(content);
-    let mut chunk = vec![0u8; 1 << 16];
-    let mut carry: Vec<u8> = Vec::new();
-    loop {
-        let n = match reader.read(&mut chunk) {
-            Ok(0) | Err(_) => break, // a damaged stream: calamine reports it
-            Ok(n) => n,
-        };
-        carry.extend_from_slice(&chunk[..n]);
-        let done = counts.scan(&carry);
-        carry.drain(..done);
-    }
-    for (name, open, close) in [
-        ("table:table", counts.tables.0, counts.tables.1),
-        ("table:table-row", counts.rows.0, counts.rows.1),
-    ] {
-        if open != close {
-            return Err(refused(
-                &shown,
-                format!(
-                    "content.xml opens {open} <{name}> elements but closes {close}: the file is cut short or damaged; open and save it again, or export it as CSV"
-                ),
-            ));
-        }
-    }
-    Ok(())
-}
-
-/// Opening and closing tags of ods tables and rows (self-closing ones count
-/// as both).
-#[derive(Default)]
-struct TagCounts {
-    tables: (u64, u64),
-    rows: (u64, u64),
-}
-
-impl TagCounts {
-    /// Counts the complete tags in `text`; returns how many bytes were
-    /// consumed (an unfinished tag at the end waits for the next chunk).
-    fn scan(&mut self, text: &[u8]) -> usize {
-        let mut at = 0;
-        while let Some(start) = text[at..].iter().position(|&b| b == b'<') {
-            let start = at + start;
-            let Some(end) = text[start..].iter().position(|&b| b == b'>') else {
-                return start;
-            };
-            let tag = &text[start + 1..start + end];
-            self.count(tag);
-            at = start + end + 1;
-        }
-        text.len()
-    }
-
-    fn count(&mut self, tag: &[u8]) {
-        let (closing, body) = match tag.strip_prefix(b"/") {
-            Some(rest) => (true, rest),
-            None => (false, tag),
-        };
-        let name_end = body
-            .iter()
-            .position(|b| b.is_ascii_whitespace() || *b == b'/')
-            .unwrap_or(body.len());
-        let counter = match &body[..name_end] {
-            b"table:table" => &mut self.tables,
-            b"table:table-row" => &mut self.rows,
-            _ => return,
-        };
-        if closing {
-            counter.1 += 1;
-        } else {
-            counter.0 += 1;
-            if tag.ends_with(b"/") {
-                counter.1 += 1;
-            }
-        }
-    }
-}
-
 /// Longest a spreadsheet reader may take, unless `SHEAF_READ_SECONDS` says
 /// otherwise: 2 minutes and 1 second more per 100 KB of file.
 fn time_limit(path: &Path) -> Duration {
@@ -484,20 +392,6 @@ mod tests {
             e.contains("q.csv: the quoted field opened on line 3 is never closed"),
             "{e}"
         );
-    }
-
-    #[test]
-    fn tags_are_counted_across_chunks() {
-        let mut counts = TagCounts::default();
-        let text =
-            b"<table:table a=\"1\"><table:table-row/><table:table-row><x/></table:table-row>";
-        let (first, second) = text.split_at(25);
-        let mut carry = first.to_vec();
-        let done = counts.scan(&carry);
-        carry.drain(..done);
-        carry.extend_from_slice(second);
-        counts.scan(&carry);
-        assert_eq!((counts.tables, counts.rows), ((1, 0), (2, 2)));
     }
 
     #[test]

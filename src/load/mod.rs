@@ -6,6 +6,7 @@
 mod column;
 mod csv_file;
 mod limits;
+mod ods_check;
 mod sheet_cells;
 mod source;
 mod table;
