@@ -815,3 +815,28 @@ fn an_ods_repeating_its_cells_into_a_huge_block_is_refused() {
         text(&o)
     );
 }
+
+/// The demo .xls with its DIMENSIONS record claiming rows 1000 to 240 (a
+/// range ending before it starts): calamine would reserve about 2^32 x 6
+/// cells (about 1 TB) at open. It is refused, naming the file, within a
+/// memory cap.
+#[cfg(unix)]
+#[test]
+fn an_xls_range_ending_before_it_starts_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut bytes = std::fs::read(root().join("tests/fixtures/depot-2026-10.xls")).unwrap();
+    // The record: type 0x0200, 14 bytes: first row, last row + 1 (u32), first and last column + 1 (u16).
+    let at = bytes
+        .windows(4)
+        .position(|w| w == b"\x00\x02\x0e\x00")
+        .unwrap();
+    bytes[at + 4..at + 8].copy_from_slice(&1000u32.to_le_bytes());
+    write(dir.path(), "backwards.xls", &bytes);
+    let o = sheaf_within(1024, &["inspect", "backwards.xls"], dir.path());
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(
+        text(&o).contains("backwards.xls") && text(&o).contains("claims a range of"),
+        "{}",
+        text(&o)
+    );
+}
