@@ -413,7 +413,9 @@ fn sheaf_within(megabytes: u64, args: &[&str], dir: &Path) -> std::process::Outp
 fn cells_beyond_the_sheet_or_scattered_are_refused_early() {
     let dir = tempfile::tempdir().unwrap();
     let header = (1, r#"<c r="A1" t="inlineStr"><is><t>x</t></is></c>"#);
-    let cases: [(&str, Vec<(u32, &str)>, &str); 3] = [
+    // (file name, sheet rows as (row number, cells), the place the error names)
+    type Case<'a> = (&'a str, Vec<(u32, &'a str)>, &'a str);
+    let cases: [Case; 3] = [
         (
             "far-row.xlsx",
             vec![

@@ -137,7 +137,7 @@ enum Quote {
     /// Inside a quoted field opened on this line.
     Quoted(u64),
     /// A quote inside a quoted field: its end, or the first of a doubled quote.
-    QuoteInQuoted(u64),
+    ClosingOrDoubled(u64),
 }
 
 impl Quote {
@@ -147,11 +147,11 @@ impl Quote {
             Quote::FieldStart | Quote::Unquoted if ends_field => Quote::FieldStart,
             Quote::FieldStart if byte == b'"' => Quote::Quoted(line),
             Quote::FieldStart | Quote::Unquoted => Quote::Unquoted,
-            Quote::Quoted(at) if byte == b'"' => Quote::QuoteInQuoted(at),
+            Quote::Quoted(at) if byte == b'"' => Quote::ClosingOrDoubled(at),
             Quote::Quoted(at) => Quote::Quoted(at),
-            Quote::QuoteInQuoted(at) if byte == b'"' => Quote::Quoted(at),
-            Quote::QuoteInQuoted(_) if ends_field => Quote::FieldStart,
-            Quote::QuoteInQuoted(_) => Quote::Unquoted,
+            Quote::ClosingOrDoubled(at) if byte == b'"' => Quote::Quoted(at),
+            Quote::ClosingOrDoubled(_) if ends_field => Quote::FieldStart,
+            Quote::ClosingOrDoubled(_) => Quote::Unquoted,
         }
     }
 }
@@ -183,12 +183,13 @@ impl<R: Read> Bounded<R> {
 impl<R: Read> Read for Bounded<R> {
     fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
         let n = self.inner.read(buf)?;
-        if n == 0 && !buf.is_empty() {
-            if let Quote::Quoted(at) = self.quote {
-                return Err(self.error(format!(
-                    "the quoted field opened on line {at} is never closed (a \" is missing); the rest of the file would be read as that one field"
-                )));
-            }
+        if n == 0
+            && !buf.is_empty()
+            && let Quote::Quoted(at) = self.quote
+        {
+            return Err(self.error(format!(
+                "the quoted field opened on line {at} is never closed (a \" is missing); the rest of the file would be read as that one field"
+            )));
         }
         for &byte in &buf[..n] {
             self.quote = self.quote.next(byte, self.delimiter, self.line);
@@ -254,8 +255,8 @@ pub fn check_xlsx_range(path: &Path, sheet: &str) -> Result<(), LoadError> {
         return Err(refused(
             &shown,
             format!(
-                "sheet \"{sheet}\" has its {cells} cells spread over {} to {} ({dense} cells as a block) and its rows out of order; sheaf reads such a sheet as one block, which would need far more memory than its data. Open and save the file again (which puts the rows in order), or export it as CSV",
-                format!("{sheet}!{}", cell_address(low.1, low.0 as usize + 1)),
+                "sheet \"{sheet}\" has its {cells} cells spread over {sheet}!{} to {} ({dense} cells as a block) and its rows out of order; sheaf reads such a sheet as one block, which would need far more memory than its data. Open and save the file again (which puts the rows in order), or export it as CSV",
+                cell_address(low.1, low.0 as usize + 1),
                 cell_address(high.1, high.0 as usize + 1)
             ),
         ));

@@ -127,13 +127,14 @@ fn remove_stale_partials(target: &Path) {
         else {
             continue;
         };
-        if pid != std::process::id() && !process_is_running(pid, &entry.path()) {
-            if std::fs::remove_file(entry.path()).is_ok() {
-                eprintln!(
-                    "note: removed {}, left by an earlier run (process {pid}) that stopped while writing",
-                    entry.path().display()
-                );
-            }
+        if pid != std::process::id()
+            && !process_is_running(pid, &entry.path())
+            && std::fs::remove_file(entry.path()).is_ok()
+        {
+            eprintln!(
+                "note: removed {}, left by an earlier run (process {pid}) that stopped while writing",
+                entry.path().display()
+            );
         }
     }
 }
@@ -158,10 +159,10 @@ fn process_is_running(_pid: u32, partial: &Path) -> bool {
 /// Makes the rename itself durable (best effort: not every system can sync
 /// a folder).
 fn sync_folder(target: &Path) {
-    if let Some(folder) = target.parent().filter(|p| !p.as_os_str().is_empty()) {
-        if let Ok(f) = File::open(folder) {
-            let _ = f.sync_all();
-        }
+    if let Some(folder) = target.parent().filter(|p| !p.as_os_str().is_empty())
+        && let Ok(f) = File::open(folder)
+    {
+        let _ = f.sync_all();
     }
 }
 
