@@ -147,7 +147,7 @@ pub const MAX_GROUPS: usize = 100_000;
 
 /// Most rows of one block's table: a sheet's 1,048,576 rows less the title,
 /// note and header above it. A panel has one row per (group, column).
-pub const MAX_SHEET_ENTRIES: usize = 1_048_576 - 16;
+pub const MAX_SHEET_ENTRIES: usize = crate::load::MAX_SHEET_ROWS as usize - 16;
 
 #[derive(Debug, thiserror::Error)]
 pub enum EvalError {

@@ -18,8 +18,9 @@ use calamine::{DataRef, Xlsx};
 use super::LoadError;
 use super::table::cell_address;
 
-/// The last row and column a spreadsheet can hold (xlsx and ods: 1,048,576
-/// rows by 16,384 columns, XFD); cells beyond them cannot be real.
+/// The rows and columns a spreadsheet sheet holds (xlsx and ods: 1,048,576
+/// rows by 16,384 columns, XFD): cells beyond them cannot be real, and a
+/// result sheet cannot be longer.
 pub const MAX_SHEET_ROWS: u32 = 1 << 20;
 pub const MAX_SHEET_COLUMNS: u32 = 1 << 14;
 

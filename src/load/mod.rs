@@ -16,6 +16,7 @@ mod xls_check;
 use std::path::Path;
 
 pub use column::{CellIssue, Column, ColumnBuilder, ColumnKind, IssueKind, MAX_ROWS};
+pub use limits::{MAX_SHEET_COLUMNS, MAX_SHEET_ROWS};
 pub use source::SourceInfo;
 pub use table::{Cell, Table, column_letters, quote_sheet as table_sheet_ref};
 

@@ -87,7 +87,7 @@ pub fn record(
 
 /// Rows of entries in one band of the Record sheet: a sheet's 1,048,576 rows
 /// less the three above the entries.
-pub const RECORD_BAND_ROWS: u32 = 1_048_576 - 3;
+pub const RECORD_BAND_ROWS: u32 = crate::load::MAX_SHEET_ROWS - 3;
 
 /// The entries in bands of four columns (block, group, figure, value) side
 /// by side, a blank column between them, `band_rows` entries each: so the
@@ -99,7 +99,7 @@ fn record_entries(
     band_rows: u32,
 ) -> Result<(), XlsxError> {
     let bands = entries.len().div_ceil(band_rows as usize).max(1);
-    if bands * RECORD_BAND_WIDTH as usize > 16_384 {
+    if bands * RECORD_BAND_WIDTH as usize > crate::load::MAX_SHEET_COLUMNS as usize {
         return Err(XlsxError::ParameterError(format!(
             "{} figures are more than the Record sheet holds",
             entries.len()
