@@ -6,6 +6,9 @@ use std::path::{Path, PathBuf};
 use std::process::Command;
 
 use proptest::prelude::*;
+
+mod common;
+use common::{root, sheaf, text};
 use sheaf::load::{self, LoadOptions};
 
 fn demo() -> Vec<u8> {
@@ -316,4 +319,549 @@ fn a_file_of_unknown_type_is_named_with_the_types_sheaf_reads() {
             assert!(e.contains(name) && e.contains("sheaf reads .xlsx"), "{e}");
         }
     }
+}
+
+/// The demo recipe over the demo month, written to `out` (relative to `dir`).
+fn run_demo(dir: &Path, out: &str, extra: &[&str]) -> std::process::Output {
+    let recipe = root().join("workbooks/depot-monthly.sheaf");
+    let data = root().join("workbooks/depot-2026-10.xlsx");
+    let mut args = vec![
+        "run",
+        recipe.to_str().unwrap(),
+        "--data",
+        data.to_str().unwrap(),
+        "--out",
+        out,
+    ];
+    args.extend_from_slice(extra);
+    sheaf(&args, dir)
+}
+
+fn partial_files(dir: &Path) -> Vec<String> {
+    std::fs::read_dir(dir)
+        .unwrap()
+        .flatten()
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .filter(|n| n.ends_with(".partial"))
+        .collect()
+}
+
+/// A run killed with -9 while writing leaves `.NAME.PID.partial`; the next
+/// run writing that target removes it and says so.
+#[cfg(target_os = "linux")]
+#[test]
+fn a_partial_file_of_a_killed_run_is_cleaned() {
+    let dir = tempfile::tempdir().unwrap();
+    // No process has this id (Linux's pid_max is at most 2^22).
+    let stale = dir.path().join(".out.xlsx.4000000000.partial");
+    std::fs::write(&stale, b"half a workbook").unwrap();
+    let o = run_demo(dir.path(), "out.xlsx", &[]);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    assert!(!stale.exists());
+    assert!(text(&o).contains("left by an earlier run"), "{}", text(&o));
+    assert!(partial_files(dir.path()).is_empty());
+}
+
+/// Two runs writing one new target at once: exactly one writes it, the
+/// other fails and asks for --force; no partial file is left.
+#[test]
+fn two_runs_writing_one_new_target_do_not_both_succeed() {
+    let dir = tempfile::tempdir().unwrap();
+    let codes: Vec<Option<i32>> = std::thread::scope(|s| {
+        let runs: Vec<_> = (0..2)
+            .map(|_| s.spawn(|| run_demo(dir.path(), "same.xlsx", &[])))
+            .collect();
+        runs.into_iter()
+            .map(|r| {
+                let o = r.join().unwrap();
+                if o.status.code() != Some(0) {
+                    assert!(text(&o).contains("--force"), "{}", text(&o));
+                }
+                o.status.code()
+            })
+            .collect()
+    });
+    assert_eq!(
+        codes.iter().filter(|&&c| c == Some(0)).count(),
+        1,
+        "{codes:?}"
+    );
+    assert!(codes.contains(&Some(2)), "{codes:?}");
+    assert!(partial_files(dir.path()).is_empty());
+}
+
+/// A folder that cannot be written (here /proc, refused even to root) ends in
+/// a clear error naming the target; a folder given as --out is named as one.
+#[test]
+fn an_unwritable_target_ends_in_a_clear_error() {
+    let dir = tempfile::tempdir().unwrap();
+    if Path::new("/proc/self").exists() {
+        let o = run_demo(dir.path(), "/proc/sheaf-result.xlsx", &[]);
+        assert_eq!(o.status.code(), Some(2));
+        assert!(
+            text(&o).contains("cannot write /proc/sheaf-result.xlsx"),
+            "{}",
+            text(&o)
+        );
+    }
+    std::fs::create_dir(dir.path().join("results")).unwrap();
+    for extra in [&[][..], &["--force"][..]] {
+        let o = run_demo(dir.path(), "results", extra);
+        assert_eq!(o.status.code(), Some(2));
+        assert!(text(&o).contains("is a folder"), "{}", text(&o));
+    }
+}
+
+/// Runs `sheaf ARGS` with its address space capped at `megabytes`, so an
+/// allocation far beyond the input's size aborts the run instead of passing.
+#[cfg(unix)]
+fn sheaf_within(megabytes: u64, args: &[&str], dir: &Path) -> std::process::Output {
+    let line = format!("ulimit -v {}; exec \"$0\" \"$@\"", megabytes * 1024);
+    Command::new("sh")
+        .arg("-c")
+        .arg(line)
+        .arg(env!("CARGO_BIN_EXE_sheaf"))
+        .args(args)
+        .current_dir(dir)
+        .output()
+        .unwrap()
+}
+
+/// Tiny xlsx files whose cells claim places no sheet has (row 4,000,000,000,
+/// column ZZZZZZ) or, with rows out of order, a dense block of 16,384 x
+/// 1,048,576 cells: each ends in a clear error naming the file and the
+/// place, within a memory cap far below what the claims imply.
+#[cfg(unix)]
+#[test]
+fn cells_beyond_the_sheet_or_scattered_are_refused_early() {
+    let dir = tempfile::tempdir().unwrap();
+    let header = (1, r#"<c r="A1" t="inlineStr"><is><t>x</t></is></c>"#);
+    // (file name, sheet rows as (row number, cells), the place the error names)
+    type Case<'a> = (&'a str, Vec<(u32, &'a str)>, &'a str);
+    let cases: [Case; 3] = [
+        (
+            "far-row.xlsx",
+            vec![
+                header,
+                (4_000_000_000, r#"<c r="A4000000000"><v>1</v></c>"#),
+            ],
+            "Deliveries!A4000000000",
+        ),
+        (
+            "far-column.xlsx",
+            vec![header, (2, r#"<c r="ZZZZZZ2"><v>1</v></c>"#)],
+            "column 321272406",
+        ),
+        (
+            "scattered.xlsx",
+            vec![
+                header,
+                (1_048_576, r#"<c r="XFD1048576"><v>1</v></c>"#),
+                (2, r#"<c r="A2"><v>1</v></c>"#),
+            ],
+            "Deliveries!A1 to XFD1048576",
+        ),
+    ];
+    for (name, rows, place) in cases {
+        let path = dir.path().join(name);
+        handmade_xlsx(&path, &rows);
+        assert!(std::fs::metadata(&path).unwrap().len() < 4000);
+        for command in ["inspect", "calc"] {
+            let mut args = vec![command, path.to_str().unwrap()];
+            if command == "calc" {
+                args = vec!["calc", "count(x)", "--data", path.to_str().unwrap()];
+            }
+            let o = sheaf_within(1024, &args, dir.path());
+            let said = text(&o);
+            assert_eq!(o.status.code(), Some(2), "{name} {command}: {said}");
+            assert!(
+                said.contains(name) && said.contains(place),
+                "{name}: {said}"
+            );
+        }
+    }
+}
+
+/// An endless input named .csv (a link to /dev/zero) stops at the line
+/// limit with the file and the line named; a device named .xlsx is refused
+/// before it is read.
+#[cfg(target_os = "linux")]
+#[test]
+fn endless_inputs_stop_at_a_limit() {
+    let dir = tempfile::tempdir().unwrap();
+    for name in ["zero.csv", "zero.xlsx"] {
+        std::os::unix::fs::symlink("/dev/zero", dir.path().join(name)).unwrap();
+    }
+    let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .args(["inspect", "zero.csv"])
+        .env("SHEAF_MAX_LINE_BYTES", "1000000")
+        .current_dir(dir.path())
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    assert!(
+        text(&o).contains("zero.csv: line 1 is longer than 1000000 bytes"),
+        "{}",
+        text(&o)
+    );
+    let o = sheaf(&["inspect", "zero.xlsx"], dir.path());
+    assert_eq!(o.status.code(), Some(2));
+    assert!(text(&o).contains("not a regular file"), "{}", text(&o));
+}
+
+/// A minimal ods whose content.xml is `content` as given.
+fn handmade_ods(path: &Path, content: &str) {
+    use zip::write::SimpleFileOptions;
+    let stored = SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
+    let mut zip = zip::ZipWriter::new(std::fs::File::create(path).unwrap());
+    zip.start_file("mimetype", stored).unwrap();
+    zip.write_all(b"application/vnd.oasis.opendocument.spreadsheet")
+        .unwrap();
+    zip.start_file("META-INF/manifest.xml", stored).unwrap();
+    zip.write_all(br#"<?xml version="1.0" encoding="UTF-8"?><manifest:manifest xmlns:manifest="urn:oasis:names:tc:opendocument:xmlns:manifest:1.0"><manifest:file-entry manifest:full-path="/" manifest:media-type="application/vnd.oasis.opendocument.spreadsheet"/><manifest:file-entry manifest:full-path="content.xml" manifest:media-type="text/xml"/></manifest:manifest>"#).unwrap();
+    zip.start_file("content.xml", stored).unwrap();
+    zip.write_all(content.as_bytes()).unwrap();
+    zip.finish().unwrap();
+}
+
+const ODS_HEAD: &str = r#"<?xml version="1.0" encoding="UTF-8"?><office:document-content xmlns:office="urn:oasis:names:tc:opendocument:xmlns:office:1.0" xmlns:table="urn:oasis:names:tc:opendocument:xmlns:table:1.0" xmlns:text="urn:oasis:names:tc:opendocument:xmlns:text:1.0" office:version="1.2"><office:body><office:spreadsheet><table:table table:name="Depots">"#;
+
+/// An ods whose content.xml ends right after a table's opening tag made the
+/// reader spin for ever (calamine 0.38): it is refused at once, in `run`
+/// and `inspect`; the same file completed reads.
+#[test]
+fn an_ods_cut_after_a_table_tag_is_refused_not_spun_on() {
+    let dir = tempfile::tempdir().unwrap();
+    let cut = dir.path().join("cut.ods");
+    handmade_ods(&cut, ODS_HEAD);
+    let whole = dir.path().join("whole.ods");
+    handmade_ods(
+        &whole,
+        &format!(
+            r#"{ODS_HEAD}<table:table-row><table:table-cell office:value-type="string"><text:p>x</text:p></table:table-cell></table:table-row><table:table-row><table:table-cell office:value-type="float" office:value="4"><text:p>4</text:p></table:table-cell></table:table-row></table:table></office:spreadsheet></office:body></office:document-content>"#
+        ),
+    );
+    let started = std::time::Instant::now();
+    for args in [
+        vec!["inspect", "cut.ods"],
+        vec!["calc", "mean(x)", "--data", "cut.ods"],
+    ] {
+        let o = sheaf(&args, dir.path());
+        assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+        assert!(
+            text(&o).contains("cut.ods: content.xml opens 1 <table:table> elements but closes 0"),
+            "{}",
+            text(&o)
+        );
+    }
+    assert!(started.elapsed() < std::time::Duration::from_secs(20));
+    let o = sheaf(&["calc", "mean(x)", "--data", "whole.ods"], dir.path());
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    assert_eq!(String::from_utf8_lossy(&o.stdout).trim(), "4");
+}
+
+/// Inputs found by fuzzing (fuzz/, see its README), kept in tests/hostile/:
+/// each is read by `inspect` and `calc` under a 1 GB memory cap and ends in
+/// exit status 0 or a clear error (2), never a crash, an abort or a hang.
+/// - xls-cells-scattered.xls: a fuzzed demo .xls whose cells span a block
+///   that calamine would allocate as 56 GB at open.
+#[cfg(unix)]
+#[test]
+fn inputs_found_by_fuzzing_end_cleanly() {
+    let dir = root().join("tests/hostile");
+    let mut seen = 0;
+    for entry in std::fs::read_dir(&dir).unwrap().flatten() {
+        let path = entry.path();
+        let shown = path.to_str().unwrap();
+        for args in [
+            vec!["inspect", shown],
+            vec!["calc", "count(weight_kg)", "--data", shown],
+        ] {
+            let o = sheaf_within(1024, &args, &dir);
+            assert!(
+                matches!(o.status.code(), Some(0 | 2)),
+                "{shown}: {:?} {}",
+                o.status,
+                text(&o)
+            );
+            assert!(!text(&o).contains("panicked"), "{}", text(&o));
+        }
+        seen += 1;
+    }
+    assert!(seen >= 1);
+}
+
+/// A recipe saved with a UTF-8 byte-order mark reads like the same recipe
+/// without one; a CSV file with a quote that is never closed is refused
+/// with the line where the quote opened, not read as one long field.
+#[test]
+fn byte_order_marks_and_unclosed_quotes() {
+    let dir = tempfile::tempdir().unwrap();
+    let recipe = "figures \"F\":\n    n = count(weight_kg)\n";
+    write(dir.path(), "plain.sheaf", recipe.as_bytes());
+    write(
+        dir.path(),
+        "marked.sheaf",
+        format!("\u{feff}{recipe}").as_bytes(),
+    );
+    write(dir.path(), "ok.csv", b"weight_kg\n1\n2\n");
+    let mut outputs = Vec::new();
+    for name in ["plain.sheaf", "marked.sheaf"] {
+        let o = sheaf(&["validate", name, "--data", "ok.csv"], dir.path());
+        assert_eq!(o.status.code(), Some(0), "{name}: {}", text(&o));
+        outputs.push(String::from_utf8_lossy(&o.stdout).replace("marked", "plain"));
+    }
+    assert_eq!(outputs[0], outputs[1]);
+    write(
+        dir.path(),
+        "open.csv",
+        b"depot,weight_kg\nNorth,2\n\"South,3\nEast,4\n",
+    );
+    let o = sheaf(&["inspect", "open.csv"], dir.path());
+    assert_eq!(o.status.code(), Some(2));
+    assert!(
+        text(&o).contains("open.csv: the quoted field opened on line 3 is never closed"),
+        "{}",
+        text(&o)
+    );
+}
+
+/// Runs `recipe` over `csv` (both written to `dir`) into out.xlsx.
+fn run_recipe(dir: &Path, recipe: &str, csv: &str, extra: &[&str]) -> std::process::Output {
+    write(dir, "r.sheaf", recipe.as_bytes());
+    write(dir, "d.csv", csv.as_bytes());
+    let mut args = vec![
+        "run", "r.sheaf", "--data", "d.csv", "--out", "out.xlsx", "--force",
+    ];
+    args.extend_from_slice(extra);
+    sheaf(&args, dir)
+}
+
+/// A block named `Record` or with apostrophes at its ends gets a sheet name
+/// a spreadsheet accepts, and `--compare` still finds the Record sheet.
+#[test]
+fn block_names_never_break_sheet_names_or_the_record() {
+    let dir = tempfile::tempdir().unwrap();
+    let recipe = "figures \"Record\" per depot:\n    m = mean(x)\nfigures \"'quoted'\":\n    n = count(x)\nfigures \"History\":\n    s = sum(x)\n";
+    let csv = "depot,x\nNorth,1\nNorth,3\nSouth,5\n";
+    let o = run_recipe(dir.path(), recipe, csv, &[]);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    std::fs::rename(dir.path().join("out.xlsx"), dir.path().join("before.xlsx")).unwrap();
+    let o = run_recipe(dir.path(), recipe, csv, &["--compare", "before.xlsx"]);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let out = dir.path().join("out.xlsx");
+    let sheets = calamine::Reader::sheet_names(&calamine::open_workbook_auto(&out).unwrap());
+    for wanted in ["Record 2", "quoted", "History 2", "Changes", "Record"] {
+        assert!(sheets.iter().any(|s| s == wanted), "{wanted}: {sheets:?}");
+    }
+    // The Record sheet holds the recipe's fingerprint, not the block's figures.
+    let record = common::cells(&out, "Record");
+    assert_eq!(record[0][0].to_string(), "recipe fingerprint");
+}
+
+/// Texts longer than the 32,767 characters a cell holds (a title, a check's
+/// name, a group key, a period) are cut with a visible mark, and About says
+/// so; the run does not fail at the end.
+#[test]
+fn texts_longer_than_a_cell_are_cut_with_a_mark() {
+    let dir = tempfile::tempdir().unwrap();
+    let long = "w".repeat(40_000);
+    let recipe = format!(
+        "title \"{long}\"\nperiod \"{long}\"\nfigures \"F\" per depot:\n    m = mean(x)\ncheck \"{long}\" warn: mean(x) > 0\n"
+    );
+    let csv = format!("depot,x\n{long},1\nNorth,3\n");
+    let o = run_recipe(dir.path(), &recipe, &csv, &[]);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let out = dir.path().join("out.xlsx");
+    let mark = "... (cut: a cell holds 32,767 characters)";
+    let figures = common::cells(&out, "F");
+    let cut = figures
+        .iter()
+        .flatten()
+        .map(|c| c.to_string())
+        .find(|t| t.starts_with("www"))
+        .unwrap();
+    assert!(cut.ends_with(mark) && cut.chars().count() == 32_767);
+    let checks = common::cells(&out, "Checks");
+    assert!(
+        checks
+            .iter()
+            .flatten()
+            .any(|c| c.to_string().ends_with(mark))
+    );
+    let about = common::cells(&out, "About");
+    assert!(about[0][0].to_string().ends_with(mark));
+    assert!(
+        about
+            .iter()
+            .flatten()
+            .any(|c| c.to_string().contains("is cut and ends in"))
+    );
+}
+
+/// More missing cells than About lists: the first 100,000 are listed, then
+/// how many more there are.
+#[test]
+fn a_long_list_of_missing_cells_is_capped_with_a_count() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut csv = String::from("x,y\n");
+    for i in 0..100_012 {
+        csv.push_str(&format!("{i},\n"));
+    }
+    let o = run_recipe(dir.path(), "figures \"F\":\n    n = count(y)\n", &csv, &[]);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let about = common::cells(&dir.path().join("out.xlsx"), "About");
+    assert!(about.iter().flatten().any(|c| {
+        c.to_string()
+            .starts_with("... and 12 more cells counted as missing")
+    }),);
+}
+
+/// A panel whose (group, column) rows cannot fit one sheet is refused as
+/// soon as its groups are known, before any figure is computed, with the
+/// block named.
+#[test]
+fn a_panel_larger_than_a_sheet_is_refused_before_the_work() {
+    let dir = tempfile::tempdir().unwrap();
+    let columns: Vec<String> = (0..16).map(|c| format!("c{c}")).collect();
+    let mut csv = format!("key,{}\n", columns.join(","));
+    for i in 0..70_000 {
+        csv.push_str(&format!("k{i}{}\n", ",1".repeat(16)));
+    }
+    let recipe = format!("panel \"Wide\" of {} per key:\n", columns.join(", "));
+    let started = std::time::Instant::now();
+    let o = run_recipe(dir.path(), &recipe, &csv, &[]);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(
+        text(&o).contains("panel \"Wide\" would have 1120000 (group, column) rows"),
+        "{}",
+        text(&o)
+    );
+    assert!(started.elapsed() < std::time::Duration::from_secs(60));
+    assert!(!dir.path().join("out.xlsx").exists());
+}
+
+/// `calc` over one CSV column, each printed value.
+fn calc_values(dir: &Path, expression: &str, values: &[&str]) -> Vec<String> {
+    write(
+        dir,
+        "v.csv",
+        format!("x\n{}\n", values.join("\n")).as_bytes(),
+    );
+    let o = sheaf(&["calc", expression, "--data", "v.csv"], dir);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    String::from_utf8_lossy(&o.stdout)
+        .lines()
+        .map(str::to_string)
+        .collect()
+}
+
+/// Moments at the doubles' extremes, against exact rationals: the data are
+/// integers, so the mean of {1e15, 1, -1e15} is exactly 1/3 and of {1e17,
+/// -1e17, 5} exactly 5/3, and 1.0 / 3.0 and 5.0 / 3.0 are the nearest
+/// doubles (IEEE 754 division rounds correctly). The sd of {x, -x} is
+/// exactly sqrt(2) |x|; for x = 1e154 the fourth powers overflow, which once
+/// made it 0.
+#[test]
+fn extreme_values_give_exact_moments() {
+    let dir = tempfile::tempdir().unwrap();
+    let mean = |values: &[&str]| {
+        calc_values(dir.path(), "mean(x)", values)[0]
+            .parse::<f64>()
+            .unwrap()
+    };
+    assert_eq!(mean(&["1e15", "1", "-1e15"]), 1.0 / 3.0);
+    assert_eq!(mean(&["1e17", "-1e17", "5"]), 5.0 / 3.0);
+    let sd: f64 = calc_values(dir.path(), "sd(x)", &["1e154", "-1e154"])[0]
+        .parse()
+        .unwrap();
+    let exact = std::f64::consts::SQRT_2 * 1e154;
+    assert!((sd - exact).abs() <= 2.0 * f64::EPSILON * exact, "{sd}");
+    // The variance, 2e308, is beyond the doubles: it says so instead of a number.
+    let variance = calc_values(dir.path(), "variance(x)", &["1e154", "-1e154"]);
+    assert!(
+        variance[0].contains("beyond the largest number"),
+        "{variance:?}"
+    );
+}
+
+/// A recipe of 10^4 nesting levels, or a 120,000-row CSV file given as the
+/// recipe: the diagnostics come in time proportional to the recipe's size
+/// (once 57 s for 30,000 rows), and only the first 20 are printed.
+#[test]
+fn diagnostics_of_huge_bad_recipes_are_quick_and_capped() {
+    let dir = tempfile::tempdir().unwrap();
+    let nested: String = (0..10_000)
+        .map(|i| format!("{}figures \"x{i}\":\n", " ".repeat(i % 64 + i / 64)))
+        .collect();
+    let mut rows = String::from("depot,status,weight_kg\n");
+    for i in 0..120_000 {
+        rows.push_str(&format!("North,delivered,{i}.5\n"));
+    }
+    write(dir.path(), "d.csv", b"weight_kg\n1\n");
+    for (name, text_of) in [("nested.sheaf", nested), ("rows.sheaf", rows)] {
+        write(dir.path(), name, text_of.as_bytes());
+        let started = std::time::Instant::now();
+        let o = sheaf(&["validate", name], dir.path());
+        let took = started.elapsed();
+        assert_eq!(o.status.code(), Some(2));
+        let said = text(&o);
+        assert!(
+            said.len() < 20_000,
+            "{name}: {} bytes of diagnostics",
+            said.len()
+        );
+        assert!(said.contains("more problems in"), "{name}: {said}");
+        assert!(
+            took < std::time::Duration::from_secs(30),
+            "{name}: {took:?}"
+        );
+    }
+}
+
+/// A tiny ods whose one row of values repeats across 16,384 columns and
+/// thousands of rows: calamine would expand it to about 10^8 cells (3 GB);
+/// it is refused from its repeat counts before it is read.
+#[cfg(unix)]
+#[test]
+fn an_ods_repeating_its_cells_into_a_huge_block_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    handmade_ods(
+        &dir.path().join("repeats.ods"),
+        &format!(
+            r#"{ODS_HEAD}<table:table-row><table:table-cell office:value-type="string"><text:p>x</text:p></table:table-cell></table:table-row><table:table-row table:number-rows-repeated="6000"><table:table-cell table:number-columns-repeated="16384" office:value-type="float" office:value="4"><text:p>4</text:p></table:table-cell></table:table-row></table:table></office:spreadsheet></office:body></office:document-content>"#
+        ),
+    );
+    let o = sheaf_within(1024, &["inspect", "repeats.ods"], dir.path());
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(
+        text(&o).contains("repeats.ods") && text(&o).contains("repeat"),
+        "{}",
+        text(&o)
+    );
+}
+
+/// The demo .xls with its DIMENSIONS record claiming rows 1000 to 240 (a
+/// range ending before it starts): calamine would reserve about 2^32 x 6
+/// cells (about 1 TB) at open. It is refused, naming the file, within a
+/// memory cap.
+#[cfg(unix)]
+#[test]
+fn an_xls_range_ending_before_it_starts_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut bytes = std::fs::read(root().join("tests/fixtures/depot-2026-10.xls")).unwrap();
+    // The record: type 0x0200, 14 bytes: first row, last row + 1 (u32), first and last column + 1 (u16).
+    let at = bytes
+        .windows(4)
+        .position(|w| w == b"\x00\x02\x0e\x00")
+        .unwrap();
+    bytes[at + 4..at + 8].copy_from_slice(&1000u32.to_le_bytes());
+    write(dir.path(), "backwards.xls", &bytes);
+    let o = sheaf_within(1024, &["inspect", "backwards.xls"], dir.path());
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(
+        text(&o).contains("backwards.xls") && text(&o).contains("claims a range of"),
+        "{}",
+        text(&o)
+    );
 }

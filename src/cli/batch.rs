@@ -204,10 +204,8 @@ pub fn run(
     if !records.is_empty() {
         let bytes =
             history::trend_workbook(&records, &panels).map_err(|e| Failure(e.to_string()))?;
-        let partial = out_dir.join(format!(".trend.xlsx.{}.partial", std::process::id()));
-        std::fs::write(&partial, bytes)
-            .and_then(|_| std::fs::rename(&partial, &trend_path))
-            .map_err(|e| Failure(format!("{}: {e}", trend_path.display())))?;
+        crate::write::atomic::write_file(&trend_path, &bytes, force)
+            .map_err(|e| Failure(e.to_string()))?;
         lines.push(format!(
             "trend over {} periods -> {}",
             records.len(),

@@ -145,12 +145,20 @@ impl Results {
 /// (and a panel with robustness per group would run for hours).
 pub const MAX_GROUPS: usize = 100_000;
 
+/// Most rows of one block's table: a sheet's 1,048,576 rows less the title,
+/// note and header above it. A panel has one row per (group, column).
+pub const MAX_SHEET_ENTRIES: usize = crate::load::MAX_SHEET_ROWS as usize - 16;
+
 #[derive(Debug, thiserror::Error)]
 pub enum EvalError {
     #[error(
         "`per {keys}` makes more than {MAX_GROUPS} groups; group by a column with fewer distinct values"
     )]
     TooManyGroups { keys: String },
+    #[error(
+        "panel \"{block}\" would have {pairs} (group, column) rows, more than the {MAX_SHEET_ENTRIES} a sheet holds; group by fewer keys, list fewer columns, or split the panel"
+    )]
+    PanelTooLarge { block: String, pairs: usize },
 }
 
 /// Each row's value of one group key as a small id, and each id's label.
@@ -432,6 +440,14 @@ pub fn evaluate_against(
                 // dominate, so they run in parallel; a sample is built inside its
                 // job, so only as many exist at once as there are threads.
                 let all_groups = groups(&scope, per)?;
+                // Known before the work: the panel sheet must hold a row per job.
+                let pairs = all_groups.len() * columns.len();
+                if pairs > MAX_SHEET_ENTRIES {
+                    return Err(EvalError::PanelTooLarge {
+                        block: name.value.clone(),
+                        pairs,
+                    });
+                }
                 let jobs: Vec<(usize, &ColumnRef)> = (0..all_groups.len())
                     .flat_map(|g| columns.iter().map(move |c| (g, c)))
                     .collect();

@@ -7,7 +7,9 @@ mod record;
 mod trend;
 
 pub use period::{Period, PeriodSource, period_of};
-pub use record::{Entry, RECORD_SHEET, Record, RecordError, TERM_BLOCK, fingerprint};
+pub use record::{
+    Entry, RECORD_BAND_WIDTH, RECORD_SHEET, Record, RecordError, TERM_BLOCK, fingerprint,
+};
 pub use trend::{Move, largest_moves, trend_workbook};
 
 /// Relative change beyond which a figure is flagged when the recipe sets no

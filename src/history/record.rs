@@ -12,6 +12,9 @@ use crate::recipe::ast::StatementKind;
 use crate::recipe::{Recipe, pretty};
 
 pub const RECORD_SHEET: &str = "Record";
+/// Columns from one band of entries on the Record sheet to the next (four
+/// and a blank); a long record continues in the next band.
+pub const RECORD_BAND_WIDTH: u16 = 5;
 /// The block name under which `change(...)` arguments are recorded.
 pub const TERM_BLOCK: &str = "(compared values)";
 
@@ -157,7 +160,12 @@ impl Record {
 
     /// Reads the Record sheet of a sheaf result; refuses another recipe's.
     pub fn read(path: &Path, recipe: &Recipe) -> Result<Record, RecordError> {
-        let expected_fingerprint = fingerprint(recipe);
+        Record::read_accepting(path, &[fingerprint(recipe), earlier_fingerprint(recipe)])
+    }
+
+    /// Reads the Record sheet of a sheaf result made by a recipe with one of
+    /// the `accepted` fingerprints (the current form first).
+    pub fn read_accepting(path: &Path, accepted: &[String]) -> Result<Record, RecordError> {
         let shown = path.display().to_string();
         let mut workbook = open_workbook_auto(path)
             .map_err(|e| RecordError::Unreadable(shown.clone(), e.to_string()))?;
@@ -171,28 +179,31 @@ impl Record {
         let rows: Vec<&[Data]> = range.rows().collect();
         let cell = |r: usize, c: usize| text(rows.get(r).and_then(|row| row.get(c)));
         let fingerprint = cell(0, 1);
-        if fingerprint != expected_fingerprint && fingerprint != earlier_fingerprint(recipe) {
+        if !accepted.contains(&fingerprint) {
             return Err(RecordError::OtherRecipe {
                 path: shown,
                 theirs: fingerprint,
-                ours: expected_fingerprint,
+                ours: accepted.first().cloned().unwrap_or_default(),
             });
         }
         let period = Some(cell(1, 1)).filter(|p| !p.is_empty() && p != "(none)");
-        let entries = rows
-            .iter()
-            .skip(3)
-            .filter_map(|row| {
-                let value = match row.get(3)? {
-                    Data::Float(x) => *x,
-                    Data::Int(i) => *i as f64,
-                    _ => return None,
-                };
-                Some(Entry {
-                    block: text(row.first()),
-                    group: text(row.get(1)),
-                    name: text(row.get(2)),
-                    value,
+        let width = rows.iter().map(|r| r.len()).max().unwrap_or(0);
+        let bands = width.div_ceil(RECORD_BAND_WIDTH as usize);
+        let entries = (0..bands)
+            .flat_map(|band| {
+                let left = band * RECORD_BAND_WIDTH as usize;
+                rows.iter().skip(3).filter_map(move |row| {
+                    let value = match row.get(left + 3)? {
+                        Data::Float(x) => *x,
+                        Data::Int(i) => *i as f64,
+                        _ => return None,
+                    };
+                    Some(Entry {
+                        block: text(row.get(left)),
+                        group: text(row.get(left + 1)),
+                        name: text(row.get(left + 2)),
+                        value,
+                    })
                 })
             })
             .collect();

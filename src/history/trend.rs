@@ -6,6 +6,7 @@ use std::collections::BTreeMap;
 use rust_xlsxwriter::{Chart, ChartType, Format, Workbook, XlsxError};
 
 use super::record::{Record, TERM_BLOCK};
+use crate::write::style::fit;
 
 /// A figure's change between two consecutive periods.
 #[derive(Debug, Clone, PartialEq)]
@@ -78,10 +79,10 @@ pub fn trend_workbook(
     let mut r = 1u32;
     for (period, record) in records {
         for e in record.entries.iter().filter(|e| e.block != TERM_BLOCK) {
-            sheet.write_string(r, 0, period)?;
-            sheet.write_string(r, 1, &e.block)?;
-            sheet.write_string(r, 2, &e.group)?;
-            sheet.write_string(r, 3, &e.name)?;
+            sheet.write_string(r, 0, fit(period))?;
+            sheet.write_string(r, 1, fit(&e.block))?;
+            sheet.write_string(r, 2, fit(&e.group))?;
+            sheet.write_string(r, 3, fit(&e.name))?;
             sheet.write_number(r, 4, e.value)?;
             r += 1;
         }
@@ -110,7 +111,7 @@ pub fn trend_workbook(
             .into_iter()
             .enumerate()
         {
-            sheet.write_string(r, c as u16, t)?;
+            sheet.write_string(r, c as u16, fit(t))?;
         }
         sheet.write_number(r, 5, m.before)?;
         sheet.write_number(r, 6, m.after)?;
@@ -146,17 +147,17 @@ pub fn trend_workbook(
     let periods: Vec<&String> = records.iter().map(|(p, _)| p).collect();
     let mut top = 0u32;
     for ((block, name), groups) in &series {
-        sheet.write_string_with_format(top, 0, format!("{block}: {name}"), &bold)?;
+        sheet.write_string_with_format(top, 0, fit(&format!("{block}: {name}")), &bold)?;
         sheet.write_string_with_format(top + 1, 0, "period", &bold)?;
         for (i, p) in periods.iter().enumerate() {
-            sheet.write_string(top + 2 + i as u32, 0, *p)?;
+            sheet.write_string(top + 2 + i as u32, 0, fit(p))?;
         }
         let mut chart = Chart::new(ChartType::Line);
         chart.title().set_name(&format!("{block}: {name}"));
         let last = top + 1 + periods.len() as u32;
         for (j, (group, values)) in groups.iter().enumerate() {
             let c = 1 + j as u16;
-            sheet.write_string_with_format(top + 1, c, group, &bold)?;
+            sheet.write_string_with_format(top + 1, c, fit(group), &bold)?;
             for (i, p) in periods.iter().enumerate() {
                 if let Some(v) = values.get(*p) {
                     sheet.write_number(top + 2 + i as u32, c, *v)?;

@@ -12,6 +12,7 @@ use encoding_rs::{Encoding, UTF_8, WINDOWS_1252};
 use super::assemble::{self, Parts, TextCells};
 use super::column::{ColumnBuilder, MAX_ROWS};
 use super::header::{self, TopRow};
+use super::limits::Bounded;
 use super::numbers::{NumberStyle, StyleEvidence};
 use super::source::{Hashing, SourceInfo};
 use super::table::{Cell, ReadNotes, Table};
@@ -229,10 +230,14 @@ pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
         options,
         ReadNotes::default(),
     );
-    let mut input = std::io::Cursor::new(head).chain(hashing);
+    let mut input = Bounded::new(
+        std::io::Cursor::new(head).chain(hashing),
+        &shown,
+        layout.delimiter,
+    );
     match read_records(&mut input, &layout, &shown, options) {
         Ok(parts) => {
-            let (_, hashing) = input.into_inner();
+            let (_, hashing) = input.into_inner().into_inner();
             assemble::table(
                 &shown,
                 parts,
@@ -281,7 +286,8 @@ fn load_decoded(
     };
     let head_end = text.floor_char_boundary(HEAD_BYTES as usize);
     let layout = layout(&text[..head_end], options, notes);
-    match read_records(text.as_bytes(), &layout, &shown, options) {
+    let input = Bounded::new(text.as_bytes(), &shown, layout.delimiter);
+    match read_records(input, &layout, &shown, options) {
         Ok(parts) => assemble::table(&shown, parts, TextCells::AlreadyRead, options, source),
         Err(Stop::Failed(e)) => Err(e),
         Err(Stop::NotUtf8 { .. }) => unreachable!("decoded text is UTF-8"),

@@ -8,13 +8,16 @@ mod column;
 mod csv_file;
 mod fit;
 mod header;
+mod limits;
 pub mod numbers;
+mod ods_check;
 mod report;
 pub mod rows;
 mod sheet_cells;
 mod source;
 mod table;
 mod workbook;
+mod xls_check;
 
 use std::path::Path;
 
@@ -22,6 +25,7 @@ pub use column::{
     CellIssue, Column, ColumnBuilder, ColumnKind, Converted, IssueKind, MAX_ROWS, NearDuplicate,
 };
 pub use fit::{Wanted, load_for};
+pub use limits::{MAX_SHEET_COLUMNS, MAX_SHEET_ROWS};
 pub use numbers::{NumberStyle, StyleSetting};
 pub use report::{ReadingNote, reading_notes};
 pub use source::SourceInfo;
@@ -119,8 +123,12 @@ fn kind_of(path: &Path) -> Result<FileKind, LoadError> {
 /// Reads any supported file; the kind is taken from its ending.
 pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
     match kind_of(path)? {
-        FileKind::Delimited => csv_file::load(path, options),
+        FileKind::Delimited => {
+            limits::check_file(path, false)?;
+            csv_file::load(path, options)
+        }
         FileKind::Workbook => {
+            limits::check_spreadsheet(path)?;
             let source = SourceInfo::of_file(path).map_err(|e| LoadError::Unreadable {
                 path: path.display().to_string(),
                 reason: e.to_string(),
@@ -134,6 +142,10 @@ pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
 pub fn sheet_names(path: &Path) -> Result<Vec<String>, LoadError> {
     match kind_of(path)? {
         FileKind::Delimited => Ok(vec![csv_file::sheet_name(path)]),
-        FileKind::Workbook => workbook::sheet_names(path),
+        FileKind::Workbook => {
+            limits::check_spreadsheet(path)?;
+            let owned = path.to_path_buf();
+            limits::guarded(path, move || workbook::sheet_names(&owned))
+        }
     }
 }

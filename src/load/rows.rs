@@ -100,6 +100,14 @@ pub fn find_not_data(columns: &[Column], rows: usize) -> NotData {
     NotData { blank, summary }
 }
 
+/// A number column's values in rows `0..end`.
+fn values_above(column: &Column, end: usize) -> impl Iterator<Item = f64> + '_ {
+    column.numbers().expect("a number column")[..end]
+        .iter()
+        .copied()
+        .filter(|v| !v.is_nan())
+}
+
 /// Why row `row` summarises data rows `0..data_end`, if it does.
 fn summary_reason(columns: &[Column], row: usize, data_end: usize) -> Option<String> {
     for column in columns {
@@ -113,6 +121,14 @@ fn summary_reason(columns: &[Column], row: usize, data_end: usize) -> Option<Str
             ));
         }
     }
+    // Without a summary word, a summary row has no key: a row with a text
+    // cell (a depot, a batch code) is data whatever its numbers.
+    if columns
+        .iter()
+        .any(|c| c.kind == ColumnKind::Text && c.text(row).is_some())
+    {
+        return None;
+    }
     let numeric: Vec<&Column> = columns
         .iter()
         .filter(|c| c.kind == ColumnKind::Number)
@@ -122,17 +138,16 @@ fn summary_reason(columns: &[Column], row: usize, data_end: usize) -> Option<Str
         let Some(x) = column.number(row) else {
             continue;
         };
-        let values = column.numbers().expect("a number column")[..data_end]
-            .iter()
-            .filter(|v| !v.is_nan());
+        let values = values_above(column, data_end);
         let (count, sum) = values.fold((0usize, 0.0f64), |(n, s), v| (n + 1, s + v));
         if count < 2 {
             return None;
         }
         let mean = sum / count as f64;
+        let varies = values_above(column, data_end).any(|v| v != mean);
         if same_figure(x, sum) {
             matched.push("sum");
-        } else if same_figure(x, mean) {
+        } else if varies && same_figure(x, mean) {
             matched.push("mean");
         } else {
             return None;
@@ -221,6 +236,18 @@ mod tests {
         // One column alone is not enough without a word: 1, 1, 2 is data.
         let plain = vec![column("a", vec![n(1.0), n(1.0), n(2.0)])];
         assert_eq!(find_not_data(&plain, 3).summary, []);
+        // Constant columns: every row is their mean; a keyed row is data.
+        let constant = vec![
+            column("a", vec![n(1.0); 6]),
+            column("b", vec![n(2.0); 6]),
+        ];
+        assert_eq!(find_not_data(&constant, 6).summary, []);
+        let keyed = vec![
+            column("k", vec![t("x"), t("y"), t("z"), t("w")]),
+            column("a", vec![n(1.0), n(2.0), n(4.0), n(7.0)]),
+            column("b", vec![n(1.0), n(2.0), n(4.0), n(7.0)]),
+        ];
+        assert_eq!(find_not_data(&keyed, 4).summary, []);
         let data = vec![
             column("a", vec![n(1.0), n(2.0), n(4.0), n(5.0)]),
             column("b", vec![n(1.0), n(2.0), n(4.0), n(7.0)]),

@@ -4,6 +4,7 @@ use std::path::Path;
 
 use calamine::{Data, DataRef, Reader, Xlsx, open_workbook_auto};
 
+use super::limits;
 use super::sheet_cells::{CellIn, SheetCells};
 use super::source::SourceInfo;
 use super::table::{Cell, Table};
@@ -88,10 +89,10 @@ fn refuse_zip_bombs(path: &Path) -> Result<(), LoadError> {
 
 pub fn load(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table, LoadError> {
     refuse_zip_bombs(path)?;
-    // A damaged file must end in an error, never a crash, even if the
-    // reading library trips over it.
-    std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| read(path, source, options)))
-        .unwrap_or_else(|_| Err(unreadable(path, "the workbook is damaged and could not be read; open and save it again, or export it as CSV")))
+    // A damaged file must end in an error, never a crash or a hang, even if
+    // the reading library trips over it.
+    let (owned, options) = (path.to_path_buf(), options.clone());
+    limits::guarded(path, move || read(&owned, source, &options))
 }
 
 fn read(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table, LoadError> {
@@ -122,6 +123,7 @@ fn stream_cells(
         .map_err(|e| unreadable(path, e))?;
     while let Some(cell) = reader.next_cell().map_err(|e| unreadable(path, e))? {
         let (row, column) = cell.get_position();
+        limits::check_cell(shown, &sheet, row, column)?;
         let value = cell.get_value();
         if *value == DataRef::Empty {
             continue;
@@ -133,6 +135,7 @@ fn stream_cells(
             other => CellIn::Other(cell_of(&Data::from(other.clone()))),
         };
         if cells.add(row, column, cell).is_err() {
+            limits::check_xlsx_range(path, &sheet)?;
             return Ok(None);
         }
     }
@@ -154,6 +157,7 @@ fn range_cells(
     let mut cells = SheetCells::new(options);
     for (row, column, data) in range.used_cells() {
         let (row, column) = (top + row as u32, left + column as u32);
+        limits::check_cell(shown, &sheet, row, column)?;
         let cell = match data {
             Data::String(s) => CellIn::Text(s),
             other => CellIn::Other(cell_of(other)),

@@ -36,26 +36,36 @@ impl Diagnostic {
 
     /// The full report: `error: ...`, `--> file:line:column`, the line, a caret, help.
     pub fn render(&self, file_name: &str, source: &str) -> String {
-        let file = SimpleFile::new(file_name, source);
-        // A fault at the end of a line is shown as a caret there, not over the line break.
-        let at_line_end = source[self.span.start.min(source.len())..].starts_with(['\n', '\r'])
-            || self.span.start >= source.len();
-        let end = if at_line_end {
-            self.span.start
+        self.render_in(&SimpleFile::new(file_name, source))
+    }
+
+    /// [`Diagnostic::render`] with the file's line index built once by the caller.
+    fn render_in(&self, file: &SimpleFile<&str, &str>) -> String {
+        let source = *file.source();
+        let start = self.span.start.min(source.len());
+        // A fault at the end of a line is shown as a caret there, not over the
+        // line break; a span over several lines is shown on its first line, so
+        // one report stays one line of the recipe however large its span.
+        let line_end = source[start..]
+            .find(['\n', '\r'])
+            .map_or(source.len(), |i| start + i);
+        let end = if start == line_end {
+            start
         } else {
-            self.span.end.max(self.span.start + 1).min(source.len())
+            self.span.end.max(start + 1).min(line_end)
         };
         let mut report = Report::error()
             .with_message(&self.message)
-            .with_labels(vec![Label::primary((), self.span.start..end)]);
+            .with_labels(vec![Label::primary((), start..end)]);
         if let Some(help) = &self.help {
             report = report.with_notes(vec![format!("help: {help}")]);
         }
-        term::emit_into_string(&Config::default(), &file, &report).unwrap_or_else(|_| {
+        term::emit_into_string(&Config::default(), file, &report).unwrap_or_else(|_| {
             let (line, column) = self.line_column(source);
             format!(
-                "error: {}\n --> {file_name}:{line}:{column}\n",
-                self.message
+                "error: {}\n --> {}:{line}:{column}\n",
+                self.message,
+                file.name()
             )
         })
     }
@@ -76,13 +86,61 @@ fn floor_char_boundary(s: &str, mut i: usize) -> usize {
     i
 }
 
-/// All diagnostics of one recipe, sorted by position, rendered one after another.
+/// Most diagnostics printed for one recipe: the first ones are what to fix;
+/// a file that is not a recipe at all would otherwise print one per line.
+pub const MAX_SHOWN: usize = 20;
+
+/// The diagnostics of one recipe, sorted by position, rendered one after
+/// another: the first [`MAX_SHOWN`], then how many more there are. Time and
+/// output grow with the recipe's size, not with errors times size.
 pub fn render_all(diagnostics: &[Diagnostic], file_name: &str, source: &str) -> String {
     let mut sorted: Vec<&Diagnostic> = diagnostics.iter().collect();
     sorted.sort_by_key(|d| d.span.start);
-    sorted
+    let file = SimpleFile::new(file_name, source);
+    let mut out = sorted
         .iter()
-        .map(|d| d.render(file_name, source))
+        .take(MAX_SHOWN)
+        .map(|d| d.render_in(&file))
         .collect::<Vec<_>>()
-        .join("\n")
+        .join("\n");
+    if sorted.len() > MAX_SHOWN {
+        out.push_str(&format!(
+            "\n... and {} more problems in {file_name} ({} in all); fix the ones above and run again\n",
+            sorted.len() - MAX_SHOWN,
+            sorted.len()
+        ));
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn many_problems_print_the_first_ones_and_a_count() {
+        let source = "x\n".repeat(30_000);
+        let diagnostics: Vec<Diagnostic> = (0..30_000)
+            .map(|i| Diagnostic::new(Span::new(2 * i, 2 * i + 1), "not a statement"))
+            .collect();
+        let started = std::time::Instant::now();
+        let out = render_all(&diagnostics, "r.sheaf", &source);
+        assert!(started.elapsed().as_secs() < 5);
+        assert_eq!(out.matches("not a statement").count(), MAX_SHOWN);
+        assert!(
+            out.contains("... and 29980 more problems in r.sheaf (30000 in all)"),
+            "{out}"
+        );
+    }
+
+    #[test]
+    fn a_span_over_many_lines_is_shown_on_its_first() {
+        let source = "figures \"F\":\n    a = 1\n    b = 2\n";
+        let d = Diagnostic::new(Span::new(0, source.len()), "block problem");
+        let out = d.render("r.sheaf", source);
+        assert!(
+            out.contains("r.sheaf:1:1") && !out.contains("b = 2"),
+            "{out}"
+        );
+    }
 }

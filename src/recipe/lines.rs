@@ -42,9 +42,15 @@ pub fn split_lines(source: &str) -> (Vec<Line<'_>>, Vec<Diagnostic>) {
     let mut problems = Vec::new();
     let mut offset = 0;
     for raw in source.split_inclusive('\n') {
-        let start = offset;
+        // A byte-order mark (some editors save one) is not part of the text.
+        let mark = if offset == 0 && raw.starts_with('\u{feff}') {
+            '\u{feff}'.len_utf8()
+        } else {
+            0
+        };
+        let start = offset + mark;
         offset += raw.len();
-        let content = raw.trim_end_matches(['\n', '\r']);
+        let content = raw[mark..].trim_end_matches(['\n', '\r']);
         let indent_text = &content[..content.len() - content.trim_start().len()];
         let text = without_comment(&content[indent_text.len()..]).trim_end();
         if text.is_empty() {
@@ -82,5 +88,14 @@ mod tests {
             (lines[1].indent, lines[1].offset),
             (3, source.find("let").unwrap())
         );
+    }
+
+    #[test]
+    fn a_byte_order_mark_is_not_text() {
+        let source = "\u{feff}title \"Depots\"\n  let x = 1\n";
+        let (lines, problems) = split_lines(source);
+        assert!(problems.is_empty());
+        assert_eq!((lines[0].text, lines[0].offset), ("title \"Depots\"", 3));
+        assert_eq!(lines[1].indent, 2);
     }
 }

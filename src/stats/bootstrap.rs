@@ -186,9 +186,9 @@ fn mean_by_expansion(sample: &Sample, level: f64) -> Stat<Interval> {
         });
     }
     let n = m.n as f64;
-    let se = (m.m2 / n).sqrt();
-    let g1 = m.m3 / m.m2.powf(1.5) / n.sqrt();
-    let g2 = (m.m4 / (m.m2 * m.m2) - 3.0) / n;
+    let se = m.sd_population() / n.sqrt();
+    let g1 = m.g1() / n.sqrt();
+    let g2 = m.g2() / n;
     let at = |p: f64| {
         let z = normal_quantile(p);
         let w = z + (z * z - 1.0) * g1 / 6.0 + (z * z * z - 3.0 * z) * g2 / 24.0

@@ -2,16 +2,33 @@
 //!
 //! The mean is a compensated sum divided by n, then corrected by the mean of
 //! the deviations from it (the corrected two-pass algorithm, Chan, Golub and
-//! LeVeque 1983). The power sums of the deviations are added in blocks of 64
-//! whose sums are then compensated (blocked summation, error bounded by the
-//! block length rather than n), so data with a large common offset (NIST
-//! NumAcc4) and columns of 10^6 values keep their digits.
+//! LeVeque 1983). The correction is itself exact where the doubles allow:
+//! each deviation's rounding error is recovered by TwoSum and the deviations
+//! and their errors are summed with compensation, so {1e17, -1e17, 5} has
+//! the mean 5/3, not what the rounded deviations of 1e17 happen to add to.
+//!
+//! Every value is first scaled by a power of two (exact) so the power sums
+//! cannot overflow: the deviations are then rescaled so the largest lies in
+//! [1, 2), and the moments are kept in those units with the exponent beside
+//! them. So the sd of {1e154, -1e154} is 1.41e154 (the plain fourth powers
+//! would overflow), and shape statistics, being scale-free, never overflow.
+//! For ordinary data the scaling changes no bit of any result.
+//!
+//! The power sums of the deviations are added in blocks of 64 whose sums are
+//! then compensated (blocked summation, error bounded by the block length
+//! rather than n), so data with a large common offset (NIST NumAcc4) and
+//! columns of 10^6 values keep their digits.
 
 use super::sample::Sample;
-use super::summation::Neumaier;
+use super::summation::{ExactSum, Neumaier, two_sum};
 use super::undefined::{Stat, Undefined, need};
 
 /// Central moments m_k = (1/n) sum (x - mean)^k.
+///
+/// `m2`, `m3` and `m4` are the moments in the data's own units; they are
+/// infinite when the deviations are too large for a double's range (beyond
+/// about 1e154, 1e102, 1e77). The methods below work from the scaled
+/// moments, which are always finite.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Moments {
     pub n: usize,
@@ -19,43 +36,167 @@ pub struct Moments {
     pub m2: f64,
     pub m3: f64,
     pub m4: f64,
+    /// m2, m3, m4 of the deviations divided by 2^`scale_exponent`.
+    scaled: [f64; 3],
+    scale_exponent: i32,
+}
+
+/// `x` times 2^`exponent`, exact unless the result leaves the double range.
+fn times_power_of_two(x: f64, exponent: i32) -> f64 {
+    libm::scalbn(x, exponent)
+}
+
+/// The exponent e with 2^e <= |x| < 2^(e+1), for a finite non-zero x.
+fn binary_exponent(x: f64) -> i32 {
+    libm::ilogb(x)
 }
 
 impl Moments {
     /// Needs at least one value; the caller checks.
     pub(crate) fn of(values: &[f64]) -> Moments {
         let n = values.len() as f64;
-        let rough_mean = Neumaier::of(values.iter().copied()) / n;
-        // Power sums in blocks: plain sums over BLOCK values (error at most
-        // BLOCK ulps of the block's size), the block sums then compensated,
-        // so a long column loses no more than a short one.
-        const BLOCK: usize = 64;
-        let mut sums = [Neumaier::default(); 4];
-        for block in values.chunks(BLOCK) {
-            let mut partial = [0.0f64; 4];
-            for &x in block {
-                let d = x - rough_mean;
-                let d2 = d * d;
-                partial[0] += d;
-                partial[1] += d2;
-                partial[2] += d2 * d;
-                partial[3] += d2 * d2;
-            }
-            for (sum, p) in sums.iter_mut().zip(partial) {
-                sum.add(p);
-            }
+        let largest = values.iter().fold(0.0f64, |m, x| m.max(x.abs()));
+        // Values scaled into (-1, 1): sums and deviations cannot overflow.
+        let value_exponent = if largest > 0.0 && largest.is_finite() {
+            binary_exponent(largest) + 1
+        } else {
+            0
+        };
+        let scaled = |x: f64| times_power_of_two(x, -value_exponent);
+        let (mut sum, mut size) = (Neumaier::default(), 0.0);
+        for &x in values {
+            sum.add(scaled(x));
+            size += scaled(x).abs();
         }
-        let [s1, s2, s3, s4] = sums.map(|s| s.total() / n);
+        let rough_mean = sum.total() / n;
+        let (mut correction, largest_deviation) = mean_correction(values, &scaled, rough_mean);
+        if ill_conditioned(sum.total(), size, n) {
+            correction = exact_residual(values, &scaled, rough_mean) / n;
+        }
+        // Deviations rescaled so the largest lies in [1, 2) (exact: a power of two).
+        let deviation_exponent = if largest_deviation > 0.0 && largest_deviation.is_finite() {
+            binary_exponent(largest_deviation)
+        } else {
+            0
+        };
+        let unit = |d: f64| times_power_of_two(d, -deviation_exponent);
+        let [s2, s3, s4] = power_sums(values, |x| unit(scaled(x) - rough_mean), n);
         // Move the moments from the rough mean to the corrected one (c is tiny).
-        let c = s1;
+        let c = unit(correction);
+        let m2 = (s2 - c * c).max(0.0);
+        let m3 = s3 - 3.0 * c * s2 + 2.0 * c * c * c;
+        let m4 = s4 - 4.0 * c * s3 + 6.0 * c * c * s2 - 3.0 * c * c * c * c;
+        let e = deviation_exponent + value_exponent;
         Moments {
             n: values.len(),
-            mean: rough_mean + c,
-            m2: (s2 - c * c).max(0.0),
-            m3: s3 - 3.0 * c * s2 + 2.0 * c * c * c,
-            m4: s4 - 4.0 * c * s3 + 6.0 * c * c * s2 - 3.0 * c * c * c * c,
+            mean: times_power_of_two(rough_mean + correction, value_exponent),
+            m2: times_power_of_two(m2, 2 * e),
+            m3: times_power_of_two(m3, 3 * e),
+            m4: times_power_of_two(m4, 4 * e),
+            scaled: [m2, m3, m4],
+            scale_exponent: e,
         }
     }
+
+    /// The population sd, sqrt(m2), finite whenever the data are.
+    pub fn sd_population(&self) -> f64 {
+        self.sd_times(1.0)
+    }
+
+    /// sqrt(m2 `factor`), from the scaled moments (finite whenever the data are).
+    fn sd_times(&self, factor: f64) -> f64 {
+        times_power_of_two((self.scaled[0] * factor).sqrt(), self.scale_exponent)
+    }
+
+    /// The variance with `m2` times `factor` (n / (n - 1) for the sample
+    /// variance); none when it is beyond the largest double.
+    fn variance_times(&self, factor: f64) -> Stat {
+        let v = times_power_of_two(self.scaled[0] * factor, 2 * self.scale_exponent);
+        if v.is_finite() {
+            Ok(v)
+        } else {
+            Err(Undefined::BeyondDoubleRange)
+        }
+    }
+
+    /// The moment skewness g1 = m3 / m2^1.5 (NaN when m2 is zero).
+    pub fn g1(&self) -> f64 {
+        self.scaled[1] / self.scaled[0].powf(1.5)
+    }
+
+    /// The excess kurtosis g2 = m4 / m2^2 - 3 (NaN when m2 is zero).
+    pub fn g2(&self) -> f64 {
+        self.scaled[2] / (self.scaled[0] * self.scaled[0]) - 3.0
+    }
+}
+
+/// The mean of the exact deviations from `rough_mean` (in scaled units),
+/// and the largest deviation. Each deviation's rounding error is recovered
+/// (TwoSum) and the deviations are summed with compensation, the errors
+/// (each below half an ulp of its value) in plain blocks.
+fn mean_correction(values: &[f64], scaled: &impl Fn(f64) -> f64, rough_mean: f64) -> (f64, f64) {
+    let mut deviations = Neumaier::default();
+    let mut errors = Neumaier::default();
+    let mut largest = 0.0f64;
+    for block in values.chunks(BLOCK) {
+        let mut block_errors = 0.0;
+        for &x in block {
+            let (d, error) = two_sum(scaled(x), -rough_mean);
+            deviations.add(d);
+            block_errors += error;
+            largest = largest.max(d.abs());
+        }
+        errors.add(block_errors);
+    }
+    let n = values.len() as f64;
+    ((deviations.total() + errors.total()) / n, largest)
+}
+
+/// Whether a sum of this size (the sum of absolute values) cancels so far
+/// that the compensated correction may miss a quarter ulp of the mean: its
+/// error is about n eps^2 size against the ulp's eps |sum| (the bound of
+/// compensated summation, Higham 2002, section 4.3). Ordinary columns,
+/// even centred on zero, stay far from it; {1e17, -1e17, 5} does not.
+fn ill_conditioned(sum: f64, size: f64, n: f64) -> bool {
+    n * f64::EPSILON * size > sum.abs() / 64.0
+}
+
+/// The exact sum(x - rough_mean) in scaled units, rounded once: the values
+/// and -n rough_mean (split exactly by a fused multiply-add) added exactly.
+fn exact_residual(values: &[f64], scaled: &impl Fn(f64) -> f64, rough_mean: f64) -> f64 {
+    let mut exact = ExactSum::default();
+    for &x in values {
+        exact.add(scaled(x));
+    }
+    let n = values.len() as f64;
+    let product = n * rough_mean;
+    exact.add(-product);
+    exact.add(-n.mul_add(rough_mean, -product));
+    exact.total()
+}
+
+/// Block length of the blocked power sums.
+const BLOCK: usize = 64;
+
+/// (1/n) sum d^k for k = 2, 3, 4, with `deviation` giving each d: plain sums
+/// over BLOCK values (error at most BLOCK ulps of the block's size), the
+/// block sums then compensated, so a long column loses no more than a short one.
+fn power_sums(values: &[f64], deviation: impl Fn(f64) -> f64, n: f64) -> [f64; 3] {
+    let mut sums = [Neumaier::default(); 3];
+    for block in values.chunks(BLOCK) {
+        let mut partial = [0.0f64; 3];
+        for &x in block {
+            let d = deviation(x);
+            let d2 = d * d;
+            partial[0] += d2;
+            partial[1] += d2 * d;
+            partial[2] += d2 * d2;
+        }
+        for (sum, p) in sums.iter_mut().zip(partial) {
+            sum.add(p);
+        }
+    }
+    sums.map(|s| s.total() / n)
 }
 
 /// Whether variance divides by n - 1 (sample, the default) or by n.
@@ -66,23 +207,36 @@ pub enum Denominator {
     Population,
 }
 
+/// m2 times this is the variance: n / (n - 1) for the sample variance.
+fn variance_factor(n: usize, denominator: Denominator) -> f64 {
+    let n = n as f64;
+    match denominator {
+        Denominator::Sample => n / (n - 1.0),
+        Denominator::Population => 1.0,
+    }
+}
+
 impl Sample {
+    /// The variance; none when it is beyond the largest double (the sd then still has one).
     pub fn variance(&self, denominator: Denominator) -> Stat {
+        let m = self.moments_for(denominator)?;
+        m.variance_times(variance_factor(m.n, denominator))
+    }
+
+    /// The sd, from the scaled moments: finite even where the variance is not.
+    pub fn sd(&self, denominator: Denominator) -> Stat {
+        let m = self.moments_for(denominator)?;
+        Ok(m.sd_times(variance_factor(m.n, denominator)))
+    }
+
+    /// The moments, once there are enough values for a variance.
+    fn moments_for(&self, denominator: Denominator) -> Stat<&Moments> {
         let needed = match denominator {
             Denominator::Sample => 2,
             Denominator::Population => 1,
         };
         need(self.count(), needed)?;
-        let m = self.moments()?;
-        let n = m.n as f64;
-        Ok(match denominator {
-            Denominator::Sample => m.m2 * n / (n - 1.0),
-            Denominator::Population => m.m2,
-        })
-    }
-
-    pub fn sd(&self, denominator: Denominator) -> Stat {
-        Ok(self.variance(denominator)?.sqrt())
+        self.moments()
     }
 
     fn shape_moments(&self, needed: usize) -> Stat<&Moments> {
@@ -97,7 +251,7 @@ impl Sample {
     /// G1 = g1 sqrt(n (n - 1)) / (n - 2) (Joanes and Gill 1998), which needs n >= 3.
     pub fn skewness(&self, adjusted: bool) -> Stat {
         let m = self.shape_moments(if adjusted { 3 } else { 2 })?;
-        let g1 = m.m3 / m.m2.powf(1.5);
+        let g1 = m.g1();
         if !adjusted {
             return Ok(g1);
         }
@@ -115,7 +269,7 @@ impl Sample {
     /// G2 = ((n + 1) g2 + 6) (n - 1) / ((n - 2)(n - 3)) (Joanes and Gill 1998), which needs n >= 4.
     pub fn excess_kurtosis(&self, adjusted: bool) -> Stat {
         let m = self.shape_moments(if adjusted { 4 } else { 2 })?;
-        let g2 = m.m4 / (m.m2 * m.m2) - 3.0;
+        let g2 = m.g2();
         if !adjusted {
             return Ok(g2);
         }
@@ -177,5 +331,60 @@ mod tests {
             Err(Undefined::TooFewValues { needed: 2, have: 1 })
         );
         assert_eq!(one.variance(Denominator::Population), Ok(0.0));
+    }
+
+    // Extremes, checked against exact rationals. The data are integers, so the
+    // exact mean is a ratio p/q; IEEE 754 division is correctly rounded, so
+    // p as f64 / q as f64 (both exact here) is the double nearest the true mean.
+    #[test]
+    fn means_with_cancelling_large_values_are_correctly_rounded() {
+        for (values, p, q) in [
+            (vec![1e15, 1.0, -1e15], 1.0, 3.0),
+            (vec![1e17, -1e17, 5.0], 5.0, 3.0),
+            (vec![1e17, 3.0, -1e17, 5.0, 1e16, -1e16, 1.0], 9.0, 7.0),
+            (vec![-1e300, 7.0, 1e300], 7.0, 3.0),
+        ] {
+            let s = Sample::from_values(values.clone());
+            assert_eq!(s.mean().unwrap(), p / q, "{values:?}");
+        }
+    }
+
+    // sd of {x, -x}: mean 0, sample variance (x^2 + x^2) / 1 = 2 x^2, so the
+    // sd is sqrt(2) |x| exactly; the doubles allow it within 1 ulp. Plain
+    // fourth powers of 1e154 overflow, which once made this sd 0.
+    #[test]
+    fn sd_of_huge_values_does_not_overflow() {
+        for x in [1e154, 1e200, 1e307, f64::MAX / 2.0] {
+            let s = Sample::from_values([x, -x]);
+            let sd = s.sd(Denominator::Sample).unwrap();
+            let exact = std::f64::consts::SQRT_2 * x;
+            assert!(
+                (sd - exact).abs() <= 2.0 * f64::EPSILON * exact,
+                "{x}: {sd}"
+            );
+            // sd_pop = |x|; g1 = 0 and b2 = 1 for two points (from the definitions).
+            assert_eq!(s.sd(Denominator::Population).unwrap(), x);
+            assert_eq!(s.skewness(false).unwrap(), 0.0);
+            assert!((s.kurtosis(false).unwrap() - 1.0).abs() < 1e-15);
+        }
+        // 2 (1e200)^2 is beyond the double range: the variance says so, never NaN or 0.
+        let s = Sample::from_values([1e200, -1e200]);
+        assert_eq!(
+            s.variance(Denominator::Sample),
+            Err(Undefined::BeyondDoubleRange)
+        );
+    }
+
+    // Tiny values scale up exactly: {3e-320, 1e-320} (subnormal) has mean
+    // 2e-320 and population sd 1e-320, to the subnormal spacing.
+    #[test]
+    fn tiny_values_keep_their_moments() {
+        let s = Sample::from_values([3e-320, 1e-320]);
+        assert_eq!(s.mean().unwrap(), 2e-320);
+        assert_eq!(s.sd(Denominator::Population).unwrap(), 1e-320);
+        let s = Sample::from_values([1e-200, 2e-200, 4e-200]);
+        let skew = s.skewness(false).unwrap();
+        let t = Sample::from_values([1.0, 2.0, 4.0]);
+        assert!((skew - t.skewness(false).unwrap()).abs() < 1e-14);
     }
 }

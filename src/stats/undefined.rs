@@ -14,6 +14,8 @@ pub enum Undefined {
     ZeroIqr,
     #[error("MAD is zero")]
     ZeroMad,
+    #[error("beyond the largest number a double holds (about 1.8e308)")]
+    BeyondDoubleRange,
     #[error("{0}")]
     BadArgument(String),
 }

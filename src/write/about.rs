@@ -22,8 +22,13 @@ pub const CONVENTIONS: &[&str] = &[
     "Tukey's fences: Q1 - k IQR and Q3 + k IQR, k = 1.5 unless given; outliers lie strictly beyond them.",
     "Modified z-score: 0.6745 (x - median) / MAD, flagged when above 3.5 in absolute value (Iglewicz and Hoaglin 1993).",
     "Groups appear in the order of their first row in the data; a blank key forms the group (blank).",
+    "A text longer than the 32,767 characters a cell holds (a group key, a name, a title) is cut and ends in \"... (cut: a cell holds 32,767 characters)\".",
     "A let column is computed over the rows kept at its line; its aggregates reduce over those rows, not per group.",
 ];
+
+/// Most missing cells listed one by one (a sheet holds 1,048,576 rows, and
+/// a list longer than this is read by its count, which About gives).
+pub const MISSING_LISTED: usize = 100_000;
 
 pub fn about(
     workbook: &mut Workbook,
@@ -38,7 +43,7 @@ pub fn about(
     sheet.write_string_with_format(
         0,
         0,
-        results.title.as_deref().unwrap_or("sheaf result"),
+        style::fit(results.title.as_deref().unwrap_or("sheaf result")),
         &style::title(),
     )?;
     sheet.merge_range(1, 0, 1, 3, DISCLAIMER, &style::note())?;
@@ -46,7 +51,7 @@ pub fn about(
     let mut r = 3;
     let mut pair = |label: &str, value: String| -> Result<(), XlsxError> {
         sheet.write_string_with_format(r, 0, label, &rust_xlsxwriter::Format::new().set_bold())?;
-        sheet.write_string(r, 1, value)?;
+        sheet.write_string(r, 1, style::fit(&value))?;
         r += 1;
         Ok(())
     };
@@ -118,11 +123,22 @@ pub fn about(
         sheet.write_string(r, 0, "none")?;
         r += 1;
     }
-    for m in &results.missing_cells {
+    for m in results.missing_cells.iter().take(MISSING_LISTED) {
         sheet.write_string(r, 0, &m.address)?;
-        sheet.write_string(r, 1, &m.column)?;
+        sheet.write_string(r, 1, style::fit(&m.column))?;
         sheet.write_string(r, 2, m.kind.words())?;
         sheet.write_string(r, 3, style::fit(&m.content))?;
+        r += 1;
+    }
+    if results.missing_cells.len() > MISSING_LISTED {
+        sheet.write_string(
+            r,
+            0,
+            format!(
+                "... and {} more cells counted as missing (the first {MISSING_LISTED} are listed)",
+                results.missing_cells.len() - MISSING_LISTED
+            ),
+        )?;
         r += 1;
     }
     r += 1;

@@ -51,7 +51,7 @@ pub fn charts(
                         rounded(histogram.edges[i], 4),
                         rounded(histogram.edges[i + 1], 4)
                     );
-                    sheet.write_string(top + 1 + i as u32, 0, label)?;
+                    sheet.write_string(top + 1 + i as u32, 0, style::fit(&label))?;
                     sheet.write_number(top + 1 + i as u32, 1, *count as f64)?;
                 }
                 let last = top + histogram.counts.len() as u32;
@@ -84,7 +84,7 @@ pub fn charts(
                 }
                 for (i, (group, b)) in boxes.iter().enumerate() {
                     let r = top + 1 + i as u32;
-                    sheet.write_string(r, 0, group_label(group))?;
+                    sheet.write_string(r, 0, style::fit(&group_label(group)))?;
                     for (j, x) in [b.q1, b.whisker_high, b.whisker_low, b.median, b.q3]
                         .into_iter()
                         .enumerate()

@@ -1,15 +1,16 @@
 //! The result workbook: one sheet per panel and figures block, a robustness
-//! sheet per panel, Checks, Charts and About. Saved to a temporary file
-//! beside the target and renamed, so a crash never leaves half a workbook.
+//! sheet per panel, Checks, Charts and About. Saved through [`atomic`], so a
+//! crash never leaves half a workbook and a new target is never replaced.
 
 mod about;
+pub mod atomic;
 mod changes;
 mod charts;
+mod plan;
 mod sheets;
-mod style;
+pub(crate) mod style;
 
-use std::io::Write as _;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 use rust_xlsxwriter::{DocProperties, Workbook};
 
@@ -41,6 +42,8 @@ pub enum WriteError {
     WouldOverwriteInput(String),
     #[error("cannot write {path}: {reason}")]
     Io { path: String, reason: String },
+    #[error("the result is too large for a workbook: {0}")]
+    TooLarge(String),
     #[error("cannot build the workbook: {0}")]
     Workbook(#[from] rust_xlsxwriter::XlsxError),
 }
@@ -51,6 +54,7 @@ pub fn workbook_bytes(
     table: &Table,
     run: &RunInfo,
 ) -> Result<Vec<u8>, WriteError> {
+    plan::check(results)?;
     let mut workbook = Workbook::new();
     let mut properties = DocProperties::new().set_title(
         results
@@ -88,7 +92,7 @@ pub fn workbook_bytes(
 }
 
 /// Writes the workbook to `out`: refuses to replace a file without `force`
-/// or to touch the input; writes a temporary file first, then renames it.
+/// or to touch the input; see [`atomic`] for how it is written.
 pub fn save(
     results: &Results,
     table: &Table,
@@ -100,33 +104,9 @@ pub fn save(
     if same_file(out, Path::new(&table.source.path)) {
         return Err(WriteError::WouldOverwriteInput(shown));
     }
-    if out.exists() && !force {
-        return Err(WriteError::Exists(shown));
-    }
+    atomic::check_target(out, force)?;
     let bytes = workbook_bytes(results, table, run)?;
-    let io = |e: std::io::Error| WriteError::Io {
-        path: shown.clone(),
-        reason: e.to_string(),
-    };
-    let temporary = temporary_beside(out);
-    let result = (|| {
-        let mut file = std::fs::File::create(&temporary)?;
-        file.write_all(&bytes)?;
-        file.sync_all()?;
-        std::fs::rename(&temporary, out)
-    })();
-    if result.is_err() {
-        let _ = std::fs::remove_file(&temporary);
-    }
-    result.map_err(io)
-}
-
-fn temporary_beside(out: &Path) -> PathBuf {
-    let name = out
-        .file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_else(|| "result.xlsx".into());
-    out.with_file_name(format!(".{name}.{}.partial", std::process::id()))
+    atomic::write_file(out, &bytes, force)
 }
 
 fn same_file(a: &Path, b: &Path) -> bool {

@@ -18,25 +18,59 @@ use crate::stats::{
 #[derive(Default)]
 pub struct SheetNames(HashSet<String>);
 
+/// Sheet names a block may not take: the Record sheet, which `--compare`
+/// finds by its name, and "History", which spreadsheet programs keep for
+/// themselves.
+const RESERVED: &[&str] = &[crate::history::RECORD_SHEET, "History"];
+
+/// Most UTF-16 units in a sheet name.
+const NAME_LIMIT: usize = 31;
+
 impl SheetNames {
+    /// A free sheet name close to `wanted`: characters a sheet name cannot
+    /// hold dropped, apostrophes at either end removed, cut to 31 UTF-16
+    /// units, and numbered when taken (or reserved).
     pub fn claim(&mut self, wanted: &str) -> String {
-        let base: String = wanted
+        let cleaned: String = wanted
             .chars()
-            .filter(|c| !"[]:*?/\\".contains(*c))
-            .take(31)
+            .filter(|c| !"[]:*?/\\".contains(*c) && !c.is_control())
             .collect();
-        let mut name = base.clone();
+        let trimmed = cleaned.trim_matches(|c: char| c == '\'' || c.is_whitespace());
+        let base = if trimmed.is_empty() { "Sheet" } else { trimmed };
+        let mut name = cut_to_units(base, NAME_LIMIT);
         let mut n = 2;
-        while !self.0.insert(name.to_lowercase()) {
+        while self.is_reserved(&name) || !self.0.insert(name.to_lowercase()) {
             let suffix = format!(" {n}");
-            name = format!(
-                "{}{suffix}",
-                base.chars().take(31 - suffix.len()).collect::<String>()
-            );
+            name = cut_to_units(base, NAME_LIMIT - suffix.len()) + &suffix;
             n += 1;
         }
         name
     }
+
+    /// One of the reserved names, for the sheet it is kept for.
+    pub fn claim_reserved(&mut self, name: &str) -> String {
+        self.0.insert(name.to_lowercase());
+        name.to_string()
+    }
+
+    fn is_reserved(&self, name: &str) -> bool {
+        RESERVED.iter().any(|r| r.eq_ignore_ascii_case(name))
+    }
+}
+
+/// The longest start of `text` within `units` UTF-16 units, without an
+/// apostrophe or space at its end (a sheet name may not end in one).
+fn cut_to_units(text: &str, units: usize) -> String {
+    let mut used = 0;
+    let cut: String = text
+        .chars()
+        .take_while(|c| {
+            used += c.len_utf16();
+            used <= units
+        })
+        .collect();
+    cut.trim_end_matches(|c: char| c == '\'' || c.is_whitespace())
+        .to_string()
 }
 
 pub const PANEL_NOTE: &str = "Conventions: n counts numeric cells; missing counts blank, text and error cells. sd is the sample sd (n - 1). \
@@ -68,7 +102,7 @@ listed but raise no status: normal data show them often. Thresholds are common p
 }
 
 fn heading(sheet: &mut Worksheet, title: &str, note: &str, width: usize) -> Result<u32, XlsxError> {
-    sheet.write_string_with_format(0, 0, title, &style::title())?;
+    sheet.write_string_with_format(0, 0, style::fit(title), &style::title())?;
     let last = (width.max(8) - 1) as u16;
     sheet.merge_range(1, 0, 1, last, note, &style::note())?;
     sheet.set_row_height(1, 92)?;
@@ -165,7 +199,7 @@ fn panel_sheet(
     for (i, e) in entries.iter().enumerate() {
         let r = top + 1 + i as u32;
         write_group(sheet, r, &e.group)?;
-        sheet.write_string(r, keys.len() as u16, &e.column)?;
+        sheet.write_string(r, keys.len() as u16, style::fit(&e.column))?;
         for (j, value) in e.figures.iter().enumerate() {
             write_one(
                 sheet,
@@ -367,7 +401,7 @@ fn robustness_sheet(
         let b = &e.robustness;
         write_group(sheet, r, &e.group)?;
         let c = keys.len() as u16;
-        sheet.write_string(r, c, &e.column)?;
+        sheet.write_string(r, c, style::fit(&e.column))?;
         sheet.write_string_with_format(
             r,
             c + 1,
@@ -406,7 +440,7 @@ condition, limit the right side. A check that cannot be evaluated counts as not 
     style::table_header(sheet, top, &labels, 1)?;
     let mut r = top + 1;
     for c in &results.checks {
-        sheet.write_string(r, 0, &c.name)?;
+        sheet.write_string(r, 0, style::fit(&c.name))?;
         sheet.write_string(
             r,
             1,
@@ -416,8 +450,12 @@ condition, limit the right side. A check that cannot be evaluated counts as not 
                 "fail"
             },
         )?;
-        sheet.write_string(r, 2, group_label(c.group.as_deref().unwrap_or_default()))?;
-        sheet.write_string(r, 3, &c.condition)?;
+        sheet.write_string(
+            r,
+            2,
+            style::fit(&group_label(c.group.as_deref().unwrap_or_default())),
+        )?;
+        sheet.write_string(r, 3, style::fit(&c.condition))?;
         write_one(sheet, r, 4, &c.value, false)?;
         if let Some(limit) = &c.limit {
             write_one(sheet, r, 5, limit, false)?;
@@ -436,7 +474,7 @@ condition, limit the right side. A check that cannot be evaluated counts as not 
         sheet.write_string_with_format(r, 0, "figures without a value", &style::title())?;
         r += 1;
         for (place, reason) in undefined {
-            sheet.write_string(r, 0, &place)?;
+            sheet.write_string(r, 0, style::fit(&place))?;
             sheet.write_string_with_format(r, 3, &reason, &style::reason())?;
             r += 1;
         }
@@ -487,4 +525,39 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
         }
     }
     found
+}
+
+#[cfg(test)]
+mod name_tests {
+    use super::*;
+
+    /// Every name claimed is one a spreadsheet accepts (checked by
+    /// rust_xlsxwriter itself when the sheet is named) and none repeats.
+    #[test]
+    fn any_block_name_gives_a_valid_unique_sheet_name() {
+        let mut names = SheetNames::default();
+        let wanted = [
+            "'quoted'",
+            "'",
+            "",
+            "Record",
+            "history",
+            "a/b:c*d?[e]\\f",
+            "😀😀😀😀😀😀😀😀😀😀😀😀😀😀😀😀",
+            "x'",
+            "Record",
+            &"long name ".repeat(10),
+            &"long name ".repeat(10),
+        ];
+        let mut workbook = rust_xlsxwriter::Workbook::new();
+        let mut seen = HashSet::new();
+        for w in wanted {
+            let name = names.claim(w);
+            workbook.add_worksheet().set_name(&name).unwrap();
+            assert!(seen.insert(name.to_lowercase()), "{name} twice");
+            assert!(!name.eq_ignore_ascii_case("record") && !name.eq_ignore_ascii_case("history"));
+        }
+        assert_eq!(names.claim("'quoted'"), "quoted 2");
+        assert_eq!(names.claim_reserved(crate::history::RECORD_SHEET), "Record");
+    }
 }

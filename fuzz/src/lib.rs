@@ -1,0 +1,82 @@
+//! What the fuzz targets share: each writes the fuzzed bytes to a file of
+//! its kind in a temporary folder of its own process and hands it to sheaf
+//! as a user would, so the whole loader (file opening included) is fuzzed.
+//! Any result is fine; a panic, an abort, a leak past the memory limit or a
+//! hang is what libFuzzer reports.
+
+use std::path::{Path, PathBuf};
+use std::sync::OnceLock;
+
+use sheaf::load::{self, LoadOptions};
+
+/// This process's scratch folder (removed by the operating system's
+/// temporary-file cleaning; one per fuzzing process).
+pub fn scratch() -> &'static Path {
+    static DIR: OnceLock<PathBuf> = OnceLock::new();
+    DIR.get_or_init(|| {
+        let dir = std::env::temp_dir().join(format!("sheaf-fuzz-{}", std::process::id()));
+        std::fs::create_dir_all(&dir).expect("a scratch folder");
+        dir
+    })
+}
+
+/// Writes `bytes` to `scratch/input.ENDING` and returns the path.
+pub fn input_file(bytes: &[u8], ending: &str) -> PathBuf {
+    let path = scratch().join(format!("input.{ending}"));
+    std::fs::write(&path, bytes).expect("scratch file written");
+    path
+}
+
+/// Loads the bytes as a file with this ending, and lists its sheets, as
+/// `run` and `inspect` do.
+pub fn load_as(bytes: &[u8], ending: &str) {
+    let path = input_file(bytes, ending);
+    let _ = load::sheet_names(&path);
+    if let Ok(table) = load::load(&path, &LoadOptions::default()) {
+        for column in &table.columns {
+            let _ = column.issues();
+        }
+    }
+}
+
+/// The demo recipe, used when an input holds no recipe of its own.
+const DEMO_RECIPE: &str = include_str!("../../workbooks/depot-monthly.sheaf");
+
+/// The run path over `recipe %% csv` bytes; see the `run` target.
+pub fn run_path(bytes: &[u8]) {
+    let text = String::from_utf8_lossy(bytes);
+    let (recipe_text, data) = match text.split_once("\n%%\n") {
+        Some((recipe, data)) => (recipe.to_string(), data.as_bytes()),
+        None => (DEMO_RECIPE.to_string(), bytes),
+    };
+    let parsed = sheaf::recipe::parse_and_check(&recipe_text, None);
+    if !parsed.is_ok() {
+        return;
+    }
+    let recipe = parsed.recipe;
+    let path = input_file(data, "csv");
+    let Ok(table) = load::load(&path, &LoadOptions::default()) else {
+        return;
+    };
+    if !sheaf::recipe::check_against(&recipe, &table.headers()).is_empty() {
+        return;
+    }
+    let Ok(results) = sheaf::eval::evaluate(&recipe, &table) else {
+        return;
+    };
+    let fingerprint = sheaf::history::fingerprint(&recipe);
+    let run = sheaf::write::RunInfo {
+        recipe_path: "fuzz.sheaf".into(),
+        recipe_text,
+        run_time: "2026-11-01 09:00:00 UTC".into(),
+        version: "fuzz".into(),
+        fingerprint: fingerprint.clone(),
+        period: sheaf::history::period_of(&recipe, &path),
+        previous: None,
+        drift: sheaf::history::drift_of(&recipe),
+    };
+    let out = scratch().join("result.xlsx");
+    if sheaf::write::save(&results, &table, &run, &out, true).is_ok() {
+        let _ = sheaf::history::Record::read(&out, &fingerprint);
+    }
+}
