@@ -11,10 +11,10 @@
 //! Output is written as text: a value per row as its values separated by
 //! spaces with `_` for missing; one value as itself; a list as `[a b]`; no
 //! value as `none(reason)`. Recipe output is one entry per figures row
-//! (`group: v1, v2`) and per check (`check name group: outcome`), joined
-//! with `; `. A number written with four or more decimals matches when the
-//! result rounds to it; any other number must match exactly (up to
-//! floating-point rounding, 1e-12 relative).
+//! (`group: v1, v2`), per check (`check name group: outcome`) and per
+//! warning (`warning: text`), joined with `; `. A number written with four
+//! or more decimals matches when the result rounds to it; any other number
+//! must match exactly (up to floating-point rounding, 1e-12 relative).
 
 use std::collections::HashMap;
 
@@ -393,6 +393,11 @@ const RECIPES: &[(&str, &str)] = &[
         "let late_h = late / 60\nfigures \"F\":\n    s = sum(late_h)\n",
         "(all rows): 0.666667",
     ),
+    // A chart that cannot be drawn is said, not dropped.
+    (
+        "rows where status != \"late\"\nhistogram w per status\n",
+        "warning: histogram of w, cancelled: not drawn (no values)",
+    ),
     // Checks: overall and per group; a check that cannot be evaluated fails to pass.
     (
         "check \"heavy enough\" warn per depot: mean(w) >= 20\n",
@@ -416,8 +421,11 @@ const RECIPES: &[(&str, &str)] = &[
     ),
 ];
 
-/// (recipe, previous values by (expression, group), expected): `change`.
-const CHANGES: &[(&str, &[(&str, &str, f64)], &str)] = &[
+/// A previous period's value: (printed expression, group, value).
+type Before = (&'static str, &'static str, f64);
+
+/// (recipe, previous values, expected): `change`.
+const CHANGES: &[(&str, &[Before], &str)] = &[
     (
         "figures \"F\":\n    c = change(mean(w))\n",
         &[("mean(w)", "(all rows)", 20.0)],
@@ -557,6 +565,7 @@ fn run_recipe(
                 .unwrap_or_default()
         ));
     }
+    out.extend(results.warnings.iter().map(|w| format!("warning: {w}")));
     Ok(out.join("; "))
 }
 

@@ -70,7 +70,7 @@ fn change(scope: &Scope, arg: &Expr) -> One {
         _ => return One::Undefined("`change` needs one number per group".into()),
     };
     match scope.compare(crate::recipe::pretty::expr(arg), now) {
-        Ok(before) if before == 0.0 => One::Undefined("the previous value is zero".into()),
+        Ok(0.0) => One::Undefined("the previous value is zero".into()),
         Ok(before) => One::number((now - before).abs() / before.abs()),
         Err(why) => One::Undefined(why),
     }

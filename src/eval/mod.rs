@@ -133,6 +133,9 @@ pub struct Results {
     pub missing_cells: Vec<MissingCell>,
     /// Current values of every `change(...)` argument, for the next period.
     pub terms: Vec<Term>,
+    /// Likely mistakes that did not stop the run, each with its fix
+    /// (listed on the Checks sheet and the terminal).
+    pub warnings: Vec<String>,
 }
 
 impl Results {
@@ -363,6 +366,7 @@ pub fn evaluate_against(
         rows_skipped: Vec::new(),
         missing_cells: Vec::new(),
         terms: Vec::new(),
+        warnings: Vec::new(),
     };
     for name in columns_used(recipe) {
         if let Some(column) = table.column(&name) {
@@ -522,13 +526,19 @@ pub fn evaluate_against(
                     let group_scope =
                         Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     let sample = group_scope.sample(&column_expr(column));
-                    if let Ok(histogram) = stats::histogram(&sample, rule) {
-                        results.charts.push(Chart::Histogram {
+                    match stats::histogram(&sample, rule) {
+                        Ok(histogram) => results.charts.push(Chart::Histogram {
                             column: column.name.clone(),
                             group,
                             histogram,
                             rule: rule.word(),
-                        });
+                        }),
+                        // Not drawn, but said: a chart never goes missing in silence.
+                        Err(why) => results.warnings.push(format!(
+                            "histogram of {}, {}: not drawn ({why})",
+                            column.name,
+                            group_label(&group)
+                        )),
                     }
                 }
             }

@@ -30,6 +30,11 @@ pub struct Parameter {
     pub max_exclusive: bool,
     pub whole: bool,
     pub required: bool,
+    /// Given in percent (0 to 100): a `%` is refused, and a value between
+    /// 0 and 1 is warned about (a fraction where a percent was meant).
+    pub percent: bool,
+    /// What to write instead when the value is out of range ("" if nothing).
+    pub help: &'static str,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -57,6 +62,8 @@ const fn param(name: &'static str, min: f64, max: f64, whole: bool, required: bo
         max_exclusive: false,
         whole,
         required,
+        percent: false,
+        help: "",
     }
 }
 
@@ -91,6 +98,8 @@ const SHARE_CUT: Parameter = Parameter {
     max_exclusive: true,
     whole: false,
     required: true,
+    percent: false,
+    help: "",
 };
 const FENCE_K: Parameter = param("k", 0.0, f64::INFINITY, false, false);
 
@@ -130,12 +139,18 @@ pub const FUNCTIONS: &[Function] = &[
         ..aggregate("sd", "sample standard deviation; `population` divides by n")
     },
     Function {
-        parameters: &[param("q", 0.0, 4.0, true, true)],
+        parameters: &[Parameter {
+            help: "quartile 0 would be the smallest value and 4 the largest: write min(x) or max(x)",
+            ..param("q", 1.0, 3.0, true, true)
+        }],
         options: METHODS,
         ..aggregate("quartile", "quartile 1, 2 or 3")
     },
     Function {
-        parameters: &[param("p", 0.0, 100.0, false, true)],
+        parameters: &[Parameter {
+            percent: true,
+            ..param("p", 0.0, 100.0, false, true)
+        }],
         options: METHODS,
         ..aggregate("percentile", "p-th percentile, p from 0 to 100")
     },
