@@ -694,7 +694,7 @@ impl<'a> Checker<'a> {
             return None;
         }
         // Each kind refuses one shape of first argument.
-        let refused = match function.kind {
+        let refused = match function.kind() {
             FunctionKind::Comparison if first.shape == Shape::Rows => Some((
                 format!(
                     "`{}` compares one value per group, but this is a value per row",
@@ -717,11 +717,11 @@ impl<'a> Checker<'a> {
         }
         self.first_argument(function, &args[0], first)?;
         // A row function keeps its argument's shape; the others give one value per group.
-        let shape = match function.kind {
+        let shape = match function.kind() {
             FunctionKind::Row => first.shape,
             FunctionKind::Aggregate | FunctionKind::Comparison => Shape::One,
         };
-        let value = if function.returns == Returns::List {
+        let value = if function.returns() == Returns::List {
             Value::List
         } else {
             Value::Number
@@ -779,7 +779,7 @@ impl<'a> Checker<'a> {
     /// The first argument must be numbers, or a condition for `share`;
     /// the help names the fix for the common slips.
     fn first_argument(&mut self, function: &Function, arg: &Expr, t: Typed) -> Option<()> {
-        let wanted = if function.takes_condition {
+        let wanted = if function.takes_condition() {
             Value::Truth
         } else {
             Value::Number
