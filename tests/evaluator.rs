@@ -11,8 +11,9 @@
 //! Output is written as text: a value per row as its values separated by
 //! spaces with `_` for missing; one value as itself; a list as `[a b]`; no
 //! value as `none(reason)`. Recipe output is one entry per figures row
-//! (`group: v1, v2`), per check (`check name group: outcome`) and per
-//! warning (`warning: text`), joined with `; `. A number written with four
+//! (`group: v1, v2`), per check (`check name group: outcome`), per
+//! warning (`warning: text`) and per count of rows a `rows where` left out
+//! (`skipped n: reason`), joined with `; `. A number written with four
 //! or more decimals matches when the result rounds to it; any other number
 //! must match exactly (up to floating-point rounding, 1e-12 relative).
 
@@ -353,19 +354,41 @@ const RECIPES: &[(&str, &str)] = &[
     // rows where: narrows everything below it; an unknown condition drops the row.
     (
         "rows where status != \"cancelled\"\nfigures \"F\":\n    n = count(late)\n",
-        "(all rows): 3",
+        "(all rows): 3; skipped 1: rows where status != \"cancelled\": condition false",
     ),
     (
         "rows where w > 15\nfigures \"F\":\n    n = count(x)\n    s = sum(x)\n",
-        "(all rows): 3, 16",
+        "(all rows): 3, 16; skipped 1: rows where w > 15: condition false; skipped 1: rows where w > 15: condition could not be evaluated (missing value)",
     ),
     (
         "figures \"Before\":\n    n = count(x)\nrows where x > 3\nfigures \"After\":\n    n = count(x)\n",
-        "(all rows): 5; (all rows): 2",
+        "(all rows): 5; (all rows): 2; skipped 3: rows where x > 3: condition false",
     ),
     (
         "rows where depot == \"North\" or w > 35\nfigures \"F\":\n    s = sum(x)\n",
-        "(all rows): 8",
+        "(all rows): 8; skipped 2: rows where depot == \"North\" or w > 35: condition false",
+    ),
+    // A condition with one value keeps every row or none.
+    (
+        "rows where count(w) > 3\nfigures \"F\":\n    n = count(x)\n",
+        "(all rows): 5",
+    ),
+    (
+        "rows where count(w) > 4\nfigures \"F\":\n    n = count(x)\n",
+        "(all rows): 0; skipped 5: rows where count(w) > 4: condition false",
+    ),
+    (
+        "rows where mean(w) / 0 > 1\nfigures \"F\":\n    n = count(x)\n",
+        "(all rows): 0; skipped 5: rows where mean(w) / 0 > 1: condition could not be evaluated (missing value)",
+    ),
+    // Groups keyed by a condition and by numbers.
+    (
+        "let big = w > 15\nfigures \"F\" per big:\n    n = count(x)\n",
+        "false: 1; true: 3; (blank): 1",
+    ),
+    (
+        "figures \"F\" per k, m:\n    s = sum(x)\n",
+        "7 / 1: 1; 7 / (blank): 2; 7 / 3: 3; 7 / 4: 4; 7 / 5: 10",
     ),
     // A block's own where, and groups formed after it.
     (
@@ -379,11 +402,11 @@ const RECIPES: &[(&str, &str)] = &[
     // A let over the rows kept at its line.
     (
         "let d = w - mean(w)\nrows where depot == \"North\"\nfigures \"F\":\n    top = max(d)\n",
-        "(all rows): -15",
+        "(all rows): -15; skipped 2: rows where depot == \"North\": condition false; skipped 1: rows where depot == \"North\": condition could not be evaluated (missing value)",
     ),
     (
         "rows where depot == \"North\"\nlet d = w - mean(w)\nfigures \"F\":\n    top = max(d)\n",
-        "(all rows): 0",
+        "(all rows): 0; skipped 2: rows where depot == \"North\": condition false; skipped 1: rows where depot == \"North\": condition could not be evaluated (missing value)",
     ),
     (
         "let band = if w >= 25 then \"heavy\" else \"light\"\nfigures \"F\" per band:\n    n = count(x)\n",
@@ -396,7 +419,7 @@ const RECIPES: &[(&str, &str)] = &[
     // A chart that cannot be drawn is said, not dropped.
     (
         "rows where status != \"late\"\nhistogram w per status\n",
-        "warning: histogram of w, cancelled: not drawn (no values)",
+        "warning: histogram of w, cancelled: not drawn (no values); skipped 1: rows where status != \"late\": condition false",
     ),
     // Checks: overall and per group; a check that cannot be evaluated fails to pass.
     (
@@ -566,6 +589,12 @@ fn run_recipe(
         ));
     }
     out.extend(results.warnings.iter().map(|w| format!("warning: {w}")));
+    out.extend(
+        results
+            .rows_skipped
+            .iter()
+            .map(|(why, n)| format!("skipped {n}: {why}")),
+    );
     Ok(out.join("; "))
 }
 
