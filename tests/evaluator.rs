@@ -421,6 +421,10 @@ const RECIPES: &[(&str, &str)] = &[
         "rows where status != \"late\"\nhistogram w per status\n",
         "warning: histogram of w, cancelled: not drawn (no values); skipped 1: rows where status != \"late\": condition false",
     ),
+    (
+        "boxplot w per status\n",
+        "warning: box plot of w, cancelled: no box drawn (no values)",
+    ),
     // Checks: overall and per group; a check that cannot be evaluated fails to pass.
     (
         "check \"heavy enough\" warn per depot: mean(w) >= 20\n",
@@ -542,7 +546,17 @@ fn rows(r: &Rows) -> String {
 }
 
 fn expression(source: &str, table: &Table) -> Result<String, String> {
-    let e = recipe::parse_expression(source, Some(&table.headers()))
+    // Kinds left unknown, so that what the evaluator does with text given
+    // to an aggregate is tested too (with kinds, the checker refuses it).
+    let columns: Vec<recipe::DataColumn> = table
+        .headers()
+        .into_iter()
+        .map(|name| recipe::DataColumn {
+            name,
+            kind: recipe::DataKind::Any,
+        })
+        .collect();
+    let e = recipe::parse_expression(source, Some(&columns))
         .map_err(|d| format!("refused: {:?}", d))?;
     let lets = Default::default();
     let all: Vec<eval::Row> = (0..table.rows as eval::Row).collect();

@@ -429,8 +429,7 @@ fn inspect(file: &Path, options: LoadOptions) -> Result<ExitCode, Failure> {
 
 fn calc(expression: &str, data: &Path, options: LoadOptions) -> Result<ExitCode, Failure> {
     let table = load::load(data, &options)?;
-    let headers = table.headers();
-    let expr = recipe::parse_expression(expression, Some(&headers))
+    let expr = recipe::parse_expression(expression, Some(&data_columns(&table)))
         .map_err(|d| Failure(recipe::render_all(&d, "expression", expression)))?;
     let lets = Default::default();
     let rows: Vec<crate::eval::Row> = (0..table.rows as crate::eval::Row).collect();

@@ -548,10 +548,19 @@ pub fn evaluate_against(
                 for (group, group_rows) in groups(&scope, per)? {
                     let group_scope =
                         Scope::new(table, &lets, &group_rows).grouped(&group, &context);
-                    if let Some(summary) =
-                        panel::box_summary(&group_scope.sample(&column_expr(column)))
-                    {
-                        boxes.push((group, summary));
+                    let sample = group_scope.sample(&column_expr(column));
+                    match panel::box_summary(&sample) {
+                        Some(summary) => boxes.push((group, summary)),
+                        None => results.warnings.push(format!(
+                            "box plot of {}, {}: no box drawn ({})",
+                            column.name,
+                            group_label(&group),
+                            if sample.is_empty() {
+                                "no values"
+                            } else {
+                                "its quartiles could not be computed"
+                            }
+                        )),
                     }
                 }
                 results.charts.push(Chart::Boxplot {

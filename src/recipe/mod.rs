@@ -129,10 +129,10 @@ pub fn check_against(recipe: &Recipe, columns: &[DataColumn]) -> Vec<Diagnostic>
 }
 
 /// Parses one expression on its own (for `sheaf calc`) and checks its
-/// names and kinds against the data's headers.
+/// names and kinds against the data's columns.
 pub fn parse_expression(
     source: &str,
-    headers: Option<&[String]>,
+    columns: Option<&[DataColumn]>,
 ) -> Result<ast::Expr, Vec<Diagnostic>> {
     let parsed = syntax::with_source(source, || {
         let text = source.trim_end();
@@ -177,7 +177,7 @@ pub fn parse_expression(
             format!("this expression nests more than {MAX_DEPTH} levels deep"),
         )]);
     }
-    let problems = check::check_expression(&parsed, headers.map(untyped).as_deref());
+    let problems = check::check_expression(&parsed, columns);
     if problems.is_empty() {
         Ok(parsed)
     } else {
