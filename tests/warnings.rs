@@ -52,7 +52,7 @@ fn warnings_show_on_the_terminal_and_on_the_checks_sheet() {
 fn text_columns_used_as_numbers_refuse_the_run_with_every_problem() {
     let dir = tempfile::tempdir().unwrap();
     std::fs::write(dir.path().join("d.csv"), DATA).unwrap();
-    let recipe = "panel \"P\" of status:\nfigures \"F\":\n    s = share(weight_kg)\n    m = meen(weight_kg)\n";
+    let recipe = "rows where status != 'x'\npanel \"P\" of status:\nfigures \"F\":\n    s = share(weight_kg)\n    m = meen(weight_kg)\n    n = mean(wieght_kg)\n";
     std::fs::write(dir.path().join("r.sheaf"), recipe).unwrap();
     let out = sheaf(
         &["run", "r.sheaf", "--data", "d.csv", "--out", "o.xlsx"],
@@ -64,9 +64,30 @@ fn text_columns_used_as_numbers_refuse_the_run_with_every_problem() {
         "a panel summarises numbers, but `status` holds text",
         "`share` needs a condition here, not a number",
         "unknown function `meen`",
-        "3 problems in the recipe",
+        "strings are written in double quotes",
+        "no column named `wieght_kg`",
+        "5 problems in the recipe",
     ] {
         assert!(shown.contains(part), "{part}: {shown}");
     }
     assert!(!dir.path().join("o.xlsx").exists());
+}
+
+#[test]
+fn an_unreadable_input_line_is_reported_without_guessing_the_columns() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("d.csv"), DATA).unwrap();
+    std::fs::write(
+        dir.path().join("r.sheaf"),
+        "input sheet Deliveries\nlet x = zz * 2\n",
+    )
+    .unwrap();
+    let out = sheaf(&["validate", "r.sheaf", "--data", "d.csv"], dir.path());
+    let shown = text(&out);
+    assert_eq!(out.status.code(), Some(2), "{shown}");
+    assert!(
+        shown.contains("expected the sheet name in double quotes"),
+        "{shown}"
+    );
+    assert!(!shown.contains("no column named"), "{shown}");
 }

@@ -245,8 +245,11 @@ fn load_for(
 ) -> Result<(recipe::Recipe, Table), Failure> {
     // The `input` statement says how to read the data; the recipe is then
     // checked with the data's columns, so every problem shows at once.
-    let readable = recipe::parse(text).recipe;
-    let table = match load::load(data, &load_options(&readable)) {
+    let readable = recipe::parse(text);
+    if readable.input_unread(text) {
+        checked_recipe(recipe_path, text, None)?;
+    }
+    let table = match load::load(data, &load_options(&readable.recipe)) {
         Ok(table) => table,
         Err(e) => {
             // The recipe's own problems first, if it has any.

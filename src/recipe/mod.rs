@@ -41,6 +41,16 @@ impl Parsed {
     pub fn is_ok(&self) -> bool {
         self.diagnostics.is_empty()
     }
+
+    /// Whether an `input` line could not be read: the data's sheet and
+    /// header row are then unknown, and reading the data would check the
+    /// recipe against the wrong columns.
+    pub fn input_unread(&self, source: &str) -> bool {
+        unread_lines(source, &self.diagnostics).any(|line| {
+            line.strip_prefix("input")
+                .is_some_and(|rest| rest.is_empty() || rest.starts_with([' ', '\t']))
+        })
+    }
 }
 
 /// Parses recipe text; reports every line that could not be read.
@@ -100,16 +110,23 @@ pub fn parse_and_check_columns(source: &str, columns: Option<&[DataColumn]>) -> 
     parsed
 }
 
+/// The lines that errors point into.
+fn unread_lines<'s>(
+    source: &'s str,
+    diagnostics: &'s [Diagnostic],
+) -> impl Iterator<Item = &'s str> {
+    diagnostics.iter().filter_map(|d| {
+        let at = d.span.start.min(source.len());
+        let start = source[..at].rfind('\n').map_or(0, |i| i + 1);
+        source[start..].lines().next()
+    })
+}
+
 /// Names of `let`s on lines that could not be read: their later uses are
 /// not reported as unknown columns too.
 fn unread_lets(source: &str, diagnostics: &[Diagnostic]) -> Vec<String> {
-    diagnostics
-        .iter()
-        .filter_map(|d| {
-            let start = source[..d.span.start.min(source.len())]
-                .rfind('\n')
-                .map_or(0, |i| i + 1);
-            let line = source[start..].lines().next()?;
+    unread_lines(source, diagnostics)
+        .filter_map(|line| {
             let name = line.strip_prefix("let ")?.trim_start();
             let end = name
                 .find(|c: char| !(c.is_ascii_alphanumeric() || c == '_'))
