@@ -183,13 +183,9 @@ impl<'a> Checker<'a> {
                     per,
                     filter,
                 } => {
-                    self.block_name(name, &mut blocks);
+                    self.block_header(name, &mut blocks, per, filter);
                     for c in columns {
                         self.number_column(c, "a panel");
-                    }
-                    self.columns(per);
-                    if let Some(f) = filter {
-                        self.condition(f, "`where`");
                     }
                 }
                 StatementKind::Figures {
@@ -198,11 +194,7 @@ impl<'a> Checker<'a> {
                     filter,
                     figures,
                 } => {
-                    self.block_name(name, &mut blocks);
-                    self.columns(per);
-                    if let Some(f) = filter {
-                        self.condition(f, "`where`");
-                    }
+                    self.block_header(name, &mut blocks, per, filter);
                     self.figures(figures);
                 }
                 StatementKind::Check {
@@ -210,37 +202,12 @@ impl<'a> Checker<'a> {
                     per,
                     condition,
                     ..
-                } => {
-                    if !checks.insert(name.value.clone()) {
-                        self.report(
-                            name.span,
-                            format!("a second check named \"{}\"", name.value),
-                            Some("give each check its own name".into()),
-                        );
-                    }
-                    self.columns(per);
-                    self.check_condition(condition);
-                }
+                } => self.check_statement(name, &mut checks, per, condition),
                 StatementKind::Histogram { column, per, bins } => {
                     self.number_column(column, "a histogram");
                     self.columns(per);
-                    if let Some(Spanned {
-                        value: Bins::Rule(rule),
-                        span,
-                    }) = bins
-                        && !BIN_RULES.contains(&rule.as_str())
-                    {
-                        let help = match closest(rule, BIN_RULES.iter().copied()) {
-                            Some(s) => format!(
-                                "did you mean `{s}`? rules are {}, or give a number of bins",
-                                BIN_RULES.join(", ")
-                            ),
-                            None => format!(
-                                "rules are {}, or give a number of bins",
-                                BIN_RULES.join(", ")
-                            ),
-                        };
-                        self.report(*span, format!("unknown bin rule `{rule}`"), Some(help));
+                    if let Some(bins) = bins {
+                        self.bin_rule(bins);
                     }
                 }
                 StatementKind::Boxplot { column, per } => {
@@ -249,6 +216,60 @@ impl<'a> Checker<'a> {
                 }
             }
         }
+    }
+
+    /// A check's name (one per recipe), groups and condition.
+    fn check_statement(
+        &mut self,
+        name: &Spanned<String>,
+        checks: &mut HashSet<String>,
+        per: &[ColumnRef],
+        condition: &Expr,
+    ) {
+        if !checks.insert(name.value.clone()) {
+            self.report(
+                name.span,
+                format!("a second check named \"{}\"", name.value),
+                Some("give each check its own name".into()),
+            );
+        }
+        self.columns(per);
+        self.check_condition(condition);
+    }
+
+    /// A panel's or figures block's name, groups and filter.
+    fn block_header(
+        &mut self,
+        name: &Spanned<String>,
+        blocks: &mut HashSet<String>,
+        per: &[ColumnRef],
+        filter: &Option<Expr>,
+    ) {
+        self.block_name(name, blocks);
+        self.columns(per);
+        if let Some(f) = filter {
+            self.condition(f, "`where`");
+        }
+    }
+
+    fn bin_rule(&mut self, bins: &Spanned<Bins>) {
+        let Bins::Rule(rule) = &bins.value else {
+            return;
+        };
+        if BIN_RULES.contains(&rule.as_str()) {
+            return;
+        }
+        let help = match closest(rule, BIN_RULES.iter().copied()) {
+            Some(s) => format!(
+                "did you mean `{s}`? rules are {}, or give a number of bins",
+                BIN_RULES.join(", ")
+            ),
+            None => format!(
+                "rules are {}, or give a number of bins",
+                BIN_RULES.join(", ")
+            ),
+        };
+        self.report(bins.span, format!("unknown bin rule `{rule}`"), Some(help));
     }
 
     /// `drift 5` is a change of 500%: a bare number of 1 or more is
@@ -589,46 +610,55 @@ impl<'a> Checker<'a> {
                 condition,
                 then,
                 otherwise,
-            } => {
-                let c = self.expr(condition);
-                let (t, o) = (self.expr(then), self.expr(otherwise));
-                let (c, t, o) = (c?, t?, o?);
-                self.operand(condition, c, Value::Truth, "`if`")?;
-                for (branch, typed) in [(then, t), (otherwise, o)] {
-                    if typed.value == Value::List {
-                        self.list_misused(branch);
-                        return None;
-                    }
-                }
-                let value = if t.value == o.value {
-                    t.value
-                } else if t.value == Value::Unknown {
-                    o.value
-                } else if o.value == Value::Unknown {
-                    t.value
-                } else {
-                    self.report(
-                        e.span,
-                        format!(
-                            "the two branches of `if` give different kinds of value ({} and {})",
-                            noun(t.value),
-                            noun(o.value)
-                        ),
-                        Some("make both branches numbers, or both text".into()),
-                    );
-                    return None;
-                };
-                Some(Typed {
-                    shape: if c.merge_shape(t) == Shape::Rows || o.shape == Shape::Rows {
-                        Shape::Rows
-                    } else {
-                        Shape::One
-                    },
-                    value,
-                })
-            }
+            } => self.if_expr(e, condition, then, otherwise),
             ExprKind::Call { function, args } => self.call(function, args, e.span),
         }
+    }
+
+    /// `if C then A else B`: a condition, and branches of one kind.
+    fn if_expr(
+        &mut self,
+        e: &Expr,
+        condition: &Expr,
+        then: &Expr,
+        otherwise: &Expr,
+    ) -> Option<Typed> {
+        let c = self.expr(condition);
+        let (t, o) = (self.expr(then), self.expr(otherwise));
+        let (c, t, o) = (c?, t?, o?);
+        self.operand(condition, c, Value::Truth, "`if`")?;
+        for (branch, typed) in [(then, t), (otherwise, o)] {
+            if typed.value == Value::List {
+                self.list_misused(branch);
+                return None;
+            }
+        }
+        let value = if t.value == o.value {
+            t.value
+        } else if t.value == Value::Unknown {
+            o.value
+        } else if o.value == Value::Unknown {
+            t.value
+        } else {
+            self.report(
+                e.span,
+                format!(
+                    "the two branches of `if` give different kinds of value ({} and {})",
+                    noun(t.value),
+                    noun(o.value)
+                ),
+                Some("make both branches numbers, or both text".into()),
+            );
+            return None;
+        };
+        Some(Typed {
+            shape: if c.merge_shape(t) == Shape::Rows || o.shape == Shape::Rows {
+                Shape::Rows
+            } else {
+                Shape::One
+            },
+            value,
+        })
     }
 
     /// Checks that an operand has the kind of value an operator needs.
@@ -903,35 +933,8 @@ impl<'a> Checker<'a> {
         let Some((value, percent)) = literal_value(arg) else {
             return true;
         };
-        if parameter.percent && percent {
-            self.report(
-                arg.span,
-                format!(
-                    "the `{}` of `{}` is written as a number from 0 to 100, without `%`",
-                    parameter.name, function.name
-                ),
-                Some(format!(
-                    "write {}(x, {})",
-                    function.name,
-                    crate::format::shortest(value * 100.0)
-                )),
-            );
+        if !self.percent_slips(function, parameter, arg, value, percent) {
             return false;
-        }
-        if parameter.percent && value > 0.0 && value < 1.0 {
-            let shown = crate::format::shortest(value);
-            self.warnings.push(
-                Diagnostic::warning(
-                    arg.span,
-                    format!("`{}` takes a percent: {shown} means the {shown}th percentile, below the 1st", function.name),
-                )
-                .with_help(format!(
-                    "for the {}th percentile write {}(x, {})",
-                    crate::format::shortest(value * 100.0),
-                    function.name,
-                    crate::format::shortest(value * 100.0)
-                )),
-            );
         }
         let too_high = if parameter.max_exclusive {
             value >= parameter.max
@@ -960,6 +963,52 @@ impl<'a> Checker<'a> {
                 (!parameter.help.is_empty()).then(|| parameter.help.to_string()),
             );
             return false;
+        }
+        true
+    }
+    /// A percent parameter written with `%` is refused; one between 0 and
+    /// 1 is warned about (a fraction where a percent was meant). False
+    /// when refused.
+    fn percent_slips(
+        &mut self,
+        function: &Function,
+        parameter: &Parameter,
+        arg: &Expr,
+        value: f64,
+        percent: bool,
+    ) -> bool {
+        if !parameter.percent {
+            return true;
+        }
+        if percent {
+            self.report(
+                arg.span,
+                format!(
+                    "the `{}` of `{}` is written as a number from 0 to 100, without `%`",
+                    parameter.name, function.name
+                ),
+                Some(format!(
+                    "write {}(x, {})",
+                    function.name,
+                    crate::format::shortest(value * 100.0)
+                )),
+            );
+            return false;
+        }
+        if value > 0.0 && value < 1.0 {
+            let shown = crate::format::shortest(value);
+            self.warnings.push(
+                Diagnostic::warning(
+                    arg.span,
+                    format!("`{}` takes a percent: {shown} means the {shown}th percentile, below the 1st", function.name),
+                )
+                .with_help(format!(
+                    "for the {}th percentile write {}(x, {})",
+                    crate::format::shortest(value * 100.0),
+                    function.name,
+                    crate::format::shortest(value * 100.0)
+                )),
+            );
         }
         true
     }
