@@ -470,6 +470,23 @@ const RECIPES: &[(&str, &str)] = &[
         "boxplot w per status\n",
         "warning: box plot of w, cancelled: no box drawn (no values)",
     ),
+    // The standard panel's figures, in the order of PANEL_LABELS: n,
+    // missing, mean, sd, min, Q1, median, Q3, max, range, IQR, modes, mode
+    // basis, skewness g1, Bowley, kurtosis b2, low and high outliers.
+    // Moments checked with exact fractions.
+    (
+        "panel \"P\" of x:\n",
+        "(all rows) x: 5, 0, 4, 3.535534, 1, 2, 3, 4, 10, 9, 2, [1 2 3 4 10], exact values, 1.138420, 0, 2.788, 0, 1",
+    ),
+    (
+        "let h = y / 2\npanel \"P\" of h:\n",
+        "(all rows) h: 5, 0, 3.5, 3.674235, 1, 2, 2, 2.5, 10, 9, 0.5, [1.875], binned, 4 equal bins (Sturges), 1.415795, 1, 3.146862, 1, 1",
+    ),
+    (
+        "panel \"P\" of w per status where status != \"late\":\n",
+        "done w: 3, 0, 23.333333, 15.275252, 10, 15, 20, 30, 40, 30, 15, [10 20 40], exact values, 0.381802, 0.333333, 1.5, 0, 0; \
+         cancelled w: 0, 1, none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values)",
+    ),
     // Checks: overall and per group; a check that cannot be evaluated fails to pass.
     (
         "check \"heavy enough\" warn per depot: mean(w) >= 20\n",
@@ -624,14 +641,27 @@ fn run_recipe(
         eval::evaluate_against(&parsed.recipe, table, previous).map_err(|e| e.to_string())?;
     let mut out = Vec::new();
     for block in &results.blocks {
-        if let Block::Figures { rows, .. } = block {
-            for row in rows {
-                let values: Vec<String> = row.values.iter().map(one).collect();
-                out.push(format!(
-                    "{}: {}",
-                    eval::group_label(&row.group),
-                    values.join(", ")
-                ));
+        match block {
+            Block::Figures { rows, .. } => {
+                for row in rows {
+                    let values: Vec<String> = row.values.iter().map(one).collect();
+                    out.push(format!(
+                        "{}: {}",
+                        eval::group_label(&row.group),
+                        values.join(", ")
+                    ));
+                }
+            }
+            Block::Panel { entries, .. } => {
+                for e in entries {
+                    let values: Vec<String> = e.figures.iter().map(one).collect();
+                    out.push(format!(
+                        "{} {}: {}",
+                        eval::group_label(&e.group),
+                        e.column,
+                        values.join(", ")
+                    ));
+                }
             }
         }
     }
