@@ -551,6 +551,31 @@ const CASES: &[(&str, bool, &str, usize, usize)] = &[
     ),
 ];
 
+/// None when `found` has a diagnostic whose message or help contains
+/// `message` at `at` (line, column); else what was found instead.
+fn missing_from(
+    found: &[recipe::Diagnostic],
+    source: &str,
+    message: &str,
+    at: (usize, usize),
+) -> Option<String> {
+    let hit = found.iter().find(|d| {
+        d.message.contains(message) || d.help.as_deref().is_some_and(|h| h.contains(message))
+    });
+    match hit {
+        Some(d) if d.line_column(source) == at => None,
+        _ => Some(format!(
+            "{source:?}: wanted {message:?} at {}:{}, got {:?}",
+            at.0,
+            at.1,
+            found
+                .iter()
+                .map(|d| (d.message.clone(), d.line_column(source)))
+                .collect::<Vec<_>>()
+        )),
+    }
+}
+
 #[test]
 fn every_malformed_recipe_is_refused_where_and_how_expected() {
     assert!(CASES.len() >= 40);
@@ -558,19 +583,9 @@ fn every_malformed_recipe_is_refused_where_and_how_expected() {
     let mut wrong = Vec::new();
     for (source, with_headers, message, line, column) in CASES {
         let parsed = recipe::parse_and_check(source, with_headers.then_some(&headers[..]));
-        let found = parsed.diagnostics.iter().find(|d| {
-            d.message.contains(message) || d.help.as_deref().is_some_and(|h| h.contains(message))
-        });
-        match found {
-            Some(d) if d.line_column(source) == (*line, *column) => {}
-            _ => wrong.push(format!(
-                "{source:?}: wanted {message:?} at {line}:{column}, got {:?}",
-                parsed
-                    .diagnostics
-                    .iter()
-                    .map(|d| (d.message.clone(), d.line_column(source)))
-                    .collect::<Vec<_>>()
-            )),
+        if let Some(problem) = missing_from(&parsed.diagnostics, source, message, (*line, *column))
+        {
+            wrong.push(problem);
         }
     }
     assert!(
@@ -669,15 +684,9 @@ fn mistakes_seen_with_the_columns_kinds_are_refused() {
     let mut wrong = Vec::new();
     for (source, message, line, column) in TYPED_CASES {
         let parsed = recipe::parse_and_check_columns(source, Some(&columns));
-        let found = parsed.diagnostics.iter().find(|d| {
-            d.message.contains(message) || d.help.as_deref().is_some_and(|h| h.contains(message))
-        });
-        match found {
-            Some(d) if d.line_column(source) == (*line, *column) => {}
-            _ => wrong.push(format!(
-                "{source:?}: wanted {message:?} at {line}:{column}, got {:?}",
-                parsed.diagnostics
-            )),
+        if let Some(problem) = missing_from(&parsed.diagnostics, source, message, (*line, *column))
+        {
+            wrong.push(problem);
         }
     }
     assert!(wrong.is_empty(), "{}", wrong.join("\n"));
@@ -727,15 +736,9 @@ fn likely_mistakes_are_warned_about_with_the_fix() {
     let mut wrong = Vec::new();
     for (source, message, line, column) in WARNINGS {
         let parsed = recipe::parse_and_check(source, None);
-        let found = parsed.warnings.iter().find(|d| {
-            d.message.contains(message) || d.help.as_deref().is_some_and(|h| h.contains(message))
-        });
-        match found {
-            Some(d) if parsed.is_ok() && d.line_column(source) == (*line, *column) => {}
-            _ => wrong.push(format!(
-                "{source:?}: wanted {message:?} at {line}:{column}, got {:?} {:?}",
-                parsed.warnings, parsed.diagnostics
-            )),
+        assert!(parsed.is_ok(), "{source:?}: {:?}", parsed.diagnostics);
+        if let Some(problem) = missing_from(&parsed.warnings, source, message, (*line, *column)) {
+            wrong.push(problem);
         }
     }
     assert!(wrong.is_empty(), "{}", wrong.join("\n"));
