@@ -149,12 +149,12 @@ fn aggregate(
     let m = method(word);
     let k = params.first().copied();
     let list = |v: Stat<Vec<f64>>| v.map_or_else(|e| One::Undefined(e.to_string()), One::List);
-    let denominator = if word == Some("population") {
+    let denominator = if word == Some(functions::POPULATION) {
         Denominator::Population
     } else {
         Denominator::Sample
     };
-    let adjusted = word == Some("adjusted");
+    let adjusted = word == Some(functions::ADJUSTED);
     match a {
         Aggregate::Count => One::Number(s.count() as f64),
         Aggregate::Missing => One::Number(s.missing() as f64),
@@ -180,7 +180,7 @@ fn aggregate(
         Aggregate::Kurtosis => from_stat(s.kurtosis(adjusted)),
         Aggregate::ExcessKurtosis => from_stat(s.excess_kurtosis(adjusted)),
         Aggregate::Bowley => from_stat(stats::bowley(&s, m)),
-        Aggregate::Mad => from_stat(stats::mad(&s, word == Some("scaled"))),
+        Aggregate::Mad => from_stat(stats::mad(&s, word == Some(functions::SCALED))),
         Aggregate::TrimmedMean => from_stat(stats::trimmed_mean(&s, k.unwrap_or(0.0))),
         Aggregate::WinsorizedMean => from_stat(stats::winsorized_mean(&s, k.unwrap_or(0.0))),
         Aggregate::Outliers => {

@@ -110,6 +110,12 @@ pub struct Function {
     pub summary: &'static str,
 }
 
+/// Option words the evaluator reads (the quantile methods are read by
+/// `QuantileMethod::from_word`).
+pub const POPULATION: &str = "population";
+pub const ADJUSTED: &str = "adjusted";
+pub const SCALED: &str = "scaled";
+
 const METHODS: &[&str] = &[
     "hf1", "hf2", "hf3", "hf4", "hf5", "hf6", "hf7", "hf8", "hf9", "hinges",
 ];
@@ -192,7 +198,7 @@ pub const FUNCTIONS: &[Function] = &[
         )
     },
     Function {
-        options: &["population"],
+        options: &[POPULATION],
         ..aggregate(
             "variance",
             Aggregate::Variance,
@@ -200,7 +206,7 @@ pub const FUNCTIONS: &[Function] = &[
         )
     },
     Function {
-        options: &["population"],
+        options: &[POPULATION],
         ..aggregate(
             "sd",
             Aggregate::Sd,
@@ -232,7 +238,7 @@ pub const FUNCTIONS: &[Function] = &[
         ..aggregate("iqr", Aggregate::Iqr, "Q3 - Q1")
     },
     Function {
-        options: &["adjusted"],
+        options: &[ADJUSTED],
         ..aggregate(
             "skewness",
             Aggregate::Skewness,
@@ -240,7 +246,7 @@ pub const FUNCTIONS: &[Function] = &[
         )
     },
     Function {
-        options: &["adjusted"],
+        options: &[ADJUSTED],
         ..aggregate(
             "kurtosis",
             Aggregate::Kurtosis,
@@ -248,7 +254,7 @@ pub const FUNCTIONS: &[Function] = &[
         )
     },
     Function {
-        options: &["adjusted"],
+        options: &[ADJUSTED],
         ..aggregate(
             "excess_kurtosis",
             Aggregate::ExcessKurtosis,
@@ -260,7 +266,7 @@ pub const FUNCTIONS: &[Function] = &[
         ..aggregate("bowley", Aggregate::Bowley, "Bowley's quartile skewness")
     },
     Function {
-        options: &["scaled"],
+        options: &[SCALED],
         ..aggregate(
             "mad",
             Aggregate::Mad,
