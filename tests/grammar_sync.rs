@@ -111,7 +111,7 @@ fn grammar_word_lists_match_the_parser() {
     let names = |kind| {
         FUNCTIONS
             .iter()
-            .filter(|f| f.kind == kind)
+            .filter(|f| f.kind() == kind)
             .map(|f| f.name.to_string())
             .collect::<Vec<_>>()
     };

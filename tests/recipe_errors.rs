@@ -273,10 +273,54 @@ const CASES: &[(&str, bool, &str, usize, usize)] = &[
     (
         "let x = quartile(weight_kg, 1.5)\n",
         false,
-        "a whole number from 0 to 4",
+        "a whole number from 1 to 3",
         1,
         29,
     ),
+    (
+        "let x = quartile(weight_kg, 4)\n",
+        false,
+        "write min(x) or max(x)",
+        1,
+        29,
+    ),
+    (
+        "let x = percentile(weight_kg, 30, hinges)\n",
+        false,
+        "Tukey's hinges give only the quartiles, not the 30th percentile",
+        1,
+        31,
+    ),
+    (
+        "rows where status != 'cancelled'\n",
+        false,
+        "strings are written in double quotes",
+        1,
+        22,
+    ),
+    (
+        "rows where status != 'cancelled'\n",
+        false,
+        "write \"cancelled\"",
+        1,
+        22,
+    ),
+    (
+        "let w = Weight (mg)\n",
+        false,
+        "if `Weight (mg)` is a column, write it in braces, {Weight (mg)}",
+        1,
+        9,
+    ),
+    (
+        "drift 5\n",
+        false,
+        "`drift 5` would flag only changes of 500% or more",
+        1,
+        7,
+    ),
+    ("drift 5\n", false, "write `drift 5%`", 1, 7),
+    ("drift 0\n", false, "must be above 0", 1, 7),
     (
         "let x = binned_mode(weight_kg, 0)\n",
         false,
@@ -507,6 +551,31 @@ const CASES: &[(&str, bool, &str, usize, usize)] = &[
     ),
 ];
 
+/// None when `found` has a diagnostic whose message or help contains
+/// `message` at `at` (line, column); else what was found instead.
+fn missing_from(
+    found: &[recipe::Diagnostic],
+    source: &str,
+    message: &str,
+    at: (usize, usize),
+) -> Option<String> {
+    let hit = found.iter().find(|d| {
+        d.message.contains(message) || d.help.as_deref().is_some_and(|h| h.contains(message))
+    });
+    match hit {
+        Some(d) if d.line_column(source) == at => None,
+        _ => Some(format!(
+            "{source:?}: wanted {message:?} at {}:{}, got {:?}",
+            at.0,
+            at.1,
+            found
+                .iter()
+                .map(|d| (d.message.clone(), d.line_column(source)))
+                .collect::<Vec<_>>()
+        )),
+    }
+}
+
 #[test]
 fn every_malformed_recipe_is_refused_where_and_how_expected() {
     assert!(CASES.len() >= 40);
@@ -514,19 +583,9 @@ fn every_malformed_recipe_is_refused_where_and_how_expected() {
     let mut wrong = Vec::new();
     for (source, with_headers, message, line, column) in CASES {
         let parsed = recipe::parse_and_check(source, with_headers.then_some(&headers[..]));
-        let found = parsed.diagnostics.iter().find(|d| {
-            d.message.contains(message) || d.help.as_deref().is_some_and(|h| h.contains(message))
-        });
-        match found {
-            Some(d) if d.line_column(source) == (*line, *column) => {}
-            _ => wrong.push(format!(
-                "{source:?}: wanted {message:?} at {line}:{column}, got {:?}",
-                parsed
-                    .diagnostics
-                    .iter()
-                    .map(|d| (d.message.clone(), d.line_column(source)))
-                    .collect::<Vec<_>>()
-            )),
+        if let Some(problem) = missing_from(&parsed.diagnostics, source, message, (*line, *column))
+        {
+            wrong.push(problem);
         }
     }
     assert!(
@@ -535,6 +594,189 @@ fn every_malformed_recipe_is_refused_where_and_how_expected() {
         wrong.len(),
         CASES.len(),
         wrong.join("\n")
+    );
+}
+
+/// Columns with their kinds, as a loaded table gives them.
+fn typed_columns() -> Vec<recipe::DataColumn> {
+    use recipe::DataKind::*;
+    [
+        ("Minutes late", Numbers),
+        ("weight_kg", Numbers),
+        ("status", Text),
+        ("depot", Text),
+        ("Weight (mg)", Numbers),
+        ("flag", Any),
+    ]
+    .into_iter()
+    .map(|(name, kind)| recipe::DataColumn {
+        name: name.into(),
+        kind,
+    })
+    .collect()
+}
+
+/// Mistakes seen only with the data's columns: text where numbers are
+/// needed, a number where a condition is. (recipe, part of the message or
+/// help, line, column)
+const TYPED_CASES: &[(&str, &str, usize, usize)] = &[
+    (
+        "let x = share(weight_kg)\n",
+        "`share` needs a condition here, not a number",
+        1,
+        15,
+    ),
+    (
+        "let x = share(weight_kg)\n",
+        "write share(weight_kg > 0)",
+        1,
+        15,
+    ),
+    (
+        "let x = mean(status)\n",
+        "`mean` needs a number here, not a text",
+        1,
+        14,
+    ),
+    ("let x = count(depot)\n", "share(depot == \"...\")", 1, 15),
+    (
+        "panel \"P\" of weight_kg, status:\n",
+        "a panel summarises numbers, but `status` holds text",
+        1,
+        25,
+    ),
+    ("panel \"P\" of status:\n", "write `per status`", 1, 14),
+    (
+        "histogram status per depot\n",
+        "a histogram summarises numbers, but `status` holds text",
+        1,
+        11,
+    ),
+    (
+        "boxplot depot\n",
+        "a box plot summarises numbers, but `depot` holds text",
+        1,
+        9,
+    ),
+    (
+        "rows where status > 3\n",
+        "`>` needs a number here, not a text",
+        1,
+        12,
+    ),
+    (
+        "let x = status * 2\n",
+        "`*` needs a number here, not a text",
+        1,
+        9,
+    ),
+    (
+        "let w = Weight (mg)\n",
+        "`Weight (mg)` is a column: write it in braces, {Weight (mg)}",
+        1,
+        9,
+    ),
+];
+
+#[test]
+fn mistakes_seen_with_the_columns_kinds_are_refused() {
+    let columns = typed_columns();
+    let mut wrong = Vec::new();
+    for (source, message, line, column) in TYPED_CASES {
+        let parsed = recipe::parse_and_check_columns(source, Some(&columns));
+        if let Some(problem) = missing_from(&parsed.diagnostics, source, message, (*line, *column))
+        {
+            wrong.push(problem);
+        }
+    }
+    assert!(wrong.is_empty(), "{}", wrong.join("\n"));
+    // Columns of unknown kind (true/false, empty) and text used as text are fine.
+    for fine in [
+        "let x = share(flag)\n",
+        "let x = mean(flag)\n",
+        "rows where status != \"cancelled\"\nfigures \"F\" per depot:\n    s = share(status == \"done\")\n",
+        "panel \"P\" of weight_kg, {Weight (mg)} per status, depot:\n",
+    ] {
+        let parsed = recipe::parse_and_check_columns(fine, Some(&columns));
+        assert!(parsed.is_ok(), "{fine:?}: {:?}", parsed.diagnostics);
+    }
+}
+
+/// Likely mistakes that run but are warned about: (recipe, part of the
+/// message or help, line, column).
+const WARNINGS: &[(&str, &str, usize, usize)] = &[
+    (
+        "let x = percentile(weight_kg, 0.95)\n",
+        "`percentile` takes a percent: 0.95 means the 0.95th percentile",
+        1,
+        31,
+    ),
+    (
+        "let x = percentile(weight_kg, 0.95)\n",
+        "write percentile(x, 95)",
+        1,
+        31,
+    ),
+    (
+        "figures \"F\":\n    m = mean(weight_kg)\nrows where weight_kg > 0\n",
+        "this `rows where` comes after every block, check and chart, so it narrows nothing",
+        3,
+        1,
+    ),
+    (
+        "rows where weight_kg > 0\nfigures \"F\":\n    m = mean(weight_kg)\nlet y = 2\nrows where depot == \"x\"\n",
+        "move it above the blocks it is for",
+        5,
+        1,
+    ),
+];
+
+#[test]
+fn likely_mistakes_are_warned_about_with_the_fix() {
+    let mut wrong = Vec::new();
+    for (source, message, line, column) in WARNINGS {
+        let parsed = recipe::parse_and_check(source, None);
+        assert!(parsed.is_ok(), "{source:?}: {:?}", parsed.diagnostics);
+        if let Some(problem) = missing_from(&parsed.warnings, source, message, (*line, *column)) {
+            wrong.push(problem);
+        }
+    }
+    assert!(wrong.is_empty(), "{}", wrong.join("\n"));
+    // Fine as written: no warning.
+    for fine in [
+        "let x = percentile(weight_kg, 1)\nlet y = percentile(weight_kg, 0)\n",
+        "rows where weight_kg > 0\nfigures \"F\":\n    m = mean(weight_kg)\n",
+        "let x = percentile(weight_kg, 95)\n",
+        "drift 0.15\ndrift 15%\n",
+    ] {
+        assert!(
+            recipe::parse_and_check(fine, None).warnings.is_empty(),
+            "{fine:?}"
+        );
+    }
+}
+
+#[test]
+fn syntax_name_and_column_errors_come_in_one_pass() {
+    let source = "let a = (weight_kg\nlet b = meen(weight_kg)\nlet c = wieght_kg + a\nlet d = mean(status)\n";
+    let parsed = recipe::parse_and_check_columns(source, Some(&typed_columns()));
+    let found: Vec<(usize, &str)> = parsed
+        .diagnostics
+        .iter()
+        .map(|d| (d.line_column(source).0, d.message.as_str()))
+        .collect();
+    assert_eq!(
+        found,
+        [
+            (
+                1,
+                "expected `)` to close the `(`, found the end of the line"
+            ),
+            (2, "unknown function `meen`"),
+            (3, "no column named `wieght_kg`"),
+            (4, "`mean` needs a number here, not a text"),
+        ],
+        "the unread `let a` is not reported again where it is used"
     );
 }
 

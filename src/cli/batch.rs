@@ -9,7 +9,8 @@ use indicatif::{ProgressBar, ProgressStyle};
 use rayon::prelude::*;
 
 use super::{
-    Failure, check_headers, checked_recipe, default_out, load_options, read_recipe, run_info,
+    Failure, check_headers, checked_recipe, default_out, load_options, read_recipe,
+    recipe_warnings, run_info,
 };
 use crate::eval::{self, Results};
 use crate::history::{self, Record};
@@ -56,6 +57,7 @@ pub fn run(
     };
     let text = read_recipe(recipe_path)?;
     let syntax = checked_recipe(recipe_path, &text, None)?;
+    let warnings = recipe_warnings(recipe_path, &text);
     let mut paths: Vec<PathBuf> = glob::glob(pattern)
         .map_err(|e| Failure(format!("--data '{pattern}': {e}")))?
         .filter_map(Result::ok)
@@ -87,8 +89,9 @@ pub fn run(
         .par_iter()
         .map(|path| {
             let result = one_file(recipe_path, &text, &syntax, path).and_then(|(recipe, table)| {
-                let results = eval::evaluate(&recipe, &table)
+                let mut results = eval::evaluate(&recipe, &table)
                     .map_err(|e| format!("{}: {e}", path.display()))?;
+                results.warnings.extend(warnings.iter().cloned());
                 let period = history::period_of(&recipe, path).map_or_else(
                     || {
                         path.file_stem()

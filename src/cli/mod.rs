@@ -160,22 +160,61 @@ fn read_recipe(path: &Path) -> Result<String, Failure> {
         .map_err(|e| Failure(format!("{}: cannot read the recipe: {e}", path.display())))
 }
 
-/// Parses and checks a recipe; with a table, checks its columns too.
+/// Parses and checks a recipe in one pass; with the data's columns, checks
+/// them too. Warnings are shown on standard error.
 fn checked_recipe(
     path: &Path,
     text: &str,
-    headers: Option<&[String]>,
+    columns: Option<&[recipe::DataColumn]>,
 ) -> Result<recipe::Recipe, Failure> {
-    let parsed = recipe::parse_and_check(text, headers);
-    if parsed.is_ok() {
-        return Ok(parsed.recipe);
+    let parsed = recipe::parse_and_check_columns(text, columns);
+    if !parsed.is_ok() {
+        let all: Vec<_> = parsed
+            .diagnostics
+            .into_iter()
+            .chain(parsed.warnings)
+            .collect();
+        return Err(recipe_failure(path, text, &all));
     }
-    Err(recipe_failure(path, text, &parsed.diagnostics))
+    if !parsed.warnings.is_empty() {
+        let file = path.display().to_string();
+        eprintln!("{}", recipe::render_all(&parsed.warnings, &file, text));
+    }
+    Ok(parsed.recipe)
 }
 
-/// The recipe's problems, rendered against its text.
+/// The recipe's warnings, one line each, for the Checks sheet.
+fn recipe_warnings(path: &Path, text: &str) -> Vec<String> {
+    recipe::parse_and_check(text, None)
+        .warnings
+        .iter()
+        .map(|w| format!("{}: {}", path.display(), w.one_line(text)))
+        .collect()
+}
+
+/// The data's headers with the kind of value each column holds.
+fn data_columns(table: &Table) -> Vec<recipe::DataColumn> {
+    use crate::load::ColumnKind;
+    table
+        .columns
+        .iter()
+        .map(|c| recipe::DataColumn {
+            name: c.name.clone(),
+            kind: match c.kind {
+                ColumnKind::Number | ColumnKind::Date => recipe::DataKind::Numbers,
+                ColumnKind::Text => recipe::DataKind::Text,
+                ColumnKind::Bool | ColumnKind::Empty => recipe::DataKind::Any,
+            },
+        })
+        .collect()
+}
+
+/// The recipe's problems (and warnings), rendered against its text.
 fn recipe_failure(path: &Path, text: &str, diagnostics: &[recipe::Diagnostic]) -> Failure {
-    let count = diagnostics.len();
+    let count = diagnostics
+        .iter()
+        .filter(|d| d.severity == recipe::Severity::Error)
+        .count();
     let rendered = recipe::render_all(diagnostics, &path.display().to_string(), text);
     Failure(format!(
         "{rendered}\n{}: {count} problem{} in the recipe; nothing was written",
@@ -191,7 +230,7 @@ fn check_headers(
     recipe: &recipe::Recipe,
     table: &Table,
 ) -> Result<(), Failure> {
-    let diagnostics = recipe::check_against(recipe, &table.headers());
+    let diagnostics = recipe::check_against(recipe, &data_columns(table));
     if diagnostics.is_empty() {
         Ok(())
     } else {
@@ -252,11 +291,22 @@ fn load_for(
     text: &str,
     data: &Path,
 ) -> Result<(recipe::Recipe, Table), Failure> {
-    // Parsed once: the `input` statement says how to read the data, and the
-    // data's headers then complete the check.
-    let recipe = checked_recipe(recipe_path, text, None)?;
-    let table = load::load_for(data, &load_options(&recipe), &wanted(&recipe, text))?;
-    check_headers(recipe_path, text, &recipe, &table)?;
+    // The `input` and `header` lines say how to read the data; the recipe
+    // is then checked with the data's columns, so every problem shows at once.
+    let readable = recipe::parse(text);
+    if readable.input_unread(text) {
+        checked_recipe(recipe_path, text, None)?;
+    }
+    let options = load_options(&readable.recipe);
+    let table = match load::load_for(data, &options, &wanted(&readable.recipe, text)) {
+        Ok(table) => table,
+        Err(e) => {
+            // The recipe's own problems first, if it has any.
+            checked_recipe(recipe_path, text, None)?;
+            return Err(e.into());
+        }
+    };
+    let recipe = checked_recipe(recipe_path, text, Some(&data_columns(&table)))?;
     Ok((recipe, table))
 }
 
@@ -316,11 +366,12 @@ fn run(
         Some(path) => Some(crate::history::Record::read(path, &recipe)?),
         None => None,
     };
-    let results = eval::evaluate_against(
+    let mut results = eval::evaluate_against(
         &recipe,
         &table,
         previous.as_ref().map(|p| p.previous_terms()),
     )?;
+    results.warnings.extend(recipe_warnings(recipe_path, &text));
     let evaluated = std::time::Instant::now();
     let out = out.unwrap_or_else(|| default_out(data));
     let run = run_info(recipe_path, &text, &recipe, data, previous);
@@ -427,8 +478,7 @@ fn inspect(file: &Path, options: LoadOptions) -> Result<ExitCode, Failure> {
 
 fn calc(expression: &str, data: &Path, options: LoadOptions) -> Result<ExitCode, Failure> {
     let table = load::load(data, &options)?;
-    let headers = table.headers();
-    let expr = recipe::parse_expression(expression, Some(&headers))
+    let expr = recipe::parse_expression(expression, Some(&data_columns(&table)))
         .map_err(|d| Failure(recipe::render_all(&d, "expression", expression)))?;
     let lets = Default::default();
     let rows: Vec<crate::eval::Row> = (0..table.rows as crate::eval::Row).collect();

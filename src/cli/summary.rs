@@ -95,6 +95,9 @@ pub fn render(results: &Results, table: &Table, out: &Path) -> String {
                 .unwrap_or_default()
         ));
     }
+    for warning in &results.warnings {
+        text.push_str(&format!("  warning: {warning}\n"));
+    }
     text.push_str(&format!("\nwritten: {}\n", out.display()));
     text
 }

@@ -133,6 +133,9 @@ pub struct Results {
     pub missing_cells: Vec<MissingCell>,
     /// Current values of every `change(...)` argument, for the next period.
     pub terms: Vec<Term>,
+    /// Likely mistakes that did not stop the run, each with its fix
+    /// (listed on the Checks sheet and the terminal).
+    pub warnings: Vec<String>,
 }
 
 impl Results {
@@ -372,6 +375,7 @@ pub fn evaluate_against(
         rows_skipped: Vec::new(),
         missing_cells: Vec::new(),
         terms: Vec::new(),
+        warnings: Vec::new(),
     };
     for name in columns_used(recipe) {
         if let Some(column) = table.column(&name) {
@@ -542,13 +546,19 @@ pub fn evaluate_against(
                     let group_scope =
                         Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     let sample = group_scope.sample(&column_expr(column));
-                    if let Ok(histogram) = stats::histogram(&sample, rule) {
-                        results.charts.push(Chart::Histogram {
+                    match stats::histogram(&sample, rule) {
+                        Ok(histogram) => results.charts.push(Chart::Histogram {
                             column: column.name.clone(),
                             group,
                             histogram,
                             rule: rule.word(),
-                        });
+                        }),
+                        // Not drawn, but said: a chart never goes missing in silence.
+                        Err(why) => results.warnings.push(format!(
+                            "histogram of {}, {}: not drawn ({why})",
+                            column.name,
+                            group_label(&group)
+                        )),
                     }
                 }
             }
@@ -558,10 +568,19 @@ pub fn evaluate_against(
                 for (group, group_rows) in groups(&scope, per)? {
                     let group_scope =
                         Scope::new(table, &lets, &group_rows).grouped(&group, &context);
-                    if let Some(summary) =
-                        panel::box_summary(&group_scope.sample(&column_expr(column)))
-                    {
-                        boxes.push((group, summary));
+                    let sample = group_scope.sample(&column_expr(column));
+                    match panel::box_summary(&sample) {
+                        Some(summary) => boxes.push((group, summary)),
+                        None => results.warnings.push(format!(
+                            "box plot of {}, {}: no box drawn ({})",
+                            column.name,
+                            group_label(&group),
+                            if sample.is_empty() {
+                                "no values"
+                            } else {
+                                "its quartiles could not be computed"
+                            }
+                        )),
                     }
                 }
                 results.charts.push(Chart::Boxplot {

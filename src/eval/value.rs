@@ -335,6 +335,17 @@ fn compare(op: BinaryOp, a: f64, b: f64) -> bool {
 }
 
 fn one_binary(op: BinaryOp, a: &One, b: &One) -> One {
+    match (op, a, b) {
+        // Kleene logic, as for rows: a missing side decides nothing when
+        // the other side already does (false and ?, true or ?).
+        (BinaryOp::And, One::Truth(false), _) | (BinaryOp::And, _, One::Truth(false)) => {
+            return One::Truth(false);
+        }
+        (BinaryOp::Or, One::Truth(true), _) | (BinaryOp::Or, _, One::Truth(true)) => {
+            return One::Truth(true);
+        }
+        _ => {}
+    }
     match (a, b) {
         (One::Undefined(why), _) | (_, One::Undefined(why)) => One::Undefined(why.clone()),
         (One::Number(x), One::Number(y)) if op.is_comparison() => One::Truth(compare(op, *x, *y)),

@@ -237,10 +237,7 @@ mod tests {
         let plain = vec![column("a", vec![n(1.0), n(1.0), n(2.0)])];
         assert_eq!(find_not_data(&plain, 3).summary, []);
         // Constant columns: every row is their mean; a keyed row is data.
-        let constant = vec![
-            column("a", vec![n(1.0); 6]),
-            column("b", vec![n(2.0); 6]),
-        ];
+        let constant = vec![column("a", vec![n(1.0); 6]), column("b", vec![n(2.0); 6])];
         assert_eq!(find_not_data(&constant, 6).summary, []);
         let keyed = vec![
             column("k", vec![t("x"), t("y"), t("z"), t("w")]),

@@ -47,40 +47,92 @@ const SHEET_FORBIDDEN: &[char] = &['[', ']', ':', '*', '?', '/', '\\'];
 const SHEET_MAX: usize = 31;
 pub const BIN_RULES: &[&str] = &["sturges", "scott", "freedman_diaconis"];
 
+/// What a data column holds, as far as the checker needs to know.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum DataKind {
+    /// Numbers (or dates): usable in arithmetic and aggregates.
+    Numbers,
+    /// Text: usable in `==`, `!=` and as a group key only.
+    Text,
+    /// Not known, or true/false, or empty: every use is allowed.
+    Any,
+}
+
+/// A data column's header and kind.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct DataColumn {
+    pub name: String,
+    pub kind: DataKind,
+}
+
+/// What the checker found: errors refuse the recipe; warnings do not.
+#[derive(Debug, Default)]
+pub struct Findings {
+    pub errors: Vec<Diagnostic>,
+    pub warnings: Vec<Diagnostic>,
+}
+
 struct Checker<'a> {
-    headers: Option<&'a [String]>,
+    headers: Option<Vec<&'a str>>,
+    kinds: HashMap<&'a str, DataKind>,
+    /// `let`s on lines that could not be read: their uses are not checked.
+    unread: HashSet<String>,
     lets: HashMap<String, Typed>,
     /// The `let` being checked, so that it cannot use itself.
     defining: Option<String>,
     problems: Vec<Diagnostic>,
+    warnings: Vec<Diagnostic>,
 }
 
-/// Checks a parsed recipe; `headers` are the data's column names when known.
-pub fn check(recipe: &Recipe, headers: Option<&[String]>) -> Vec<Diagnostic> {
-    let mut checker = Checker {
-        headers,
-        lets: HashMap::new(),
-        defining: None,
-        problems: Vec::new(),
-    };
+/// Checks a parsed recipe; `columns` are the data's columns when known.
+/// `assumed` are names of `let`s on lines that could not be read, so their
+/// uses are not reported as unknown columns as well.
+pub fn check(recipe: &Recipe, columns: Option<&[DataColumn]>, assumed: &[String]) -> Findings {
+    let mut checker = Checker::new(columns);
+    checker.unread.extend(assumed.iter().cloned());
     checker.statements(recipe);
-    checker.problems
+    checker.rows_where_after_everything(recipe);
+    Findings {
+        errors: checker.problems,
+        warnings: checker.warnings,
+    }
 }
 
 /// Checks one expression on its own (for `sheaf calc`): any shape and a
 /// list are fine there, since every value is printed on its own line.
-pub fn check_expression(e: &Expr, headers: Option<&[String]>) -> Vec<Diagnostic> {
-    let mut checker = Checker {
-        headers,
-        lets: HashMap::new(),
-        defining: None,
-        problems: Vec::new(),
-    };
+pub fn check_expression(e: &Expr, columns: Option<&[DataColumn]>) -> Vec<Diagnostic> {
+    let mut checker = Checker::new(columns);
     checker.expr(e);
     checker.problems
 }
 
-impl Checker<'_> {
+/// A column whose values are known only once the data is read.
+const UNKNOWN_ROWS: Typed = Typed {
+    shape: Shape::Rows,
+    value: Value::Unknown,
+};
+
+impl<'a> Checker<'a> {
+    fn new(columns: Option<&'a [DataColumn]>) -> Checker<'a> {
+        Checker {
+            headers: columns.map(|c| c.iter().map(|c| c.name.as_str()).collect()),
+            kinds: columns
+                .unwrap_or_default()
+                .iter()
+                .map(|c| (c.name.as_str(), c.kind))
+                .collect(),
+            unread: HashSet::new(),
+            lets: HashMap::new(),
+            defining: None,
+            problems: Vec::new(),
+            warnings: Vec::new(),
+        }
+    }
+
+    fn is_header(&self, name: &str) -> bool {
+        self.headers.as_ref().is_some_and(|h| h.contains(&name))
+    }
+
     fn report(&mut self, span: Span, message: impl Into<String>, help: Option<String>) {
         let mut d = Diagnostic::new(span, message);
         if let Some(help) = help {
@@ -121,18 +173,7 @@ impl Checker<'_> {
                         "a second `drift`",
                         "a recipe has one drift threshold; remove this line",
                     );
-                    let share = if d.value.1 {
-                        d.value.0 / 100.0
-                    } else {
-                        d.value.0
-                    };
-                    if share <= 0.0 {
-                        self.report(
-                            d.span,
-                            "the drift threshold must be above 0",
-                            Some("write a share of change, such as `drift 10%`".into()),
-                        );
-                    }
+                    self.drift(d);
                 }
                 // Accepted header names are checked against the data by the loader.
                 StatementKind::Header { .. } => {}
@@ -144,12 +185,9 @@ impl Checker<'_> {
                     per,
                     filter,
                 } => {
-                    self.block_name(name, &mut blocks);
-                    for c in columns.iter().chain(per) {
-                        self.column(c);
-                    }
-                    if let Some(f) = filter {
-                        self.condition(f, "`where`");
+                    self.block_header(name, &mut blocks, per, filter);
+                    for c in columns {
+                        self.number_column(c, "a panel");
                     }
                 }
                 StatementKind::Figures {
@@ -158,11 +196,7 @@ impl Checker<'_> {
                     filter,
                     figures,
                 } => {
-                    self.block_name(name, &mut blocks);
-                    self.columns(per);
-                    if let Some(f) = filter {
-                        self.condition(f, "`where`");
-                    }
+                    self.block_header(name, &mut blocks, per, filter);
                     self.figures(figures);
                 }
                 StatementKind::Check {
@@ -170,43 +204,143 @@ impl Checker<'_> {
                     per,
                     condition,
                     ..
-                } => {
-                    if !checks.insert(name.value.clone()) {
-                        self.report(
-                            name.span,
-                            format!("a second check named \"{}\"", name.value),
-                            Some("give each check its own name".into()),
-                        );
-                    }
-                    self.columns(per);
-                    self.check_condition(condition);
-                }
+                } => self.check_statement(name, &mut checks, per, condition),
                 StatementKind::Histogram { column, per, bins } => {
-                    self.column(column);
+                    self.number_column(column, "a histogram");
                     self.columns(per);
-                    if let Some(Spanned {
-                        value: Bins::Rule(rule),
-                        span,
-                    }) = bins
-                        && !BIN_RULES.contains(&rule.as_str())
-                    {
-                        let help = match closest(rule, BIN_RULES.iter().copied()) {
-                            Some(s) => format!(
-                                "did you mean `{s}`? rules are {}, or give a number of bins",
-                                BIN_RULES.join(", ")
-                            ),
-                            None => format!(
-                                "rules are {}, or give a number of bins",
-                                BIN_RULES.join(", ")
-                            ),
-                        };
-                        self.report(*span, format!("unknown bin rule `{rule}`"), Some(help));
+                    if let Some(bins) = bins {
+                        self.bin_rule(bins);
                     }
                 }
                 StatementKind::Boxplot { column, per } => {
-                    self.column(column);
+                    self.number_column(column, "a box plot");
                     self.columns(per);
                 }
+            }
+        }
+    }
+
+    /// A check's name (one per recipe), groups and condition.
+    fn check_statement(
+        &mut self,
+        name: &Spanned<String>,
+        checks: &mut HashSet<String>,
+        per: &[ColumnRef],
+        condition: &Expr,
+    ) {
+        if !checks.insert(name.value.clone()) {
+            self.report(
+                name.span,
+                format!("a second check named \"{}\"", name.value),
+                Some("give each check its own name".into()),
+            );
+        }
+        self.columns(per);
+        self.check_condition(condition);
+    }
+
+    /// A panel's or figures block's name, groups and filter.
+    fn block_header(
+        &mut self,
+        name: &Spanned<String>,
+        blocks: &mut HashSet<String>,
+        per: &[ColumnRef],
+        filter: &Option<Expr>,
+    ) {
+        self.block_name(name, blocks);
+        self.columns(per);
+        if let Some(f) = filter {
+            self.condition(f, "`where`");
+        }
+    }
+
+    fn bin_rule(&mut self, bins: &Spanned<Bins>) {
+        let Bins::Rule(rule) = &bins.value else {
+            return;
+        };
+        if BIN_RULES.contains(&rule.as_str()) {
+            return;
+        }
+        let help = match closest(rule, BIN_RULES.iter().copied()) {
+            Some(s) => format!(
+                "did you mean `{s}`? rules are {}, or give a number of bins",
+                BIN_RULES.join(", ")
+            ),
+            None => format!(
+                "rules are {}, or give a number of bins",
+                BIN_RULES.join(", ")
+            ),
+        };
+        self.report(bins.span, format!("unknown bin rule `{rule}`"), Some(help));
+    }
+
+    /// `drift 5` is a change of 500%: a bare number of 1 or more is
+    /// almost always a percent without its `%`.
+    fn drift(&mut self, d: &Spanned<(f64, bool)>) {
+        let (value, percent) = d.value;
+        let share = if percent { value / 100.0 } else { value };
+        if share <= 0.0 {
+            self.report(
+                d.span,
+                "the drift threshold must be above 0",
+                Some("write a share of change, such as `drift 10%`".into()),
+            );
+        } else if !percent && value >= 1.0 {
+            let shown = crate::format::shortest(value);
+            self.report(
+                d.span,
+                format!(
+                    "`drift {shown}` would flag only changes of {}% or more",
+                    crate::format::shortest(value * 100.0)
+                ),
+                Some(format!(
+                    "write `drift {shown}%` for {shown} percent (or `drift {}%` if that is meant)",
+                    crate::format::shortest(value * 100.0)
+                )),
+            );
+        }
+    }
+
+    /// A column a panel or chart summarises: it must hold numbers.
+    fn number_column(&mut self, c: &ColumnRef, what: &str) {
+        if let Some(t) = self.column(c)
+            && t.value == Value::Text
+        {
+            self.report(
+                c.span,
+                format!("{what} summarises numbers, but `{}` holds text", c.name),
+                Some(format!(
+                    "name a number column here; to split by `{}`, write `per {}`",
+                    c.name,
+                    super::pretty::column(c)
+                )),
+            );
+        }
+    }
+
+    /// A `rows where` below every block, check and chart narrows nothing
+    /// that is written.
+    fn rows_where_after_everything(&mut self, recipe: &Recipe) {
+        let last_output = recipe.statements.iter().rposition(|s| {
+            matches!(
+                s.kind,
+                StatementKind::Panel { .. }
+                    | StatementKind::Figures { .. }
+                    | StatementKind::Check { .. }
+                    | StatementKind::Histogram { .. }
+                    | StatementKind::Boxplot { .. }
+            )
+        });
+        let first_unused = last_output.map_or(0, |i| i + 1);
+        for s in &recipe.statements[first_unused..] {
+            if let StatementKind::RowsWhere(_) = s.kind {
+                self.warnings.push(
+                    Diagnostic::warning(
+                        s.span,
+                        "this `rows where` comes after every block, check and chart, so it narrows nothing",
+                    )
+                    .with_help("a `rows where` narrows the statements below it: move it above the blocks it is for, or remove it"),
+                );
             }
         }
     }
@@ -271,10 +405,7 @@ impl Checker<'_> {
                 format!("`{}` is defined twice", name.value),
                 Some("give the new column another name".into()),
             );
-        } else if self
-            .headers
-            .is_some_and(|h| h.iter().any(|c| c == &name.value))
-        {
+        } else if self.is_header(&name.value) {
             self.report(
                 name.span,
                 format!("`{}` is already a column of the data", name.value),
@@ -291,13 +422,7 @@ impl Checker<'_> {
             self.lets.insert(name.value.clone(), t);
         } else {
             // Known to exist, so later uses are not reported again.
-            self.lets.insert(
-                name.value.clone(),
-                Typed {
-                    shape: Shape::Rows,
-                    value: Value::Unknown,
-                },
-            );
+            self.lets.insert(name.value.clone(), UNKNOWN_ROWS);
         }
     }
 
@@ -381,21 +506,26 @@ impl Checker<'_> {
         if let Some(t) = self.lets.get(&c.name) {
             return Some(*t);
         }
-        let Some(headers) = self.headers else {
-            return Some(Typed {
-                shape: Shape::Rows,
-                value: Value::Unknown,
-            });
+        if self.unread.contains(&c.name) {
+            return None;
+        }
+        let Some(headers) = &self.headers else {
+            return Some(UNKNOWN_ROWS);
         };
-        if headers.iter().any(|h| h == &c.name) {
+        if headers.contains(&c.name.as_str()) {
+            let value = match self.kinds.get(c.name.as_str()) {
+                Some(DataKind::Numbers) => Value::Number,
+                Some(DataKind::Text) => Value::Text,
+                Some(DataKind::Any) | None => Value::Unknown,
+            };
             return Some(Typed {
                 shape: Shape::Rows,
-                value: Value::Unknown,
+                value,
             });
         }
         let candidates = headers
             .iter()
-            .map(String::as_str)
+            .copied()
             .chain(self.lets.keys().map(String::as_str));
         let help = match closest(&c.name, candidates) {
             Some(near)
@@ -482,46 +612,55 @@ impl Checker<'_> {
                 condition,
                 then,
                 otherwise,
-            } => {
-                let c = self.expr(condition);
-                let (t, o) = (self.expr(then), self.expr(otherwise));
-                let (c, t, o) = (c?, t?, o?);
-                self.operand(condition, c, Value::Truth, "`if`")?;
-                for (branch, typed) in [(then, t), (otherwise, o)] {
-                    if typed.value == Value::List {
-                        self.list_misused(branch);
-                        return None;
-                    }
-                }
-                let value = if t.value == o.value {
-                    t.value
-                } else if t.value == Value::Unknown {
-                    o.value
-                } else if o.value == Value::Unknown {
-                    t.value
-                } else {
-                    self.report(
-                        e.span,
-                        format!(
-                            "the two branches of `if` give different kinds of value ({} and {})",
-                            noun(t.value),
-                            noun(o.value)
-                        ),
-                        Some("make both branches numbers, or both text".into()),
-                    );
-                    return None;
-                };
-                Some(Typed {
-                    shape: if c.merge_shape(t) == Shape::Rows || o.shape == Shape::Rows {
-                        Shape::Rows
-                    } else {
-                        Shape::One
-                    },
-                    value,
-                })
-            }
+            } => self.if_expr(e, condition, then, otherwise),
             ExprKind::Call { function, args } => self.call(function, args, e.span),
         }
+    }
+
+    /// `if C then A else B`: a condition, and branches of one kind.
+    fn if_expr(
+        &mut self,
+        e: &Expr,
+        condition: &Expr,
+        then: &Expr,
+        otherwise: &Expr,
+    ) -> Option<Typed> {
+        let c = self.expr(condition);
+        let (t, o) = (self.expr(then), self.expr(otherwise));
+        let (c, t, o) = (c?, t?, o?);
+        self.operand(condition, c, Value::Truth, "`if`")?;
+        for (branch, typed) in [(then, t), (otherwise, o)] {
+            if typed.value == Value::List {
+                self.list_misused(branch);
+                return None;
+            }
+        }
+        let value = if t.value == o.value {
+            t.value
+        } else if t.value == Value::Unknown {
+            o.value
+        } else if o.value == Value::Unknown {
+            t.value
+        } else {
+            self.report(
+                e.span,
+                format!(
+                    "the two branches of `if` give different kinds of value ({} and {})",
+                    noun(t.value),
+                    noun(o.value)
+                ),
+                Some("make both branches numbers, or both text".into()),
+            );
+            return None;
+        };
+        Some(Typed {
+            shape: if c.merge_shape(t) == Shape::Rows || o.shape == Shape::Rows {
+                Shape::Rows
+            } else {
+                Shape::One
+            },
+            value,
+        })
     }
 
     /// Checks that an operand has the kind of value an operator needs.
@@ -551,10 +690,7 @@ impl Checker<'_> {
 
     fn call(&mut self, name: &Spanned<String>, args: &[Expr], span: Span) -> Option<Typed> {
         let Some(function) = functions::lookup(&name.value) else {
-            let help = match closest(&name.value, functions::FUNCTIONS.iter().map(|f| f.name)) {
-                Some(s) => format!("did you mean `{s}`?"),
-                None => "see the README for the list of functions".to_string(),
-            };
+            let help = self.unknown_function_help(&name.value, args);
             self.report(
                 name.span,
                 format!("unknown function `{}`", name.value),
@@ -586,11 +722,11 @@ impl Checker<'_> {
             ok = false;
         }
         let first = first?;
-        if !ok {
+        if !ok || !self.method_fits(function, args) {
             return None;
         }
         // Each kind refuses one shape of first argument.
-        let refused = match function.kind {
+        let refused = match function.kind() {
             FunctionKind::Comparison if first.shape == Shape::Rows => Some((
                 format!(
                     "`{}` compares one value per group, but this is a value per row",
@@ -611,23 +747,101 @@ impl Checker<'_> {
             self.report(args[0].span, message, Some(help));
             return None;
         }
-        let wanted = if function.takes_condition {
-            Value::Truth
-        } else {
-            Value::Number
-        };
-        self.operand(&args[0], first, wanted, &format!("`{}`", function.name))?;
+        self.first_argument(function, &args[0], first)?;
         // A row function keeps its argument's shape; the others give one value per group.
-        let shape = match function.kind {
+        let shape = match function.kind() {
             FunctionKind::Row => first.shape,
             FunctionKind::Aggregate | FunctionKind::Comparison => Shape::One,
         };
-        let value = if function.returns == Returns::List {
+        let value = if function.returns() == Returns::List {
             Value::List
         } else {
             Value::Number
         };
         Some(Typed { shape, value })
+    }
+
+    /// Tukey's hinges give the quartiles only: a percentile with `hinges`
+    /// must be one of 0, 25, 50, 75, 100.
+    fn method_fits(&mut self, function: &Function, args: &[Expr]) -> bool {
+        let hinges = args[1..]
+            .iter()
+            .any(|a| matches!(&a.kind, ExprKind::Column(c) if !c.braced && c.name == "hinges"));
+        let percent = function.parameters.iter().position(|p| p.percent);
+        let (true, Some(at)) = (hinges, percent) else {
+            return true;
+        };
+        let Some(arg) = args.get(1 + at) else {
+            return true;
+        };
+        match literal_value(arg) {
+            Some((p, _)) if ![0.0, 25.0, 50.0, 75.0, 100.0].contains(&p) => {
+                self.report(
+                    arg.span,
+                    format!("Tukey's hinges give only the quartiles, not the {}th percentile", crate::format::shortest(p)),
+                    Some("use 25, 50 or 75 with `hinges`, or another method such as hf7 (the default)".into()),
+                );
+                false
+            }
+            _ => true,
+        }
+    }
+
+    /// `Weight (mg)` reads as a call of a function `Weight`: when that
+    /// text is a header, or no function is close, suggest braces.
+    fn unknown_function_help(&self, name: &str, args: &[Expr]) -> String {
+        let inside: Vec<String> = args.iter().map(super::pretty::expr).collect();
+        let as_header = [
+            format!("{name} ({})", inside.join(", ")),
+            format!("{name}({})", inside.join(", ")),
+        ];
+        if let Some(header) = as_header.iter().find(|h| self.is_header(h)) {
+            return format!("`{header}` is a column: write it in braces, {{{header}}}");
+        }
+        match closest(name, functions::FUNCTIONS.iter().map(|f| f.name)) {
+            Some(s) => format!("did you mean `{s}`?"),
+            None if self.headers.is_none() => format!(
+                "see the README for the list of functions; if `{}` is a column, write it in braces, {{{}}}",
+                as_header[0], as_header[0]
+            ),
+            None => "see the README for the list of functions".to_string(),
+        }
+    }
+
+    /// The first argument must be numbers, or a condition for `share`;
+    /// the help names the fix for the common slips.
+    fn first_argument(&mut self, function: &Function, arg: &Expr, t: Typed) -> Option<()> {
+        let wanted = if function.takes_condition() {
+            Value::Truth
+        } else {
+            Value::Number
+        };
+        if t.value == wanted || t.value == Value::Unknown || t.value == Value::List {
+            return self.operand(arg, t, wanted, &format!("`{}`", function.name));
+        }
+        let shown = super::pretty::expr(arg);
+        let help = match (wanted, t.value) {
+            (Value::Truth, Value::Number) => format!(
+                "`{}` takes a condition and gives the share of rows where it holds: write {}({shown} > 0), say",
+                function.name, function.name
+            ),
+            (Value::Number, Value::Text) => format!(
+                "`{shown}` holds text; `{}` needs numbers. Count text with a condition, as in share({shown} == \"...\")",
+                function.name
+            ),
+            _ => format!("write {}", function.signature()),
+        };
+        self.report(
+            arg.span,
+            format!(
+                "`{}` needs a {} here, not a {}",
+                function.name,
+                noun(wanted),
+                noun(t.value)
+            ),
+            Some(help),
+        );
+        None
     }
 
     /// Arguments after the first: option words and numeric parameters.
@@ -651,8 +865,7 @@ impl Checker<'_> {
                     option_seen = true;
                     continue;
                 }
-                let is_column = self.lets.contains_key(&c.name)
-                    || self.headers.is_some_and(|h| h.contains(&c.name));
+                let is_column = self.lets.contains_key(&c.name) || self.is_header(&c.name);
                 if !is_column
                     && (function.parameters.is_empty()
                         || closest(&c.name, function.options.iter().copied()).is_some())
@@ -722,12 +935,7 @@ impl Checker<'_> {
         let Some((value, percent)) = literal_value(arg) else {
             return true;
         };
-        if percent && parameter.name == "p" {
-            self.report(
-                arg.span,
-                "a percentile is written as a number from 0 to 100, without `%`",
-                Some(format!("write percentile(x, {})", value * 100.0)),
-            );
+        if !self.percent_slips(function, parameter, arg, value, percent) {
             return false;
         }
         let too_high = if parameter.max_exclusive {
@@ -754,9 +962,55 @@ impl Checker<'_> {
                     "the `{}` of `{}` must be {range}",
                     parameter.name, function.name
                 ),
-                None,
+                (!parameter.help.is_empty()).then(|| parameter.help.to_string()),
             );
             return false;
+        }
+        true
+    }
+    /// A percent parameter written with `%` is refused; one between 0 and
+    /// 1 is warned about (a fraction where a percent was meant). False
+    /// when refused.
+    fn percent_slips(
+        &mut self,
+        function: &Function,
+        parameter: &Parameter,
+        arg: &Expr,
+        value: f64,
+        percent: bool,
+    ) -> bool {
+        if !parameter.percent {
+            return true;
+        }
+        if percent {
+            self.report(
+                arg.span,
+                format!(
+                    "the `{}` of `{}` is written as a number from 0 to 100, without `%`",
+                    parameter.name, function.name
+                ),
+                Some(format!(
+                    "write {}(x, {})",
+                    function.name,
+                    crate::format::shortest(value * 100.0)
+                )),
+            );
+            return false;
+        }
+        if value > 0.0 && value < 1.0 {
+            let shown = crate::format::shortest(value);
+            self.warnings.push(
+                Diagnostic::warning(
+                    arg.span,
+                    format!("`{}` takes a percent: {shown} means the {shown}th percentile, below the 1st", function.name),
+                )
+                .with_help(format!(
+                    "for the {}th percentile write {}(x, {})",
+                    crate::format::shortest(value * 100.0),
+                    function.name,
+                    crate::format::shortest(value * 100.0)
+                )),
+            );
         }
         true
     }

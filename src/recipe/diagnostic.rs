@@ -7,20 +7,41 @@ use codespan_reporting::term::{self, Config};
 
 use super::ast::Span;
 
+/// Whether a finding stops the run.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Severity {
+    /// The recipe is refused.
+    Error,
+    /// The recipe runs, but probably not as meant; shown on the terminal
+    /// and on the Checks sheet.
+    Warning,
+}
+
 #[derive(Debug, Clone, PartialEq)]
 pub struct Diagnostic {
     pub span: Span,
     pub message: String,
     /// What to do about it.
     pub help: Option<String>,
+    pub severity: Severity,
 }
 
 impl Diagnostic {
+    /// An error: the recipe is refused.
     pub fn new(span: Span, message: impl Into<String>) -> Diagnostic {
         Diagnostic {
             span,
             message: message.into(),
             help: None,
+            severity: Severity::Error,
+        }
+    }
+
+    /// A warning: the recipe runs, and the warning is shown.
+    pub fn warning(span: Span, message: impl Into<String>) -> Diagnostic {
+        Diagnostic {
+            severity: Severity::Warning,
+            ..Diagnostic::new(span, message)
         }
     }
 
@@ -32,6 +53,15 @@ impl Diagnostic {
     /// 1-based line and column (in characters) of the start of the span.
     pub fn line_column(&self, source: &str) -> (usize, usize) {
         line_column(source, self.span.start)
+    }
+
+    /// One line for a sheet or a log: `line 3: message (help)`.
+    pub fn one_line(&self, source: &str) -> String {
+        let (line, column) = self.line_column(source);
+        match &self.help {
+            Some(help) => format!("line {line}, column {column}: {}; {help}", self.message),
+            None => format!("line {line}, column {column}: {}", self.message),
+        }
     }
 
     /// The full report: `error: ...`, `--> file:line:column`, the line, a caret, help.
@@ -54,7 +84,11 @@ impl Diagnostic {
         } else {
             self.span.end.max(start + 1).min(line_end)
         };
-        let mut report = Report::error()
+        let report = match self.severity {
+            Severity::Error => Report::error(),
+            Severity::Warning => Report::warning(),
+        };
+        let mut report = report
             .with_message(&self.message)
             .with_labels(vec![Label::primary((), start..end)]);
         if let Some(help) = &self.help {
@@ -62,8 +96,12 @@ impl Diagnostic {
         }
         term::emit_into_string(&Config::default(), file, &report).unwrap_or_else(|_| {
             let (line, column) = self.line_column(source);
+            let word = match self.severity {
+                Severity::Error => "error",
+                Severity::Warning => "warning",
+            };
             format!(
-                "error: {}\n --> {}:{line}:{column}\n",
+                "{word}: {}\n --> {}:{line}:{column}\n",
                 self.message,
                 file.name()
             )

@@ -325,6 +325,14 @@ fn primary(input: &str) -> PResult<'_, Expr> {
         let (rest, text) = string_literal(input)?;
         return spanned(rest, ExprKind::Text(text));
     }
+    if let Some(after) = input.strip_prefix('\'') {
+        let text = after.split('\'').next().unwrap_or(after);
+        return failure(
+            input,
+            "strings are written in double quotes, not single quotes",
+            Some(&format!("write \"{text}\"")),
+        );
+    }
     if input.starts_with('{') {
         let (rest, name) = braced_name(input)?;
         let column = ColumnRef {

@@ -1,5 +1,8 @@
-//! The functions a recipe may call: their kind, arguments and options.
-//! The checker and the evaluator both read this one table.
+//! The functions a recipe may call: their evaluation, arguments and
+//! options. The checker and the evaluator both read this one table; each
+//! row names its evaluation through [`Evaluation`], which the evaluator
+//! matches exhaustively, so a function cannot be added to the table without
+//! its evaluation, nor an evaluation without the compiler asking for it.
 
 /// What a function does with its first argument.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -10,6 +13,64 @@ pub enum FunctionKind {
     Row,
     /// Compares one value with the same value in the previous period.
     Comparison,
+}
+
+/// How a function is evaluated: the one link between a row of
+/// [`FUNCTIONS`] and the code that computes it (`eval::aggregate`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Evaluation {
+    /// Reduces a column to one value per group.
+    Aggregate(Aggregate),
+    /// The share of rows where a condition holds (`share`): an aggregate of
+    /// a condition rather than of numbers.
+    Share,
+    /// Row by row, a number to a number.
+    Row(RowOp),
+    /// |now - before| / |before| against the previous period (`change`).
+    Change,
+}
+
+/// The aggregates, each mapped to the statistics core by the evaluator.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Aggregate {
+    Count,
+    Missing,
+    Sum,
+    Min,
+    Max,
+    Range,
+    Mean,
+    Median,
+    Modes,
+    BinnedMode,
+    Variance,
+    Sd,
+    Quartile,
+    Percentile,
+    Iqr,
+    Skewness,
+    Kurtosis,
+    ExcessKurtosis,
+    Bowley,
+    Mad,
+    TrimmedMean,
+    WinsorizedMean,
+    Outliers,
+    FenceLow,
+    FenceHigh,
+}
+
+/// The row functions.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum RowOp {
+    Abs,
+    Ln,
+    Log10,
+    Exp,
+    Sqrt,
+    Round,
+    Floor,
+    Ceil,
 }
 
 /// What an aggregate gives back.
@@ -30,20 +91,30 @@ pub struct Parameter {
     pub max_exclusive: bool,
     pub whole: bool,
     pub required: bool,
+    /// Given in percent (0 to 100): a `%` is refused, and a value between
+    /// 0 and 1 is warned about (a fraction where a percent was meant).
+    pub percent: bool,
+    /// What to write instead when the value is out of range ("" if nothing).
+    pub help: &'static str,
 }
 
+/// One row of the function table.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Function {
     pub name: &'static str,
-    pub kind: FunctionKind,
-    pub returns: Returns,
-    /// The first argument is a true/false condition rather than numbers.
-    pub takes_condition: bool,
+    /// How it is computed; its kind, result and first argument follow.
+    pub evaluation: Evaluation,
     pub parameters: &'static [Parameter],
     /// Bare words accepted after the column.
     pub options: &'static [&'static str],
     pub summary: &'static str,
 }
+
+/// Option words the evaluator reads (the quantile methods are read by
+/// `QuantileMethod::from_word`).
+pub const POPULATION: &str = "population";
+pub const ADJUSTED: &str = "adjusted";
+pub const SCALED: &str = "scaled";
 
 const METHODS: &[&str] = &[
     "hf1", "hf2", "hf3", "hf4", "hf5", "hf6", "hf7", "hf8", "hf9", "hinges",
@@ -57,31 +128,27 @@ const fn param(name: &'static str, min: f64, max: f64, whole: bool, required: bo
         max_exclusive: false,
         whole,
         required,
+        percent: false,
+        help: "",
     }
 }
 
-const fn aggregate(name: &'static str, summary: &'static str) -> Function {
+const fn function(name: &'static str, evaluation: Evaluation, summary: &'static str) -> Function {
     Function {
         name,
-        kind: FunctionKind::Aggregate,
-        returns: Returns::Number,
-        takes_condition: false,
+        evaluation,
         parameters: &[],
         options: &[],
         summary,
     }
 }
 
-const fn row(name: &'static str, summary: &'static str) -> Function {
-    Function {
-        name,
-        kind: FunctionKind::Row,
-        returns: Returns::Number,
-        takes_condition: false,
-        parameters: &[],
-        options: &[],
-        summary,
-    }
+const fn aggregate(name: &'static str, a: Aggregate, summary: &'static str) -> Function {
+    function(name, Evaluation::Aggregate(a), summary)
+}
+
+const fn row(name: &'static str, op: RowOp, summary: &'static str) -> Function {
+    function(name, Evaluation::Row(op), summary)
 }
 
 const SHARE_CUT: Parameter = Parameter {
@@ -91,129 +158,177 @@ const SHARE_CUT: Parameter = Parameter {
     max_exclusive: true,
     whole: false,
     required: true,
+    percent: false,
+    help: "",
 };
 const FENCE_K: Parameter = param("k", 0.0, f64::INFINITY, false, false);
 
 pub const FUNCTIONS: &[Function] = &[
-    aggregate("count", "number of non-missing numeric values"),
-    aggregate("missing", "number of missing or non-numeric cells"),
-    aggregate("sum", "sum of the values"),
-    aggregate("min", "smallest value"),
-    aggregate("max", "largest value"),
-    aggregate("range", "max - min"),
-    aggregate("mean", "arithmetic mean"),
+    aggregate(
+        "count",
+        Aggregate::Count,
+        "number of non-missing numeric values",
+    ),
+    aggregate(
+        "missing",
+        Aggregate::Missing,
+        "number of missing or non-numeric cells",
+    ),
+    aggregate("sum", Aggregate::Sum, "sum of the values"),
+    aggregate("min", Aggregate::Min, "smallest value"),
+    aggregate("max", Aggregate::Max, "largest value"),
+    aggregate("range", Aggregate::Range, "max - min"),
+    aggregate("mean", Aggregate::Mean, "arithmetic mean"),
     aggregate(
         "median",
+        Aggregate::Median,
         "middle value; mean of the two middle values for even n",
     ),
+    aggregate(
+        "modes",
+        Aggregate::Modes,
+        "every most frequent value, ascending",
+    ),
     Function {
-        returns: Returns::List,
-        ..aggregate("modes", "every most frequent value, ascending")
-    },
-    Function {
-        returns: Returns::List,
         parameters: &[param("k", 1.0, 1000.0, true, true)],
         ..aggregate(
             "binned_mode",
+            Aggregate::BinnedMode,
             "mean of the values in the fullest of k equal bins",
         )
     },
     Function {
-        options: &["population"],
+        options: &[POPULATION],
         ..aggregate(
             "variance",
+            Aggregate::Variance,
             "sample variance (n - 1); `population` divides by n",
         )
     },
     Function {
-        options: &["population"],
-        ..aggregate("sd", "sample standard deviation; `population` divides by n")
+        options: &[POPULATION],
+        ..aggregate(
+            "sd",
+            Aggregate::Sd,
+            "sample standard deviation; `population` divides by n",
+        )
     },
     Function {
-        parameters: &[param("q", 0.0, 4.0, true, true)],
+        parameters: &[Parameter {
+            help: "quartile 0 would be the smallest value and 4 the largest: write min(x) or max(x)",
+            ..param("q", 1.0, 3.0, true, true)
+        }],
         options: METHODS,
-        ..aggregate("quartile", "quartile 1, 2 or 3")
+        ..aggregate("quartile", Aggregate::Quartile, "quartile 1, 2 or 3")
     },
     Function {
-        parameters: &[param("p", 0.0, 100.0, false, true)],
+        parameters: &[Parameter {
+            percent: true,
+            ..param("p", 0.0, 100.0, false, true)
+        }],
         options: METHODS,
-        ..aggregate("percentile", "p-th percentile, p from 0 to 100")
-    },
-    Function {
-        options: METHODS,
-        ..aggregate("iqr", "Q3 - Q1")
-    },
-    Function {
-        options: &["adjusted"],
-        ..aggregate("skewness", "moment skewness g1; `adjusted` gives G1")
-    },
-    Function {
-        options: &["adjusted"],
-        ..aggregate("kurtosis", "moment kurtosis b2; `adjusted` gives G2 + 3")
-    },
-    Function {
-        options: &["adjusted"],
-        ..aggregate("excess_kurtosis", "b2 - 3; `adjusted` gives G2")
+        ..aggregate(
+            "percentile",
+            Aggregate::Percentile,
+            "p-th percentile, p from 0 to 100",
+        )
     },
     Function {
         options: METHODS,
-        ..aggregate("bowley", "Bowley's quartile skewness")
+        ..aggregate("iqr", Aggregate::Iqr, "Q3 - Q1")
     },
     Function {
-        options: &["scaled"],
+        options: &[ADJUSTED],
+        ..aggregate(
+            "skewness",
+            Aggregate::Skewness,
+            "moment skewness g1; `adjusted` gives G1",
+        )
+    },
+    Function {
+        options: &[ADJUSTED],
+        ..aggregate(
+            "kurtosis",
+            Aggregate::Kurtosis,
+            "moment kurtosis b2; `adjusted` gives G2 + 3",
+        )
+    },
+    Function {
+        options: &[ADJUSTED],
+        ..aggregate(
+            "excess_kurtosis",
+            Aggregate::ExcessKurtosis,
+            "b2 - 3; `adjusted` gives G2",
+        )
+    },
+    Function {
+        options: METHODS,
+        ..aggregate("bowley", Aggregate::Bowley, "Bowley's quartile skewness")
+    },
+    Function {
+        options: &[SCALED],
         ..aggregate(
             "mad",
+            Aggregate::Mad,
             "median absolute deviation; `scaled` multiplies by 1.4826",
         )
     },
     Function {
         parameters: &[SHARE_CUT],
-        ..aggregate("trimmed_mean", "mean after cutting share a from each end")
+        ..aggregate(
+            "trimmed_mean",
+            Aggregate::TrimmedMean,
+            "mean after cutting share a from each end",
+        )
     },
     Function {
         parameters: &[SHARE_CUT],
-        ..aggregate("winsorized_mean", "mean after clamping share a at each end")
+        ..aggregate(
+            "winsorized_mean",
+            Aggregate::WinsorizedMean,
+            "mean after clamping share a at each end",
+        )
     },
-    Function {
-        takes_condition: true,
-        ..aggregate("share", "fraction of rows where the condition holds")
-    },
+    function(
+        "share",
+        Evaluation::Share,
+        "fraction of rows where the condition holds",
+    ),
     Function {
         parameters: &[FENCE_K],
         options: METHODS,
         ..aggregate(
             "outliers",
+            Aggregate::Outliers,
             "number of values beyond Tukey's fences (k = 1.5)",
         )
     },
     Function {
         parameters: &[FENCE_K],
         options: METHODS,
-        ..aggregate("fence_low", "Q1 - k IQR")
+        ..aggregate("fence_low", Aggregate::FenceLow, "Q1 - k IQR")
     },
     Function {
         parameters: &[FENCE_K],
         options: METHODS,
-        ..aggregate("fence_high", "Q3 + k IQR")
+        ..aggregate("fence_high", Aggregate::FenceHigh, "Q3 + k IQR")
     },
-    Function {
-        kind: FunctionKind::Comparison,
-        ..aggregate(
-            "change",
-            "size of the relative change from the previous period: |now - before| / |before|",
-        )
-    },
-    row("abs", "absolute value"),
-    row("ln", "natural logarithm"),
-    row("log10", "base-10 logarithm"),
-    row("exp", "e to the power"),
-    row("sqrt", "square root"),
+    function(
+        "change",
+        Evaluation::Change,
+        "size of the relative change from the previous period: |now - before| / |before|",
+    ),
+    row("abs", RowOp::Abs, "absolute value"),
+    row("ln", RowOp::Ln, "natural logarithm"),
+    row("log10", RowOp::Log10, "base-10 logarithm"),
+    row("exp", RowOp::Exp, "e to the power"),
+    row("sqrt", RowOp::Sqrt, "square root"),
     Function {
         parameters: &[param("d", -15.0, 15.0, true, true)],
-        ..row("round", "round to d decimals")
+        ..row("round", RowOp::Round, "round to d decimals")
     },
-    row("floor", "largest whole number not above"),
-    row("ceil", "smallest whole number not below"),
+    row("floor", RowOp::Floor, "largest whole number not above"),
+    row("ceil", RowOp::Ceil, "smallest whole number not below"),
 ];
 
 pub fn lookup(name: &str) -> Option<&'static Function> {
@@ -221,9 +336,31 @@ pub fn lookup(name: &str) -> Option<&'static Function> {
 }
 
 impl Function {
+    /// What the function does with its first argument.
+    pub fn kind(&self) -> FunctionKind {
+        match self.evaluation {
+            Evaluation::Aggregate(_) | Evaluation::Share => FunctionKind::Aggregate,
+            Evaluation::Row(_) => FunctionKind::Row,
+            Evaluation::Change => FunctionKind::Comparison,
+        }
+    }
+
+    /// What it gives back: a list for the modes, else one number.
+    pub fn returns(&self) -> Returns {
+        match self.evaluation {
+            Evaluation::Aggregate(Aggregate::Modes | Aggregate::BinnedMode) => Returns::List,
+            _ => Returns::Number,
+        }
+    }
+
+    /// Whether the first argument is a true/false condition (`share`).
+    pub fn takes_condition(&self) -> bool {
+        self.evaluation == Evaluation::Share
+    }
+
     /// `percentile(x, p[, method])`, for messages.
     pub fn signature(&self) -> String {
-        let mut parts = vec![if self.takes_condition {
+        let mut parts = vec![if self.takes_condition() {
             "condition".to_string()
         } else {
             "x".to_string()
@@ -252,5 +389,32 @@ impl Function {
 
     pub fn max_args(&self) -> usize {
         1 + self.parameters.len() + usize::from(!self.options.is_empty())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_row_has_its_own_name_and_its_own_evaluation() {
+        for (i, f) in FUNCTIONS.iter().enumerate() {
+            for g in &FUNCTIONS[i + 1..] {
+                assert_ne!(f.name, g.name);
+                assert_ne!(f.evaluation, g.evaluation, "{} and {}", f.name, g.name);
+            }
+        }
+    }
+
+    #[test]
+    fn kind_result_and_first_argument_follow_from_the_evaluation() {
+        let f = |name| lookup(name).unwrap();
+        assert_eq!(f("modes").returns(), Returns::List);
+        assert_eq!(f("binned_mode").returns(), Returns::List);
+        assert_eq!(f("mean").returns(), Returns::Number);
+        assert!(f("share").takes_condition() && !f("sum").takes_condition());
+        assert_eq!(f("share").kind(), FunctionKind::Aggregate);
+        assert_eq!(f("round").kind(), FunctionKind::Row);
+        assert_eq!(f("change").kind(), FunctionKind::Comparison);
     }
 }

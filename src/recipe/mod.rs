@@ -18,8 +18,8 @@ mod syntax;
 pub mod uses;
 
 pub use ast::Recipe;
-pub use check::BIN_RULES;
-pub use diagnostic::{Diagnostic, render_all};
+pub use check::{BIN_RULES, DataColumn, DataKind};
+pub use diagnostic::{Diagnostic, Severity, render_all};
 pub use suggest::closest;
 pub use syntax::{KEYWORDS, MAX_CHAIN, MAX_NESTING};
 
@@ -29,14 +29,28 @@ pub const MAX_DEPTH: usize = 256;
 
 #[derive(Debug)]
 pub struct Parsed {
+    /// The statements that could be read (a bad line is left out).
     pub recipe: Recipe,
-    /// Syntax errors and, when the syntax is clean, checker errors.
+    /// Errors: syntax, names and, with the data's columns, columns; sorted
+    /// by position. Any error refuses the recipe.
     pub diagnostics: Vec<Diagnostic>,
+    /// Likely mistakes that do not stop the run, sorted by position.
+    pub warnings: Vec<Diagnostic>,
 }
 
 impl Parsed {
     pub fn is_ok(&self) -> bool {
         self.diagnostics.is_empty()
+    }
+
+    /// Whether an `input` line could not be read: the data's sheet and
+    /// header row are then unknown, and reading the data would check the
+    /// recipe against the wrong columns.
+    pub fn input_unread(&self, source: &str) -> bool {
+        unread_lines(source, &self.diagnostics).any(|line| {
+            line.strip_prefix("input")
+                .is_some_and(|rest| rest.is_empty() || rest.starts_with([' ', '\t']))
+        })
     }
 }
 
@@ -60,34 +74,83 @@ pub fn parse(source: &str) -> Parsed {
         Parsed {
             recipe,
             diagnostics,
+            warnings: Vec::new(),
         }
     })
 }
 
-/// Parses and, if the syntax is clean, checks names and shapes.
-/// `headers` are the data's column names, when the data is at hand.
+/// Columns of unknown kind, from header names alone.
+fn untyped(headers: &[String]) -> Vec<DataColumn> {
+    headers
+        .iter()
+        .map(|name| DataColumn {
+            name: name.clone(),
+            kind: DataKind::Any,
+        })
+        .collect()
+}
+
+/// Parses and checks names and shapes. `headers` are the data's column
+/// names, when the data is at hand.
 pub fn parse_and_check(source: &str, headers: Option<&[String]>) -> Parsed {
+    parse_and_check_columns(source, headers.map(untyped).as_deref())
+}
+
+/// Parses and checks in one pass: syntax errors, then names, shapes and,
+/// with the data's columns, unknown columns and text where numbers are
+/// needed. The lines that could be read are checked even when others
+/// could not, so every problem is reported at once.
+pub fn parse_and_check_columns(source: &str, columns: Option<&[DataColumn]>) -> Parsed {
     let mut parsed = parse(source);
-    if parsed.is_ok() {
-        parsed.diagnostics = check::check(&parsed.recipe, headers);
-        parsed.diagnostics.sort_by_key(|d| d.span.start);
-    }
+    let assumed = unread_lets(source, &parsed.diagnostics);
+    let found = check::check(&parsed.recipe, columns, &assumed);
+    parsed.diagnostics.extend(found.errors);
+    parsed.diagnostics.sort_by_key(|d| d.span.start);
+    parsed.warnings = found.warnings;
+    parsed.warnings.sort_by_key(|d| d.span.start);
     parsed
 }
 
-/// Checks an already parsed and checked recipe against the data's headers:
-/// the columns it names must exist (the closest header is suggested).
-pub fn check_against(recipe: &Recipe, headers: &[String]) -> Vec<Diagnostic> {
-    let mut diagnostics = check::check(recipe, Some(headers));
+/// The lines that errors point into.
+fn unread_lines<'s>(
+    source: &'s str,
+    diagnostics: &'s [Diagnostic],
+) -> impl Iterator<Item = &'s str> {
+    diagnostics.iter().filter_map(|d| {
+        let at = d.span.start.min(source.len());
+        let start = source[..at].rfind('\n').map_or(0, |i| i + 1);
+        source[start..].lines().next()
+    })
+}
+
+/// Names of `let`s on lines that could not be read: their later uses are
+/// not reported as unknown columns too.
+fn unread_lets(source: &str, diagnostics: &[Diagnostic]) -> Vec<String> {
+    unread_lines(source, diagnostics)
+        .filter_map(|line| {
+            let name = line.strip_prefix("let ")?.trim_start();
+            let end = name
+                .find(|c: char| !(c.is_ascii_alphanumeric() || c == '_'))
+                .unwrap_or(name.len());
+            (end > 0).then(|| name[..end].to_string())
+        })
+        .collect()
+}
+
+/// Checks an already parsed and checked recipe against the data's columns:
+/// the columns it names must exist (the closest header is suggested) and
+/// hold numbers where numbers are needed.
+pub fn check_against(recipe: &Recipe, columns: &[DataColumn]) -> Vec<Diagnostic> {
+    let mut diagnostics = check::check(recipe, Some(columns), &[]).errors;
     diagnostics.sort_by_key(|d| d.span.start);
     diagnostics
 }
 
 /// Parses one expression on its own (for `sheaf calc`) and checks its
-/// names and kinds against the data's headers.
+/// names and kinds against the data's columns.
 pub fn parse_expression(
     source: &str,
-    headers: Option<&[String]>,
+    columns: Option<&[DataColumn]>,
 ) -> Result<ast::Expr, Vec<Diagnostic>> {
     let parsed = syntax::with_source(source, || {
         let text = source.trim_end();
@@ -132,7 +195,7 @@ pub fn parse_expression(
             format!("this expression nests more than {MAX_DEPTH} levels deep"),
         )]);
     }
-    let problems = check::check_expression(&parsed, headers);
+    let problems = check::check_expression(&parsed, columns);
     if problems.is_empty() {
         Ok(parsed)
     } else {

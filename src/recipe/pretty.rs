@@ -16,7 +16,7 @@ fn columns(cols: &[ColumnRef]) -> String {
     cols.iter().map(column).collect::<Vec<_>>().join(", ")
 }
 
-fn column(c: &ColumnRef) -> String {
+pub(crate) fn column(c: &ColumnRef) -> String {
     if c.braced {
         format!("{{{}}}", c.name)
     } else {

@@ -129,7 +129,7 @@ impl Walker {
             ExprKind::Number(_) | ExprKind::Percent(_) | ExprKind::Text(_) => {}
             ExprKind::Call { function, args } => {
                 let takes_numbers = functions::lookup(&function.value)
-                    .is_some_and(|f| !f.takes_condition && f.kind != FunctionKind::Comparison);
+                    .is_some_and(|f| !f.takes_condition() && f.kind() != FunctionKind::Comparison);
                 for (i, arg) in args.iter().enumerate() {
                     self.expr(arg, i == 0 && takes_numbers);
                 }

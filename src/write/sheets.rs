@@ -467,6 +467,16 @@ condition, limit the right side. A check that cannot be evaluated counts as not 
         r += 1;
     }
     style::filter(sheet, top, r - 1, labels.len())?;
+    // Warnings about the recipe, each with its fix.
+    if !results.warnings.is_empty() {
+        r += 1;
+        sheet.write_string_with_format(r, 0, "warnings", &style::title())?;
+        for warning in &results.warnings {
+            r += 1;
+            sheet.write_string_with_format(r, 0, warning, &style::reason())?;
+        }
+        r += 1;
+    }
     // Figures without a value, so none goes unnoticed.
     let undefined = undefined_figures(results);
     if !undefined.is_empty() {
