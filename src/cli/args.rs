@@ -25,10 +25,10 @@ pub struct Shared {
     /// Colour sheaf's messages: auto (on a terminal, unless NO_COLOR is set), always or never. e.g. --color never
     #[arg(long, value_enum, default_value_t = ColorWhen::Auto, global = true)]
     pub color: ColorWhen,
-    /// Print only errors: no summary, no progress bar (the JSON of --json still goes to standard output). e.g. -q
+    /// No summary, progress bar or "ok" line: only errors and the results asked for (--json, calc's values, inspect's listing). e.g. -q
     #[arg(short, long, global = true, conflicts_with = "verbose")]
     pub quiet: bool,
-    /// Also say what was read and from where: sheet, rows, SHA-256, period, fingerprint (on standard error). e.g. -v
+    /// Also say what was read (file, sheet, header row, rows, SHA-256) and, for run, the period, fingerprint and output (on standard error). e.g. -v
     #[arg(short, long, global = true)]
     pub verbose: bool,
 }
@@ -44,7 +44,7 @@ pub enum ColorWhen {
 pub enum Command {
     /// Evaluate a recipe over a data file (or every file a pattern matches) and write the results.
     #[command(
-        after_help = "Examples:\n  sheaf run workbooks/depot-monthly.sheaf -d workbooks/depot-2026-10.xlsx -o october.xlsx\n  sheaf run workbooks/depot-monthly.sheaf -d 'workbooks/depot-*.xlsx' --out-dir results/ --json > results.jsonl"
+        after_help = "Examples:\n  sheaf run workbooks/depot-monthly.sheaf -d workbooks/depot-2026-10.xlsx -o october.xlsx\n  sheaf run workbooks/depot-monthly.sheaf -d 'workbooks/depot-*.xlsx' --out-dir results/ --json > results.jsonl\n\nExit statuses, environment and the JSON: see sheaf --help."
     )]
     Run(RunArgs),
     /// Check a recipe without writing anything; with --data, also that every column it names exists.
@@ -55,7 +55,7 @@ pub enum Command {
         /// The recipe (.sheaf). e.g. workbooks/depot-monthly.sheaf
         recipe: PathBuf,
         /// A data file whose headers the recipe's columns must match. e.g. -d workbooks/depot-2026-10.xlsx
-        #[arg(short, long)]
+        #[arg(short, long, value_name = "FILE")]
         data: Option<PathBuf>,
     },
     /// List a file's sheets and the columns of one: types, missing and text cells.
@@ -74,7 +74,7 @@ pub enum Command {
         /// The expression, in recipe syntax; quote it for the shell. e.g. 'median({Minutes late})'
         expression: String,
         /// The data file. e.g. -d workbooks/depot-2026-10.xlsx
-        #[arg(short, long)]
+        #[arg(short, long, value_name = "FILE")]
         data: PathBuf,
         #[command(flatten)]
         read: ReadArgs,
@@ -99,10 +99,10 @@ pub enum Command {
 #[derive(Args, Debug, Clone, Default)]
 pub struct ReadArgs {
     /// The sheet to read (default: the first). e.g. -s Deliveries
-    #[arg(short, long)]
+    #[arg(short, long, value_name = "NAME")]
     pub sheet: Option<String>,
     /// The row that holds the headers, counted from 1 (default: 1). e.g. --header-row 3
-    #[arg(long = "header-row")]
+    #[arg(long = "header-row", value_name = "N")]
     pub header_row: Option<u32>,
 }
 
@@ -111,16 +111,16 @@ pub struct RunArgs {
     /// The recipe (.sheaf). e.g. workbooks/depot-monthly.sheaf
     pub recipe: PathBuf,
     /// The data (.xlsx, .xlsm, .xls, .ods, .csv, .tsv), or a quoted pattern for a batch. e.g. -d 'monthly/*.xlsx'
-    #[arg(short, long)]
+    #[arg(short, long, value_name = "FILE|PATTERN")]
     pub data: String,
     /// The result workbook, a new or regular .xlsx file (default: DATA's name with -summary.xlsx, here). e.g. -o october.xlsx
-    #[arg(short, long, conflicts_with = "out_dir")]
+    #[arg(short, long, value_name = "RESULT.xlsx", conflicts_with = "out_dir")]
     pub out: Option<PathBuf>,
     /// For a batch: the folder for one result per file plus trend.xlsx. e.g. --out-dir results/
-    #[arg(long = "out-dir")]
+    #[arg(long = "out-dir", value_name = "DIR")]
     pub out_dir: Option<PathBuf>,
     /// A previous result of the same recipe: adds a Changes sheet and feeds change(...); in a batch, the first period is compared with it. e.g. --compare september.xlsx
-    #[arg(short, long)]
+    #[arg(short, long, value_name = "PREVIOUS.xlsx")]
     pub compare: Option<PathBuf>,
     /// Print the results as JSON Lines on standard output: one document per file, then one for a batch's trend (the summary goes to standard error). e.g. --json | jq .checks
     #[arg(long)]
@@ -128,7 +128,7 @@ pub struct RunArgs {
     /// Replace result files that exist. e.g. -f
     #[arg(short, long)]
     pub force: bool,
-    /// Make warn checks fail the run too (exit status 1), e.g. for a scheduled job. e.g. --fail-on-warn
+    /// Warn checks fail the run too (exit status 1): for scheduled jobs that must stop on a warning. e.g. --fail-on-warn
     #[arg(long = "fail-on-warn")]
     pub fail_on_warn: bool,
     /// Print how long loading, evaluating and writing took, per file (on standard error). e.g. --timings

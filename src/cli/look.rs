@@ -2,6 +2,7 @@
 
 use std::path::Path;
 
+use super::run::describe_table;
 use super::{Exit, Failure, output, paths, summary};
 use crate::eval::{self, One, Scope, Value};
 use crate::load::{self, LoadOptions};
@@ -63,6 +64,7 @@ pub fn inspect(file: &Path, options: LoadOptions) -> Result<Exit, Failure> {
 pub fn calc(expression: &str, data: &Path, options: LoadOptions) -> Result<Exit, Failure> {
     paths::check_data_file(data)?;
     let table = load::load(data, &options)?;
+    output::detail(&describe_table(&table));
     let headers = table.headers();
     let expr = recipe::parse_expression(expression, Some(&headers))
         .map_err(|d| Failure::new(recipe::render_all(&d, "expression", expression)))?;

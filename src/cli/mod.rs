@@ -259,16 +259,22 @@ fn validate(recipe_path: &Path, data: Option<&Path>) -> Result<Exit, Failure> {
         paths::check_data_file(data)?;
     }
     let recipe = match data {
-        Some(data) => load_for(recipe_path, &text, data)?.0,
+        Some(data) => {
+            let (recipe, table) = load_for(recipe_path, &text, data)?;
+            output::detail(&run::describe_table(&table));
+            recipe
+        }
         None => checked_recipe(recipe_path, &text, None)?,
     };
     let against = data
         .map(|d| format!(", every column found in {}", d.display()))
         .unwrap_or_default();
-    output::out_line(&format!(
-        "{}: ok, {} statements{against}",
-        recipe_path.display(),
-        recipe.statements.len()
-    ))?;
+    if !output::quiet() {
+        output::out_line(&format!(
+            "{}: ok, {} statements{against}",
+            recipe_path.display(),
+            recipe.statements.len()
+        ))?;
+    }
     Ok(Exit::Ok)
 }

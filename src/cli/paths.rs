@@ -80,30 +80,43 @@ pub fn unquoted_pattern_hint(args: &[String]) -> Option<String> {
     } else {
         at + 2
     };
-    let more = args[start..]
+    let more: Vec<&String> = args[start..]
         .iter()
         .take_while(|a| !a.starts_with('-'))
         .filter(|a| Path::new(a).is_file())
-        .count();
-    if more == 0 {
+        .collect();
+    if more.is_empty() {
         return None;
     }
     let first = Path::new(first);
-    let folder = first
-        .parent()
-        .map(|p| p.display().to_string())
-        .filter(|p| !p.is_empty());
+    let name = |p: &Path| {
+        p.file_name()
+            .map_or(String::new(), |n| n.to_string_lossy().into_owned())
+    };
+    // The names' common beginning, then `*` and the first name's ending.
+    let mut shared = name(first);
+    for other in &more {
+        let other = name(Path::new(other));
+        let same = shared
+            .char_indices()
+            .zip(other.chars())
+            .take_while(|((_, a), b)| a == b)
+            .last()
+            .map_or(0, |((i, a), _)| i + a.len_utf8());
+        shared.truncate(same);
+    }
     let ending = first
         .extension()
-        .map(|e| format!("*.{}", e.to_string_lossy()))
-        .unwrap_or_else(|| "*".into());
-    let pattern = match folder {
-        Some(f) => format!("{f}/{ending}"),
-        None => ending,
+        .map(|e| format!(".{}", e.to_string_lossy()))
+        .unwrap_or_default();
+    let file_pattern = format!("{shared}*{ending}");
+    let pattern = match first.parent().filter(|p| !p.as_os_str().is_empty()) {
+        Some(folder) => folder.join(file_pattern).display().to_string(),
+        None => file_pattern,
     };
     Some(format!(
         "error: --data was given {} files: the shell expanded an unquoted pattern before sheaf saw it\n  hint: quote the pattern so that sheaf expands it: --data '{pattern}' --out-dir results/",
-        more + 1
+        more.len() + 1
     ))
 }
 

@@ -58,15 +58,19 @@ impl Timings {
     }
 }
 
-/// What `-v` adds: where the data was read from, the period, the fingerprint.
+/// What `-v` says of the data read.
+pub fn describe_table(table: &Table) -> String {
+    format!(
+        "read {}: sheet \"{}\", header row {}, {} data rows, SHA-256 {}\n",
+        table.source.path, table.sheet, table.header_row, table.rows, table.source.sha256,
+    )
+}
+
+/// What `-v` adds after a run: the data read, the period, the fingerprint, the output.
 pub fn describe(table: &Table, run: &RunInfo, out: &Path) -> String {
     format!(
-        "read {}: sheet \"{}\", header row {}, {} data rows, SHA-256 {}\nperiod: {}\nrecipe fingerprint: {}\nwrote {}\n",
-        table.source.path,
-        table.sheet,
-        table.header_row,
-        table.rows,
-        table.source.sha256,
+        "{}period: {}\nrecipe fingerprint: {}\nwrote {}\n",
+        describe_table(table),
         run.period
             .as_ref()
             .map_or_else(|| "none found".to_string(), |p| p.explain()),
@@ -105,7 +109,7 @@ fn run(args: &RunArgs) -> Result<Exit, Failure> {
             evaluate: evaluated - loaded,
             write: evaluated.elapsed(),
         };
-        output::note(&timings.line(None));
+        output::always(&timings.line(None));
     }
     output::detail(&describe(&table, &info, &out));
     let moved = summary::moved(&results, &info);

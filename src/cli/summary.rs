@@ -49,7 +49,9 @@ pub fn batch_line(
     results: &Results,
     moved: Option<usize>,
 ) -> String {
-    let moved = moved.map(|n| format!("; {n} moved")).unwrap_or_default();
+    let moved = moved
+        .map(|n| format!("; {n} figures moved beyond the drift"))
+        .unwrap_or_default();
     format!(
         "{period}  {}  -> {}  checks: {}{moved}\n",
         data.display(),
