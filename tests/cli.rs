@@ -54,9 +54,23 @@ fn snapshot(name: &str, o: &Output, dir: &Path) {
     );
 }
 
+/// Like `sheaf`, with no colour setting from the environment, so the
+/// expected text holds on any machine.
+fn plain(args: &[&str], dir: &Path) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .args(args)
+        .current_dir(dir)
+        .env("SHEAF_RUN_TIME", "2026-11-01 09:00:00 UTC")
+        .env_remove("CLICOLOR_FORCE")
+        .env_remove("CLICOLOR")
+        .env_remove("NO_COLOR")
+        .output()
+        .unwrap()
+}
+
 fn case(name: &str, args: &[&str]) {
     let dir = tempfile::tempdir().unwrap();
-    let o = sheaf(args, dir.path());
+    let o = plain(args, dir.path());
     snapshot(name, &o, dir.path());
 }
 
@@ -249,6 +263,20 @@ fn a_closed_pipe_ends_sheaf_quietly_with_status_141() {
             assert!(stderr.is_empty(), "{args:?}: {stderr}");
         }
     }
+    // A batch finishes its work before it prints: the trend is there.
+    let pattern = root().join("workbooks/depot-*.xlsx");
+    let args = [
+        "run",
+        &recipe,
+        "-d",
+        pattern.to_str().unwrap(),
+        "--out-dir",
+        "out",
+        "--json",
+    ];
+    let o = with_closed_stdout(&args, dir.path());
+    assert_eq!(o.status.code(), Some(141));
+    assert!(dir.path().join("out/trend.xlsx").exists());
 }
 
 #[test]
@@ -337,10 +365,10 @@ fn colour_only_when_asked_or_on_a_terminal() {
     let args = ["calc", "mean(x)", "-d", "missing.xlsx"];
     let esc = |o: &Output| String::from_utf8_lossy(&o.stderr).contains('\u{1b}');
     // Standard error is a pipe here: no colour by default.
-    assert!(!esc(&sheaf(&args, dir.path())));
+    assert!(!esc(&plain(&args, dir.path())));
     let mut always = vec!["--color", "always"];
     always.extend(args);
-    assert!(esc(&sheaf(&always, dir.path())));
+    assert!(esc(&plain(&always, dir.path())));
     let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
         .args(["--color", "never"])
         .args(args)

@@ -210,47 +210,67 @@ pub fn run(args: &RunArgs) -> Result<Exit, Failure> {
 
     let (mut done, mut skipped) = evaluate_all(&args.recipe, &text, &recipe, &files);
     let (infos, records) = chain_periods(&args.recipe, &text, &recipe, &mut done, compare);
-    let written: Vec<Result<PathBuf, String>> = done
-        .par_iter_mut()
+    let written = write_all(&mut done, &infos, &out_dir, args.force);
+    // Every file is written before anything is printed, so a reader that
+    // stops early (`| head -1`) never stops the work.
+    let trend_path = write_trend(&out_dir, &done, &records)?;
+    let mut files_done = Vec::new();
+    for ((d, info), w) in done.iter().zip(&infos).zip(written) {
+        match w {
+            Ok(out) => files_done.push((d, info, out)),
+            Err(e) => skipped.push((d.path.clone(), e)),
+        }
+    }
+    let printed = print_all(args, &files_done, &records, trend_path.as_deref(), &skipped);
+    // Said last, where a person at the terminal sees it, even when the pipe closed.
+    report_skipped(&skipped, files.len());
+    printed?;
+    if files_done.is_empty() {
+        return Ok(Exit::Refused);
+    }
+    let check_failed = files_done
+        .iter()
+        .any(|(d, _, _)| checks_failed(&d.results, args.fail_on_warn));
+    Ok(Exit::of_batch(!skipped.is_empty(), check_failed))
+}
+
+/// Each result workbook, in parallel; the path written or why not.
+fn write_all(
+    done: &mut [Done],
+    infos: &[RunInfo],
+    out_dir: &Path,
+    force: bool,
+) -> Vec<Result<PathBuf, String>> {
+    done.par_iter_mut()
         .zip(infos.par_iter())
         .map(|(d, info)| {
             let started = Instant::now();
             let out = out_dir.join(default_out(&d.path));
-            let saved = crate::write::save(&d.results, &d.table, info, &out, args.force);
+            let saved = crate::write::save(&d.results, &d.table, info, &out, force);
             d.timings.write = started.elapsed();
             saved.map(|_| out).map_err(|e| e.to_string())
         })
-        .collect();
+        .collect()
+}
 
-    let mut check_failed = false;
-    let mut lines = String::new();
-    for ((d, info), w) in done.iter().zip(&infos).zip(written) {
-        let out = match w {
-            Ok(out) => out,
-            Err(e) => {
-                skipped.push((d.path.clone(), e));
-                continue;
-            }
-        };
-        check_failed |= checks_failed(&d.results, args.fail_on_warn);
-        lines.push_str(&summary::batch_line(
-            &d.period,
-            &d.path,
-            &out,
-            &d.results,
-            summary::moved(&d.results, info),
-        ));
-        if args.timings {
-            output::always(&d.timings.line(Some(&d.path)));
-        }
-        output::detail(&describe(&d.table, info, &out));
-        if args.json {
-            let document = report::result_document(&d.results, &d.table, info, &out);
-            output::out_line(&report::to_line(&document))?;
-        }
-    }
-    let trend_path = write_trend(&out_dir, &done, &records)?;
-    if let Some(path) = &trend_path {
+/// Everything on standard output: each file's document or summary line,
+/// then the trend's.
+fn print_all(
+    args: &RunArgs,
+    files: &[(&Done, &RunInfo, PathBuf)],
+    records: &[(String, Record)],
+    trend_path: Option<&Path>,
+    skipped: &[Skipped],
+) -> Result<(), Failure> {
+    print_files(args, files)?;
+    let mut lines: String = files
+        .iter()
+        .map(|(d, info, out)| {
+            let moved = summary::moved(&d.results, info);
+            summary::batch_line(&d.period, &d.path, out, &d.results, moved)
+        })
+        .collect();
+    if let Some(path) = trend_path {
         lines.push_str(&format!(
             "trend over {} periods -> {}\n",
             records.len(),
@@ -258,18 +278,31 @@ pub fn run(args: &RunArgs) -> Result<Exit, Failure> {
         ));
     }
     if args.json {
-        let drift = infos.first().map_or(history::DEFAULT_DRIFT, |i| i.drift);
-        let document = report::trend_document(&records, trend_path.as_deref(), drift, &skipped);
+        let drift = files
+            .first()
+            .map_or(history::DEFAULT_DRIFT, |(_, i, _)| i.drift);
+        let document = report::trend_document(records, trend_path, drift, skipped);
         output::out_line(&report::to_line(&document))?;
         output::note(&lines);
     } else if !output::quiet() {
         output::out(&lines)?;
     }
-    report_skipped(&skipped, files.len());
-    if skipped.len() == files.len() {
-        return Ok(Exit::Refused);
+    Ok(())
+}
+
+/// Per written file, in period order: its timings, its `-v` detail and its JSON document.
+fn print_files(args: &RunArgs, files: &[(&Done, &RunInfo, PathBuf)]) -> Result<(), Failure> {
+    for (d, info, out) in files {
+        if args.timings {
+            output::always(&d.timings.line(Some(&d.path)));
+        }
+        output::detail(&describe(&d.table, info, out));
+        if args.json {
+            let document = report::result_document(&d.results, &d.table, info, out);
+            output::out_line(&report::to_line(&document))?;
+        }
     }
-    Ok(Exit::of_batch(!skipped.is_empty(), check_failed))
+    Ok(())
 }
 
 /// Writes trend.xlsx (beside a temporary file, then renamed); None when no file was summarised.

@@ -40,6 +40,17 @@ pub fn check_out(out: &Path, force: bool) -> Result<(), Failure> {
     }
 }
 
+/// The result would replace the data it is made from.
+pub fn check_not_input(out: &Path, data: &Path) -> Result<(), Failure> {
+    match (out.canonicalize(), data.canonicalize()) {
+        (Ok(a), Ok(b)) if a == b => Err(Failure::new(format!(
+            "error: {} is the input file; choose another --out",
+            out.display()
+        ))),
+        _ => Ok(()),
+    }
+}
+
 /// A batch's output folder is a folder, or a path where one can be made.
 pub fn check_out_dir(dir: &Path) -> Result<(), Failure> {
     if dir.exists() && !dir.is_dir() {

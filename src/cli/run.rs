@@ -84,6 +84,7 @@ fn run(args: &RunArgs) -> Result<Exit, Failure> {
     paths::check_data_file(data)?;
     let out = args.out.clone().unwrap_or_else(|| default_out(data));
     paths::check_out(&out, args.force)?;
+    paths::check_not_input(&out, data)?;
     let started = Instant::now();
     let text = read_recipe(&args.recipe)?;
     let (recipe, table) = load_for(&args.recipe, &text, data)?;
