@@ -54,6 +54,7 @@ pub fn result_document(results: &Results, table: &Table, run: &RunInfo, output: 
         output: output.display().to_string(),
         recipe: RecipeReport {
             path: run.recipe_path.clone(),
+            text: run.recipe_text.clone(),
             fingerprint: run.fingerprint.clone(),
             drift: run.drift,
         },
@@ -239,6 +240,7 @@ fn chart(c: &Chart) -> ChartReport {
             rule: rule.clone(),
             edges: histogram.edges.clone(),
             counts: histogram.counts.clone(),
+            capped_from: histogram.capped_from,
         },
         Chart::Boxplot { column, boxes } => ChartReport::Boxplot {
             column: column.clone(),

@@ -86,6 +86,8 @@ pub struct ResultReport {
 #[derive(Debug, Clone, Serialize, JsonSchema)]
 pub struct RecipeReport {
     pub path: String,
+    /// The recipe as it was read (the About sheet shows it too).
+    pub text: String,
     /// SHA-256 (first 12 bytes, hex) of the recipe's canonical text.
     pub fingerprint: String,
     /// The relative change beyond which a figure counts as moved.
@@ -283,6 +285,8 @@ pub enum ChartReport {
         /// k + 1 edges for k bins.
         edges: Vec<f64>,
         counts: Vec<usize>,
+        /// The bin count the rule asked for, when it was more than sheaf draws.
+        capped_from: Option<usize>,
     },
     Boxplot {
         column: String,
