@@ -377,3 +377,43 @@ fn colour_only_when_asked_or_on_a_terminal() {
         .unwrap();
     assert!(!esc(&o));
 }
+
+#[test]
+fn completions_and_a_manual_page_for_every_command() {
+    let dir = tempfile::tempdir().unwrap();
+    for shell in ["bash", "zsh", "fish", "elvish", "powershell"] {
+        let o = plain(&["completions", shell], dir.path());
+        assert_eq!(o.status.code(), Some(0), "{shell}: {}", text(&o));
+        assert!(
+            String::from_utf8_lossy(&o.stdout).contains("fail-on-warn"),
+            "{shell}"
+        );
+    }
+    let o = plain(&["manual"], dir.path());
+    let page = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        page.starts_with(".ie") && page.contains(".TH sheaf 1"),
+        "{page}"
+    );
+    assert!(
+        page.contains(".SH \"EXIT STATUS\"\n.nf\n  0    all went well\n"),
+        "{page}"
+    );
+    for command in [
+        "run",
+        "validate",
+        "inspect",
+        "calc",
+        "completions",
+        "manual",
+    ] {
+        let o = plain(&["manual", command], dir.path());
+        assert_eq!(o.status.code(), Some(0), "{command}: {}", text(&o));
+        let page = String::from_utf8_lossy(&o.stdout);
+        assert!(page.contains(&format!(".TH sheaf-{command} 1")), "{page}");
+    }
+    assert_eq!(
+        plain(&["manual", "nope"], dir.path()).status.code(),
+        Some(2)
+    );
+}

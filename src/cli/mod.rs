@@ -6,6 +6,7 @@ mod args;
 mod batch;
 mod exit;
 mod look;
+mod manual;
 mod output;
 mod paths;
 mod run;
@@ -72,7 +73,7 @@ pub fn main() -> ExitCode {
             read,
         } => look::calc(&expression, &data, read.into()),
         Command::Completions { shell } => completions(shell),
-        Command::Manual { command } => manual(command.as_deref()),
+        Command::Manual { command } => manual::manual(command.as_deref()),
     };
     match result {
         Ok(exit) => exit.into(),
@@ -122,23 +123,6 @@ impl From<args::ReadArgs> for LoadOptions {
 fn completions(shell: clap_complete::Shell) -> Result<Exit, Failure> {
     let mut text = Vec::new();
     clap_complete::generate(shell, &mut Cli::command(), "sheaf", &mut text);
-    output::out(&String::from_utf8_lossy(&text))?;
-    Ok(Exit::Ok)
-}
-
-fn manual(command: Option<&str>) -> Result<Exit, Failure> {
-    let mut cli = Cli::command();
-    cli.build();
-    let page = match command {
-        None => cli,
-        Some(name) => cli
-            .find_subcommand(name)
-            .cloned()
-            .map(|c| c.name(format!("sheaf-{name}")))
-            .ok_or_else(|| Failure::new(format!("error: no command `{name}`; sheaf's commands are run, validate, inspect, calc, completions and manual")))?,
-    };
-    let mut text = Vec::new();
-    clap_mangen::Man::new(page).render(&mut text)?;
     output::out(&String::from_utf8_lossy(&text))?;
     Ok(Exit::Ok)
 }
