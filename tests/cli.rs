@@ -121,6 +121,49 @@ fn error_messages() {
 }
 
 #[test]
+fn a_comparison_says_how_many_figures_moved_and_verbose_says_what_was_read() {
+    let dir = tempfile::tempdir().unwrap();
+    let september = root().join("workbooks/depot-2026-09.xlsx");
+    let o = plain(
+        &[
+            "run",
+            &demo_recipe(),
+            "-d",
+            september.to_str().unwrap(),
+            "-o",
+            "sept.xlsx",
+        ],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let o = plain(
+        &[
+            "run",
+            &demo_recipe(),
+            "-d",
+            &october(),
+            "-o",
+            "oct.xlsx",
+            "-c",
+            "sept.xlsx",
+            "-v",
+        ],
+        dir.path(),
+    );
+    snapshot("summary-compare-verbose", &o, dir.path());
+    // The summary's count is the Changes sheet's.
+    let moved = common::cells(&dir.path().join("oct.xlsx"), "Changes")
+        .iter()
+        .filter(|row| row.iter().any(|c| c.to_string() == "moved"))
+        .count();
+    assert!(
+        text(&o).contains(&format!("changes: {moved} figures moved")),
+        "{moved}: {}",
+        text(&o)
+    );
+}
+
+#[test]
 fn summaries() {
     case(
         "summary-run",
@@ -376,6 +419,11 @@ fn colour_only_when_asked_or_on_a_terminal() {
         .output()
         .unwrap();
     assert!(!esc(&o));
+    // The argument parser's own errors follow --color too.
+    let o = plain(&["--color", "always", "run"], dir.path());
+    assert_eq!(o.status.code(), Some(2));
+    assert!(esc(&o));
+    assert!(!esc(&plain(&["--color", "never", "run"], dir.path())));
 }
 
 #[test]

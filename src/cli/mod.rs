@@ -15,7 +15,7 @@ mod summary;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
-use clap::{CommandFactory, Parser};
+use clap::CommandFactory;
 
 pub use args::Cli;
 use args::Command;
@@ -58,7 +58,7 @@ impl<E: std::fmt::Display> From<E> for Failure {
 /// Parses the arguments, runs the command, and turns the outcome into the exit status.
 pub fn main() -> ExitCode {
     let raw: Vec<String> = std::env::args().collect();
-    let cli = match Cli::try_parse_from(&raw) {
+    let cli = match parse(&raw) {
         Ok(cli) => cli,
         Err(e) => return usage_error(e, &raw),
     };
@@ -89,6 +89,26 @@ pub fn main() -> ExitCode {
             failure.exit.into()
         }
     }
+}
+
+/// The arguments, with the parser's own help and errors coloured as
+/// `--color` says (it is read before the rest, which may be what failed).
+fn parse(raw: &[String]) -> Result<Cli, clap::Error> {
+    use clap::FromArgMatches;
+    let asked = raw.iter().enumerate().find_map(|(i, a)| {
+        a.strip_prefix("--color=").or_else(|| {
+            (a == "--color")
+                .then(|| raw.get(i + 1).map(String::as_str))
+                .flatten()
+        })
+    });
+    let color = match asked {
+        Some("always") => clap::ColorChoice::Always,
+        Some("never") => clap::ColorChoice::Never,
+        _ => clap::ColorChoice::Auto,
+    };
+    let matches = Cli::command().color(color).try_get_matches_from(raw)?;
+    Cli::from_arg_matches(&matches)
 }
 
 /// The argument parser's own messages (help and version exit 0), with a
