@@ -56,7 +56,7 @@ impl Exit {
             }
             Exit::NoValue => "calc: the value has none (the reason is on standard error)",
             Exit::BrokenPipe => {
-                "standard output was closed early (`| head`); sheaf stopped quietly"
+                "standard output was closed early (its reader, such as `head -1`, stopped); sheaf stopped quietly"
             }
         }
     }
