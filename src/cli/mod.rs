@@ -57,7 +57,8 @@ impl<E: std::fmt::Display> From<E> for Failure {
 
 /// Parses the arguments, runs the command, and turns the outcome into the exit status.
 pub fn main() -> ExitCode {
-    let raw: Vec<String> = std::env::args().collect();
+    // Lossy only for the hint's look at the words; the parser gets them as given.
+    let raw: Vec<std::ffi::OsString> = std::env::args_os().collect();
     let cli = match parse(&raw) {
         Ok(cli) => cli,
         Err(e) => return usage_error(e, &raw),
@@ -93,32 +94,40 @@ pub fn main() -> ExitCode {
 
 /// The arguments, with the parser's own help and errors coloured as
 /// `--color` says (it is read before the rest, which may be what failed).
-fn parse(raw: &[String]) -> Result<Cli, clap::Error> {
+fn parse(raw: &[std::ffi::OsString]) -> Result<Cli, clap::Error> {
     use clap::FromArgMatches;
-    let asked = raw.iter().enumerate().find_map(|(i, a)| {
+    let words = lossy(raw);
+    let asked = words.iter().enumerate().find_map(|(i, a)| {
         a.strip_prefix("--color=").or_else(|| {
             (a == "--color")
-                .then(|| raw.get(i + 1).map(String::as_str))
+                .then(|| words.get(i + 1).map(String::as_str))
                 .flatten()
         })
     });
-    let color = match asked {
-        Some("always") => clap::ColorChoice::Always,
-        Some("never") => clap::ColorChoice::Never,
-        _ => clap::ColorChoice::Auto,
+    let (when, color) = match asked {
+        Some("always") => (args::ColorWhen::Always, clap::ColorChoice::Always),
+        Some("never") => (args::ColorWhen::Never, clap::ColorChoice::Never),
+        _ => (args::ColorWhen::Auto, clap::ColorChoice::Auto),
     };
+    output::set_color(when);
     let matches = Cli::command().color(color).try_get_matches_from(raw)?;
     Cli::from_arg_matches(&matches)
 }
 
 /// The argument parser's own messages (help and version exit 0), with a
 /// hint to quote a pattern the shell has expanded.
-fn usage_error(e: clap::Error, raw: &[String]) -> ExitCode {
+fn lossy(raw: &[std::ffi::OsString]) -> Vec<String> {
+    raw.iter()
+        .map(|a| a.to_string_lossy().into_owned())
+        .collect()
+}
+
+fn usage_error(e: clap::Error, raw: &[std::ffi::OsString]) -> ExitCode {
     use clap::error::ErrorKind;
     if matches!(
         e.kind(),
         ErrorKind::UnknownArgument | ErrorKind::TooManyValues
-    ) && let Some(hint) = paths::unquoted_pattern_hint(raw)
+    ) && let Some(hint) = paths::unquoted_pattern_hint(&lossy(raw))
     {
         output::problem(&hint);
         return Exit::Refused.into();

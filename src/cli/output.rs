@@ -23,15 +23,20 @@ fn mode() -> Mode {
     MODE.get().copied().unwrap_or_default()
 }
 
-/// Takes the shared options; called once, before anything is printed.
-pub fn init(shared: &Shared) {
-    let choice = match shared.color {
+/// Colour as `--color` says; where it says auto, anstream decides.
+pub fn set_color(when: ColorWhen) {
+    let choice = match when {
         // anstream decides: a terminal, and neither NO_COLOR nor CLICOLOR=0.
         ColorWhen::Auto => anstream::ColorChoice::Auto,
         ColorWhen::Always => anstream::ColorChoice::Always,
         ColorWhen::Never => anstream::ColorChoice::Never,
     };
     choice.write_global();
+}
+
+/// Takes the shared options; called once, before anything is printed.
+pub fn init(shared: &Shared) {
+    set_color(shared.color);
     let _ = MODE.set(Mode {
         quiet: shared.quiet,
         verbose: shared.verbose,
