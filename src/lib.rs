@@ -11,5 +11,6 @@ pub mod format;
 pub mod history;
 pub mod load;
 pub mod recipe;
+pub mod report;
 pub mod stats;
 pub mod write;

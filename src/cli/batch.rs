@@ -1,144 +1,173 @@
 //! `sheaf run RECIPE --data 'PATTERN' --out-dir DIR`: every matching file
 //! in parallel, one result each, then the trend workbook. A file that
-//! cannot be read is reported and skipped; the others still finish.
+//! cannot be read is reported and skipped; the others still finish. Every
+//! option of a single run works here too: `--json` prints one document per
+//! file and one for the trend, `--timings` one line per file, `--compare`
+//! is the previous period of the first file.
 
 use std::path::{Path, PathBuf};
-use std::process::ExitCode;
+use std::time::Instant;
 
-use indicatif::{ProgressBar, ProgressStyle};
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use rayon::prelude::*;
 
+use super::args::RunArgs;
+use super::run::{Timings, checks_failed, describe};
 use super::{
-    Failure, check_headers, checked_recipe, default_out, load_options, read_recipe,
-    recipe_warnings, run_info,
+    Exit, Failure, check_headers, checked_recipe, default_out, load_options, output, paths,
+    read_recipe, recipe_warnings, run_info, summary,
 };
 use crate::eval::{self, Results};
 use crate::history::{self, Record};
 use crate::load::{self, Table};
 use crate::recipe::{self, Recipe};
+use crate::report;
+use crate::write::RunInfo;
 
 pub fn is_pattern(data: &str) -> bool {
     data.contains(['*', '?', '['])
 }
 
+/// A file read and evaluated, on its way to its result.
 struct Done {
     path: PathBuf,
     period: String,
     table: Table,
     results: Results,
+    timings: Timings,
 }
 
-fn one_file(
+/// A file that could not be summarised, and why.
+type Skipped = (PathBuf, String);
+
+fn matching_files(pattern: &str) -> Result<Vec<PathBuf>, Failure> {
+    if !is_pattern(pattern) {
+        let path = Path::new(pattern);
+        paths::check_data_file(path)?;
+        return Ok(vec![path.to_path_buf()]);
+    }
+    let mut found: Vec<PathBuf> = glob::glob(pattern)
+        .map_err(|e| Failure::new(format!("--data '{pattern}': {e}")))?
+        .filter_map(Result::ok)
+        .filter(|p| !p.is_dir())
+        .collect();
+    found.sort();
+    if found.is_empty() {
+        return Err(Failure::new(format!("--data '{pattern}' matches no file")));
+    }
+    Ok(found)
+}
+
+/// Every result path may be written, checked before any file is read.
+fn check_outputs(out_dir: &Path, files: &[PathBuf], force: bool) -> Result<(), Failure> {
+    let refused: Vec<String> = files
+        .iter()
+        .map(|f| out_dir.join(default_out(f)))
+        .chain([out_dir.join("trend.xlsx")])
+        .filter_map(|out| paths::check_out(&out, force).err())
+        .map(|f| f.message)
+        .collect();
+    if refused.is_empty() {
+        Ok(())
+    } else {
+        Err(Failure::new(format!(
+            "{}\nnothing was read or written",
+            refused.join("\n")
+        )))
+    }
+}
+
+fn load_and_evaluate(
     recipe_path: &Path,
     text: &str,
-    syntax: &Recipe,
+    recipe: &Recipe,
     path: &Path,
-) -> Result<(Recipe, Table), String> {
-    let table = load::load_for(path, &load_options(syntax), &super::wanted(syntax, text))
+) -> Result<Done, String> {
+    let started = Instant::now();
+    let table = load::load_for(path, &load_options(recipe), &super::wanted(recipe, text))
         .map_err(|e| e.to_string())?;
-    check_headers(recipe_path, text, syntax, &table).map_err(|Failure(m)| m)?;
-    Ok((syntax.clone(), table))
+    check_headers(recipe_path, text, recipe, &table).map_err(|f| f.message)?;
+    let loaded = Instant::now();
+    let mut results =
+        eval::evaluate(recipe, &table).map_err(|e| format!("{}: {e}", path.display()))?;
+    results.warnings.extend(recipe_warnings(recipe_path, text));
+    let period = history::period_of(recipe, path).map_or_else(
+        || {
+            path.file_stem()
+                .unwrap_or_default()
+                .to_string_lossy()
+                .into_owned()
+        },
+        |p| p.label,
+    );
+    Ok(Done {
+        path: path.to_path_buf(),
+        period,
+        table,
+        results,
+        timings: Timings {
+            load: loaded - started,
+            evaluate: loaded.elapsed(),
+            ..Timings::default()
+        },
+    })
 }
 
-fn uses_change(recipe: &Recipe) -> bool {
-    recipe::calls(recipe, "change")
-}
-
-pub fn run(
-    recipe_path: &Path,
-    pattern: &str,
-    out_dir: Option<PathBuf>,
-    force: bool,
-) -> Result<ExitCode, Failure> {
-    let Some(out_dir) = out_dir else {
-        return Err(Failure(format!(
-            "--data '{pattern}' names several files; give --out-dir DIR for their results"
-        )));
-    };
-    let text = read_recipe(recipe_path)?;
-    let syntax = checked_recipe(recipe_path, &text, None)?;
-    let warnings = recipe_warnings(recipe_path, &text);
-    let mut paths: Vec<PathBuf> = glob::glob(pattern)
-        .map_err(|e| Failure(format!("--data '{pattern}': {e}")))?
-        .filter_map(Result::ok)
-        .collect();
-    paths.sort();
-    if paths.is_empty() {
-        return Err(Failure(format!("--data '{pattern}' matches no file")));
+fn progress_bar(len: usize) -> ProgressBar {
+    if output::quiet() {
+        return ProgressBar::with_draw_target(Some(len as u64), ProgressDrawTarget::hidden());
     }
-    std::fs::create_dir_all(&out_dir).map_err(|e| {
-        Failure(format!(
-            "{}: cannot create the folder: {e}",
-            out_dir.display()
-        ))
-    })?;
-    let trend_path = out_dir.join("trend.xlsx");
-    if trend_path.exists() && !force {
-        return Err(Failure(format!(
-            "{} exists already; pass --force to replace it",
-            trend_path.display()
-        )));
-    }
-
-    let bar = ProgressBar::new(paths.len() as u64);
+    let bar = ProgressBar::new(len as u64);
     bar.set_style(
         ProgressStyle::with_template("{bar:30} {pos}/{len} {msg}")
             .unwrap_or_else(|_| ProgressStyle::default_bar()),
     );
-    let outcomes: Vec<Result<(Recipe, Done), (PathBuf, String)>> = paths
+    bar
+}
+
+/// Reads and evaluates every file in parallel; the read ones in period order.
+fn evaluate_all(
+    recipe_path: &Path,
+    text: &str,
+    recipe: &Recipe,
+    files: &[PathBuf],
+) -> (Vec<Done>, Vec<Skipped>) {
+    let bar = progress_bar(files.len());
+    let outcomes: Vec<Result<Done, Skipped>> = files
         .par_iter()
         .map(|path| {
-            let result = one_file(recipe_path, &text, &syntax, path).and_then(|(recipe, table)| {
-                let mut results = eval::evaluate(&recipe, &table)
-                    .map_err(|e| format!("{}: {e}", path.display()))?;
-                results.warnings.extend(warnings.iter().cloned());
-                let period = history::period_of(&recipe, path).map_or_else(
-                    || {
-                        path.file_stem()
-                            .unwrap_or_default()
-                            .to_string_lossy()
-                            .into_owned()
-                    },
-                    |p| p.label,
-                );
-                Ok((
-                    recipe,
-                    Done {
-                        path: path.clone(),
-                        period,
-                        table,
-                        results,
-                    },
-                ))
-            });
+            let result = load_and_evaluate(recipe_path, text, recipe, path);
             bar.inc(1);
-            bar.set_message(
-                path.file_name()
-                    .unwrap_or_default()
-                    .to_string_lossy()
-                    .into_owned(),
-            );
+            bar.set_message(path.display().to_string());
             result.map_err(|e| (path.clone(), e))
         })
         .collect();
     bar.finish_and_clear();
-
-    let mut failed = Vec::new();
-    let mut done: Vec<(Recipe, Done)> = Vec::new();
+    let (mut done, mut skipped) = (Vec::new(), Vec::new());
     for outcome in outcomes {
         match outcome {
             Ok(d) => done.push(d),
-            Err(e) => failed.push(e),
+            Err(e) => skipped.push(e),
         }
     }
-    done.sort_by(|a, b| (&a.1.period, &a.1.path).cmp(&(&b.1.period, &b.1.path)));
+    done.sort_by(|a, b| (&a.period, &a.path).cmp(&(&b.period, &b.path)));
+    (done, skipped)
+}
 
-    // change(...) needs the previous period: evaluate again, in period order.
-    let mut records: Vec<(String, Record)> = Vec::new();
-    let mut previous: Option<Record> = None;
+/// Each file against the period before it (the first against `--compare`):
+/// `change(...)` is evaluated again with it, and the run facts record it.
+fn chain_periods(
+    recipe_path: &Path,
+    text: &str,
+    recipe: &Recipe,
+    done: &mut [Done],
+    mut previous: Option<Record>,
+) -> (Vec<RunInfo>, Vec<(String, Record)>) {
     let mut infos = Vec::new();
-    for (recipe, d) in &mut done {
-        if uses_change(recipe) && previous.is_some() {
+    let mut records = Vec::new();
+    for d in done.iter_mut() {
+        if recipe::calls(recipe, "change") && previous.is_some() {
+            let started = Instant::now();
             // The same rows were grouped without error above, so this cannot fail.
             if let Ok(again) = eval::evaluate_against(
                 recipe,
@@ -147,55 +176,151 @@ pub fn run(
             ) {
                 d.results = again;
             }
+            d.timings.evaluate += started.elapsed();
         }
-        let info = run_info(recipe_path, &text, recipe, &d.path, previous.clone());
+        let info = run_info(recipe_path, text, recipe, &d.path, previous.clone());
         let record =
             Record::from_results(&d.results, info.fingerprint.clone(), Some(d.period.clone()));
         records.push((d.period.clone(), record.clone()));
         previous = Some(record);
         infos.push(info);
     }
+    (infos, records)
+}
 
-    let written: Vec<Result<PathBuf, (PathBuf, String)>> = done
-        .par_iter()
+pub fn run(args: &RunArgs) -> Result<Exit, Failure> {
+    let pattern = args.data.as_str();
+    let Some(out_dir) = args.out_dir.clone() else {
+        return Err(Failure::new(format!(
+            "error: --data '{pattern}' names several files; give --out-dir DIR for their results"
+        )));
+    };
+    paths::check_out_dir(&out_dir)?;
+    let text = read_recipe(&args.recipe)?;
+    let recipe = checked_recipe(&args.recipe, &text, None)?;
+    let files = matching_files(pattern)?;
+    std::fs::create_dir_all(&out_dir).map_err(|e| {
+        Failure::new(format!(
+            "{}: cannot create the folder: {e}",
+            out_dir.display()
+        ))
+    })?;
+    check_outputs(&out_dir, &files, args.force)?;
+    let compare = match &args.compare {
+        Some(path) => Some(Record::read(path, &recipe)?),
+        None => None,
+    };
+
+    let (mut done, mut skipped) = evaluate_all(&args.recipe, &text, &recipe, &files);
+    let (infos, records) = chain_periods(&args.recipe, &text, &recipe, &mut done, compare);
+    let written = write_all(&mut done, &infos, &out_dir, args.force);
+    // Every file is written before anything is printed, so a reader that
+    // stops early (`| head -1`) never stops the work.
+    let trend_path = write_trend(&out_dir, &done, &records, args.force)?;
+    let mut files_done = Vec::new();
+    for ((d, info), w) in done.iter().zip(&infos).zip(written) {
+        match w {
+            Ok(out) => files_done.push((d, info, out)),
+            Err(e) => skipped.push((d.path.clone(), e)),
+        }
+    }
+    let printed = print_all(args, &files_done, &records, trend_path.as_deref(), &skipped);
+    // Said last, where a person at the terminal sees it, even when the pipe closed.
+    report_skipped(&skipped, files.len());
+    printed?;
+    if files_done.is_empty() {
+        return Ok(Exit::Refused);
+    }
+    let check_failed = files_done
+        .iter()
+        .any(|(d, _, _)| checks_failed(&d.results, args.fail_on_warn));
+    Ok(Exit::of_batch(!skipped.is_empty(), check_failed))
+}
+
+/// Each result workbook, in parallel; the path written or why not.
+fn write_all(
+    done: &mut [Done],
+    infos: &[RunInfo],
+    out_dir: &Path,
+    force: bool,
+) -> Vec<Result<PathBuf, String>> {
+    done.par_iter_mut()
         .zip(infos.par_iter())
-        .map(|((_, d), info)| {
+        .map(|(d, info)| {
+            let started = Instant::now();
             let out = out_dir.join(default_out(&d.path));
-            crate::write::save(&d.results, &d.table, info, &out, force)
-                .map(|_| out)
-                .map_err(|e| (d.path.clone(), e.to_string()))
+            let saved = crate::write::save(&d.results, &d.table, info, &out, force);
+            d.timings.write = started.elapsed();
+            saved.map(|_| out).map_err(|e| e.to_string())
+        })
+        .collect()
+}
+
+/// Everything on standard output: each file's document or summary line,
+/// then the trend's.
+fn print_all(
+    args: &RunArgs,
+    files: &[(&Done, &RunInfo, PathBuf)],
+    records: &[(String, Record)],
+    trend_path: Option<&Path>,
+    skipped: &[Skipped],
+) -> Result<(), Failure> {
+    print_files(args, files)?;
+    let mut lines: String = files
+        .iter()
+        .map(|(d, info, out)| {
+            let moved = summary::moved(&d.results, info);
+            summary::batch_line(&d.period, &d.path, out, &d.results, moved)
         })
         .collect();
-    let mut lines = Vec::new();
-    let mut fail_checks = false;
-    for (w, (_, d)) in written.iter().zip(&done) {
-        match w {
-            Ok(out) => {
-                fail_checks |= d.results.failed();
-                let fails = d
-                    .results
-                    .checks
-                    .iter()
-                    .filter(|c| c.outcome == eval::Outcome::Fail)
-                    .count();
-                lines.push(format!(
-                    "{}  {}  -> {}{}",
-                    d.period,
-                    d.path.display(),
-                    out.display(),
-                    if fails > 0 {
-                        format!("  ({fails} failed checks)")
-                    } else {
-                        String::new()
-                    }
-                ));
-            }
-            Err((path, e)) => failed.push((path.clone(), e.clone())),
+    if let Some(path) = trend_path {
+        lines.push_str(&format!(
+            "trend over {} periods -> {}\n",
+            records.len(),
+            path.display()
+        ));
+    }
+    if args.json {
+        let drift = files
+            .first()
+            .map_or(history::DEFAULT_DRIFT, |(_, i, _)| i.drift);
+        let document = report::trend_document(records, trend_path, drift, skipped);
+        output::out_line(&report::to_line(&document))?;
+        output::note(&lines);
+    } else if !output::quiet() {
+        output::out(&lines)?;
+    }
+    Ok(())
+}
+
+/// Per written file, in period order: its timings, its `-v` detail and its JSON document.
+fn print_files(args: &RunArgs, files: &[(&Done, &RunInfo, PathBuf)]) -> Result<(), Failure> {
+    for (d, info, out) in files {
+        if args.timings {
+            output::always(&d.timings.line(Some(&d.path)));
         }
+        output::detail(&describe(&d.table, info, out));
+        if args.json {
+            let document = report::result_document(&d.results, &d.table, info, out);
+            output::out_line(&report::to_line(&document))?;
+        }
+    }
+    Ok(())
+}
+
+/// Writes trend.xlsx (beside a temporary file, then renamed); None when no file was summarised.
+fn write_trend(
+    out_dir: &Path,
+    done: &[Done],
+    records: &[(String, Record)],
+    force: bool,
+) -> Result<Option<PathBuf>, Failure> {
+    if records.is_empty() {
+        return Ok(None);
     }
     let panels: Vec<String> = done
         .first()
-        .map(|(_, d)| {
+        .map(|d| {
             d.results
                 .blocks
                 .iter()
@@ -204,33 +329,26 @@ pub fn run(
                 .collect()
         })
         .unwrap_or_default();
-    if !records.is_empty() {
-        let bytes =
-            history::trend_workbook(&records, &panels).map_err(|e| Failure(e.to_string()))?;
-        crate::write::atomic::write_file(&trend_path, &bytes, force)
-            .map_err(|e| Failure(e.to_string()))?;
-        lines.push(format!(
-            "trend over {} periods -> {}",
-            records.len(),
-            trend_path.display()
+    let trend_path = out_dir.join("trend.xlsx");
+    let bytes = history::trend_workbook(records, &panels)?;
+    crate::write::atomic::write_file(&trend_path, &bytes, force)
+        .map_err(|e| Failure::new(e.to_string()))?;
+    Ok(Some(trend_path))
+}
+
+fn report_skipped(skipped: &[Skipped], total: usize) {
+    for (path, e) in skipped {
+        output::problem(&format!("skipped {}: {}", path.display(), e.trim_end()));
+    }
+    if !skipped.is_empty() {
+        output::problem(&format!(
+            "warning: {} of {total} files could not be summarised{}",
+            skipped.len(),
+            if skipped.len() < total {
+                "; the others were written"
+            } else {
+                ""
+            }
         ));
     }
-    for l in &lines {
-        println!("{l}");
-    }
-    for (path, e) in &failed {
-        eprintln!("skipped {}: {}", path.display(), e.trim_end());
-    }
-    Ok(if !failed.is_empty() {
-        eprintln!(
-            "{} of {} files could not be summarised; the others were written",
-            failed.len(),
-            paths.len()
-        );
-        ExitCode::from(2)
-    } else if fail_checks {
-        ExitCode::from(1)
-    } else {
-        ExitCode::SUCCESS
-    })
 }

@@ -1,163 +1,165 @@
-//! The command line: `run`, `validate`, `inspect`, `calc`. Exit status 0
-//! when all went well, 1 when a `fail` check failed, 2 for a bad recipe,
-//! bad data or bad usage (with a message naming the place and what to do).
+//! The command line: `run`, `validate`, `inspect`, `calc`, `completions`
+//! and `manual`. The exit statuses are in [`exit`]; a message the user can
+//! act on names the place and what to do.
 
+mod args;
 mod batch;
-mod json;
+mod exit;
+mod look;
+mod manual;
+mod output;
+mod paths;
+mod run;
 mod summary;
 
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
-use clap::{Parser, Subcommand};
+use clap::CommandFactory;
 
-use crate::eval::{self, One, Scope, Value};
+pub use args::Cli;
+use args::Command;
+pub use exit::{Exit, markdown_table as exit_status_table};
+
 use crate::load::{self, LoadOptions, Table};
 use crate::recipe::{self, ast::StatementKind};
-use crate::write::{self, RunInfo};
+use crate::write::RunInfo;
 
-#[derive(Parser, Debug)]
-#[command(
-    name = "sheaf",
-    version,
-    about = "The same descriptive-statistics summary from each month's workbook, from a recipe written once.",
-    after_help = "Examples:\n  sheaf run workbooks/depot-monthly.sheaf --data workbooks/depot-2026-10.xlsx --out october.xlsx\n  sheaf validate workbooks/depot-monthly.sheaf --data workbooks/depot-2026-10.xlsx\n  sheaf inspect workbooks/depot-2026-10.xlsx\n  sheaf calc 'percentile({Minutes late}, 90)' --data workbooks/depot-2026-10.xlsx"
-)]
-pub struct Cli {
-    #[command(subcommand)]
-    command: Command,
+/// A run that stopped: the message for standard error and the exit status.
+pub struct Failure {
+    message: String,
+    exit: Exit,
 }
 
-#[derive(Subcommand, Debug)]
-enum Command {
-    /// Evaluate a recipe over a data file (or every file a pattern matches) and write the results.
-    Run {
-        /// The recipe (.sheaf).
-        recipe: PathBuf,
-        /// The data: .xlsx, .xlsm, .xls, .ods, .csv or .tsv; or a quoted pattern such as 'monthly/*.xlsx'.
-        #[arg(long)]
-        data: String,
-        /// Where to write the result (default: DATA's name with -summary.xlsx, in the current folder).
-        #[arg(long)]
-        out: Option<PathBuf>,
-        /// For a pattern: the folder for one result per file plus trend.xlsx.
-        #[arg(long = "out-dir")]
-        out_dir: Option<PathBuf>,
-        /// A previous sheaf result of the same recipe: adds a Changes sheet and feeds change(...).
-        #[arg(long)]
-        compare: Option<PathBuf>,
-        /// Also print every result as JSON on standard output.
-        #[arg(long)]
-        json: bool,
-        /// Replace the result file if it exists.
-        #[arg(long)]
-        force: bool,
-        /// Print how long loading, evaluating and writing took (on standard error).
-        #[arg(long)]
-        timings: bool,
-    },
-    /// Check a recipe; with --data, also that every column it names exists.
-    Validate {
-        recipe: PathBuf,
-        #[arg(long)]
-        data: Option<PathBuf>,
-    },
-    /// List a file's sheets and the columns of one: types, missing and text cells.
-    Inspect {
-        file: PathBuf,
-        #[arg(long)]
-        sheet: Option<String>,
-        #[arg(long = "header-row")]
-        header_row: Option<u32>,
-    },
-    /// Evaluate one expression over a data file; one value per line.
-    Calc {
-        expression: String,
-        #[arg(long)]
-        data: PathBuf,
-        #[arg(long)]
-        sheet: Option<String>,
-        #[arg(long = "header-row")]
-        header_row: Option<u32>,
-    },
-}
+impl Failure {
+    /// Bad recipe, data or usage: exit status 2.
+    pub fn new(message: impl Into<String>) -> Failure {
+        Failure {
+            message: message.into(),
+            exit: Exit::Refused,
+        }
+    }
 
-/// A failure the user can act on; always exit status 2.
-struct Failure(String);
+    /// Standard output was closed: stop without a word.
+    pub fn broken_pipe() -> Failure {
+        Failure {
+            message: String::new(),
+            exit: Exit::BrokenPipe,
+        }
+    }
+}
 
 impl<E: std::fmt::Display> From<E> for Failure {
     fn from(e: E) -> Failure {
-        Failure(e.to_string())
+        Failure::new(e.to_string())
     }
 }
 
+/// Parses the arguments, runs the command, and turns the outcome into the exit status.
 pub fn main() -> ExitCode {
-    let cli = Cli::parse();
+    // Lossy only for the hint's look at the words; the parser gets them as given.
+    let raw: Vec<std::ffi::OsString> = std::env::args_os().collect();
+    let cli = match parse(&raw) {
+        Ok(cli) => cli,
+        Err(e) => return usage_error(e, &raw),
+    };
+    output::init(&cli.shared);
     let result = match cli.command {
-        Command::Run {
-            recipe,
-            data,
-            out,
-            out_dir,
-            compare,
-            json,
-            force,
-            timings,
-        } => {
-            if batch::is_pattern(&data) || out_dir.is_some() {
-                batch::run(&recipe, &data, out_dir, force)
-            } else {
-                run(
-                    &recipe,
-                    Path::new(&data),
-                    out,
-                    compare.as_deref(),
-                    json,
-                    force,
-                    timings,
-                )
-            }
-        }
+        Command::Run(a) => run::run_or_batch(a),
         Command::Validate { recipe, data } => validate(&recipe, data.as_deref()),
-        Command::Inspect {
-            file,
-            sheet,
-            header_row,
-        } => inspect(
-            &file,
-            LoadOptions {
-                sheet,
-                header_row,
-                ..LoadOptions::default()
-            },
-        ),
+        Command::Inspect { file, read } => look::inspect(&file, read.into()),
         Command::Calc {
             expression,
             data,
-            sheet,
-            header_row,
-        } => calc(
-            &expression,
-            &data,
-            LoadOptions {
-                sheet,
-                header_row,
-                ..LoadOptions::default()
-            },
-        ),
+            read,
+        } => look::calc(&expression, &data, read.into()),
+        Command::Completions { shell } => completions(shell),
+        Command::Manual { command } => manual::manual(command.as_deref()),
     };
     match result {
-        Ok(code) => code,
-        Err(Failure(message)) => {
-            eprintln!("{}", message.trim_end());
-            ExitCode::from(2)
+        Ok(exit) => exit.into(),
+        Err(failure) => {
+            if !failure.message.is_empty() {
+                let message = failure.message.trim_end();
+                if message.starts_with("error") {
+                    output::problem(message);
+                } else {
+                    output::problem(&format!("error: {message}"));
+                }
+            }
+            failure.exit.into()
         }
     }
+}
+
+/// The arguments, with the parser's own help and errors coloured as
+/// `--color` says (it is read before the rest, which may be what failed).
+fn parse(raw: &[std::ffi::OsString]) -> Result<Cli, clap::Error> {
+    use clap::FromArgMatches;
+    let words = lossy(raw);
+    let asked = words.iter().enumerate().find_map(|(i, a)| {
+        a.strip_prefix("--color=").or_else(|| {
+            (a == "--color")
+                .then(|| words.get(i + 1).map(String::as_str))
+                .flatten()
+        })
+    });
+    let (when, color) = match asked {
+        Some("always") => (args::ColorWhen::Always, clap::ColorChoice::Always),
+        Some("never") => (args::ColorWhen::Never, clap::ColorChoice::Never),
+        _ => (args::ColorWhen::Auto, clap::ColorChoice::Auto),
+    };
+    output::set_color(when);
+    let matches = Cli::command().color(color).try_get_matches_from(raw)?;
+    Cli::from_arg_matches(&matches)
+}
+
+/// The argument parser's own messages (help and version exit 0), with a
+/// hint to quote a pattern the shell has expanded.
+fn lossy(raw: &[std::ffi::OsString]) -> Vec<String> {
+    raw.iter()
+        .map(|a| a.to_string_lossy().into_owned())
+        .collect()
+}
+
+fn usage_error(e: clap::Error, raw: &[std::ffi::OsString]) -> ExitCode {
+    use clap::error::ErrorKind;
+    if matches!(
+        e.kind(),
+        ErrorKind::UnknownArgument | ErrorKind::TooManyValues
+    ) && let Some(hint) = paths::unquoted_pattern_hint(&lossy(raw))
+    {
+        output::problem(&hint);
+        return Exit::Refused.into();
+    }
+    // A closed pipe under `--help | head` is no error to report.
+    let _ = e.print();
+    match e.exit_code() {
+        0 => Exit::Ok.into(),
+        _ => Exit::Refused.into(),
+    }
+}
+
+impl From<args::ReadArgs> for LoadOptions {
+    fn from(a: args::ReadArgs) -> LoadOptions {
+        LoadOptions {
+            sheet: a.sheet,
+            header_row: a.header_row,
+            ..LoadOptions::default()
+        }
+    }
+}
+
+fn completions(shell: clap_complete::Shell) -> Result<Exit, Failure> {
+    let mut text = Vec::new();
+    clap_complete::generate(shell, &mut Cli::command(), "sheaf", &mut text);
+    output::out(&String::from_utf8_lossy(&text))?;
+    Ok(Exit::Ok)
 }
 
 fn read_recipe(path: &Path) -> Result<String, Failure> {
     std::fs::read_to_string(path)
-        .map_err(|e| Failure(format!("{}: cannot read the recipe: {e}", path.display())))
+        .map_err(|e| Failure::new(format!("{}: cannot read the recipe: {e}", path.display())))
 }
 
 /// Parses and checks a recipe in one pass; with the data's columns, checks
@@ -178,7 +180,7 @@ fn checked_recipe(
     }
     if !parsed.warnings.is_empty() {
         let file = path.display().to_string();
-        eprintln!("{}", recipe::render_all(&parsed.warnings, &file, text));
+        output::note(&recipe::render_all(&parsed.warnings, &file, text));
     }
     Ok(parsed.recipe)
 }
@@ -216,14 +218,14 @@ fn recipe_failure(path: &Path, text: &str, diagnostics: &[recipe::Diagnostic]) -
         .filter(|d| d.severity == recipe::Severity::Error)
         .count();
     let rendered = recipe::render_all(diagnostics, &path.display().to_string(), text);
-    Failure(format!(
+    Failure::new(format!(
         "{rendered}\n{}: {count} problem{} in the recipe; nothing was written",
         path.display(),
         if count == 1 { "" } else { "s" }
     ))
 }
 
-/// Checks a checked recipe against the headers of the data it will read.
+/// Checks a checked recipe against the columns of the data it will read.
 fn check_headers(
     path: &Path,
     text: &str,
@@ -238,7 +240,7 @@ fn check_headers(
     }
 }
 
-/// The data columns a recipe reads, and those it reads as numbers.
+/// The data columns a recipe reads, those it reads as numbers and those it groups by.
 pub fn wanted(recipe: &recipe::Recipe, text: &str) -> load::Wanted {
     let uses = recipe::uses::column_uses(recipe, text);
     load::Wanted {
@@ -348,173 +350,28 @@ fn run_info(
     }
 }
 
-#[allow(clippy::too_many_arguments)]
-fn run(
-    recipe_path: &Path,
-    data: &Path,
-    out: Option<PathBuf>,
-    compare: Option<&Path>,
-    as_json: bool,
-    force: bool,
-    timings: bool,
-) -> Result<ExitCode, Failure> {
-    let started = std::time::Instant::now();
+fn validate(recipe_path: &Path, data: Option<&Path>) -> Result<Exit, Failure> {
     let text = read_recipe(recipe_path)?;
-    let (recipe, table) = load_for(recipe_path, &text, data)?;
-    let loaded = std::time::Instant::now();
-    let previous = match compare {
-        Some(path) => Some(crate::history::Record::read(path, &recipe)?),
-        None => None,
-    };
-    let mut results = eval::evaluate_against(
-        &recipe,
-        &table,
-        previous.as_ref().map(|p| p.previous_terms()),
-    )?;
-    results.warnings.extend(recipe_warnings(recipe_path, &text));
-    let evaluated = std::time::Instant::now();
-    let out = out.unwrap_or_else(|| default_out(data));
-    let run = run_info(recipe_path, &text, &recipe, data, previous);
-    write::save(&results, &table, &run, &out, force)?;
-    if timings {
-        let written = std::time::Instant::now();
-        let ms = |a: std::time::Instant, b: std::time::Instant| (b - a).as_secs_f64() * 1000.0;
-        eprintln!(
-            "timings: load {:.1} ms, evaluate {:.1} ms, write {:.1} ms",
-            ms(started, loaded),
-            ms(loaded, evaluated),
-            ms(evaluated, written)
-        );
+    if let Some(data) = data {
+        paths::check_data_file(data)?;
     }
-    let summary = summary::render(&results, &table, &out);
-    if as_json {
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&json::results(&results, &table, &run))
-                .unwrap_or_default()
-        );
-        eprint!("{summary}");
-    } else {
-        print!("{summary}");
-    }
-    Ok(if results.failed() {
-        ExitCode::from(1)
-    } else {
-        ExitCode::SUCCESS
-    })
-}
-
-fn validate(recipe_path: &Path, data: Option<&Path>) -> Result<ExitCode, Failure> {
-    let text = read_recipe(recipe_path)?;
     let recipe = match data {
-        Some(data) => load_for(recipe_path, &text, data)?.0,
+        Some(data) => {
+            let (recipe, table) = load_for(recipe_path, &text, data)?;
+            output::detail(&run::describe_table(&table));
+            recipe
+        }
         None => checked_recipe(recipe_path, &text, None)?,
     };
     let against = data
         .map(|d| format!(", every column found in {}", d.display()))
         .unwrap_or_default();
-    println!(
-        "{}: ok, {} statements{against}",
-        recipe_path.display(),
-        recipe.statements.len()
-    );
-    Ok(ExitCode::SUCCESS)
-}
-
-fn inspect(file: &Path, options: LoadOptions) -> Result<ExitCode, Failure> {
-    let sheets = load::sheet_names(file)?;
-    let table = load::load(file, &options)?;
-    println!(
-        "{}: {} bytes, SHA-256 {}",
-        file.display(),
-        table.source.size,
-        table.source.sha256
-    );
-    println!(
-        "sheets: {}",
-        sheets
-            .iter()
-            .map(|s| format!("\"{s}\""))
-            .collect::<Vec<_>>()
-            .join(", ")
-    );
-    println!(
-        "sheet \"{}\", header row {}, {} data rows\n",
-        table.sheet, table.header_row, table.rows
-    );
-    let mut lines = vec![[
-        "column".to_string(),
-        "cell".into(),
-        "type".into(),
-        "values".into(),
-        "blank".into(),
-        "text in numbers".into(),
-        "errors".into(),
-        "first problem cells".into(),
-    ]];
-    for c in &table.columns {
-        let issues = c.issues();
-        let count = |k| issues.iter().filter(|i| i.kind == k).count().to_string();
-        let first: Vec<String> = issues
-            .iter()
-            .filter(|i| i.kind != load::IssueKind::Blank)
-            .take(3)
-            .map(|i| table.address(c, i.row))
-            .collect();
-        lines.push([
-            c.name.clone(),
-            load::column_letters(c.sheet_column),
-            c.kind.word().into(),
-            (table.rows - issues.len()).to_string(),
-            count(load::IssueKind::Blank),
-            count(load::IssueKind::TextInNumbers),
-            count(load::IssueKind::FormulaError),
-            first.join(" "),
-        ]);
+    if !output::quiet() {
+        output::out_line(&format!(
+            "{}: ok, {} statements{against}",
+            recipe_path.display(),
+            recipe.statements.len()
+        ))?;
     }
-    print!("{}", summary::columns(&lines));
-    Ok(ExitCode::SUCCESS)
-}
-
-fn calc(expression: &str, data: &Path, options: LoadOptions) -> Result<ExitCode, Failure> {
-    let table = load::load(data, &options)?;
-    let expr = recipe::parse_expression(expression, Some(&data_columns(&table)))
-        .map_err(|d| Failure(recipe::render_all(&d, "expression", expression)))?;
-    let lets = Default::default();
-    let rows: Vec<crate::eval::Row> = (0..table.rows as crate::eval::Row).collect();
-    let scope = Scope::new(&table, &lets, &rows);
-    let mut out = String::new();
-    let line = |v: &One| match v {
-        One::Number(x) => crate::format::shortest(*x),
-        One::Truth(b) => b.to_string(),
-        One::Text(t) => t.clone(),
-        One::List(v) => v
-            .iter()
-            .map(|x| crate::format::shortest(*x))
-            .collect::<Vec<_>>()
-            .join("\n"),
-        One::Undefined(why) => format!("no value: {why}"),
-    };
-    match scope.eval(&expr) {
-        Value::One(v) => out.push_str(&line(&v)),
-        Value::Rows(rows) => {
-            let texts: Vec<String> = match rows {
-                eval::Rows::Numbers(v) => v
-                    .iter()
-                    .map(|x| x.map_or("missing".into(), crate::format::shortest))
-                    .collect(),
-                eval::Rows::Truths(v) => v
-                    .iter()
-                    .map(|x| x.map_or("missing".into(), |b| b.to_string()))
-                    .collect(),
-                eval::Rows::Texts(v) => v
-                    .iter()
-                    .map(|x| x.clone().unwrap_or_else(|| "missing".into()))
-                    .collect(),
-            };
-            out.push_str(&texts.join("\n"));
-        }
-    }
-    println!("{out}");
-    Ok(ExitCode::SUCCESS)
+    Ok(Exit::Ok)
 }

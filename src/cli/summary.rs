@@ -2,8 +2,63 @@
 
 use std::path::Path;
 
+use super::output::{green, red, styled, yellow};
 use crate::eval::{Block, Outcome, Results, Status, group_label};
 use crate::load::Table;
+use crate::write::RunInfo;
+
+/// How many figures moved beyond the recipe's drift since the previous
+/// period; None when the run had none to compare with.
+pub fn moved(results: &Results, run: &RunInfo) -> Option<usize> {
+    let previous = run.previous.as_ref()?;
+    let current = crate::history::Record::from_results(results, run.fingerprint.clone(), None);
+    Some(
+        crate::history::moves_between("", previous, "", &current)
+            .iter()
+            .filter(|m| m.moved(run.drift))
+            .count(),
+    )
+}
+
+/// An outcome's word, coloured where colour is on.
+fn outcome_word(outcome: Outcome) -> String {
+    let style = match outcome {
+        Outcome::Pass => green(),
+        Outcome::Warn => yellow(),
+        Outcome::Fail => red(),
+    };
+    styled(style, outcome.word())
+}
+
+/// `5 pass, 1 warn, 0 fail`.
+fn check_counts(results: &Results) -> String {
+    let count = |o: Outcome| results.checks.iter().filter(|c| c.outcome == o).count();
+    [Outcome::Pass, Outcome::Warn, Outcome::Fail]
+        .map(|o| match count(o) {
+            0 => format!("0 {}", o.word()),
+            n => format!("{n} {}", outcome_word(o)),
+        })
+        .join(", ")
+}
+
+/// One file of a batch: its period, where it went, its checks and moves.
+pub fn batch_line(
+    period: &str,
+    data: &Path,
+    out: &Path,
+    results: &Results,
+    moved: Option<usize>,
+) -> String {
+    let moved = moved
+        .map(|n| format!("; {n} figures moved beyond the drift"))
+        .unwrap_or_default();
+    format!(
+        "{period}  {}  -> {}  checks: {}{moved}\n",
+        data.display(),
+        out.display(),
+        check_counts(results)
+    )
+}
 
 /// Left-aligned columns separated by two spaces.
 pub fn columns<const N: usize>(lines: &[[String; N]]) -> String {
@@ -26,7 +81,9 @@ pub fn columns<const N: usize>(lines: &[[String; N]]) -> String {
     out
 }
 
-pub fn render(results: &Results, table: &Table, out: &Path) -> String {
+/// The summary of one run: blocks with their robustness statuses, the
+/// checks that did not pass, the moved figures and the result's path.
+pub fn render(results: &Results, table: &Table, out: &Path, moved: Option<usize>) -> String {
     let mut text = format!(
         "{}\n{} rows read from {} (sheet \"{}\"){}\n\n",
         results.title.as_deref().unwrap_or("sheaf result"),
@@ -42,12 +99,6 @@ pub fn render(results: &Results, table: &Table, out: &Path) -> String {
             )
         }
     );
-    for note in crate::load::reading_notes(table) {
-        text.push_str(&format!("{}: {}\n", note.topic, note.text));
-    }
-    if !text.ends_with("\n\n") {
-        text.push('\n');
-    }
     let mut lines = vec![[
         "block".to_string(),
         "groups".into(),
@@ -76,18 +127,12 @@ pub fn render(results: &Results, table: &Table, out: &Path) -> String {
         }
     }
     text.push_str(&columns(&lines));
-    let count = |o: Outcome| results.checks.iter().filter(|c| c.outcome == o).count();
-    text.push_str(&format!(
-        "\nchecks: {} pass, {} warn, {} fail\n",
-        count(Outcome::Pass),
-        count(Outcome::Warn),
-        count(Outcome::Fail)
-    ));
+    text.push_str(&format!("\nchecks: {}\n", check_counts(results)));
     for c in results.checks.iter().filter(|c| c.outcome != Outcome::Pass) {
         let group = group_label(c.group.as_deref().unwrap_or_default());
         text.push_str(&format!(
             "  {}: \"{}\" {group}{}\n",
-            c.outcome.word(),
+            outcome_word(c.outcome),
             c.name,
             c.note
                 .as_ref()
@@ -95,8 +140,11 @@ pub fn render(results: &Results, table: &Table, out: &Path) -> String {
                 .unwrap_or_default()
         ));
     }
-    for warning in &results.warnings {
-        text.push_str(&format!("  warning: {warning}\n"));
+    if let Some(n) = moved {
+        text.push_str(&format!(
+            "changes: {n} figure{} moved beyond the drift since the previous period (see Changes)\n",
+            if n == 1 { "" } else { "s" }
+        ));
     }
     text.push_str(&format!("\nwritten: {}\n", out.display()));
     text

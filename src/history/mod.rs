@@ -10,7 +10,7 @@ pub use period::{Period, PeriodSource, period_of};
 pub use record::{
     Entry, RECORD_BAND_WIDTH, RECORD_SHEET, Record, RecordError, TERM_BLOCK, fingerprint,
 };
-pub use trend::{Move, largest_moves, trend_workbook};
+pub use trend::{Move, largest_moves, moves_between, trend_workbook};
 
 /// Relative change beyond which a figure is flagged when the recipe sets no
 /// `drift` (sheaf's default; common practice, not from a published source).

@@ -21,30 +21,44 @@ pub struct Move {
 }
 
 impl Move {
+    /// The change relative to the size of the value before; None when that was 0.
     pub fn relative(&self) -> Option<f64> {
         (self.before != 0.0).then(|| (self.after - self.before) / self.before.abs())
     }
+
+    /// Whether the relative change exceeds `drift` (a change from 0 never does).
+    pub fn moved(&self, drift: f64) -> bool {
+        self.relative().is_some_and(|r| r.abs() > drift)
+    }
+}
+
+/// Every figure of `after` that `before` also holds, in `after`'s order:
+/// the one comparison behind the Changes sheet, `--json` and the trend.
+pub fn moves_between(from: &str, before: &Record, to: &str, after: &Record) -> Vec<Move> {
+    after
+        .entries
+        .iter()
+        .filter(|e| e.block != TERM_BLOCK)
+        .filter_map(|e| {
+            before.find(&e.block, &e.group, &e.name).map(|b| Move {
+                block: e.block.clone(),
+                group: e.group.clone(),
+                name: e.name.clone(),
+                from: from.to_string(),
+                to: to.to_string(),
+                before: b,
+                after: e.value,
+            })
+        })
+        .collect()
 }
 
 /// Moves between consecutive periods, largest relative change first.
 pub fn largest_moves(records: &[(String, Record)]) -> Vec<Move> {
-    let mut moves = Vec::new();
-    for pair in records.windows(2) {
-        let ((from, before), (to, after)) = (&pair[0], &pair[1]);
-        for e in after.entries.iter().filter(|e| e.block != TERM_BLOCK) {
-            if let Some(b) = before.find(&e.block, &e.group, &e.name) {
-                moves.push(Move {
-                    block: e.block.clone(),
-                    group: e.group.clone(),
-                    name: e.name.clone(),
-                    from: from.clone(),
-                    to: to.clone(),
-                    before: b,
-                    after: e.value,
-                });
-            }
-        }
-    }
+    let mut moves: Vec<Move> = records
+        .windows(2)
+        .flat_map(|pair| moves_between(&pair[0].0, &pair[0].1, &pair[1].0, &pair[1].1))
+        .collect();
     moves.sort_by(|a, b| {
         let size = |m: &Move| m.relative().map_or(-1.0, f64::abs);
         size(b).total_cmp(&size(a))

@@ -37,28 +37,25 @@ pub fn changes(
     style::table_header(sheet, 3, &labels, 3)?;
     let percent = Format::new().set_num_format("0.0%");
     let mut r = 4;
-    for e in current
-        .entries
-        .iter()
-        .filter(|e| e.block != crate::history::TERM_BLOCK)
-    {
-        let Some(before) = previous.find(&e.block, &e.group, &e.name) else {
-            continue;
-        };
-        sheet.write_string(r, 0, style::fit(&e.block))?;
-        sheet.write_string(r, 1, style::fit(&e.group))?;
-        sheet.write_string(r, 2, style::fit(&e.name))?;
-        sheet.write_number(r, 3, before)?;
-        sheet.write_number(r, 4, e.value)?;
-        sheet.write_number(r, 5, e.value - before)?;
-        if before != 0.0 {
-            let relative = (e.value - before) / before.abs();
-            sheet.write_number_with_format(r, 6, relative, &percent)?;
-            if relative.abs() > run.drift {
-                sheet.write_string_with_format(r, 7, "moved", &style::status("warn"))?;
+    let previous_period = previous.period.as_deref().unwrap_or_default();
+    let now_period = current.period.as_deref().unwrap_or_default();
+    for m in crate::history::moves_between(previous_period, previous, now_period, current) {
+        sheet.write_string(r, 0, style::fit(&m.block))?;
+        sheet.write_string(r, 1, style::fit(&m.group))?;
+        sheet.write_string(r, 2, style::fit(&m.name))?;
+        sheet.write_number(r, 3, m.before)?;
+        sheet.write_number(r, 4, m.after)?;
+        sheet.write_number(r, 5, m.after - m.before)?;
+        match m.relative() {
+            Some(relative) => {
+                sheet.write_number_with_format(r, 6, relative, &percent)?;
+                if m.moved(run.drift) {
+                    sheet.write_string_with_format(r, 7, "moved", &style::status("warn"))?;
+                }
             }
-        } else {
-            sheet.write_string_with_format(r, 6, "previous was 0", &style::reason())?;
+            None => {
+                sheet.write_string_with_format(r, 6, "previous was 0", &style::reason())?;
+            }
         }
         r += 1;
     }

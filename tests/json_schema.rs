@@ -1,0 +1,186 @@
+//! The JSON of `run --json`: the committed schema is the one the types
+//! generate, and real output (a single run, a batch with its trend, a
+//! comparison) validates against it and keeps its promised shapes.
+//! After a deliberate change of the report types, regenerate the schema
+//! with `SHEAF_BLESS=1 cargo test --test json_schema` and review its diff.
+
+mod common;
+
+use std::path::Path;
+
+use common::{root, sheaf, text};
+use serde_json::Value;
+
+const SCHEMA: &str = "schema/sheaf-report.schema.json";
+
+#[test]
+fn the_committed_schema_is_generated_from_the_types() {
+    let generated = sheaf::report::schema();
+    let path = root().join(SCHEMA);
+    if std::env::var_os("SHEAF_BLESS").is_some() {
+        std::fs::write(&path, &generated).unwrap();
+    }
+    let committed = std::fs::read_to_string(&path).unwrap_or_default();
+    assert!(
+        committed == generated,
+        "{SCHEMA} is stale; regenerate it with SHEAF_BLESS=1 cargo test --test json_schema"
+    );
+}
+
+fn validator() -> jsonschema::Validator {
+    let schema: Value = serde_json::from_str(&sheaf::report::schema()).unwrap();
+    jsonschema::validator_for(&schema).unwrap()
+}
+
+/// Every line of standard output, each checked against the schema.
+fn documents(stdout: &[u8]) -> Vec<Value> {
+    let validator = validator();
+    let lines: Vec<Value> = String::from_utf8_lossy(stdout)
+        .lines()
+        .map(|l| serde_json::from_str(l).unwrap_or_else(|e| panic!("not JSON ({e}): {l}")))
+        .collect();
+    for doc in &lines {
+        let errors: Vec<String> = validator.iter_errors(doc).map(|e| e.to_string()).collect();
+        assert!(errors.is_empty(), "{errors:#?}");
+        assert_eq!(doc["version"], sheaf::report::REPORT_VERSION);
+    }
+    lines
+}
+
+/// Object keys are snake_case everywhere except inside a figures block's
+/// `figures`, whose keys are the recipe's own names.
+fn assert_snake_case(v: &Value, path: &str) {
+    match v {
+        Value::Object(map) => {
+            for (k, child) in map {
+                let user_names = path.ends_with("rows[].figures");
+                assert!(
+                    user_names
+                        || k.chars()
+                            .all(|c| c.is_ascii_lowercase() || c.is_ascii_digit() || c == '_'),
+                    "key {k:?} at {path}"
+                );
+                assert_snake_case(child, &format!("{path}.{k}"));
+            }
+        }
+        Value::Array(items) => items
+            .iter()
+            .for_each(|i| assert_snake_case(i, &format!("{path}[]"))),
+        _ => {}
+    }
+}
+
+fn demo() -> (String, String) {
+    let w = root().join("workbooks");
+    (
+        w.join("depot-monthly.sheaf").display().to_string(),
+        w.join("depot-2026-10.xlsx").display().to_string(),
+    )
+}
+
+#[test]
+fn a_single_run_prints_one_valid_document_with_everything_the_workbook_holds() {
+    let dir = tempfile::tempdir().unwrap();
+    let (recipe, data) = demo();
+    let o = sheaf(
+        &["run", &recipe, "--data", &data, "--out", "r.xlsx", "--json"],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let docs = documents(&o.stdout);
+    assert_eq!(docs.len(), 1);
+    let doc = &docs[0];
+    assert_snake_case(doc, "");
+    assert_eq!(doc["kind"], "result");
+    assert_eq!(doc["output"], "r.xlsx");
+    assert_eq!(doc["run_time"], "2026-11-01T09:00:00Z");
+    assert_eq!(doc["period"]["label"], "2026-10");
+    assert_eq!(doc["period"]["source"], "file_name");
+    assert_eq!(doc["recipe"]["fingerprint"].as_str().unwrap().len(), 24);
+    assert_eq!(doc["input"]["sha256"].as_str().unwrap().len(), 64);
+    let panel = &doc["blocks"][0];
+    assert_eq!(panel["kind"], "panel");
+    let entry = &panel["entries"][0];
+    // Keys from the panel's own labels ("Bowley skewness", "Q1").
+    assert!(entry["figures"]["bowley_skewness"].is_number(), "{entry}");
+    assert!(entry["figures"]["q1"].is_number());
+    let robustness = &entry["robustness"];
+    for key in ["outliers_1_5_iqr", "largest_mean_influence", "bootstrap"] {
+        assert!(!robustness[key].is_null(), "{key}: {robustness}");
+    }
+    // Checks carry their level; a check that could not be evaluated says why.
+    let checks = doc["checks"].as_array().unwrap();
+    assert!(checks.iter().any(|c| c["level"] == "fail"));
+    let steady = checks
+        .iter()
+        .find(|c| c["name"] == "steady on-time share")
+        .unwrap();
+    assert_eq!(steady["level"], "warn");
+    assert!(steady["value"]["reason"].is_string(), "{steady}");
+    assert!(doc["changes"].is_null());
+}
+
+#[test]
+fn a_batch_prints_json_lines_one_per_file_then_the_trend() {
+    let dir = tempfile::tempdir().unwrap();
+    let (recipe, _) = demo();
+    let pattern = root().join("workbooks/depot-2026-*.xlsx");
+    let o = sheaf(
+        &[
+            "run",
+            &recipe,
+            "--data",
+            pattern.to_str().unwrap(),
+            "--out-dir",
+            "out",
+            "--json",
+        ],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let docs = documents(&o.stdout);
+    let kinds: Vec<&str> = docs.iter().map(|d| d["kind"].as_str().unwrap()).collect();
+    assert_eq!(kinds, ["result", "result", "result", "trend"]);
+    // From the second period on, each file is compared with the one before.
+    assert!(docs[0]["changes"].is_null());
+    let changes = &docs[1]["changes"];
+    assert_eq!(changes["previous_period"], "2026-08");
+    let figures = changes["figures"].as_array().unwrap();
+    assert!(figures.iter().any(|f| f["moved"] == true));
+    for f in figures {
+        let (now, previous) = (f["now"].as_f64().unwrap(), f["previous"].as_f64().unwrap());
+        assert!((f["change"].as_f64().unwrap() - (now - previous)).abs() < 1e-12);
+    }
+    let trend = &docs[3];
+    assert_eq!(
+        trend["periods"],
+        serde_json::json!(["2026-08", "2026-09", "2026-10"])
+    );
+    assert!(Path::new(&dir.path().join(trend["output"].as_str().unwrap())).exists());
+    assert_snake_case(trend, "");
+}
+
+#[test]
+fn the_schema_refuses_a_document_that_breaks_its_promises() {
+    let dir = tempfile::tempdir().unwrap();
+    let (recipe, data) = demo();
+    let o = sheaf(&["run", &recipe, "--data", &data, "--json"], dir.path());
+    let good: Value = serde_json::from_slice(&o.stdout).unwrap();
+    let validator = validator();
+    assert!(validator.is_valid(&good));
+    let mut no_version = good.clone();
+    no_version.as_object_mut().unwrap().remove("version");
+    assert!(!validator.is_valid(&no_version));
+    // A display label as a key instead of the snake_case one.
+    let mut label_key = good.clone();
+    let figures = label_key["blocks"][0]["entries"][0]["figures"]
+        .as_object_mut()
+        .unwrap();
+    let v = figures.remove("bowley_skewness").unwrap();
+    figures.insert("Bowley skewness".into(), v);
+    assert!(!validator.is_valid(&label_key));
+    // A figure with no value is {"reason": ...}, not a bare string list.
+    let mut bad_value = good;
+    bad_value["blocks"][0]["entries"][0]["figures"]["mean"] = serde_json::json!({"why": "x"});
+    assert!(!validator.is_valid(&bad_value));
+}
