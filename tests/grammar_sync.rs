@@ -131,7 +131,12 @@ fn grammar_word_lists_match_the_parser() {
         "comparisons"
     );
 
-    // Every statement word of the grammar starts a statement the parser knows.
+    // The grammar's statement words are the parser's, and each starts a statement.
+    assert_eq!(
+        grammar_list("statements"),
+        recipe::STATEMENT_WORDS,
+        "statements"
+    );
     for word in grammar_list("statements") {
         let parsed = recipe::parse(&format!("{word}\n"));
         let message = &parsed.diagnostics[0].message;

@@ -12,7 +12,32 @@ use crate::recipe;
 pub fn inspect(file: &Path, options: LoadOptions) -> Result<Exit, Failure> {
     paths::check_data_file(file)?;
     let sheets = load::sheet_names(file)?;
-    let table = load::load(file, &options)?;
+    let mut table = match load::load(file, &options) {
+        Ok(table) => table,
+        Err(e) => {
+            // A sheet that is not a table as read: show its top, so the
+            // problem can be seen (a damaged file is not read again).
+            let shape = matches!(
+                e,
+                load::LoadError::BlankHeader { .. }
+                    | load::LoadError::DuplicateHeader { .. }
+                    | load::LoadError::NoHeaderRow { .. }
+                    | load::LoadError::EmptySheet { .. }
+            );
+            if shape && let Ok((sheet, rows)) = load::first_rows(file, &options, PREVIEW_ROWS) {
+                output::out(&preview(&sheet, &rows, None))?;
+            }
+            return Err(e.into());
+        }
+    };
+    // Any text column could be a group key: show its near-duplicate spellings.
+    let texts: Vec<String> = table
+        .columns
+        .iter()
+        .filter(|c| c.kind == load::ColumnKind::Text)
+        .map(|c| c.name.clone())
+        .collect();
+    table.find_near_duplicates(&texts, false);
     let sheets: Vec<String> = sheets.iter().map(|s| format!("\"{s}\"")).collect();
     let mut text = format!(
         "{}: {} bytes, SHA-256 {}\nsheets: {}\nsheet \"{}\", header row {}, {} data rows\n\n",
@@ -55,8 +80,44 @@ pub fn inspect(file: &Path, options: LoadOptions) -> Result<Exit, Failure> {
         ]);
     }
     text.push_str(&summary::columns(&lines));
+    for note in load::reading_notes(&table) {
+        text.push_str(&format!("{}: {}\n", note.topic, note.text));
+    }
+    if let Ok((sheet, rows)) = load::first_rows(file, &options, PREVIEW_ROWS) {
+        text.push('\n');
+        text.push_str(&preview(&sheet, &rows, Some(table.header_row as usize)));
+    }
     output::out(&text)?;
     Ok(Exit::Ok)
+}
+
+/// How many rows from the top `inspect` shows.
+const PREVIEW_ROWS: usize = 12;
+
+/// The top rows of a sheet, numbered as a spreadsheet numbers them, with
+/// the header row sheaf uses marked.
+fn preview(sheet: &str, rows: &[Vec<String>], header_row: Option<usize>) -> String {
+    let mut text = format!("first rows of sheet \"{sheet}\"");
+    text.push_str(match header_row {
+        Some(_) => " (> marks the header row)\n",
+        None => "\n",
+    });
+    for (i, cells) in rows.iter().enumerate() {
+        let mark = if header_row == Some(i + 1) { ">" } else { " " };
+        let shown: Vec<String> = cells
+            .iter()
+            .map(|c| {
+                let c = c.trim();
+                if c.chars().count() > 16 {
+                    format!("{}...", c.chars().take(15).collect::<String>())
+                } else {
+                    c.to_string()
+                }
+            })
+            .collect();
+        text.push_str(&format!("{mark}{:>4}  {}\n", i + 1, shown.join(" | ")));
+    }
+    text
 }
 
 /// Prints the expression's value, one line per value; a value that has

@@ -99,6 +99,15 @@ pub fn render(results: &Results, table: &Table, out: &Path, moved: Option<usize>
             )
         }
     );
+    // What the loader decided (header row found, rows left out, number
+    // style, ...): said before the figures, as the About sheet says it.
+    let notes = crate::load::reading_notes(table);
+    for note in &notes {
+        text.push_str(&format!("{}: {}\n", note.topic, note.text));
+    }
+    if !notes.is_empty() {
+        text.push('\n');
+    }
     let mut lines = vec![[
         "block".to_string(),
         "groups".into(),

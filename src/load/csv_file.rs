@@ -265,6 +265,40 @@ pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
     }
 }
 
+/// The first `n` rows of a text file as its cells' texts (for `inspect`),
+/// decoded and split as [`load`] would.
+pub fn first_rows(path: &Path, n: usize) -> Result<Vec<Vec<String>>, LoadError> {
+    let shown = path.display().to_string();
+    let file = std::fs::File::open(path).map_err(|e| unreadable(&shown, e))?;
+    let mut head = Vec::new();
+    file.take(HEAD_BYTES)
+        .read_to_end(&mut head)
+        .map_err(|e| unreadable(&shown, e))?;
+    let encoding = match Encoding::for_bom(&head) {
+        Some((e, _)) => e,
+        None if first_non_utf8_line(&head).is_some() => WINDOWS_1252,
+        None => UTF_8,
+    };
+    let text = encoding.decode_with_bom_removal(&head).0.into_owned();
+    let layout = layout(&text, &LoadOptions::default(), ReadNotes::default());
+    let body = if layout.separator_line {
+        text.split_once('\n').map_or("", |(_, rest)| rest)
+    } else {
+        &text
+    };
+    let mut reader = csv::ReaderBuilder::new()
+        .delimiter(layout.delimiter)
+        .has_headers(false)
+        .flexible(true)
+        .from_reader(body.as_bytes());
+    Ok(reader
+        .records()
+        .map_while(Result::ok)
+        .take(n)
+        .map(|r| r.iter().map(str::to_string).collect())
+        .collect())
+}
+
 /// Reads the rest of the file, decodes it whole and reads its records.
 fn load_decoded(
     path: &Path,

@@ -52,12 +52,19 @@ pub fn find(rows: &[TopRow]) -> Option<FoundHeader> {
             .iter()
             .any(|(_, c)| matches!(c, Cell::Number(_) | Cell::Date(_) | Cell::Bool(_)))
     };
-    let chosen = candidates
-        .iter()
-        .copied()
-        .find(|&i| data_follows(i))
-        .or_else(|| candidates.first().copied())
-        .unwrap_or(0);
+    // A row of several text cells that names the columns below it is the
+    // header, even when the numbers under it do not read as numbers (yet).
+    // A lone text cell could be a title over a one-column sheet: then the
+    // first such row with a number, date or true/false under it wins.
+    let chosen = match candidates.first() {
+        Some(&first) if rows[first].1.len() >= 2 => first,
+        _ => candidates
+            .iter()
+            .copied()
+            .find(|&i| data_follows(i))
+            .or_else(|| candidates.first().copied())
+            .unwrap_or(0),
+    };
     let row = rows[chosen].0;
     let note = (row != 0).then(|| {
         let above: Vec<String> = rows[..chosen]
@@ -150,6 +157,16 @@ mod tests {
         let found = find(&rows).unwrap();
         assert_eq!(found.row, 2);
         assert!(found.note.unwrap().contains("blank"));
+    }
+
+    #[test]
+    fn headers_over_numbers_that_do_not_read_yet_stay_the_headers() {
+        let rows = vec![
+            row(0, vec![text("line"), text("weight")]),
+            row(1, vec![text("A"), text("1,5")]),
+            row(2, vec![text("B"), Cell::Number(2.0)]),
+        ];
+        assert_eq!(find(&rows).unwrap().row, 0);
     }
 
     #[test]

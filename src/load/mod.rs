@@ -138,6 +138,24 @@ pub fn load(path: &Path, options: &LoadOptions) -> Result<Table, LoadError> {
     }
 }
 
+/// The first `n` rows of the sheet `options` names (or the first) as the
+/// texts of their cells, the sheet's name with them: what `inspect` shows
+/// so that a sheet that does not read as a table can still be seen.
+pub fn first_rows(
+    path: &Path,
+    options: &LoadOptions,
+    n: usize,
+) -> Result<(String, Vec<Vec<String>>), LoadError> {
+    match kind_of(path)? {
+        FileKind::Delimited => Ok((csv_file::sheet_name(path), csv_file::first_rows(path, n)?)),
+        FileKind::Workbook => {
+            limits::check_spreadsheet(path)?;
+            let (owned, options) = (path.to_path_buf(), options.clone());
+            limits::guarded(path, move || workbook::first_rows(&owned, &options, n))
+        }
+    }
+}
+
 /// The sheets of a file and, for CSV, the one pseudo-sheet.
 pub fn sheet_names(path: &Path) -> Result<Vec<String>, LoadError> {
     match kind_of(path)? {

@@ -23,6 +23,69 @@ pub fn sheet_names(path: &Path) -> Result<Vec<String>, LoadError> {
         .sheet_names())
 }
 
+/// The first `n` rows of a sheet (the options' or the first) as texts, for
+/// `inspect`. xlsx and xlsm stream their cells and stop after row `n`; xls
+/// and ods are read as a range, as their loader reads them.
+pub fn first_rows(
+    path: &Path,
+    options: &LoadOptions,
+    n: usize,
+) -> Result<(String, Vec<Vec<String>>), LoadError> {
+    let shown = path.display().to_string();
+    let mut rows: Vec<Vec<String>> = Vec::new();
+    let mut put = |row: usize, column: usize, text: String| {
+        if rows.len() <= row {
+            rows.resize(row + 1, Vec::new());
+        }
+        let cells = &mut rows[row];
+        if cells.len() <= column {
+            cells.resize(column + 1, String::new());
+        }
+        cells[column] = text;
+    };
+    if is_streamable(path) {
+        let mut workbook: Xlsx<_> =
+            calamine::open_workbook(path).map_err(|e| unreadable(path, e))?;
+        let sheet = choose_sheet(&workbook.sheet_names(), options, &shown)?;
+        let mut reader = workbook
+            .worksheet_cells_reader(&sheet)
+            .map_err(|e| unreadable(path, e))?;
+        while let Some(cell) = reader.next_cell().map_err(|e| unreadable(path, e))? {
+            let (row, column) = cell.get_position();
+            limits::check_cell(&shown, &sheet, row, column)?;
+            if row as usize >= n {
+                break;
+            }
+            put(
+                row as usize,
+                column as usize,
+                Data::from(cell.get_value().clone()).to_string(),
+            );
+        }
+        return Ok((sheet, rows));
+    }
+    let mut workbook = open_workbook_auto(path).map_err(|e| unreadable(path, e))?;
+    let sheet = choose_sheet(&workbook.sheet_names(), options, &shown)?;
+    let range = workbook
+        .worksheet_range(&sheet)
+        .map_err(|e| unreadable(path, e))?;
+    let (top, left) = range.start().unwrap_or((0, 0));
+    for (row, column, data) in range.used_cells() {
+        let row = top as usize + row;
+        if row < n {
+            put(row, left as usize + column, data.to_string());
+        }
+    }
+    Ok((sheet, rows))
+}
+
+/// xlsx and xlsm: cells can be streamed in row order.
+fn is_streamable(path: &Path) -> bool {
+    path.extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("xlsx") || e.eq_ignore_ascii_case("xlsm"))
+}
+
 fn cell_of(data: &Data) -> Cell {
     match data {
         Data::Int(i) => Cell::Number(*i as f64),
@@ -97,11 +160,9 @@ pub fn load(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Ta
 
 fn read(path: &Path, source: SourceInfo, options: &LoadOptions) -> Result<Table, LoadError> {
     let shown = path.display().to_string();
-    let streamable = path
-        .extension()
-        .and_then(|e| e.to_str())
-        .is_some_and(|e| e.eq_ignore_ascii_case("xlsx") || e.eq_ignore_ascii_case("xlsm"));
-    if streamable && let Some((sheet, cells)) = stream_cells(path, options, &shown)? {
+    if is_streamable(path)
+        && let Some((sheet, cells)) = stream_cells(path, options, &shown)?
+    {
         return cells.finish(&shown, sheet, source, options);
     }
     let (sheet, cells) = range_cells(path, options, &shown)?;

@@ -20,6 +20,7 @@ pub mod uses;
 pub use ast::Recipe;
 pub use check::{BIN_RULES, DataColumn, DataKind};
 pub use diagnostic::{Diagnostic, Severity, render_all};
+pub use statement::STATEMENT_WORDS;
 pub use suggest::closest;
 pub use syntax::{KEYWORDS, MAX_CHAIN, MAX_NESTING};
 

@@ -1,6 +1,8 @@
 //! Helpers shared by the tests that run the `sheaf` binary.
 #![allow(dead_code)] // each test file uses its own subset
 
+pub mod exports;
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
