@@ -36,6 +36,20 @@ fn run(dir: &Path, recipe: &str, data: &str) -> std::process::Output {
     )
 }
 
+/// Runs a recipe that must succeed; its terminal text.
+fn run_ok(dir: &Path, recipe: &str, data: &str) -> String {
+    let o = run(dir, recipe, data);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    text(&o)
+}
+
+/// Every one of `parts` is in the terminal text `shown`.
+fn says(shown: &str, parts: &[&str]) {
+    for part in parts {
+        assert!(shown.contains(part), "{part}: {shown}");
+    }
+}
+
 /// The About sheet's (label, text) pairs.
 fn about(dir: &Path) -> Vec<(String, String)> {
     cells(&dir.join("o.xlsx"), "About")
@@ -55,20 +69,19 @@ fn a_decimal_comma_export_in_windows_1252_reads_every_number() {
     assert_eq!(calc(dir.path(), "max(weight_g)", "w.csv"), 1499.25);
     let got = calc(dir.path(), "mean(weight_g)", "w.csv");
     assert!((got - mean(&expected)).abs() < 1e-12, "{got}");
-    let o = run(
+    let shown = run_ok(
         dir.path(),
         "panel \"Weights\" of weight_g per line:\n",
         "w.csv",
     );
-    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
-    let shown = text(&o);
-    for said in [
-        "encoding: Windows-1252",
-        "delimiter: semicolon (from the file's `sep=` line)",
-        "numbers: decimal comma, thousands grouped by points (detected)",
-    ] {
-        assert!(shown.contains(said), "{said}: {shown}");
-    }
+    says(
+        &shown,
+        &[
+            "encoding: Windows-1252",
+            "delimiter: semicolon (from the file's `sep=` line)",
+            "numbers: decimal comma, thousands grouped by points (detected)",
+        ],
+    );
     let about = about(dir.path());
     assert!(
         about
@@ -122,25 +135,24 @@ fn titles_blank_rows_totals_and_similar_keys() {
     assert_eq!(calc(dir.path(), "count(weight_g)", "w.xlsx"), 7.0);
     let got = calc(dir.path(), "mean(weight_g)", "w.xlsx");
     assert!((got - mean(&all_weights())).abs() < 1e-12, "{got}");
-    let o = run(
+    let shown = run_ok(
         dir.path(),
         "figures \"Per line\" per line:\n    n = count(weight_g)\n",
         "w.xlsx",
     );
-    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
-    let shown = text(&o);
-    for said in [
-        "header row: the headers are on row 4",
-        "`input header row 4`",
-        "1 blank row left out (sheet row 9)",
-        "row 13 left out as a summary row",
-        "\"Total\"",
-        "row 14 left out as a summary row",
-        "similar keys: line: \"Line A\" (Weights!A5), \"line A\" (Weights!A7)",
-        "`merge similar keys`",
-    ] {
-        assert!(shown.contains(said), "{said}: {shown}");
-    }
+    says(
+        &shown,
+        &[
+            "header row: the headers are on row 4",
+            "`input header row 4`",
+            "1 blank row left out (sheet row 9)",
+            "row 13 left out as a summary row",
+            "\"Total\"",
+            "row 14 left out as a summary row",
+            "similar keys: line: \"Line A\" (Weights!A5), \"line A\" (Weights!A7)",
+            "`merge similar keys`",
+        ],
+    );
     // Trailing spaces are trimmed (`Line A ` is `Line A`); `line A` is its own group.
     let rows = cells(&dir.path().join("o.xlsx"), "Per line");
     let count_of = |key: &str| {
