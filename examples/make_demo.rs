@@ -34,8 +34,7 @@ fn month(year: u16, month: u8, seed: u64) -> Result<(), rust_xlsxwriter::XlsxErr
         ("Harbour", 11.0, 1.3),
         ("Ridge", 4.0, 0.8),
     ];
-    let mut row = 1u32;
-    for i in 0..240 {
+    for (row, i) in (1u32..).zip(0..240) {
         let (depot, late_scale, weight_scale) = depots[i % 3];
         let u = rng.uniform();
         let status = if u < 0.06 {
@@ -66,7 +65,6 @@ fn month(year: u16, month: u8, seed: u64) -> Result<(), rust_xlsxwriter::XlsxErr
             ExcelDateTime::from_ymd(year, month, day)?,
             &date_format,
         )?;
-        row += 1;
     }
     // Typed-in mistakes an analyst meets every month (invented).
     sheet.write_number(17, 3, 900.0)?; // minutes typed without the decimal point

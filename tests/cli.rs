@@ -154,7 +154,7 @@ fn a_comparison_says_how_many_figures_moved_and_verbose_says_what_was_read() {
     // The summary's count is the Changes sheet's.
     let moved = common::cells(&dir.path().join("oct.xlsx"), "Changes")
         .iter()
-        .filter(|row| row.iter().any(|c| c.to_string() == "moved"))
+        .filter(|row| row.iter().any(|c| *c == "moved"))
         .count();
     assert!(
         text(&o).contains(&format!("changes: {moved} figures moved")),

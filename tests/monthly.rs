@@ -113,22 +113,14 @@ fn trend_rows_equal_the_single_file_figures() {
         assert_eq!(o.status.code(), Some(0), "{}", text(&o));
         // The panel sheet of the single run against the trend rows of its period.
         let panel = cells(&single, "Lateness");
-        let header = panel
-            .iter()
-            .find(|r| r[0].to_string() == "depot")
-            .unwrap()
-            .clone();
-        for row in panel
-            .iter()
-            .skip_while(|r| r[0].to_string() != "depot")
-            .skip(1)
-        {
+        let header = panel.iter().find(|r| r[0] == "depot").unwrap().clone();
+        for row in panel.iter().skip_while(|r| r[0] != "depot").skip(1) {
             for label in ["mean", "median", "sd", "IQR"] {
-                let c = header.iter().position(|h| h.to_string() == label).unwrap();
+                let c = header.iter().position(|h| *h == label).unwrap();
                 let name = format!("{} {label}", row[1]);
                 let found = trend.iter().find(|t| {
-                    t[0].to_string() == period
-                        && t[1].to_string() == "Lateness"
+                    t[0] == period
+                        && t[1] == "Lateness"
                         && t[2].to_string() == row[0].to_string()
                         && t[3].to_string() == name
                 });
@@ -211,7 +203,7 @@ fn compare_feeds_change_and_refuses_another_recipe() {
     let term = |rows: &[Vec<Data>], group: &str| -> f64 {
         let r = rows
             .iter()
-            .find(|r| r[0].to_string() == "(compared values)" && r[1].to_string() == group)
+            .find(|r| r[0] == "(compared values)" && r[1] == group)
             .unwrap();
         match r[3] {
             Data::Float(x) => x,
@@ -223,7 +215,7 @@ fn compare_feeds_change_and_refuses_another_recipe() {
         let (before, now) = (term(&record(&sept), depot), term(&record(&oct), depot));
         let row = checks
             .iter()
-            .find(|r| r[0].to_string() == "steady on-time share" && r[2].to_string() == depot)
+            .find(|r| r[0] == "steady on-time share" && r[2] == depot)
             .unwrap();
         let value = match row[4] {
             Data::Float(x) => x,
@@ -236,9 +228,7 @@ fn compare_feeds_change_and_refuses_another_recipe() {
     }
     let changes = cells(&oct, "Changes");
     assert!(
-        changes
-            .iter()
-            .any(|r| r.len() > 7 && r[7].to_string() == "moved"),
+        changes.iter().any(|r| r.len() > 7 && r[7] == "moved"),
         "some figure moves more than the 15% drift"
     );
 

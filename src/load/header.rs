@@ -77,7 +77,7 @@ pub fn find(rows: &[TopRow]) -> Option<FoundHeader> {
             .take(2)
             .collect();
         let what = if *first_row > 0 && chosen == 0 {
-            format!("the rows above it are blank")
+            "the rows above it are blank".to_string()
         } else if above.is_empty() {
             "the rows above it are not headers".to_string()
         } else {

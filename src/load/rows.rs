@@ -60,7 +60,7 @@ fn same_figure(x: f64, reference: f64) -> bool {
         return true;
     }
     match decimals(x) {
-        Some(d) if d >= 1 && d <= 6 => {
+        Some(d) if (1..=6).contains(&d) => {
             let scale = 10f64.powi(d);
             ((reference * scale).round() / scale - x).abs() <= tolerance
         }

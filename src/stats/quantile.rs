@@ -146,7 +146,7 @@ fn hinges(x: &[f64], p: f64) -> Stat<Between> {
     // Depths as in Tukey (1977): median depth (n+1)/2, hinge depth
     // (floor(median depth) + 1) / 2, counted from either end. A depth
     // ending in .5 is halfway between two values.
-    let hinge_depth = ((n + 1) / 2 + 1) as f64 / 2.0;
+    let hinge_depth = (n.div_ceil(2) + 1) as f64 / 2.0;
     let half = |depth: f64| if depth.fract() == 0.0 { 0.0 } else { 0.5 };
     let from_low = |depth: f64| {
         let i = depth.floor() as usize - 1;
