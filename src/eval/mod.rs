@@ -671,6 +671,7 @@ fn widen(v: Value, kept: &[Row], total: usize) -> Rows {
         Rows::Numbers(v) => Rows::Numbers(scatter(v, kept, total)),
         Rows::Truths(v) => Rows::Truths(scatter(v, kept, total)),
         Rows::Texts(v) => Rows::Texts(scatter(v, kept, total)),
+        Rows::Dates(v) => Rows::Dates(scatter(v, kept, total)),
     }
 }
 
