@@ -190,17 +190,22 @@ impl<'a> Scope<'a> {
     /// of dates, a date literal or arithmetic giving dates).
     pub fn holds_dates(&self, e: &Expr) -> bool {
         match &e.kind {
-            ExprKind::Column(c) => match self.lets.get(&c.name) {
-                Some(rows) => matches!(rows, Rows::Dates(_)),
-                None => self
-                    .table
-                    .column(&c.name)
-                    .is_some_and(|column| column.kind == ColumnKind::Date),
-            },
+            ExprKind::Column(c) => self.column_holds_dates(&c.name),
             _ => matches!(
                 self.eval(e),
                 Value::Rows(Rows::Dates(_)) | Value::One(One::Date(_))
             ),
+        }
+    }
+
+    /// Whether a column (a `let`, else a data column) holds dates.
+    pub fn column_holds_dates(&self, name: &str) -> bool {
+        match self.lets.get(name) {
+            Some(rows) => matches!(rows, Rows::Dates(_)),
+            None => self
+                .table
+                .column(name)
+                .is_some_and(|column| column.kind == ColumnKind::Date),
         }
     }
 
