@@ -975,6 +975,20 @@ fn dates_give_the_values_worked_by_hand() {
 }
 
 #[test]
+fn csv_days_written_yyyy_mm_dd_are_dates() {
+    // A day that does not exist stays text, counted as missing (and listed).
+    let (_dir, t) = table("shipped,qty\n2026-10-01,1\n2026-02-30,2\n2026-11-05,3\n");
+    for (source, expected) in [
+        ("shipped", "date(2026-10-01) _ date(2026-11-05)"),
+        ("missing(shipped)", "1"),
+        ("max(shipped) - min(shipped)", "35"),
+        ("week_of(shipped)", "2026-W40 _ 2026-W45"),
+    ] {
+        assert_eq!(expression(source, &t).unwrap(), expected, "{source}");
+    }
+}
+
+#[test]
 fn the_table_is_large_enough_and_its_matcher_can_fail() {
     assert!(EXPRESSIONS.len() + RECIPES.len() + CHANGES.len() >= 150);
     assert!(matches("0.3333333333333333", "0.333333"));
