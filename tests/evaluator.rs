@@ -902,33 +902,34 @@ fn report(wrong: &[String], total: usize) {
     );
 }
 
-#[test]
-fn expressions_give_the_values_worked_by_hand() {
-    let (_dir, t) = table(DELIVERIES);
+/// Each case whose output differs from the expected, described.
+fn differences(
+    cases: &[(&str, &str)],
+    run: impl Fn(&str) -> Result<String, String>,
+) -> Vec<String> {
     let mut wrong = Vec::new();
-    for (source, expected) in EXPRESSIONS {
-        match expression(source, &t) {
+    for (source, expected) in cases {
+        match run(source) {
             Ok(actual) if matches(&actual, expected) => {}
             other => wrong.push(format!(
                 "{source}\n    wanted {expected}\n    got    {other:?}"
             )),
         }
     }
+    wrong
+}
+
+#[test]
+fn expressions_give_the_values_worked_by_hand() {
+    let (_dir, t) = table(DELIVERIES);
+    let wrong = differences(EXPRESSIONS, |source| expression(source, &t));
     report(&wrong, EXPRESSIONS.len());
 }
 
 #[test]
 fn recipes_give_the_values_worked_by_hand() {
     let (_dir, t) = table(DELIVERIES);
-    let mut wrong = Vec::new();
-    for (source, expected) in RECIPES {
-        match run_recipe(source, &t, None) {
-            Ok(actual) if matches(&actual, expected) => {}
-            other => wrong.push(format!(
-                "{source}\n    wanted {expected}\n    got    {other:?}"
-            )),
-        }
-    }
+    let wrong = differences(RECIPES, |source| run_recipe(source, &t, None));
     report(&wrong, RECIPES.len());
 }
 
@@ -954,24 +955,10 @@ fn change_compares_with_the_previous_period_per_group() {
 #[test]
 fn dates_give_the_values_worked_by_hand() {
     let (_dir, t) = date_table();
-    let mut wrong = Vec::new();
-    for (source, expected) in DATE_EXPRESSIONS {
-        match expression(source, &t) {
-            Ok(actual) if matches(&actual, expected) => {}
-            other => wrong.push(format!(
-                "{source}\n    wanted {expected}\n    got    {other:?}"
-            )),
-        }
-    }
-    for (source, expected) in DATE_RECIPES.iter().chain([&DATE_PANEL]) {
-        match run_recipe(source, &t, None) {
-            Ok(actual) if matches(&actual, expected) => {}
-            other => wrong.push(format!(
-                "{source}\n    wanted {expected}\n    got    {other:?}"
-            )),
-        }
-    }
-    report(&wrong, DATE_EXPRESSIONS.len() + DATE_RECIPES.len());
+    let mut wrong = differences(DATE_EXPRESSIONS, |source| expression(source, &t));
+    let recipes: Vec<(&str, &str)> = DATE_RECIPES.iter().chain([&DATE_PANEL]).copied().collect();
+    wrong.extend(differences(&recipes, |source| run_recipe(source, &t, None)));
+    report(&wrong, DATE_EXPRESSIONS.len() + recipes.len());
 }
 
 #[test]
