@@ -28,9 +28,11 @@ pub fn rounded(x: f64, digits: i32) -> String {
 /// A spreadsheet date serial (days since 1899-12-30) as `YYYY-MM-DD`,
 /// with `hh:mm:ss` when it has a time of day.
 pub fn date(serial: f64) -> String {
-    let days = serial.floor();
-    let (y, m, d) = civil_from_days(days as i64 - 25569); // 25569 = 1970-01-01
-    let seconds = ((serial - days) * 86400.0).round() as i64;
+    // Rounded to the second first, so that 0.9999999 of a day is the next
+    // midnight rather than 24:00:00 (a mean of dates can land there).
+    let total = (serial * 86400.0).round() as i64;
+    let (days, seconds) = (day_number(serial), total.rem_euclid(86400));
+    let (y, m, d) = civil_from_days(days - 25569); // 25569 = 1970-01-01
     if seconds == 0 {
         format!("{y:04}-{m:02}-{d:02}")
     } else {
@@ -41,6 +43,17 @@ pub fn date(serial: f64) -> String {
             seconds % 60
         )
     }
+}
+
+/// The serial's day (a whole serial), its time rounded to the second first,
+/// so that the date shown and its month, week and weekday agree.
+fn day_number(serial: f64) -> i64 {
+    ((serial * 86400.0).round() as i64).div_euclid(86400)
+}
+
+/// Whether a serial has a time of day, to the second.
+pub fn has_time(serial: f64) -> bool {
+    (serial * 86400.0).round().rem_euclid(86400.0) != 0.0
 }
 
 /// An ISO 8601 date or date-time (`2026-10-01`, `2026-10-01T08:30:00`) as a
@@ -139,13 +152,13 @@ fn days_in_month(y: i64, m: u32) -> u32 {
 
 /// The calendar date (year, month, day) of a serial's day.
 pub fn calendar(serial: f64) -> (i64, u32, u32) {
-    civil_from_days(serial.floor() as i64 - 25569)
+    civil_from_days(day_number(serial) - 25569)
 }
 
 /// The ISO 8601 weekday of a serial's day: 0 for Monday to 6 for Sunday.
 fn weekday_index(serial: f64) -> usize {
     // 1970-01-01 (day 0) was a Thursday, index 3.
-    (serial.floor() as i64 - 25569 + 3).rem_euclid(7) as usize
+    (day_number(serial) - 25569 + 3).rem_euclid(7) as usize
 }
 
 /// The English name of a serial's weekday.
@@ -163,7 +176,7 @@ pub fn month_label(serial: f64) -> String {
 /// year that holds its Thursday, so early January may be in the previous
 /// year's last week and late December in the next year's week 1.
 pub fn week_label(serial: f64) -> String {
-    let day = serial.floor();
+    let day = day_number(serial) as f64;
     let thursday = day - weekday_index(day) as f64 + 3.0;
     let (year, _, _) = calendar(thursday);
     let january_first = (days_from_civil(year, 1, 1) + 25569) as f64;
@@ -226,6 +239,10 @@ mod tests {
         assert_eq!(date(45931.0), "2025-10-01");
         assert_eq!(date(45931.5), "2025-10-01 12:00:00");
         assert_eq!(date(60.0), "1900-02-28");
+        assert_eq!(date(45931.0 - 1e-9), "2025-10-01");
+        assert_eq!(date(45931.0 + 1.0 / 3.0), "2025-10-01 08:00:00");
+        assert!(has_time(45931.25) && !has_time(45931.0 - 1e-9));
+        assert_eq!(month_label(45931.0 - 1e-9), "2025-10");
         assert_eq!(serial_from_iso("2025-10-01"), Some(45931.0));
         assert_eq!(serial_from_iso("2025-10-01T12:00:00"), Some(45931.5));
         assert_eq!(serial_from_iso("1970-01-01"), Some(25569.0));

@@ -45,10 +45,10 @@ pub fn number() -> Format {
 /// A date cell: the value stays the serial, shown as a date (with the time
 /// when it has one).
 pub fn date(serial: f64) -> Format {
-    let code = if serial.fract() == 0.0 {
-        "yyyy-mm-dd"
-    } else {
+    let code = if crate::format::has_time(serial) {
         "yyyy-mm-dd hh:mm:ss"
+    } else {
+        "yyyy-mm-dd"
     };
     Format::new().set_num_format(code)
 }
