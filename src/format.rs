@@ -28,9 +28,11 @@ pub fn rounded(x: f64, digits: i32) -> String {
 /// A spreadsheet date serial (days since 1899-12-30) as `YYYY-MM-DD`,
 /// with `hh:mm:ss` when it has a time of day.
 pub fn date(serial: f64) -> String {
-    let days = serial.floor();
-    let (y, m, d) = civil_from_days(days as i64 - 25569); // 25569 = 1970-01-01
-    let seconds = ((serial - days) * 86400.0).round() as i64;
+    // Rounded to the second first, so that 0.9999999 of a day is the next
+    // midnight rather than 24:00:00 (a mean of dates can land there).
+    let total = (serial * 86400.0).round() as i64;
+    let (days, seconds) = (day_number(serial), total.rem_euclid(86400));
+    let (y, m, d) = civil_from_days(days - 25569); // 25569 = 1970-01-01
     if seconds == 0 {
         format!("{y:04}-{m:02}-{d:02}")
     } else {
@@ -41,6 +43,17 @@ pub fn date(serial: f64) -> String {
             seconds % 60
         )
     }
+}
+
+/// The serial's day (a whole serial), its time rounded to the second first,
+/// so that the date shown and its month, week and weekday agree.
+fn day_number(serial: f64) -> i64 {
+    ((serial * 86400.0).round() as i64).div_euclid(86400)
+}
+
+/// Whether a serial has a time of day, to the second.
+pub fn has_time(serial: f64) -> bool {
+    (serial * 86400.0).round().rem_euclid(86400.0) != 0.0
 }
 
 /// An ISO 8601 date or date-time (`2026-10-01`, `2026-10-01T08:30:00`) as a
@@ -64,6 +77,111 @@ pub fn serial_from_iso(text: &str) -> Option<f64> {
         seconds = h * 3600.0 + mi * 60.0 + sec;
     }
     Some((days_from_civil(y, m, d) + 25569) as f64 + seconds / 86400.0)
+}
+
+/// A calendar date `YYYY-MM-DD` as a spreadsheet serial, refusing dates
+/// that do not exist (`2026-02-30`, month 13) with the reason.
+pub fn serial_from_calendar(text: &str) -> Result<f64, String> {
+    let wrong = || format!("`{text}` is not a date written YYYY-MM-DD");
+    let parts: Vec<&str> = text.split('-').collect();
+    let [y, m, d] = parts.as_slice() else {
+        return Err(wrong());
+    };
+    if y.len() != 4 || m.len() != 2 || d.len() != 2 {
+        return Err(wrong());
+    }
+    let number = |s: &str| {
+        s.parse::<u32>()
+            .ok()
+            .filter(|_| s.bytes().all(|b| b.is_ascii_digit()))
+    };
+    let (Some(y), Some(m), Some(d)) = (number(y), number(m), number(d)) else {
+        return Err(wrong());
+    };
+    if !(1..=12).contains(&m) {
+        return Err(format!("`{text}`: there is no month {m}"));
+    }
+    let last = days_in_month(i64::from(y), m);
+    if d == 0 || d > last {
+        return Err(format!(
+            "`{text}`: {} {y} has days 1 to {last}",
+            MONTH_NAMES[m as usize - 1]
+        ));
+    }
+    Ok((days_from_civil(i64::from(y), m, d) + 25569) as f64)
+}
+
+const MONTH_NAMES: [&str; 12] = [
+    "January",
+    "February",
+    "March",
+    "April",
+    "May",
+    "June",
+    "July",
+    "August",
+    "September",
+    "October",
+    "November",
+    "December",
+];
+
+/// Weekday names, Monday first (ISO 8601 numbers them 1 to 7 from Monday).
+const WEEKDAY_NAMES: [&str; 7] = [
+    "Monday",
+    "Tuesday",
+    "Wednesday",
+    "Thursday",
+    "Friday",
+    "Saturday",
+    "Sunday",
+];
+
+fn is_leap(y: i64) -> bool {
+    (y % 4 == 0 && y % 100 != 0) || y % 400 == 0
+}
+
+fn days_in_month(y: i64, m: u32) -> u32 {
+    match m {
+        2 if is_leap(y) => 29,
+        2 => 28,
+        4 | 6 | 9 | 11 => 30,
+        _ => 31,
+    }
+}
+
+/// The calendar date (year, month, day) of a serial's day.
+pub fn calendar(serial: f64) -> (i64, u32, u32) {
+    civil_from_days(day_number(serial) - 25569)
+}
+
+/// The ISO 8601 weekday of a serial's day: 0 for Monday to 6 for Sunday.
+fn weekday_index(serial: f64) -> usize {
+    // 1970-01-01 (day 0) was a Thursday, index 3.
+    (day_number(serial) - 25569 + 3).rem_euclid(7) as usize
+}
+
+/// The English name of a serial's weekday.
+pub fn weekday_name(serial: f64) -> &'static str {
+    WEEKDAY_NAMES[weekday_index(serial)]
+}
+
+/// `2026-10`: the year and month of a serial's day.
+pub fn month_label(serial: f64) -> String {
+    let (y, m, _) = calendar(serial);
+    format!("{y:04}-{m:02}")
+}
+
+/// `2026-W44`: the ISO 8601 week of a serial's day. A week belongs to the
+/// year that holds its Thursday, so early January may be in the previous
+/// year's last week and late December in the next year's week 1.
+pub fn week_label(serial: f64) -> String {
+    let day = day_number(serial) as f64;
+    let thursday = day - weekday_index(day) as f64 + 3.0;
+    let (year, _, _) = calendar(thursday);
+    let january_first = (days_from_civil(year, 1, 1) + 25569) as f64;
+    let week = ((thursday - january_first) / 7.0).floor() as i64 + 1;
+    format!("{year:04}-W{week:02}")
 }
 
 /// A proleptic Gregorian date to days since 1970-01-01 (Hinnant's algorithm).
@@ -121,10 +239,57 @@ mod tests {
         assert_eq!(date(45931.0), "2025-10-01");
         assert_eq!(date(45931.5), "2025-10-01 12:00:00");
         assert_eq!(date(60.0), "1900-02-28");
+        assert_eq!(date(45931.0 - 1e-9), "2025-10-01");
+        assert_eq!(date(45931.0 + 1.0 / 3.0), "2025-10-01 08:00:00");
+        assert!(has_time(45931.25) && !has_time(45931.0 - 1e-9));
+        assert_eq!(month_label(45931.0 - 1e-9), "2025-10");
         assert_eq!(serial_from_iso("2025-10-01"), Some(45931.0));
         assert_eq!(serial_from_iso("2025-10-01T12:00:00"), Some(45931.5));
         assert_eq!(serial_from_iso("1970-01-01"), Some(25569.0));
         assert_eq!(serial_from_iso("not a date"), None);
+    }
+
+    #[test]
+    fn calendar_dates_are_checked() {
+        // Serials from Python's datetime (date - 1899-12-30).days, run by hand.
+        assert_eq!(serial_from_calendar("2026-01-01"), Ok(46023.0));
+        assert_eq!(serial_from_calendar("2000-02-29"), Ok(36585.0));
+        let refused = |t: &str| serial_from_calendar(t).unwrap_err();
+        assert!(refused("2026-02-30").contains("February 2026 has days 1 to 28"));
+        assert!(refused("2026-02-29").contains("days 1 to 28"));
+        assert!(
+            refused("1900-02-29").contains("days 1 to 28"),
+            "1900 is no leap year"
+        );
+        assert!(refused("2026-13-01").contains("no month 13"));
+        assert!(refused("2026-4-01").contains("YYYY-MM-DD"));
+        assert!(refused("26-10-01").contains("YYYY-MM-DD"));
+        assert!(refused("2026-10-01T08:00").contains("YYYY-MM-DD"));
+    }
+
+    #[test]
+    fn iso_weeks_months_and_weekdays() {
+        // Calendar facts: 2026-01-01 is a Thursday, so ISO week 2026-W01
+        // (ISO 8601: week 1 holds the year's first Thursday); 2021-01-01, a
+        // Friday, is in 2020-W53; 2024-12-30, a Monday, is in 2025-W01;
+        // 2026-12-31 (Thursday) is in 2026-W53 and 2027-01-03 (Sunday) too.
+        // Cross-checked with Python's date.isocalendar().
+        let on = |t: &str| serial_from_calendar(t).unwrap();
+        assert_eq!(week_label(on("2026-01-01")), "2026-W01");
+        assert_eq!(weekday_name(on("2026-01-01")), "Thursday");
+        assert_eq!(week_label(on("2021-01-01")), "2020-W53");
+        assert_eq!(weekday_name(on("2021-01-01")), "Friday");
+        assert_eq!(week_label(on("2024-12-30")), "2025-W01");
+        assert_eq!(weekday_name(on("2024-12-30")), "Monday");
+        assert_eq!(week_label(on("2026-10-31")), "2026-W44");
+        assert_eq!(weekday_name(on("2026-10-31")), "Saturday");
+        assert_eq!(week_label(on("2026-12-31")), "2026-W53");
+        assert_eq!(week_label(on("2027-01-03")), "2026-W53");
+        assert_eq!(weekday_name(on("2027-01-03")), "Sunday");
+        // A time of day does not move the day.
+        assert_eq!(week_label(on("2024-12-30") + 0.99), "2025-W01");
+        assert_eq!(month_label(on("2026-10-31") + 0.5), "2026-10");
+        assert_eq!(calendar(on("2000-02-29")), (2000, 2, 29));
     }
 }
 

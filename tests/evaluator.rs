@@ -570,6 +570,144 @@ const CHANGES: &[(&str, &[Before], &str)] = &[
     ),
 ];
 
+/// Invented shipments with date cells, written as a workbook (a CSV file
+/// holds no date cells). Serials (days since 1899-12-30), ISO weeks and
+/// weekdays were worked out with Python's datetime (`(d - date(1899, 12,
+/// 30)).days`, `d.isocalendar()`, `d.strftime("%A")`), run by hand:
+/// 1 North shipped 2026-09-28 = 46293 Monday   2026-W40  due 2026-10-02  qty 3
+/// 2 South shipped 2026-10-01 = 46296 Thursday 2026-W40  due 2026-10-01  qty 5
+/// 3 North shipped 2026-10-31 = 46326 Saturday 2026-W44  due 2026-10-30  qty 2
+/// 4 South shipped (blank)                               due 2026-11-05  qty 4
+/// 5 North shipped 2026-11-02 = 46328 Monday   2026-W45  due 2026-11-09  qty 1
+/// Over the four shipped dates: median (46296 + 46326) / 2 = 46311 =
+/// 2026-10-16; mean 185243 / 4 = 46310.75 = 2026-10-15 18:00; quartiles by
+/// Hyndman and Fan type 7: Q1 = 46293 + 0.75 * 3 = 46295.25 = 2026-09-30
+/// 06:00, Q3 = 46326 + 0.25 * 2 = 46326.5 = 2026-10-31 12:00; range 35 days;
+/// sd 18.8215 days (numpy std with ddof=1).
+const SHIPMENTS: &[(&str, Option<&str>, &str, f64)] = &[
+    ("North", Some("2026-09-28"), "2026-10-02", 3.0),
+    ("South", Some("2026-10-01"), "2026-10-01", 5.0),
+    ("North", Some("2026-10-31"), "2026-10-30", 2.0),
+    ("South", None, "2026-11-05", 4.0),
+    ("North", Some("2026-11-02"), "2026-11-09", 1.0),
+];
+
+/// (expression over every row of SHIPMENTS, expected). A date prints as
+/// `date(ISO)`.
+const DATE_EXPRESSIONS: &[(&str, &str)] = &[
+    ("date \"2026-10-01\"", "date(2026-10-01)"),
+    ("date \"2026-10-31\" - date \"2026-10-01\"", "30"),
+    ("date \"2026-12-31\" + 1", "date(2027-01-01)"),
+    ("1 + date \"2028-02-28\"", "date(2028-02-29)"),
+    ("date \"2026-03-01\" - 1", "date(2026-02-28)"),
+    ("date \"2026-10-01\" < date \"2026-10-02\"", "true"),
+    ("date \"2026-10-01\" == date \"2026-10-01\"", "true"),
+    (
+        "shipped",
+        "date(2026-09-28) date(2026-10-01) date(2026-10-31) _ date(2026-11-02)",
+    ),
+    ("shipped >= date \"2026-10-01\"", "false true true _ true"),
+    ("shipped < date \"2026-10-01\"", "true false false _ false"),
+    ("shipped == date \"2026-10-31\"", "false false true _ false"),
+    ("shipped != date \"2026-10-31\"", "true true false _ true"),
+    ("due - shipped", "4 0 -1 _ 7"),
+    ("due > shipped", "true false false _ true"),
+    (
+        "shipped + 7",
+        "date(2026-10-05) date(2026-10-08) date(2026-11-07) _ date(2026-11-09)",
+    ),
+    (
+        "if due > shipped then due else shipped",
+        "date(2026-10-02) date(2026-10-01) date(2026-10-31) _ date(2026-11-09)",
+    ),
+    ("month_of(shipped)", "2026-09 2026-10 2026-10 _ 2026-11"),
+    ("week_of(shipped)", "2026-W40 2026-W40 2026-W44 _ 2026-W45"),
+    ("year_of(shipped)", "2026 2026 2026 _ 2026"),
+    ("weekday_of(shipped)", "Monday Thursday Saturday _ Monday"),
+    // Calendar facts: 2026-01-01 is a Thursday in ISO week 2026-W01;
+    // 2021-01-01, a Friday, is in 2020-W53; 2024-12-30 is in 2025-W01.
+    ("week_of(date \"2026-01-01\")", "2026-W01"),
+    ("weekday_of(date \"2026-01-01\")", "Thursday"),
+    ("week_of(date \"2021-01-01\")", "2020-W53"),
+    ("week_of(date \"2024-12-30\")", "2025-W01"),
+    ("year_of(date \"2024-12-30\")", "2024"),
+    ("month_of(date \"2024-12-30\")", "2024-12"),
+    ("min(shipped)", "date(2026-09-28)"),
+    ("max(shipped)", "date(2026-11-02)"),
+    ("median(shipped)", "date(2026-10-16)"),
+    ("mean(shipped)", "date(2026-10-15T18:00:00)"),
+    ("quartile(shipped, 1)", "date(2026-09-30T06:00:00)"),
+    ("percentile(shipped, 75)", "date(2026-10-31T12:00:00)"),
+    ("quartile(shipped, 2)", "date(2026-10-16)"),
+    ("range(shipped)", "35"),
+    ("iqr(shipped)", "31.25"),
+    ("sd(shipped)", "18.8215"),
+    ("count(shipped)", "4"),
+    ("missing(shipped)", "1"),
+    ("max(shipped) - min(shipped)", "35"),
+    ("max(due) > max(shipped)", "true"),
+    ("min(shipped + 7)", "date(2026-10-05)"),
+    ("max(due - shipped)", "7"),
+    ("min(qty)", "1"),
+];
+
+/// Recipes over SHIPMENTS; groups appear in the order of their first row.
+const DATE_RECIPES: &[(&str, &str)] = &[
+    (
+        "let month = month_of(shipped)\nfigures \"F\" per month:\n    n = count(qty)\n    first = min(shipped)\n    last = max(shipped)\n",
+        "2026-09: 1, date(2026-09-28), date(2026-09-28); 2026-10: 2, date(2026-10-01), date(2026-10-31); (blank): 1, none(no values), none(no values); 2026-11: 1, date(2026-11-02), date(2026-11-02)",
+    ),
+    (
+        "let week = week_of(shipped)\nrows where shipped >= date \"2026-10-01\"\nfigures \"F\" per week:\n    n = count(qty)\n    days = sum(due - shipped)\n",
+        "2026-W40: 1, 0; 2026-W44: 1, -1; 2026-W45: 1, 7; skipped 1: rows where shipped >= date \"2026-10-01\": condition false; skipped 1: rows where shipped >= date \"2026-10-01\": condition could not be evaluated (missing value)",
+    ),
+    (
+        "figures \"F\" per region:\n    middle = median(shipped)\n    spread = range(shipped)\n",
+        "North: date(2026-10-31), 35; South: date(2026-10-01), 0",
+    ),
+    (
+        "check \"shipped in time\" fail per region: max(shipped) <= date \"2026-10-31\"\n",
+        "check shipped in time (all rows): fail; check shipped in time North: fail; check shipped in time South: pass",
+    ),
+];
+
+/// The panel of a date column: skewness g1 -0.007036, Bowley -0.008 (from
+/// the quartiles above) and kurtosis b2 1.024321 from scipy.stats (skew,
+/// kurtosis with fisher=False), run by hand; no value lies beyond the fences.
+const DATE_PANEL: (&str, &str) = (
+    "panel \"P\" of shipped:\n",
+    "(all rows) shipped: 4, 1, date(2026-10-15T18:00:00), 18.8215, date(2026-09-28), date(2026-09-30T06:00:00), date(2026-10-16), date(2026-10-31T12:00:00), date(2026-11-02), 35, 31.25, 2026-09-28; 2026-10-01; 2026-10-31; 2026-11-02, exact values, -0.007036, -0.008, 1.024321, 0, 0",
+);
+
+/// SHIPMENTS as a workbook with date cells.
+fn date_table() -> (tempfile::TempDir, Table) {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("shipments.xlsx");
+    let mut book = rust_xlsxwriter::Workbook::new();
+    let sheet = book.add_worksheet();
+    let day = rust_xlsxwriter::Format::new().set_num_format("yyyy-mm-dd");
+    let serial = |iso: &str| sheaf::format::serial_from_calendar(iso).unwrap();
+    for (col, header) in ["region", "shipped", "due", "qty"].iter().enumerate() {
+        sheet.write_string(0, col as u16, *header).unwrap();
+    }
+    for (i, (region, shipped, due, qty)) in SHIPMENTS.iter().enumerate() {
+        let row = i as u32 + 1;
+        sheet.write_string(row, 0, *region).unwrap();
+        if let Some(shipped) = shipped {
+            sheet
+                .write_number_with_format(row, 1, serial(shipped), &day)
+                .unwrap();
+        }
+        sheet
+            .write_number_with_format(row, 2, serial(due), &day)
+            .unwrap();
+        sheet.write_number(row, 3, *qty).unwrap();
+    }
+    book.save(&path).unwrap();
+    let table = load::load(&path, &LoadOptions::default()).unwrap();
+    (dir, table)
+}
+
 fn table(csv: &str) -> (tempfile::TempDir, Table) {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("deliveries.csv");
@@ -582,11 +720,17 @@ fn number(x: f64) -> String {
     format!("{x}")
 }
 
+/// A date as `date(2026-10-15T18:00:00)`: one token, told apart from text.
+fn date(serial: f64) -> String {
+    format!("date({})", sheaf::format::date(serial).replace(' ', "T"))
+}
+
 fn one(v: &One) -> String {
     match v {
         One::Number(x) => number(*x),
         One::Truth(b) => b.to_string(),
         One::Text(t) => t.clone(),
+        One::Date(x) => date(*x),
         One::List(v) => format!(
             "[{}]",
             v.iter().map(|x| number(*x)).collect::<Vec<_>>().join(" ")
@@ -603,6 +747,7 @@ fn rows(r: &Rows) -> String {
             .map(|x| x.map_or("_".into(), |b| b.to_string()))
             .collect(),
         Rows::Texts(v) => v.iter().map(|x| x.clone().unwrap_or("_".into())).collect(),
+        Rows::Dates(v) => v.iter().map(|x| x.map_or("_".into(), date)).collect(),
     };
     texts.join(" ")
 }
@@ -757,33 +902,34 @@ fn report(wrong: &[String], total: usize) {
     );
 }
 
-#[test]
-fn expressions_give_the_values_worked_by_hand() {
-    let (_dir, t) = table(DELIVERIES);
+/// Each case whose output differs from the expected, described.
+fn differences(
+    cases: &[(&str, &str)],
+    run: impl Fn(&str) -> Result<String, String>,
+) -> Vec<String> {
     let mut wrong = Vec::new();
-    for (source, expected) in EXPRESSIONS {
-        match expression(source, &t) {
+    for (source, expected) in cases {
+        match run(source) {
             Ok(actual) if matches(&actual, expected) => {}
             other => wrong.push(format!(
                 "{source}\n    wanted {expected}\n    got    {other:?}"
             )),
         }
     }
+    wrong
+}
+
+#[test]
+fn expressions_give_the_values_worked_by_hand() {
+    let (_dir, t) = table(DELIVERIES);
+    let wrong = differences(EXPRESSIONS, |source| expression(source, &t));
     report(&wrong, EXPRESSIONS.len());
 }
 
 #[test]
 fn recipes_give_the_values_worked_by_hand() {
     let (_dir, t) = table(DELIVERIES);
-    let mut wrong = Vec::new();
-    for (source, expected) in RECIPES {
-        match run_recipe(source, &t, None) {
-            Ok(actual) if matches(&actual, expected) => {}
-            other => wrong.push(format!(
-                "{source}\n    wanted {expected}\n    got    {other:?}"
-            )),
-        }
-    }
+    let wrong = differences(RECIPES, |source| run_recipe(source, &t, None));
     report(&wrong, RECIPES.len());
 }
 
@@ -804,6 +950,29 @@ fn change_compares_with_the_previous_period_per_group() {
         }
     }
     report(&wrong, CHANGES.len());
+}
+
+#[test]
+fn dates_give_the_values_worked_by_hand() {
+    let (_dir, t) = date_table();
+    let mut wrong = differences(DATE_EXPRESSIONS, |source| expression(source, &t));
+    let recipes: Vec<(&str, &str)> = DATE_RECIPES.iter().chain([&DATE_PANEL]).copied().collect();
+    wrong.extend(differences(&recipes, |source| run_recipe(source, &t, None)));
+    report(&wrong, DATE_EXPRESSIONS.len() + recipes.len());
+}
+
+#[test]
+fn csv_days_written_yyyy_mm_dd_are_dates() {
+    // A day that does not exist stays text, counted as missing (and listed).
+    let (_dir, t) = table("shipped,qty\n2026-10-01,1\n2026-02-30,2\n2026-11-05,3\n");
+    for (source, expected) in [
+        ("shipped", "date(2026-10-01) _ date(2026-11-05)"),
+        ("missing(shipped)", "1"),
+        ("max(shipped) - min(shipped)", "35"),
+        ("week_of(shipped)", "2026-W40 _ 2026-W45"),
+    ] {
+        assert_eq!(expression(source, &t).unwrap(), expected, "{source}");
+    }
 }
 
 #[test]

@@ -184,3 +184,80 @@ fn the_schema_refuses_a_document_that_breaks_its_promises() {
     bad_value["blocks"][0]["entries"][0]["figures"]["mean"] = serde_json::json!({"why": "x"});
     assert!(!validator.is_valid(&bad_value));
 }
+
+/// Invented shipping dates, as a workbook with date cells: (region,
+/// shipped). 2026-10-01 is serial 46296 and 2026-11-02 is 46328 (days since
+/// 1899-12-30, from Python's date arithmetic).
+const SHIPPED: &[(&str, &str)] = &[
+    ("North", "2026-10-01"),
+    ("South", "2026-10-20"),
+    ("North", "2026-11-02"),
+    ("South", "2026-11-30"),
+];
+
+fn shipping_workbook(dir: &Path) -> String {
+    let path = dir.join("shipping.xlsx");
+    let mut book = rust_xlsxwriter::Workbook::new();
+    let sheet = book.add_worksheet();
+    let day = rust_xlsxwriter::Format::new().set_num_format("yyyy-mm-dd");
+    sheet.write_string(0, 0, "region").unwrap();
+    sheet.write_string(0, 1, "shipped").unwrap();
+    for (i, (region, shipped)) in SHIPPED.iter().enumerate() {
+        let serial = sheaf::format::serial_from_calendar(shipped).unwrap();
+        sheet.write_string(i as u32 + 1, 0, *region).unwrap();
+        sheet
+            .write_number_with_format(i as u32 + 1, 1, serial, &day)
+            .unwrap();
+    }
+    book.save(&path).unwrap();
+    path.display().to_string()
+}
+
+#[test]
+fn date_figures_are_dates_in_json_in_the_workbook_and_on_the_terminal() {
+    let dir = tempfile::tempdir().unwrap();
+    let data = shipping_workbook(dir.path());
+    let recipe = dir.path().join("r.sheaf");
+    std::fs::write(
+        &recipe,
+        "let month = month_of(shipped)\nfigures \"Shipping\" per month:\n    first = min(shipped)\n    span = range(shipped)\n",
+    )
+    .unwrap();
+    let o = sheaf(
+        &[
+            "run",
+            recipe.to_str().unwrap(),
+            "--data",
+            &data,
+            "--out",
+            "r.xlsx",
+            "--json",
+        ],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let doc = &documents(&o.stdout)[0];
+    let rows = &doc["blocks"][0]["rows"];
+    assert_eq!(rows[0]["group"][0], "2026-10");
+    assert_eq!(rows[0]["figures"]["first"], "2026-10-01");
+    assert_eq!(rows[0]["figures"]["span"], 19.0);
+    assert_eq!(rows[1]["group"][0], "2026-11");
+    assert_eq!(rows[1]["figures"]["first"], "2026-11-02");
+    assert_eq!(rows[1]["figures"]["span"], 28.0);
+    // In the workbook the figure is a date cell holding the serial.
+    let cells = common::cells(&dir.path().join("r.xlsx"), "Shipping");
+    let row = cells
+        .iter()
+        .find(|r| r.first().is_some_and(|c| c.to_string() == "2026-10"))
+        .expect("a row for 2026-10");
+    match &row[2] {
+        calamine::Data::DateTime(d) => assert_eq!(d.as_f64(), 46296.0),
+        other => panic!("not a date cell: {other:?}"),
+    }
+    assert_eq!(row[3], calamine::Data::Float(19.0));
+    // On the terminal, ISO dates; a date with a time of day shows it.
+    let calc = |e: &str| text(&sheaf(&["calc", e, "--data", &data], dir.path()));
+    assert_eq!(calc("max(shipped)"), "2026-11-30\n");
+    assert_eq!(calc("median(shipped)"), "2026-10-26 12:00:00\n");
+    assert_eq!(calc("week_of(min(shipped))"), "2026-W40\n");
+}

@@ -607,6 +607,7 @@ fn typed_columns() -> Vec<recipe::DataColumn> {
         ("depot", Text),
         ("Weight (mg)", Numbers),
         ("flag", Any),
+        ("shipped", Dates),
     ]
     .into_iter()
     .map(|(name, kind)| recipe::DataColumn {
@@ -620,6 +621,67 @@ fn typed_columns() -> Vec<recipe::DataColumn> {
 /// needed, a number where a condition is. (recipe, part of the message or
 /// help, line, column)
 const TYPED_CASES: &[(&str, &str, usize, usize)] = &[
+    // Dates: compared with dates, summarised by order, never summed.
+    (
+        "rows where shipped > 45000\n",
+        "`>` cannot combine a date with a number here",
+        1,
+        22,
+    ),
+    (
+        "rows where shipped > 45000\n",
+        "compare a date with a date, as in shipped >= date",
+        1,
+        22,
+    ),
+    (
+        "let x = sum(shipped)\n",
+        "`sum` has no meaning for dates",
+        1,
+        13,
+    ),
+    (
+        "let x = skewness(shipped)\n",
+        "range, sd and iqr are numbers of days",
+        1,
+        18,
+    ),
+    (
+        "let m = month_of(weight_kg)\n",
+        "`month_of` needs a date here, not a number",
+        1,
+        18,
+    ),
+    (
+        "let d = shipped * 2\n",
+        "`*` cannot combine a date with a number here",
+        1,
+        19,
+    ),
+    (
+        "check \"c\" warn: max(shipped) <= 5\n",
+        "`<=` cannot combine a date with a number here",
+        1,
+        33,
+    ),
+    (
+        "rows where shipped >= date \"2026-02-30\"\n",
+        "`2026-02-30`: February 2026 has days 1 to 28",
+        1,
+        28,
+    ),
+    (
+        "rows where shipped >= date \"2026-02-30\"\n",
+        "write a day that exists as date \"YYYY-MM-DD\"",
+        1,
+        28,
+    ),
+    (
+        "let d = date \"1 Oct 2026\"\n",
+        "`1 Oct 2026` is not a date written YYYY-MM-DD",
+        1,
+        14,
+    ),
     (
         "let x = share(weight_kg)\n",
         "`share` needs a condition here, not a number",
@@ -696,6 +758,8 @@ fn mistakes_seen_with_the_columns_kinds_are_refused() {
         "let x = mean(flag)\n",
         "rows where status != \"cancelled\"\nfigures \"F\" per depot:\n    s = share(status == \"done\")\n",
         "panel \"P\" of weight_kg, {Weight (mg)} per status, depot:\n",
+        "let wait = shipped - date \"2026-10-01\"\nlet later = shipped + 7\nlet month = month_of(shipped)\nrows where later > shipped and year_of(shipped) == 2026\nfigures \"F\" per month:\n    first = min(shipped)\n    w = mean(wait)\n    spread = range(shipped)\ncheck \"recent\" warn: max(shipped) >= date \"2026-01-01\"\n",
+        "let date = 1\nlet y = date + 1\n",
     ] {
         let parsed = recipe::parse_and_check_columns(fine, Some(&columns));
         assert!(parsed.is_ok(), "{fine:?}: {:?}", parsed.diagnostics);

@@ -27,6 +27,8 @@ fn leaf() -> impl Strategy<Value = Expr> {
         number.clone().prop_map(ExprKind::Number),
         number.prop_map(ExprKind::Percent),
         text.prop_map(ExprKind::Text),
+        // Whole days from 1899-12-31 to the year 2447, as `date "..."`.
+        (1u32..200_000).prop_map(|d| ExprKind::Date(f64::from(d))),
         bare.prop_map(|name| ExprKind::Column(ColumnRef {
             name,
             braced: false,

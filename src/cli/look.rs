@@ -153,6 +153,7 @@ fn one_lines(v: &One) -> String {
         One::Number(x) => crate::format::shortest(*x),
         One::Truth(b) => b.to_string(),
         One::Text(t) => t.clone(),
+        One::Date(x) => crate::format::date(*x),
         One::List(v) => v
             .iter()
             .map(|x| crate::format::shortest(*x))
@@ -176,6 +177,10 @@ fn row_lines(rows: &eval::Rows) -> String {
         eval::Rows::Texts(v) => v
             .iter()
             .map(|x| x.clone().unwrap_or_else(|| "missing".into()))
+            .collect(),
+        eval::Rows::Dates(v) => v
+            .iter()
+            .map(|x| x.map_or("missing".into(), crate::format::date))
             .collect(),
     };
     texts.join("\n")

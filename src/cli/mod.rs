@@ -203,7 +203,8 @@ fn data_columns(table: &Table) -> Vec<recipe::DataColumn> {
         .map(|c| recipe::DataColumn {
             name: c.name.clone(),
             kind: match c.kind {
-                ColumnKind::Number | ColumnKind::Date => recipe::DataKind::Numbers,
+                ColumnKind::Number => recipe::DataKind::Numbers,
+                ColumnKind::Date => recipe::DataKind::Dates,
                 ColumnKind::Text => recipe::DataKind::Text,
                 ColumnKind::Bool | ColumnKind::Empty => recipe::DataKind::Any,
             },

@@ -3,7 +3,7 @@
 //! statistics core or to a row-by-row operation.
 
 use crate::recipe::ast::{Expr, ExprKind};
-use crate::recipe::functions::{self, Aggregate, Evaluation, Function, RowOp};
+use crate::recipe::functions::{self, Aggregate, DatePart, Evaluation, Function, OnDates, RowOp};
 use crate::stats::{self, Denominator, QuantileMethod, Stat};
 
 use super::value::{One, Rows, Scope, Value, truths};
@@ -67,7 +67,58 @@ pub fn call(scope: &Scope, name: &str, args: &[Expr]) -> Value {
         Evaluation::Row(op) => row_function(scope, function, op, &args[0], &params),
         Evaluation::Change => Value::One(change(scope, &args[0])),
         Evaluation::Share => Value::One(share(scope, &args[0])),
-        Evaluation::Aggregate(a) => Value::One(aggregate(scope, function, a, args, &params)),
+        Evaluation::DatePart(part) => date_part(scope, function, part, &args[0]),
+        Evaluation::Aggregate(a) => {
+            let value = aggregate(scope, function, a, args, &params);
+            Value::One(match value {
+                One::Number(x)
+                    if function.on_dates() == OnDates::Date && scope.holds_dates(&args[0]) =>
+                {
+                    One::Date(x)
+                }
+                other => other,
+            })
+        }
+    }
+}
+
+/// The month, ISO week, year or weekday of each date.
+fn date_part(scope: &Scope, function: &Function, part: DatePart, arg: &Expr) -> Value {
+    let of = |serial: f64| -> One {
+        match part {
+            DatePart::Month => One::Text(crate::format::month_label(serial)),
+            DatePart::Week => One::Text(crate::format::week_label(serial)),
+            DatePart::Year => One::Number(crate::format::calendar(serial).0 as f64),
+            DatePart::Weekday => One::Text(crate::format::weekday_name(serial).to_string()),
+        }
+    };
+    match scope.eval(arg) {
+        Value::One(One::Date(x)) => Value::One(of(x)),
+        Value::One(One::Undefined(why)) => Value::One(One::Undefined(why)),
+        Value::One(_) => Value::One(One::Undefined(format!("`{}` needs a date", function.name))),
+        Value::Rows(Rows::Dates(dates)) => {
+            let parts = dates.into_iter().map(|d| d.map(of));
+            Value::Rows(match part {
+                DatePart::Year => Rows::Numbers(
+                    parts
+                        .map(|p| match p {
+                            Some(One::Number(y)) => Some(y),
+                            _ => None,
+                        })
+                        .collect(),
+                ),
+                _ => Rows::Texts(
+                    parts
+                        .map(|p| match p {
+                            Some(One::Text(t)) => Some(t),
+                            _ => None,
+                        })
+                        .collect(),
+                ),
+            })
+        }
+        // Not dates: every row is missing, as for text given to `ln`.
+        Value::Rows(rows) => Value::Rows(Rows::Numbers(vec![None; rows.len()])),
     }
 }
 

@@ -18,7 +18,7 @@ use crate::stats::{self, BinRule, Histogram};
 
 pub use panel::{
     BoxSummary, CellName, CellPlace, Finding, Flagged, GAP_NOTE_IQR, GAP_WARN_IQR, Influence,
-    PANEL_LABELS, PanelEntry, Robustness, Rule, Signals, Status, findings,
+    PANEL_LABELS, PanelEntry, Robustness, Rule, Signals, Status, dates_note, findings,
 };
 pub use value::{Context, One, Previous, Row, Rows, Scope, Term, Value};
 
@@ -455,6 +455,11 @@ pub fn evaluate_against(
                 let jobs: Vec<(usize, &ColumnRef)> = (0..all_groups.len())
                     .flat_map(|g| columns.iter().map(move |c| (g, c)))
                     .collect();
+                let date_columns: Vec<&str> = columns
+                    .iter()
+                    .map(|c| c.name.as_str())
+                    .filter(|name| scope.column_holds_dates(name))
+                    .collect();
                 let entries: Vec<PanelEntry> = jobs
                     .par_iter()
                     .map(|&(g, column)| {
@@ -465,10 +470,14 @@ pub fn evaluate_against(
                         let address =
                             |i: usize| cells.name(group_rows[sample.position(i)] as usize);
                         let fenced = panel::fenced(&sample);
+                        let mut figures = panel::panel_figures(&sample, &fenced);
+                        if date_columns.contains(&column.name.as_str()) {
+                            figures = panel::figures_of_dates(figures);
+                        }
                         PanelEntry {
                             group: group.clone(),
                             column: column.name.clone(),
-                            figures: panel::panel_figures(&sample, &fenced),
+                            figures,
                             robustness: panel::robustness(&sample, &fenced, &address),
                             sample_summary: panel::box_summary(&sample),
                         }
@@ -671,6 +680,7 @@ fn widen(v: Value, kept: &[Row], total: usize) -> Rows {
         Rows::Numbers(v) => Rows::Numbers(scatter(v, kept, total)),
         Rows::Truths(v) => Rows::Truths(scatter(v, kept, total)),
         Rows::Texts(v) => Rows::Texts(scatter(v, kept, total)),
+        Rows::Dates(v) => Rows::Dates(scatter(v, kept, total)),
     }
 }
 

@@ -209,6 +209,42 @@ pub fn panel_figures(s: &Sample, fenced: &Fenced) -> Vec<One> {
     ]
 }
 
+/// Panel figures of a date column that are dates themselves.
+pub const PANEL_DATE_LABELS: &[&str] = &["mean", "min", "Q1", "median", "Q3", "max"];
+
+/// Panel figures of a date column that are numbers of days.
+pub const PANEL_DAY_LABELS: &[&str] = &["sd", "range", "IQR"];
+
+/// What the panel figures of a date column are, for the panel sheet's note.
+pub fn dates_note() -> String {
+    format!(
+        "For a date column: {} are dates; {} are numbers of days; the modes are dates; n, missing, the shape figures and the outlier counts are as for numbers.",
+        PANEL_DATE_LABELS.join(", "),
+        PANEL_DAY_LABELS.join(", ")
+    )
+}
+
+/// The panel figures of a date column: the mean and the order statistics
+/// become dates and the modes ISO dates; spreads stay numbers (of days),
+/// and counts and shape figures are unchanged.
+pub fn figures_of_dates(figures: Vec<One>) -> Vec<One> {
+    figures
+        .into_iter()
+        .zip(PANEL_LABELS)
+        .map(|(figure, label)| match figure {
+            One::Number(x) if PANEL_DATE_LABELS.contains(label) => One::Date(x),
+            One::List(dates) if *label == "modes" => One::Text(
+                dates
+                    .iter()
+                    .map(|&d| crate::format::date(d))
+                    .collect::<Vec<_>>()
+                    .join("; "),
+            ),
+            other => other,
+        })
+        .collect()
+}
+
 fn list(v: stats::Stat<Vec<f64>>) -> One {
     v.map_or_else(|e| One::Undefined(e.to_string()), One::List)
 }

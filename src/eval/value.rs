@@ -19,6 +19,8 @@ pub enum Rows {
     Numbers(Vec<Option<f64>>),
     Truths(Vec<Option<bool>>),
     Texts(Vec<Option<String>>),
+    /// Dates as spreadsheet serials (days since 1899-12-30).
+    Dates(Vec<Option<f64>>),
 }
 
 impl Rows {
@@ -27,6 +29,7 @@ impl Rows {
             Rows::Numbers(v) => v.len(),
             Rows::Truths(v) => v.len(),
             Rows::Texts(v) => v.len(),
+            Rows::Dates(v) => v.len(),
         }
     }
 
@@ -34,10 +37,11 @@ impl Rows {
         self.len() == 0
     }
 
-    /// The numeric view: true/false count as 1/0, text as missing.
+    /// The numeric view: true/false count as 1/0, text as missing, dates
+    /// as their serials.
     pub fn numbers(&self) -> Vec<Option<f64>> {
         match self {
-            Rows::Numbers(v) => v.clone(),
+            Rows::Numbers(v) | Rows::Dates(v) => v.clone(),
             Rows::Truths(v) => v
                 .iter()
                 .map(|b| b.map(|b| f64::from(u8::from(b))))
@@ -46,13 +50,14 @@ impl Rows {
         }
     }
 
-    /// Row i as text (numbers in their shortest exact form), for group keys
-    /// and text comparisons.
+    /// Row i as text (numbers in their shortest exact form, dates as ISO
+    /// 8601), for group keys and text comparisons.
     pub fn text_at(&self, i: usize) -> Option<String> {
         match self {
             Rows::Numbers(v) => v[i].map(crate::format::shortest),
             Rows::Truths(v) => v[i].map(|b| b.to_string()),
             Rows::Texts(v) => v[i].clone(),
+            Rows::Dates(v) => v[i].map(crate::format::date),
         }
     }
 }
@@ -63,6 +68,8 @@ pub enum One {
     Number(f64),
     Truth(bool),
     Text(String),
+    /// A date as its spreadsheet serial (days since 1899-12-30).
+    Date(f64),
     /// Several numbers: every tied mode.
     List(Vec<f64>),
     /// No value, and why ("no values", "constant column", ...).
@@ -179,6 +186,29 @@ impl<'a> Scope<'a> {
         sample
     }
 
+    /// Whether an expression's values are dates (a date column, a `let`
+    /// of dates, a date literal or arithmetic giving dates).
+    pub fn holds_dates(&self, e: &Expr) -> bool {
+        match &e.kind {
+            ExprKind::Column(c) => self.column_holds_dates(&c.name),
+            _ => matches!(
+                self.eval(e),
+                Value::Rows(Rows::Dates(_)) | Value::One(One::Date(_))
+            ),
+        }
+    }
+
+    /// Whether a column (a `let`, else a data column) holds dates.
+    pub fn column_holds_dates(&self, name: &str) -> bool {
+        match self.lets.get(name) {
+            Some(rows) => matches!(rows, Rows::Dates(_)),
+            None => self
+                .table
+                .column(name)
+                .is_some_and(|column| column.kind == ColumnKind::Date),
+        }
+    }
+
     /// A data column, unless a `let` of the same name hides it.
     pub fn data_column(&self, name: &str) -> Option<&'a Column> {
         match self.lets.contains_key(name) {
@@ -207,6 +237,12 @@ impl<'a> Scope<'a> {
             ColumnKind::Text => {
                 Rows::Texts(self.rows.iter().map(|&r| column.text(r as usize)).collect())
             }
+            ColumnKind::Date => Rows::Dates(
+                self.rows
+                    .iter()
+                    .map(|&r| column.number(r as usize))
+                    .collect(),
+            ),
             ColumnKind::Bool => Rows::Truths(
                 self.rows
                     .iter()
@@ -227,6 +263,7 @@ impl<'a> Scope<'a> {
             ExprKind::Number(x) => Value::One(One::Number(*x)),
             ExprKind::Percent(x) => Value::One(One::Number(x / 100.0)),
             ExprKind::Text(t) => Value::One(One::Text(t.clone())),
+            ExprKind::Date(serial) => Value::One(One::Date(*serial)),
             ExprKind::Column(c) => Value::Rows(self.column(&c.name)),
             ExprKind::Call { function, args } => aggregate::call(self, &function.value, args),
             ExprKind::Unary { op, operand } => unary(*op, self.eval(operand)),
@@ -258,13 +295,18 @@ impl<'a> Scope<'a> {
                     });
                     return Value::Rows(Rows::Texts(values.collect()));
                 }
+                let dates = matches!((&t, &o), (Rows::Dates(_), Rows::Dates(_)));
                 let (t, o) = (t.numbers(), o.numbers());
                 let values = (0..n).map(|i| match truths[i] {
                     Some(true) => t[i],
                     Some(false) => o[i],
                     None => None,
                 });
-                Value::Rows(Rows::Numbers(values.collect()))
+                Value::Rows(if dates {
+                    Rows::Dates(values.collect())
+                } else {
+                    Rows::Numbers(values.collect())
+                })
             }
         }
     }
@@ -275,6 +317,7 @@ fn pick(rows: &Rows, at: &[Row]) -> Rows {
         Rows::Numbers(v) => Rows::Numbers(at.iter().map(|&r| v[r as usize]).collect()),
         Rows::Truths(v) => Rows::Truths(at.iter().map(|&r| v[r as usize]).collect()),
         Rows::Texts(v) => Rows::Texts(at.iter().map(|&r| v[r as usize].clone()).collect()),
+        Rows::Dates(v) => Rows::Dates(at.iter().map(|&r| v[r as usize]).collect()),
     }
 }
 
@@ -285,6 +328,7 @@ pub(super) fn spread(v: Value, n: usize) -> Rows {
         Value::One(One::Number(x)) => Rows::Numbers(vec![Some(x); n]),
         Value::One(One::Truth(b)) => Rows::Truths(vec![Some(b); n]),
         Value::One(One::Text(t)) => Rows::Texts(vec![Some(t); n]),
+        Value::One(One::Date(x)) => Rows::Dates(vec![Some(x); n]),
         Value::One(_) => Rows::Numbers(vec![None; n]),
     }
 }
@@ -294,6 +338,7 @@ pub fn truths(rows: &Rows) -> Vec<Option<bool>> {
         Rows::Truths(v) => v.clone(),
         Rows::Numbers(v) => v.iter().map(|x| x.map(|x| x != 0.0)).collect(),
         Rows::Texts(v) => vec![None; v.len()],
+        Rows::Dates(v) => vec![None; v.len()],
     }
 }
 
@@ -334,7 +379,59 @@ fn compare(op: BinaryOp, a: f64, b: f64) -> bool {
     }
 }
 
+/// What an operator gives when a date takes part: days between two dates,
+/// a date moved by a number of days, or a comparison of the serials.
+/// None when no date takes part.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum DateResult {
+    Date,
+    Days,
+    Truth,
+    Meaningless,
+}
+
+fn date_result(op: BinaryOp, a_date: bool, b_date: bool) -> Option<DateResult> {
+    if !a_date && !b_date {
+        return None;
+    }
+    Some(match op {
+        _ if op.is_comparison() && a_date && b_date => DateResult::Truth,
+        BinaryOp::Subtract if a_date && b_date => DateResult::Days,
+        BinaryOp::Subtract if a_date => DateResult::Date,
+        BinaryOp::Add if !(a_date && b_date) => DateResult::Date,
+        _ => DateResult::Meaningless,
+    })
+}
+
 fn one_binary(op: BinaryOp, a: &One, b: &One) -> One {
+    let date_of = |v: &One| match v {
+        One::Date(x) => Some(*x),
+        _ => None,
+    };
+    let number_of = |v: &One| match v {
+        One::Number(x) | One::Date(x) => Some(*x),
+        _ => None,
+    };
+    let (a_date, b_date) = (date_of(a).is_some(), date_of(b).is_some());
+    if let Some(kind) = date_result(op, a_date, b_date) {
+        if let (One::Undefined(why), _) | (_, One::Undefined(why)) = (a, b) {
+            return One::Undefined(why.clone());
+        }
+        let (Some(x), Some(y)) = (number_of(a), number_of(b)) else {
+            return One::Undefined(format!("`{}` cannot combine these values", op.symbol()));
+        };
+        return match kind {
+            DateResult::Truth => One::Truth(compare(op, x, y)),
+            DateResult::Days => One::number(x - y),
+            DateResult::Date => match One::number(arithmetic(op, x, y)) {
+                One::Number(d) => One::Date(d),
+                other => other,
+            },
+            DateResult::Meaningless => {
+                One::Undefined(format!("`{}` cannot combine these values", op.symbol()))
+            }
+        };
+    }
     match (op, a, b) {
         // Kleene logic, as for rows: a missing side decides nothing when
         // the other side already does (false and ?, true or ?).
@@ -389,6 +486,10 @@ fn binary(op: BinaryOp, a: Value, b: Value, n: usize) -> Value {
         });
         return Value::Rows(Rows::Truths(equal.collect()));
     }
+    let dates = date_result(op, matches!(a, Rows::Dates(_)), matches!(b, Rows::Dates(_)));
+    if dates == Some(DateResult::Meaningless) {
+        return Value::Rows(Rows::Numbers(vec![None; n]));
+    }
     let (x, y) = (a.numbers(), b.numbers());
     let pairs = x.iter().zip(&y);
     if op.is_comparison() {
@@ -399,5 +500,8 @@ fn binary(op: BinaryOp, a: Value, b: Value, n: usize) -> Value {
         ));
     }
     let values = pairs.map(|(p, q)| Some(arithmetic(op, (*p)?, (*q)?)).filter(|r| r.is_finite()));
-    Value::Rows(Rows::Numbers(values.collect()))
+    Value::Rows(match dates {
+        Some(DateResult::Date) => Rows::Dates(values.collect()),
+        _ => Rows::Numbers(values.collect()),
+    })
 }

@@ -98,7 +98,8 @@ impl Record {
                 } => {
                     for e in rows {
                         for (label, value) in PANEL_LABELS.iter().zip(&e.figures) {
-                            if let One::Number(x) = value {
+                            // A date figure is kept as its serial, as before dates were typed.
+                            if let One::Number(x) | One::Date(x) = value {
                                 entries.push(Entry {
                                     block: name.clone(),
                                     group: group_label(&e.group),
@@ -114,7 +115,8 @@ impl Record {
                 } => {
                     for r in rows {
                         for (figure, value) in names.iter().zip(&r.values) {
-                            if let One::Number(x) = value {
+                            // A date figure is kept as its serial, as before dates were typed.
+                            if let One::Number(x) | One::Date(x) = value {
                                 entries.push(Entry {
                                     block: name.clone(),
                                     group: group_label(&r.group),

@@ -125,8 +125,9 @@ fn layout(head: &str, options: &LoadOptions, mut notes: ReadNotes) -> Layout {
 }
 
 /// Adds a field to its column: a number if it reads as one in the file's
-/// style (infinities and NaN do not count), otherwise text, blank or a
-/// spreadsheet error code.
+/// style (infinities and NaN do not count), a date if it is a day written
+/// YYYY-MM-DD (ISO 8601, the one date form that cannot be misread),
+/// otherwise text, blank or a spreadsheet error code.
 fn push_field(column: &mut ColumnBuilder, field: &str, style: &NumberStyle) {
     let number = if *style == NumberStyle::POINT {
         field.trim().parse::<f64>().ok().filter(|x| x.is_finite())
@@ -135,7 +136,10 @@ fn push_field(column: &mut ColumnBuilder, field: &str, style: &NumberStyle) {
     };
     match number {
         Some(x) => column.push(Cell::Number(x)),
-        None => column.push_text(field),
+        None => match crate::format::serial_from_calendar(field.trim()) {
+            Ok(serial) => column.push(Cell::Date(serial)),
+            Err(_) => column.push_text(field),
+        },
     }
 }
 

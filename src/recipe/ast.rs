@@ -110,6 +110,9 @@ pub enum ExprKind {
     /// `10%`, stored as written (10); its value is a hundredth of that.
     Percent(f64),
     Text(String),
+    /// `date "2026-10-01"`, held as its spreadsheet serial (days since
+    /// 1899-12-30), the same number a date cell holds.
+    Date(f64),
     Column(ColumnRef),
     Call {
         function: Spanned<String>,
@@ -144,6 +147,7 @@ impl Expr {
             ExprKind::Number(_)
             | ExprKind::Percent(_)
             | ExprKind::Text(_)
+            | ExprKind::Date(_)
             | ExprKind::Column(_) => vec![],
             ExprKind::Call { args, .. } => args.iter().collect(),
             ExprKind::Unary { operand, .. } => vec![operand],
@@ -161,6 +165,7 @@ impl Expr {
             ExprKind::Number(_)
             | ExprKind::Percent(_)
             | ExprKind::Text(_)
+            | ExprKind::Date(_)
             | ExprKind::Column(_) => vec![],
             ExprKind::Call { args, .. } => args.iter_mut().collect(),
             ExprKind::Unary { operand, .. } => vec![operand],

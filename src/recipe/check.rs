@@ -6,7 +6,9 @@ use std::collections::{HashMap, HashSet};
 
 use super::ast::*;
 use super::diagnostic::Diagnostic;
-use super::functions::{self, Function, FunctionKind, Parameter, Returns};
+use super::functions::{
+    self, DatePart, Evaluation, Function, FunctionKind, OnDates, Parameter, Returns,
+};
 use super::suggest::closest;
 
 /// One value per group, or one value per row.
@@ -21,6 +23,11 @@ enum Value {
     Number,
     Truth,
     Text,
+    /// A date (a spreadsheet serial underneath).
+    Date,
+    /// An order statistic (`max(x)`) of a column of unknown kind: a
+    /// number, or a date if the column holds dates.
+    NumberOrDate,
     List,
     /// A data column whose type is known only once the data is read.
     Unknown,
@@ -50,8 +57,10 @@ pub const BIN_RULES: &[&str] = &["sturges", "scott", "freedman_diaconis"];
 /// What a data column holds, as far as the checker needs to know.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum DataKind {
-    /// Numbers (or dates): usable in arithmetic and aggregates.
+    /// Numbers: usable in arithmetic and aggregates.
     Numbers,
+    /// Dates: compared with dates, subtracted, summarised by order.
+    Dates,
     /// Text: usable in `==`, `!=` and as a group key only.
     Text,
     /// Not known, or true/false, or empty: every use is allowed.
@@ -515,6 +524,7 @@ impl<'a> Checker<'a> {
         if headers.contains(&c.name.as_str()) {
             let value = match self.kinds.get(c.name.as_str()) {
                 Some(DataKind::Numbers) => Value::Number,
+                Some(DataKind::Dates) => Value::Date,
                 Some(DataKind::Text) => Value::Text,
                 Some(DataKind::Any) | None => Value::Unknown,
             };
@@ -553,6 +563,7 @@ impl<'a> Checker<'a> {
         match &e.kind {
             ExprKind::Number(_) | ExprKind::Percent(_) => one(Value::Number),
             ExprKind::Text(_) => one(Value::Text),
+            ExprKind::Date(_) => one(Value::Date),
             ExprKind::Column(c) => self.column(c),
             ExprKind::Unary { op, operand } => {
                 let t = self.expr(operand)?;
@@ -597,6 +608,10 @@ impl<'a> Checker<'a> {
                         value: Value::Truth,
                     });
                 }
+                if l.value == Value::Date || r.value == Value::Date {
+                    let value = self.date_operation(*op, (left, l), (right, r))?;
+                    return Some(Typed { shape, value });
+                }
                 self.operand(left, l, Value::Number, &symbol)?;
                 self.operand(right, r, Value::Number, &symbol)?;
                 Some(Typed {
@@ -615,6 +630,63 @@ impl<'a> Checker<'a> {
             } => self.if_expr(e, condition, then, otherwise),
             ExprKind::Call { function, args } => self.call(function, args, e.span),
         }
+    }
+
+    /// An operator with a date on one side: dates compare with dates, a
+    /// date minus a date is a number of days, and a date plus or minus a
+    /// number of days is a date. Anything else is reported.
+    fn date_operation(
+        &mut self,
+        op: BinaryOp,
+        (left, l): (&Expr, Typed),
+        (right, r): (&Expr, Typed),
+    ) -> Option<Value> {
+        use Value::{Date, Number, Unknown};
+        let symbol = op.symbol();
+        // A value that may be a date is taken as unknown here.
+        let loose = |v: Value| if v == Value::NumberOrDate { Unknown } else { v };
+        let result = match (op, loose(l.value), loose(r.value)) {
+            (_, Date | Unknown, Date | Unknown) if op.is_comparison() => Some(Value::Truth),
+            (BinaryOp::Subtract, Date, Date) => Some(Number),
+            (BinaryOp::Subtract, Date, Unknown) | (BinaryOp::Subtract, Unknown, Date) => {
+                Some(Unknown)
+            }
+            (BinaryOp::Add | BinaryOp::Subtract, Date, Number)
+            | (BinaryOp::Add, Number | Unknown, Date)
+            | (BinaryOp::Add, Date, Unknown) => Some(Date),
+            _ => None,
+        };
+        if result.is_some() {
+            return result;
+        }
+        let (at, other) = if l.value == Date {
+            (right, r)
+        } else {
+            (left, l)
+        };
+        let help = if op.is_comparison() {
+            "compare a date with a date, as in shipped >= date \"2026-10-01\"".to_string()
+        } else {
+            "a date minus a date gives days; a date plus or minus a number of days gives a date"
+                .to_string()
+        };
+        self.report(
+            if other.value == Date {
+                left.span
+            } else {
+                at.span
+            },
+            format!(
+                "`{symbol}` cannot combine a date with a {} here",
+                noun(if other.value == Date {
+                    Date
+                } else {
+                    other.value
+                })
+            ),
+            Some(help),
+        );
+        None
     }
 
     /// `if C then A else B`: a condition, and branches of one kind.
@@ -636,6 +708,10 @@ impl<'a> Checker<'a> {
             }
         }
         let value = if t.value == o.value {
+            t.value
+        } else if t.value == Value::NumberOrDate && matches!(o.value, Value::Number | Value::Date) {
+            o.value
+        } else if o.value == Value::NumberOrDate && matches!(t.value, Value::Number | Value::Date) {
             t.value
         } else if t.value == Value::Unknown {
             o.value
@@ -665,7 +741,9 @@ impl<'a> Checker<'a> {
 
     /// Checks that an operand has the kind of value an operator needs.
     fn operand(&mut self, e: &Expr, t: Typed, wanted: Value, operator: &str) -> Option<()> {
-        if t.value == wanted || t.value == Value::Unknown {
+        let either =
+            t.value == Value::NumberOrDate && matches!(wanted, Value::Number | Value::Date);
+        if t.value == wanted || t.value == Value::Unknown || either {
             return Some(());
         }
         if t.value == Value::List {
@@ -674,6 +752,7 @@ impl<'a> Checker<'a> {
         }
         let help = match wanted {
             Value::Truth => "combine conditions such as `x > 0`",
+            Value::Date => "give it a date column, or a date written date \"2026-10-01\"",
             _ => "text and conditions do not take part in arithmetic",
         };
         self.report(
@@ -753,12 +832,10 @@ impl<'a> Checker<'a> {
             FunctionKind::Row => first.shape,
             FunctionKind::Aggregate | FunctionKind::Comparison => Shape::One,
         };
-        let value = if function.returns() == Returns::List {
-            Value::List
-        } else {
-            Value::Number
-        };
-        Some(Typed { shape, value })
+        Some(Typed {
+            shape,
+            value: result_value(function, first.value),
+        })
     }
 
     /// Tukey's hinges give the quartiles only: a percentile with `hinges`
@@ -811,12 +888,29 @@ impl<'a> Checker<'a> {
     /// The first argument must be numbers, or a condition for `share`;
     /// the help names the fix for the common slips.
     fn first_argument(&mut self, function: &Function, arg: &Expr, t: Typed) -> Option<()> {
+        match (function.on_dates(), t.value) {
+            (OnDates::Made, _) => {
+                return self.operand(arg, t, Value::Date, &format!("`{}`", function.name));
+            }
+            (OnDates::Refused, Value::Date) => {
+                self.report(
+                    arg.span,
+                    format!("`{}` has no meaning for dates", function.name),
+                    Some(DATE_AGGREGATES_HELP.into()),
+                );
+                return None;
+            }
+            (_, Value::Date) => return Some(()),
+            _ => {}
+        }
         let wanted = if function.takes_condition() {
             Value::Truth
         } else {
             Value::Number
         };
-        if t.value == wanted || t.value == Value::Unknown || t.value == Value::List {
+        if t.value == wanted
+            || matches!(t.value, Value::Unknown | Value::List | Value::NumberOrDate)
+        {
             return self.operand(arg, t, wanted, &format!("`{}`", function.name));
         }
         let shown = super::pretty::expr(arg);
@@ -921,7 +1015,12 @@ impl<'a> Checker<'a> {
         let Some(t) = self.expr(arg) else {
             return false;
         };
-        if t.shape == Shape::Rows || !matches!(t.value, Value::Number | Value::Unknown) {
+        if t.shape == Shape::Rows
+            || !matches!(
+                t.value,
+                Value::Number | Value::Unknown | Value::NumberOrDate
+            )
+        {
             self.report(
                 arg.span,
                 format!(
@@ -1029,11 +1128,34 @@ fn literal_value(e: &Expr) -> Option<(f64, bool)> {
     }
 }
 
+/// What the aggregates make of dates, for messages.
+const DATE_AGGREGATES_HELP: &str = "min, max, mean, median, quartile and percentile of dates are dates; range, sd and iqr are numbers of days; count and missing count cells";
+
+/// The kind of value a call gives, from the function and its first argument.
+fn result_value(function: &Function, first: Value) -> Value {
+    if function.returns() == Returns::List {
+        return Value::List;
+    }
+    match function.evaluation {
+        Evaluation::DatePart(DatePart::Year) => Value::Number,
+        Evaluation::DatePart(_) => Value::Text,
+        // An order statistic of a column of unknown kind may be a date.
+        _ if function.on_dates() == OnDates::Date => match first {
+            Value::Date => Value::Date,
+            Value::Unknown | Value::NumberOrDate => Value::NumberOrDate,
+            _ => Value::Number,
+        },
+        _ => Value::Number,
+    }
+}
+
 fn noun(value: Value) -> &'static str {
     match value {
         Value::Number => "number",
         Value::Truth => "condition",
         Value::Text => "text",
+        Value::Date => "date",
+        Value::NumberOrDate => "number",
         Value::List => "list",
         Value::Unknown => "value",
     }

@@ -365,6 +365,9 @@ fn primary(input: &str) -> PResult<'_, Expr> {
             )),
         );
     }
+    if word == DATE_WORD && rest.trim_start().starts_with('"') {
+        return date_literal(start, rest);
+    }
     let name_span = span_between(start, rest);
     if let Ok((after_open, _)) = ws(char::<&str, SyntaxError>('(')).parse(rest) {
         return nested(after_open, |inside| {
@@ -384,6 +387,31 @@ fn primary(input: &str) -> PResult<'_, Expr> {
             span: name_span,
         }),
     )
+}
+
+/// The word before a date literal. It is not a keyword: a column may still
+/// be called `date`, since a column is never followed by a string.
+pub const DATE_WORD: &str = "date";
+
+/// `date "2026-10-01"` after the word `date`: a day that exists, written
+/// YYYY-MM-DD; anything else is refused at the string.
+fn date_literal<'a>(start: &'a str, after_word: &'a str) -> PResult<'a, Expr> {
+    let (at, _) = space0(after_word)?;
+    let (rest, text) = string_literal(after_word)?;
+    match crate::format::serial_from_calendar(&text) {
+        Ok(serial) => Ok((
+            rest,
+            Expr {
+                kind: ExprKind::Date(serial),
+                span: span_between(start, rest),
+            },
+        )),
+        Err(why) => failure(
+            at,
+            why,
+            Some("write a day that exists as date \"YYYY-MM-DD\", such as date \"2026-10-01\""),
+        ),
+    }
 }
 
 /// Call arguments after the `(`, through the closing `)`.

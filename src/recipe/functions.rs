@@ -28,6 +28,36 @@ pub enum Evaluation {
     Row(RowOp),
     /// |now - before| / |before| against the previous period (`change`).
     Change,
+    /// Row by row, a date to a part of its calendar day.
+    DatePart(DatePart),
+}
+
+/// The parts of a date the row functions give.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum DatePart {
+    /// Text `2026-10`.
+    Month,
+    /// Text `2026-W44`, by ISO 8601 week numbering.
+    Week,
+    /// The number 2026.
+    Year,
+    /// The English day name, `Saturday`.
+    Weekday,
+}
+
+/// What a function gives when its argument holds dates.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum OnDates {
+    /// A date: the figure is one of the dates, or lies between them.
+    Date,
+    /// A number of days (a spread or a difference of dates).
+    Days,
+    /// A count of cells, as for numbers.
+    Count,
+    /// Meaningless for dates (a sum of dates); the checker refuses it.
+    Refused,
+    /// Made for dates (the date parts).
+    Made,
 }
 
 /// The aggregates, each mapped to the statistics core by the evaluator.
@@ -329,6 +359,26 @@ pub const FUNCTIONS: &[Function] = &[
     },
     row("floor", RowOp::Floor, "largest whole number not above"),
     row("ceil", RowOp::Ceil, "smallest whole number not below"),
+    function(
+        "month_of",
+        Evaluation::DatePart(DatePart::Month),
+        "a date's year and month as text, 2026-10",
+    ),
+    function(
+        "week_of",
+        Evaluation::DatePart(DatePart::Week),
+        "a date's ISO 8601 week as text, 2026-W44",
+    ),
+    function(
+        "year_of",
+        Evaluation::DatePart(DatePart::Year),
+        "a date's year, a number",
+    ),
+    function(
+        "weekday_of",
+        Evaluation::DatePart(DatePart::Weekday),
+        "a date's day of the week in English, Monday to Sunday",
+    ),
 ];
 
 pub fn lookup(name: &str) -> Option<&'static Function> {
@@ -340,7 +390,7 @@ impl Function {
     pub fn kind(&self) -> FunctionKind {
         match self.evaluation {
             Evaluation::Aggregate(_) | Evaluation::Share => FunctionKind::Aggregate,
-            Evaluation::Row(_) => FunctionKind::Row,
+            Evaluation::Row(_) | Evaluation::DatePart(_) => FunctionKind::Row,
             Evaluation::Change => FunctionKind::Comparison,
         }
     }
@@ -350,6 +400,42 @@ impl Function {
         match self.evaluation {
             Evaluation::Aggregate(Aggregate::Modes | Aggregate::BinnedMode) => Returns::List,
             _ => Returns::Number,
+        }
+    }
+
+    /// What the function gives for an argument that holds dates: order
+    /// statistics and the mean are dates, spreads are days.
+    pub fn on_dates(&self) -> OnDates {
+        let aggregate = match self.evaluation {
+            Evaluation::Aggregate(a) => a,
+            Evaluation::DatePart(_) => return OnDates::Made,
+            Evaluation::Share | Evaluation::Row(_) | Evaluation::Change => {
+                return OnDates::Refused;
+            }
+        };
+        match aggregate {
+            Aggregate::Min
+            | Aggregate::Max
+            | Aggregate::Mean
+            | Aggregate::Median
+            | Aggregate::Quartile
+            | Aggregate::Percentile => OnDates::Date,
+            Aggregate::Range | Aggregate::Sd | Aggregate::Iqr => OnDates::Days,
+            Aggregate::Count | Aggregate::Missing => OnDates::Count,
+            Aggregate::Sum
+            | Aggregate::Modes
+            | Aggregate::BinnedMode
+            | Aggregate::Variance
+            | Aggregate::Skewness
+            | Aggregate::Kurtosis
+            | Aggregate::ExcessKurtosis
+            | Aggregate::Bowley
+            | Aggregate::Mad
+            | Aggregate::TrimmedMean
+            | Aggregate::WinsorizedMean
+            | Aggregate::Outliers
+            | Aggregate::FenceLow
+            | Aggregate::FenceHigh => OnDates::Refused,
         }
     }
 

@@ -204,6 +204,7 @@ pub fn expr(e: &Expr) -> String {
         ExprKind::Number(v) => number(*v),
         ExprKind::Percent(v) => format!("{}%", number(*v)),
         ExprKind::Text(t) => quoted(t),
+        ExprKind::Date(serial) => format!("date {}", quoted(&crate::format::date(*serial))),
         ExprKind::Column(c) => column(c),
         ExprKind::Call { function, args } => {
             format!(

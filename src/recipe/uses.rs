@@ -126,7 +126,7 @@ impl Walker {
     fn expr(&mut self, e: &Expr, numeric: bool) {
         match &e.kind {
             ExprKind::Column(c) => self.column(c, numeric),
-            ExprKind::Number(_) | ExprKind::Percent(_) | ExprKind::Text(_) => {}
+            ExprKind::Number(_) | ExprKind::Percent(_) | ExprKind::Text(_) | ExprKind::Date(_) => {}
             ExprKind::Call { function, args } => {
                 let takes_numbers = functions::lookup(&function.value)
                     .is_some_and(|f| !f.takes_condition() && f.kind() != FunctionKind::Comparison);

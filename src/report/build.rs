@@ -15,6 +15,7 @@ pub(super) fn value(v: &One) -> Value {
         One::Number(x) => Value::Number(*x),
         One::Truth(b) => Value::Truth(*b),
         One::Text(t) => Value::Text(t.clone()),
+        One::Date(x) => Value::Date(IsoDate::from_serial(*x)),
         One::List(v) => Value::Numbers(v.clone()),
         One::Undefined(why) => Value::NoValue(reason(why)),
     }

@@ -37,8 +37,24 @@ pub enum Value {
     Number(f64),
     Truth(bool),
     Text(String),
+    /// A date figure (min, max, median... of a date column).
+    Date(IsoDate),
     Numbers(Vec<f64>),
     NoValue(Reason),
+}
+
+/// A date as ISO 8601 text: `2026-10-31`, or `2026-10-31T08:30:00` when
+/// it has a time of day.
+#[derive(Debug, Clone, PartialEq, Serialize, JsonSchema)]
+pub struct IsoDate(
+    #[schemars(regex(pattern = r"^\d{4}-\d{2}-\d{2}(T\d{2}:\d{2}:\d{2})?$"))] pub String,
+);
+
+impl IsoDate {
+    /// The ISO text of a spreadsheet serial.
+    pub fn from_serial(serial: f64) -> IsoDate {
+        IsoDate(crate::format::date(serial).replacen(' ', "T", 1))
+    }
 }
 
 /// Why something has no value.

@@ -193,7 +193,14 @@ fn panel_sheet(
     entries: &[PanelEntry],
 ) -> Result<(), XlsxError> {
     let labels = entry_labels(keys, PANEL_LABELS);
-    let top = heading(sheet, name, PANEL_NOTE, labels.len())?;
+    let has_dates = entries
+        .iter()
+        .any(|e| e.figures.iter().any(|f| matches!(f, One::Date(_))));
+    let note = match has_dates {
+        true => format!("{PANEL_NOTE} {}", crate::eval::dates_note()),
+        false => PANEL_NOTE.to_string(),
+    };
+    let top = heading(sheet, name, &note, labels.len())?;
     style::table_header(sheet, top, &labels, keys.len() as u16 + 1)?;
     let whole = ["n", "missing", "low outliers", "high outliers"];
     for (i, e) in entries.iter().enumerate() {

@@ -42,6 +42,17 @@ pub fn number() -> Format {
     Format::new().set_num_format("General")
 }
 
+/// A date cell: the value stays the serial, shown as a date (with the time
+/// when it has one).
+pub fn date(serial: f64) -> Format {
+    let code = if crate::format::has_time(serial) {
+        "yyyy-mm-dd hh:mm:ss"
+    } else {
+        "yyyy-mm-dd"
+    };
+    Format::new().set_num_format(code)
+}
+
 pub fn status(word: &str) -> Format {
     let colour = match word {
         "ok" | "pass" => 0xDCEFD9,
@@ -63,6 +74,9 @@ pub fn write_one(
     match value {
         One::Number(x) => sheet
             .write_number_with_format(row, col, *x, &if whole { count() } else { number() })
+            .map(|_| ()),
+        One::Date(x) => sheet
+            .write_number_with_format(row, col, *x, &date(*x))
             .map(|_| ()),
         One::Truth(b) => sheet.write_boolean(row, col, *b).map(|_| ()),
         One::Text(t) => sheet.write_string(row, col, fit(t)).map(|_| ()),
