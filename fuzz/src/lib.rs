@@ -55,10 +55,13 @@ pub fn run_path(bytes: &[u8]) {
     }
     let recipe = parsed.recipe;
     let path = input_file(data, "csv");
-    let Ok(table) = load::load(&path, &LoadOptions::default()) else {
+    // Read as `run` reads: the recipe's input settings and the columns it uses.
+    let options = sheaf::cli::load_options(&recipe);
+    let wanted = sheaf::cli::wanted(&recipe, &recipe_text);
+    let Ok(table) = load::load_for(&path, &options, &wanted) else {
         return;
     };
-    if !sheaf::recipe::check_against(&recipe, &table.headers()).is_empty() {
+    if !sheaf::recipe::check_against(&recipe, &sheaf::cli::data_columns(&table)).is_empty() {
         return;
     }
     let Ok(results) = sheaf::eval::evaluate(&recipe, &table) else {
@@ -70,13 +73,13 @@ pub fn run_path(bytes: &[u8]) {
         recipe_text,
         run_time: "2026-11-01 09:00:00 UTC".into(),
         version: "fuzz".into(),
-        fingerprint: fingerprint.clone(),
+        fingerprint,
         period: sheaf::history::period_of(&recipe, &path),
         previous: None,
         drift: sheaf::history::drift_of(&recipe),
     };
     let out = scratch().join("result.xlsx");
     if sheaf::write::save(&results, &table, &run, &out, true).is_ok() {
-        let _ = sheaf::history::Record::read(&out, &fingerprint);
+        let _ = sheaf::history::Record::read(&out, &recipe);
     }
 }

@@ -195,7 +195,7 @@ fn recipe_warnings(path: &Path, text: &str) -> Vec<String> {
 }
 
 /// The data's headers with the kind of value each column holds.
-fn data_columns(table: &Table) -> Vec<recipe::DataColumn> {
+pub fn data_columns(table: &Table) -> Vec<recipe::DataColumn> {
     use crate::load::ColumnKind;
     table
         .columns
