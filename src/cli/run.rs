@@ -90,6 +90,7 @@ fn run(args: &RunArgs) -> Result<Exit, Failure> {
     let text = read_recipe(&args.recipe)?;
     let (recipe, table) = load_for(&args.recipe, &text, data)?;
     let loaded = Instant::now();
+    let period = crate::history::period_of(&recipe, data).map_err(Failure::new)?;
     let previous = match &args.compare {
         Some(path) => Some(crate::history::Record::read(path, &recipe)?),
         None => None,
@@ -103,7 +104,7 @@ fn run(args: &RunArgs) -> Result<Exit, Failure> {
         .warnings
         .extend(recipe_warnings(&args.recipe, &text));
     let evaluated = Instant::now();
-    let info = run_info(&args.recipe, &text, &recipe, data, previous);
+    let info = run_info(&args.recipe, &text, &recipe, period, previous);
     write::save(&results, &table, &info, &out, args.force)?;
     if args.timings {
         let timings = Timings {

@@ -1,0 +1,158 @@
+//! The periods of a batch (issue 12, items 1 and 2): dates in file names in
+//! their common forms order the files in time; a fixed `period`, a date that
+//! cannot exist and two files of one period stop the batch before anything
+//! is read; names without a date are ordered by name, and the batch says so.
+//! The data are the invented demo months, copied under other names.
+
+use std::path::{Path, PathBuf};
+
+mod common;
+
+use common::{cells, root, sheaf, text};
+
+/// The demo months (August, September, October 2026) copied as `names`.
+fn months_as(dir: &Path, names: [&str; 3]) -> PathBuf {
+    let months = dir.join("months");
+    std::fs::create_dir_all(&months).unwrap();
+    for (m, name) in ["depot-2026-08", "depot-2026-09", "depot-2026-10"]
+        .iter()
+        .zip(names)
+    {
+        std::fs::copy(
+            root().join(format!("workbooks/{m}.xlsx")),
+            months.join(format!("{name}.xlsx")),
+        )
+        .unwrap();
+    }
+    months
+}
+
+fn recipe() -> String {
+    root()
+        .join("workbooks/depot-monthly.sheaf")
+        .display()
+        .to_string()
+}
+
+fn batch(dir: &Path, recipe: &str) -> std::process::Output {
+    let pattern = format!("{}/*.xlsx", dir.join("months").display());
+    sheaf(
+        &["run", recipe, "--data", &pattern, "--out-dir", "out"],
+        dir,
+    )
+}
+
+/// The periods of the trend sheet in the order its rows give them.
+fn trend_periods(dir: &Path) -> Vec<String> {
+    let mut seen: Vec<String> = Vec::new();
+    for row in cells(&dir.join("out/trend.xlsx"), "Trend").iter().skip(1) {
+        let p = row[0].to_string();
+        if seen.last() != Some(&p) {
+            seen.push(p);
+        }
+    }
+    seen
+}
+
+#[test]
+fn month_names_without_a_year_order_the_files_in_the_year() {
+    let dir = tempfile::tempdir().unwrap();
+    months_as(dir.path(), ["qc-january", "qc-february", "qc-march"]);
+    let o = batch(dir.path(), &recipe());
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    assert_eq!(trend_periods(dir.path()), ["January", "February", "March"]);
+    let about = cells(&dir.path().join("out/qc-march-summary.xlsx"), "About");
+    let period = about.iter().find(|r| r[0].to_string() == "period").unwrap();
+    assert_eq!(
+        period[1].to_string(),
+        "March (from \"march\" in the data file's name)"
+    );
+}
+
+#[test]
+fn mixed_date_forms_in_names_order_the_files_in_time() {
+    let dir = tempfile::tempdir().unwrap();
+    // By name the order would be October, September, August.
+    months_as(
+        dir.path(),
+        ["ops_Aug2026", "depot-09-2026", "deliveries 31.10.2026"],
+    );
+    let o = batch(dir.path(), &recipe());
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    assert_eq!(
+        trend_periods(dir.path()),
+        ["2026-08", "2026-09", "2026-10-31"]
+    );
+    assert!(!text(&o).contains("ordered by file name"), "{}", text(&o));
+}
+
+#[test]
+fn names_without_a_date_are_ordered_by_name_and_the_batch_says_so() {
+    let dir = tempfile::tempdir().unwrap();
+    months_as(dir.path(), ["alpha", "beta", "gamma"]);
+    let o = batch(dir.path(), &recipe());
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let t = text(&o);
+    assert!(t.contains("no date found in the name of"), "{t}");
+    assert!(t.contains("ordered by file name"), "{t}");
+    assert!(
+        t.contains("alpha.xlsx -> ") && t.contains("beta.xlsx -> "),
+        "{t}"
+    );
+    assert_eq!(trend_periods(dir.path()), ["alpha", "beta", "gamma"]);
+}
+
+#[test]
+fn a_fixed_period_in_a_batch_of_several_files_is_an_error() {
+    let dir = tempfile::tempdir().unwrap();
+    months_as(
+        dir.path(),
+        ["depot-2026-08", "depot-2026-09", "depot-2026-10"],
+    );
+    let fixed = dir.path().join("fixed.sheaf");
+    let text_of = std::fs::read_to_string(recipe()).unwrap();
+    std::fs::write(&fixed, format!("{text_of}\nperiod \"2026-01\"\n")).unwrap();
+    let o = batch(dir.path(), fixed.to_str().unwrap());
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    let t = text(&o);
+    assert!(
+        t.contains("period \"2026-01\"") && t.contains("3 files"),
+        "{t}"
+    );
+    assert!(t.contains("nothing was read or written"), "{t}");
+    assert!(!dir.path().join("out").exists());
+}
+
+#[test]
+fn an_impossible_date_in_a_name_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    months_as(
+        dir.path(),
+        ["depot-2026-11", "depot-2026-12", "depot-2026-13"],
+    );
+    let o = batch(dir.path(), &recipe());
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    let t = text(&o);
+    assert!(
+        t.contains("depot-2026-13.xlsx") && t.contains("month 13") && t.contains("rename"),
+        "{t}"
+    );
+    assert!(!dir.path().join("out").exists());
+}
+
+#[test]
+fn two_files_of_one_period_are_an_error_naming_both() {
+    let dir = tempfile::tempdir().unwrap();
+    months_as(
+        dir.path(),
+        ["depot-2026-09", "depot-2026-10", "deliveries_Oct2026"],
+    );
+    let o = batch(dir.path(), &recipe());
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    let t = text(&o);
+    assert!(
+        t.contains("deliveries_Oct2026.xlsx and")
+            && t.contains("depot-2026-10.xlsx are both of period 2026-10"),
+        "{t}"
+    );
+}
