@@ -284,3 +284,66 @@ fn compare_feeds_change_and_refuses_another_recipe() {
         text(&o)
     );
 }
+
+#[test]
+fn lock_files_hidden_files_and_earlier_results_are_left_out_and_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let months = months_in(dir.path());
+    let pattern = format!("{}/*.xlsx", months.display());
+    let dir_arg = months.display().to_string();
+    let first = sheaf(
+        &["run", &recipe(), "--data", &pattern, "--out-dir", &dir_arg],
+        dir.path(),
+    );
+    assert_eq!(first.status.code(), Some(0), "{}", text(&first));
+    // A result under a name that says nothing: recognised by its Record sheet.
+    std::fs::rename(
+        months.join("depot-2026-09-summary.xlsx"),
+        months.join("shared copy.xlsx"),
+    )
+    .unwrap();
+    // What a spreadsheet program leaves beside a file it has open (not a workbook).
+    std::fs::write(months.join("~$depot-2026-10.xlsx"), b"\x05analyst").unwrap();
+    std::fs::copy(
+        months.join("depot-2026-08.xlsx"),
+        months.join(".depot-2026-07.xlsx"),
+    )
+    .unwrap();
+    let o = sheaf(
+        &[
+            "run",
+            &recipe(),
+            "--data",
+            &pattern,
+            "--out-dir",
+            &dir_arg,
+            "--force",
+        ],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let t = text(&o);
+    for (file, why) in [
+        ("~$depot-2026-10.xlsx", "lock file"),
+        (".depot-2026-07.xlsx", "a hidden file"),
+        (
+            "shared copy.xlsx",
+            "a sheaf result workbook (it has a Record sheet)",
+        ),
+        ("depot-2026-08-summary.xlsx", "a sheaf result workbook"),
+        ("trend.xlsx", "a sheaf trend workbook"),
+    ] {
+        assert!(
+            t.lines()
+                .any(|l| l.starts_with("left out") && l.contains(file) && l.contains(why)),
+            "{file}: {t}"
+        );
+    }
+    let trend = cells(&months.join("trend.xlsx"), "Trend");
+    let periods: std::collections::BTreeSet<String> =
+        trend.iter().skip(1).map(|r| r[0].to_string()).collect();
+    assert_eq!(
+        periods.into_iter().collect::<Vec<_>>(),
+        ["2026-08", "2026-09", "2026-10"]
+    );
+}

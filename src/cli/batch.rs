@@ -41,6 +41,21 @@ struct Done {
 /// A file that could not be summarised, and why.
 type Skipped = (PathBuf, String);
 
+/// Why a file a pattern matched is not data: a spreadsheet program's lock
+/// file, a hidden file, or something sheaf wrote (recognised by its sheets).
+fn not_data(path: &Path) -> Option<String> {
+    let name = path.file_name()?.to_string_lossy();
+    if name.starts_with("~$") || name.starts_with(".~lock.") {
+        return Some("a spreadsheet program's lock file".into());
+    }
+    if name.starts_with('.') {
+        return Some("a hidden file".into());
+    }
+    history::made_by_sheaf(path).map(str::to_string)
+}
+
+/// The data files a pattern matches, by name; the ones left out are said,
+/// with why, on the terminal.
 fn matching_files(pattern: &str) -> Result<Vec<PathBuf>, Failure> {
     if !is_pattern(pattern) {
         let path = Path::new(pattern);
@@ -53,8 +68,26 @@ fn matching_files(pattern: &str) -> Result<Vec<PathBuf>, Failure> {
         .filter(|p| !p.is_dir())
         .collect();
     found.sort();
+    let mut left_out = Vec::new();
+    found.retain(|p| match not_data(p) {
+        Some(why) => {
+            left_out.push(format!("left out {}: {why}", p.display()));
+            false
+        }
+        None => true,
+    });
+    for line in &left_out {
+        output::problem(line);
+    }
     if found.is_empty() {
-        return Err(Failure::new(format!("--data '{pattern}' matches no file")));
+        return Err(Failure::new(format!(
+            "--data '{pattern}' matches no data file{}",
+            if left_out.is_empty() {
+                ""
+            } else {
+                " (every match was left out, see above)"
+            }
+        )));
     }
     Ok(found)
 }

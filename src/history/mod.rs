@@ -9,6 +9,7 @@ mod trend;
 pub use period::{Period, PeriodSource, order_key, period_of};
 pub use record::{
     Entry, RECORD_BAND_WIDTH, RECORD_SHEET, Record, RecordError, TERM_BLOCK, fingerprint,
+    made_by_sheaf,
 };
 pub use trend::{Move, largest_moves, moves_between, trend_workbook};
 

@@ -8,6 +8,10 @@ use rust_xlsxwriter::{Chart, ChartType, Format, Workbook, XlsxError};
 use super::record::{Record, TERM_BLOCK};
 use crate::write::style::fit;
 
+/// The sheets that mark a trend workbook, so a later batch leaves it out.
+pub const TREND_SHEET: &str = "Trend";
+pub const MOVES_SHEET: &str = "Largest moves";
+
 /// A figure's change between two consecutive periods.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Move {
@@ -88,7 +92,7 @@ pub fn trend_workbook(
             Ok(())
         };
 
-    let sheet = workbook.add_worksheet().set_name("Trend")?;
+    let sheet = workbook.add_worksheet().set_name(TREND_SHEET)?;
     header(sheet, &["period", "block", "group", "figure", "value"])?;
     let mut r = 1u32;
     for (period, record) in records {
@@ -103,7 +107,7 @@ pub fn trend_workbook(
     }
     sheet.autofilter(0, 0, r.max(1) - 1, 4)?;
 
-    let sheet = workbook.add_worksheet().set_name("Largest moves")?;
+    let sheet = workbook.add_worksheet().set_name(MOVES_SHEET)?;
     header(
         sheet,
         &[
