@@ -156,3 +156,81 @@ fn two_files_of_one_period_are_an_error_naming_both() {
         "{t}"
     );
 }
+
+/// The Checks sheet's rows that carry `needle` in any cell.
+fn sheet_mentions(path: &Path, sheet: &str, needle: &str) -> bool {
+    cells(path, sheet)
+        .iter()
+        .any(|r| r.iter().any(|c| c.to_string().contains(needle)))
+}
+
+#[test]
+fn compare_with_the_same_or_a_later_period_warns_on_the_terminal_and_the_checks_sheet() {
+    let dir = tempfile::tempdir().unwrap();
+    let months = months_as(
+        dir.path(),
+        ["depot-2026-08", "depot-2026-09", "depot-2026-10"],
+    );
+    let data = |m: &str| months.join(format!("{m}.xlsx")).display().to_string();
+    let single = |m: &str, out: &str, compare: Option<&str>| {
+        let mut args = vec!["run".to_string(), recipe(), "--data".into(), data(m)];
+        args.extend(["--out".into(), out.into()]);
+        if let Some(c) = compare {
+            args.extend(["--compare".into(), c.into()]);
+        }
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        sheaf(&args, dir.path())
+    };
+    assert_eq!(
+        single("depot-2026-10", "oct.xlsx", None).status.code(),
+        Some(0)
+    );
+    assert_eq!(
+        single("depot-2026-09", "sep.xlsx", None).status.code(),
+        Some(0)
+    );
+
+    // An earlier period: no warning.
+    let o = single("depot-2026-10", "oct-vs-sep.xlsx", Some("sep.xlsx"));
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    assert!(
+        !text(&o).contains("--compare sep.xlsx is of period"),
+        "{}",
+        text(&o)
+    );
+
+    // The same period.
+    let o = single("depot-2026-10", "oct-again.xlsx", Some("oct.xlsx"));
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let said = "--compare oct.xlsx is of period 2026-10, the same period as this file (2026-10)";
+    assert!(text(&o).contains(said), "{}", text(&o));
+    assert!(sheet_mentions(
+        &dir.path().join("oct-again.xlsx"),
+        "Checks",
+        said
+    ));
+
+    // A batch whose first period (August) comes before the one compared with.
+    let pattern = format!("{}/*.xlsx", months.display());
+    let o = sheaf(
+        &[
+            "run",
+            &recipe(),
+            "--data",
+            &pattern,
+            "--out-dir",
+            "out",
+            "--compare",
+            "oct.xlsx",
+        ],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let said = "is of period 2026-10, a later period than this file (2026-08)";
+    assert!(text(&o).contains(said), "{}", text(&o));
+    assert!(sheet_mentions(
+        &dir.path().join("out/depot-2026-08-summary.xlsx"),
+        "Checks",
+        said
+    ));
+}

@@ -248,7 +248,18 @@ pub fn run(args: &RunArgs) -> Result<Exit, Failure> {
     };
 
     let (mut done, mut skipped) = evaluate_all(&args.recipe, &text, &recipe, &plan.files);
+    let order_warning = compare.as_ref().and_then(|previous| {
+        history::compare_order_warning(
+            args.compare.as_deref()?,
+            previous.period.as_deref(),
+            Some(done.first()?.period.as_str()),
+        )
+    });
     let (infos, records) = chain_periods(&args.recipe, &text, &recipe, &mut done, compare);
+    if let (Some(w), Some(first)) = (order_warning, done.first_mut()) {
+        output::problem(&w);
+        first.results.warnings.push(w);
+    }
     let written = write_all(&mut done, &infos, &out_dir, args.force);
     // Every file is written before anything is printed, so a reader that
     // stops early (`| head -1`) never stops the work.

@@ -103,6 +103,16 @@ fn run(args: &RunArgs) -> Result<Exit, Failure> {
     results
         .warnings
         .extend(recipe_warnings(&args.recipe, &text));
+    if let Some(w) = previous.as_ref().and_then(|p| {
+        crate::history::compare_order_warning(
+            args.compare.as_deref()?,
+            p.period.as_deref(),
+            period.as_ref().map(|q| q.label.as_str()),
+        )
+    }) {
+        output::problem(&w);
+        results.warnings.push(w);
+    }
     let evaluated = Instant::now();
     let info = run_info(&args.recipe, &text, &recipe, period, previous);
     write::save(&results, &table, &info, &out, args.force)?;

@@ -6,7 +6,7 @@ mod period;
 mod record;
 mod trend;
 
-pub use period::{Period, PeriodSource, order_key, period_of};
+pub use period::{Period, PeriodSource, compare_order_warning, order_key, period_of};
 pub use record::{
     Entry, RECORD_BAND_WIDTH, RECORD_SHEET, Record, RecordError, TERM_BLOCK, fingerprint,
     made_by_sheaf,

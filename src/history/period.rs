@@ -307,9 +307,51 @@ pub fn period_of(recipe: &Recipe, data: &Path) -> Result<Option<Period>, String>
     }))
 }
 
+/// A warning when the workbook given to `--compare` is of the same period
+/// as this file or a later one, so "the change since last period" would
+/// not be that. None when either period is unknown or the order is right.
+pub fn compare_order_warning(
+    compared: &Path,
+    previous: Option<&str>,
+    current: Option<&str>,
+) -> Option<String> {
+    let (previous, current) = (previous?, current?);
+    let (before, now) = (order_key(previous), order_key(current));
+    let relation = match before.cmp(&now) {
+        std::cmp::Ordering::Less => return None,
+        std::cmp::Ordering::Equal => "the same period as",
+        std::cmp::Ordering::Greater => "a later period than",
+    };
+    Some(format!(
+        "warning: --compare {} is of period {previous}, {relation} this file ({current}); \
+         the changes shown are not since an earlier period; compare with an earlier result",
+        compared.display()
+    ))
+}
+
 #[cfg(test)]
 mod tests {
-    use super::{from_name, order_key};
+    use super::{compare_order_warning, from_name, order_key};
+    use std::path::Path;
+
+    #[test]
+    fn comparing_with_the_same_or_a_later_period_warns() {
+        let p = Path::new("prev.xlsx");
+        let warn = |before, now| compare_order_warning(p, Some(before), Some(now));
+        assert!(warn("2026-09", "2026-10").is_none());
+        assert!(
+            warn("2026-10", "2026-10")
+                .unwrap()
+                .contains("the same period as")
+        );
+        assert!(
+            warn("2026-11", "2026-10")
+                .unwrap()
+                .contains("a later period than")
+        );
+        assert!(warn("March", "January").unwrap().contains("a later period"));
+        assert!(compare_order_warning(p, None, Some("2026-10")).is_none());
+    }
 
     fn label(stem: &str) -> Option<String> {
         from_name(stem).unwrap().map(|(label, _)| label)
