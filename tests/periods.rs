@@ -234,3 +234,43 @@ fn compare_with_the_same_or_a_later_period_warns_on_the_terminal_and_the_checks_
         said
     ));
 }
+
+#[test]
+fn a_group_that_appears_or_disappears_is_listed_in_changes_and_checks() {
+    let dir = tempfile::tempdir().unwrap();
+    // Invented: parcel weights at depots; Ridge closes and Harbour opens in October.
+    let months = dir.path().join("months");
+    std::fs::create_dir_all(&months).unwrap();
+    std::fs::write(
+        months.join("site-2026-09.csv"),
+        "depot,x\nNorth,1\nNorth,2\nNorth,3\nRidge,4\nRidge,5\nRidge,7\n",
+    )
+    .unwrap();
+    std::fs::write(
+        months.join("site-2026-10.csv"),
+        "depot,x\nNorth,1\nNorth,2\nNorth,4\nHarbour,4\nHarbour,6\nHarbour,7\n",
+    )
+    .unwrap();
+    let recipe = dir.path().join("r.sheaf");
+    std::fs::write(&recipe, "figures \"Levels\" per depot:\n    m = mean(x)\n").unwrap();
+    let pattern = format!("{}/*.csv", months.display());
+    let o = sheaf(
+        &[
+            "run",
+            recipe.to_str().unwrap(),
+            "--data",
+            &pattern,
+            "--out-dir",
+            "out",
+        ],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let oct = dir.path().join("out/site-2026-10-summary.xlsx");
+    let said = "appeared since the previous period: Levels: Harbour; groups that disappeared \
+                since the previous period: Levels: Ridge";
+    assert!(sheet_mentions(&oct, "Changes", said));
+    assert!(sheet_mentions(&oct, "Checks", said));
+    let sep = dir.path().join("out/site-2026-09-summary.xlsx");
+    assert!(!sheet_mentions(&sep, "Checks", "appeared since"));
+}

@@ -213,6 +213,12 @@ fn chain_periods(
         );
         let record =
             Record::from_results(&d.results, info.fingerprint.clone(), Some(d.period.clone()));
+        if let Some(groups) = previous
+            .as_ref()
+            .and_then(|p| history::group_changes(p, &record))
+        {
+            d.results.warnings.push(groups);
+        }
         records.push((d.period.clone(), record.clone()));
         previous = Some(record);
         infos.push(info);

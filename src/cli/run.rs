@@ -113,6 +113,13 @@ fn run(args: &RunArgs) -> Result<Exit, Failure> {
         output::problem(&w);
         results.warnings.push(w);
     }
+    if let Some(groups) = previous.as_ref().and_then(|p| {
+        let now = crate::history::Record::from_results(&results, String::new(), None);
+        crate::history::group_changes(p, &now)
+    }) {
+        output::problem(&format!("note: {groups}"));
+        results.warnings.push(groups);
+    }
     let evaluated = Instant::now();
     let info = run_info(&args.recipe, &text, &recipe, period, previous);
     write::save(&results, &table, &info, &out, args.force)?;

@@ -11,7 +11,7 @@ pub use record::{
     Entry, RECORD_BAND_WIDTH, RECORD_SHEET, Record, RecordError, TERM_BLOCK, fingerprint,
     made_by_sheaf,
 };
-pub use trend::{Move, largest_moves, moves_between, trend_workbook};
+pub use trend::{Move, group_changes, largest_moves, moves_between, trend_workbook};
 
 /// Relative change beyond which a figure is flagged when the recipe sets no
 /// `drift` (sheaf's default; common practice, not from a published source).

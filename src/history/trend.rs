@@ -57,6 +57,46 @@ pub fn moves_between(from: &str, before: &Record, to: &str, after: &Record) -> V
         .collect()
 }
 
+/// The groups of each block in a record, as (block, group).
+fn groups_of(record: &Record) -> std::collections::BTreeSet<(&str, &str)> {
+    record
+        .entries
+        .iter()
+        .filter(|e| e.block != TERM_BLOCK)
+        .map(|e| (e.block.as_str(), e.group.as_str()))
+        .collect()
+}
+
+/// Groups present in one period and not the other: one sentence, or None
+/// when every block has the same groups in both.
+pub fn group_changes(before: &Record, after: &Record) -> Option<String> {
+    let (was, now) = (groups_of(before), groups_of(after));
+    let blocks_now: std::collections::BTreeSet<&str> = now.iter().map(|g| g.0).collect();
+    let blocks_was: std::collections::BTreeSet<&str> = was.iter().map(|g| g.0).collect();
+    let list = |only: &std::collections::BTreeSet<(&str, &str)>,
+                other: &std::collections::BTreeSet<(&str, &str)>,
+                blocks: &std::collections::BTreeSet<&str>| {
+        only.iter()
+            // A block the other period lacks altogether is a recipe change, not a group's.
+            .filter(|g| !other.contains(*g) && blocks.contains(g.0))
+            .map(|(block, group)| format!("{block}: {group}"))
+            .collect::<Vec<_>>()
+    };
+    let appeared = list(&now, &was, &blocks_was);
+    let gone = list(&was, &now, &blocks_now);
+    let said = |label: &str, groups: &[String]| {
+        (!groups.is_empty()).then(|| format!("{label} {}", groups.join(", ")))
+    };
+    let parts: Vec<String> = [
+        said("groups that appeared since the previous period:", &appeared),
+        said("groups that disappeared since the previous period:", &gone),
+    ]
+    .into_iter()
+    .flatten()
+    .collect();
+    (!parts.is_empty()).then(|| parts.join("; "))
+}
+
 /// Moves between consecutive periods, largest relative change first.
 pub fn largest_moves(records: &[(String, Record)]) -> Vec<Move> {
     let mut moves: Vec<Move> = records
@@ -191,4 +231,40 @@ pub fn trend_workbook(
         top = (last + 2).max(top + 16);
     }
     workbook.save_to_buffer()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::group_changes;
+    use crate::history::{Entry, Record};
+
+    fn record(groups: &[(&str, &str)]) -> Record {
+        Record {
+            fingerprint: "f".into(),
+            period: None,
+            entries: groups
+                .iter()
+                .map(|(block, group)| Entry {
+                    block: block.to_string(),
+                    group: group.to_string(),
+                    name: "m".into(),
+                    value: 1.0,
+                })
+                .collect(),
+        }
+    }
+
+    #[test]
+    fn appearing_and_disappearing_groups_are_named() {
+        let before = record(&[("Levels", "North"), ("Levels", "Ridge"), ("Old", "A")]);
+        let after = record(&[("Levels", "North"), ("Levels", "Harbour"), ("New", "B")]);
+        assert_eq!(
+            group_changes(&before, &after).as_deref(),
+            Some(
+                "groups that appeared since the previous period: Levels: Harbour; \
+                 groups that disappeared since the previous period: Levels: Ridge"
+            )
+        );
+        assert_eq!(group_changes(&before, &before), None);
+    }
 }

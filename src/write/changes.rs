@@ -34,6 +34,15 @@ pub fn changes(
         crate::format::shortest(run.drift * 100.0)
     );
     sheet.merge_range(1, 0, 1, 7, &note, &style::note())?;
+    let groups = crate::history::group_changes(previous, current).map_or_else(
+        || "No group appeared or disappeared.".to_string(),
+        |g| {
+            let mut g = g;
+            g[..1].make_ascii_uppercase();
+            format!("{g}.")
+        },
+    );
+    sheet.merge_range(2, 0, 2, 7, &groups, &style::note())?;
     style::table_header(sheet, 3, &labels, 3)?;
     let percent = Format::new().set_num_format("0.0%");
     let mut r = 4;
