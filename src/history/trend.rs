@@ -165,6 +165,42 @@ pub fn write_noise(
     Ok(())
 }
 
+/// One row per (period, block, group, figure): its value and, from the
+/// second period on, its change since the period before and that change in
+/// standard errors where the figure has one. Returns the last row written.
+fn trend_rows(
+    sheet: &mut rust_xlsxwriter::Worksheet,
+    records: &[(String, Record)],
+) -> Result<u32, XlsxError> {
+    let mut r = 0u32;
+    for (i, (period, record)) in records.iter().enumerate() {
+        // Keyed by figure, so each row finds its change without a search.
+        let moves: std::collections::HashMap<(String, String, String), Move> = match i {
+            0 => Default::default(),
+            _ => {
+                let (from, before) = &records[i - 1];
+                moves_between(from, before, period, record)
+                    .into_iter()
+                    .map(|m| ((m.block.clone(), m.group.clone(), m.name.clone()), m))
+                    .collect()
+            }
+        };
+        for e in record.entries.iter().filter(|e| e.block != TERM_BLOCK) {
+            r += 1;
+            sheet.write_string(r, 0, fit(period))?;
+            sheet.write_string(r, 1, fit(&e.block))?;
+            sheet.write_string(r, 2, fit(&e.group))?;
+            sheet.write_string(r, 3, fit(&e.name))?;
+            sheet.write_number(r, 4, e.value)?;
+            if let Some(m) = moves.get(&(e.block.clone(), e.group.clone(), e.name.clone())) {
+                sheet.write_number(r, 5, m.after - m.before)?;
+                write_noise(sheet, r, 6, m)?;
+            }
+        }
+    }
+    Ok(r)
+}
+
 /// The groups of each block in a record, as (block, group).
 fn groups_of(record: &Record) -> std::collections::BTreeSet<(&str, &str)> {
     record
@@ -228,19 +264,21 @@ pub fn trend_workbook(
         };
 
     let sheet = workbook.add_worksheet().set_name(TREND_SHEET)?;
-    header(sheet, &["period", "block", "group", "figure", "value"])?;
-    let mut r = 1u32;
-    for (period, record) in records {
-        for e in record.entries.iter().filter(|e| e.block != TERM_BLOCK) {
-            sheet.write_string(r, 0, fit(period))?;
-            sheet.write_string(r, 1, fit(&e.block))?;
-            sheet.write_string(r, 2, fit(&e.group))?;
-            sheet.write_string(r, 3, fit(&e.name))?;
-            sheet.write_number(r, 4, e.value)?;
-            r += 1;
-        }
-    }
-    sheet.autofilter(0, 0, r.max(1) - 1, 4)?;
+    header(
+        sheet,
+        &[
+            "period",
+            "block",
+            "group",
+            "figure",
+            "value",
+            "change",
+            "SE of change",
+            "change / SE",
+        ],
+    )?;
+    let rows = trend_rows(sheet, records)?;
+    sheet.autofilter(0, 0, rows.max(1), 7)?;
 
     let sheet = workbook.add_worksheet().set_name(MOVES_SHEET)?;
     header(
