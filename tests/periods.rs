@@ -274,3 +274,61 @@ fn a_group_that_appears_or_disappears_is_listed_in_changes_and_checks() {
     let sep = dir.path().join("out/site-2026-09-summary.xlsx");
     assert!(!sheet_mentions(&sep, "Checks", "appeared since"));
 }
+
+#[test]
+fn a_real_drift_is_flagged_and_a_noisy_skewness_is_not() {
+    let dir = tempfile::tempdir().unwrap();
+    // Invented: 200 packing times a month at one depot; October runs 3 minutes
+    // slower (about one sd), and five slow outliers change the skewness.
+    let sep: Vec<f64> = (0..200)
+        .map(|i| 10.0 + ((i * 37) % 100) as f64 / 10.0)
+        .collect();
+    let oct: Vec<f64> = sep
+        .iter()
+        .enumerate()
+        .map(|(i, x)| if i < 5 { x + 12.0 } else { x + 3.0 })
+        .collect();
+    let csv = |xs: &[f64]| {
+        let mut t = String::from("depot,x\n");
+        for x in xs {
+            t.push_str(&format!("North,{x}\n"));
+        }
+        t
+    };
+    std::fs::write(dir.path().join("pack-2026-09.csv"), csv(&sep)).unwrap();
+    std::fs::write(dir.path().join("pack-2026-10.csv"), csv(&oct)).unwrap();
+    std::fs::write(
+        dir.path().join("r.sheaf"),
+        "panel \"Packing\" of x per depot:\ndrift 15%\n",
+    )
+    .unwrap();
+    let run = |data: &str, out: &str, extra: &[&str]| {
+        let mut args = vec!["run", "r.sheaf", "--data", data, "--out", out];
+        args.extend_from_slice(extra);
+        let o = sheaf(&args, dir.path());
+        assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    };
+    run("pack-2026-09.csv", "sep.xlsx", &[]);
+    run("pack-2026-10.csv", "oct.xlsx", &["--compare", "sep.xlsx"]);
+    let changes = cells(&dir.path().join("oct.xlsx"), "Changes");
+    let row = |figure: &str| {
+        changes
+            .iter()
+            .find(|r| r.len() > 7 && r[2].to_string() == figure)
+            .unwrap_or_else(|| panic!("{figure}: {changes:?}"))
+            .clone()
+    };
+    let num = |d: &calamine::Data| match d {
+        calamine::Data::Float(x) => *x,
+        other => panic!("{other:?}"),
+    };
+    let mean = row("x mean");
+    assert_eq!(mean[7].to_string(), "moved");
+    assert!(num(&mean[9]) > 2.0, "{mean:?}");
+    let skew = row("x skewness g1");
+    assert!(
+        num(&skew[6]).abs() > 0.15,
+        "a large relative change: {skew:?}"
+    );
+    assert_eq!(skew[7].to_string(), "", "{skew:?}");
+}

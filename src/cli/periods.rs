@@ -48,16 +48,17 @@ pub fn plan(recipe: &Recipe, files: &[PathBuf]) -> Result<Plan, Failure> {
             Err(e) => refused.push(e),
         }
     }
-    if let Some(fixed) = planned.first().and_then(|p| p.period.as_ref()) {
-        if fixed.source == PeriodSource::Recipe && files.len() > 1 {
-            return Err(Failure::new(format!(
-                "the recipe fixes `period \"{}\"` but --data matches {} files, which would all \
-                 be labelled {0}; remove the `period` line so each file's period comes from \
-                 its name\nnothing was read or written",
-                fixed.label,
-                files.len()
-            )));
-        }
+    if let Some(fixed) = planned.first().and_then(|p| p.period.as_ref())
+        && fixed.source == PeriodSource::Recipe
+        && files.len() > 1
+    {
+        return Err(Failure::new(format!(
+            "the recipe fixes `period \"{}\"` but --data matches {} files, which would all \
+             be labelled {0}; remove the `period` line so each file's period comes from \
+             its name\nnothing was read or written",
+            fixed.label,
+            files.len()
+        )));
     }
     if !refused.is_empty() {
         return Err(Failure::new(format!(

@@ -107,7 +107,9 @@ fn month_named(word: &str) -> Option<u32> {
 fn days_in(year: u32, month: u32) -> u32 {
     match month {
         4 | 6 | 9 | 11 => 30,
-        2 if year % 4 == 0 && (year % 100 != 0 || year % 400 == 0) => 29,
+        2 if year.is_multiple_of(4) && (!year.is_multiple_of(100) || year.is_multiple_of(400)) => {
+            29
+        }
         2 => 28,
         _ => 31,
     }
@@ -146,13 +148,13 @@ impl NameDate {
                 self.month
             ));
         }
-        if let (Some(year), Some(day)) = (self.year, self.day) {
-            if day == 0 || day > days_in(year, self.month) {
-                return Err(format!(
-                    "\"{found}\" reads as day {day} of {year}-{:02}, which does not exist",
-                    self.month
-                ));
-            }
+        if let (Some(year), Some(day)) = (self.year, self.day)
+            && (day == 0 || day > days_in(year, self.month))
+        {
+            return Err(format!(
+                "\"{found}\" reads as day {day} of {year}-{:02}, which does not exist",
+                self.month
+            ));
         }
         Ok(self)
     }
@@ -211,7 +213,7 @@ fn date_at(t: &[Token], i: usize) -> Result<Option<(NameDate, usize)>, String> {
         let date = d(year, month, day);
         // Eight or six digits are only a date when they read as one.
         return Ok(year
-            .and_then(|_| date.checked(&tok.text).ok())
+            .and_then(|_| date.checked(tok.text).ok())
             .map(|date| (date, 1)));
     }
     // 2026-10, 2026_10_31, 2026 Oct
