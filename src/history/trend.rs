@@ -173,6 +173,8 @@ fn trend_rows(
     records: &[(String, Record)],
 ) -> Result<u32, XlsxError> {
     let mut r = 0u32;
+    let mut history: std::collections::HashMap<(String, String, String), Vec<f64>> =
+        Default::default();
     for (i, (period, record)) in records.iter().enumerate() {
         // Keyed by figure, so each row finds its change without a search.
         let moves: std::collections::HashMap<(String, String, String), Move> = match i {
@@ -196,9 +198,39 @@ fn trend_rows(
                 sheet.write_number(r, 5, m.after - m.before)?;
                 write_noise(sheet, r, 6, m)?;
             }
+            let earlier = history
+                .entry((e.block.clone(), e.group.clone(), e.name.clone()))
+                .or_default();
+            if let Some(outside) = outside_band(earlier, e.value) {
+                sheet.write_string(r, 8, outside)?;
+            }
+            earlier.push(e.value);
         }
     }
     Ok(r)
+}
+
+/// Periods before a value needed for its control band.
+pub const BAND_MIN_PERIODS: usize = 3;
+
+/// Whether `value` lies outside the mean of the `earlier` periods' values
+/// +/- 3 of their sample sds (a Shewhart-style band, common practice; no
+/// source for using it on summary figures): "above" or "below" the band,
+/// "inside", or None with fewer than [`BAND_MIN_PERIODS`] earlier periods.
+pub fn outside_band(earlier: &[f64], value: f64) -> Option<&'static str> {
+    if earlier.len() < BAND_MIN_PERIODS {
+        return None;
+    }
+    let n = earlier.len() as f64;
+    let mean = earlier.iter().sum::<f64>() / n;
+    let sd = (earlier.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / (n - 1.0)).sqrt();
+    Some(if value > mean + 3.0 * sd {
+        "above"
+    } else if value < mean - 3.0 * sd {
+        "below"
+    } else {
+        "inside"
+    })
 }
 
 /// The groups of each block in a record, as (block, group).
@@ -275,10 +307,11 @@ pub fn trend_workbook(
             "change",
             "SE of change",
             "change / SE",
+            "control band",
         ],
     )?;
     let rows = trend_rows(sheet, records)?;
-    sheet.autofilter(0, 0, rows.max(1), 7)?;
+    sheet.autofilter(0, 0, rows.max(1), 8)?;
 
     let sheet = workbook.add_worksheet().set_name(MOVES_SHEET)?;
     header(
@@ -371,7 +404,16 @@ pub fn trend_workbook(
 
 #[cfg(test)]
 mod tests {
-    use super::{Move, group_changes, largest_moves, welch_se};
+    use super::{Move, group_changes, largest_moves, outside_band, welch_se};
+
+    /// Earlier values 1, 2, 3: mean 2, sample sd 1, band 2 +/- 3 = [-1, 5].
+    #[test]
+    fn control_band_is_three_sds_of_the_earlier_periods() {
+        assert_eq!(outside_band(&[1.0, 2.0], 100.0), None);
+        assert_eq!(outside_band(&[1.0, 2.0, 3.0], 5.0), Some("inside"));
+        assert_eq!(outside_band(&[1.0, 2.0, 3.0], 5.001), Some("above"));
+        assert_eq!(outside_band(&[1.0, 2.0, 3.0], -1.001), Some("below"));
+    }
     use crate::history::{Entry, Record};
 
     /// Welch's standard error against scipy: `scipy.stats.ttest_ind_from_stats(
