@@ -274,3 +274,115 @@ fn compare_feeds_change_and_refuses_another_recipe() {
         text(&o)
     );
 }
+
+#[test]
+fn lock_files_hidden_files_and_earlier_results_are_left_out_and_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let months = months_in(dir.path());
+    let pattern = format!("{}/*.xlsx", months.display());
+    let dir_arg = months.display().to_string();
+    let first = sheaf(
+        &["run", &recipe(), "--data", &pattern, "--out-dir", &dir_arg],
+        dir.path(),
+    );
+    assert_eq!(first.status.code(), Some(0), "{}", text(&first));
+    // A result under a name that says nothing: recognised by its Record sheet.
+    std::fs::rename(
+        months.join("depot-2026-09-summary.xlsx"),
+        months.join("shared copy.xlsx"),
+    )
+    .unwrap();
+    // What a spreadsheet program leaves beside a file it has open (not a workbook).
+    std::fs::write(months.join("~$depot-2026-10.xlsx"), b"\x05analyst").unwrap();
+    std::fs::copy(
+        months.join("depot-2026-08.xlsx"),
+        months.join(".depot-2026-07.xlsx"),
+    )
+    .unwrap();
+    let o = sheaf(
+        &[
+            "run",
+            &recipe(),
+            "--data",
+            &pattern,
+            "--out-dir",
+            &dir_arg,
+            "--force",
+        ],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let t = text(&o);
+    for (file, why) in [
+        ("~$depot-2026-10.xlsx", "lock file"),
+        (".depot-2026-07.xlsx", "a hidden file"),
+        (
+            "shared copy.xlsx",
+            "a sheaf result workbook (it has a Record sheet)",
+        ),
+        ("depot-2026-08-summary.xlsx", "a sheaf result workbook"),
+        ("trend.xlsx", "a sheaf trend workbook"),
+    ] {
+        assert!(
+            t.lines()
+                .any(|l| l.starts_with("left out") && l.contains(file) && l.contains(why)),
+            "{file}: {t}"
+        );
+    }
+    let trend = cells(&months.join("trend.xlsx"), "Trend");
+    let periods: std::collections::BTreeSet<String> =
+        trend.iter().skip(1).map(|r| r[0].to_string()).collect();
+    assert_eq!(
+        periods.into_iter().collect::<Vec<_>>(),
+        ["2026-08", "2026-09", "2026-10"]
+    );
+}
+
+#[test]
+fn trend_rows_carry_the_change_and_its_noise_scaled_size() {
+    let dir = tempfile::tempdir().unwrap();
+    let months = months_in(dir.path());
+    let pattern = format!("{}/depot-*.xlsx", months.display());
+    let o = sheaf(
+        &["run", &recipe(), "--data", &pattern, "--out-dir", "out"],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let trend = cells(&dir.path().join("out/trend.xlsx"), "Trend");
+    assert_eq!(trend[0][5].to_string(), "change");
+    assert_eq!(trend[0][7].to_string(), "change / SE");
+    let row = |period: &str, figure: &str| {
+        trend
+            .iter()
+            .find(|r| {
+                r[0].to_string() == period
+                    && r[1].to_string() == "Lateness"
+                    && r[2].to_string() == "North"
+                    && r[3].to_string() == figure
+            })
+            .unwrap_or_else(|| panic!("{period} {figure}"))
+            .clone()
+    };
+    let num = |d: &Data| match d {
+        Data::Float(x) => *x,
+        other => panic!("{other:?}"),
+    };
+    let value = |p: &str, f: &str| num(&row(p, f)[4]);
+    // The first period has nothing to change from.
+    assert!(matches!(row("2026-08", "late_h mean")[5], Data::Empty));
+    let (sep, oct) = ("2026-09", "2026-10");
+    let change = value(oct, "late_h mean") - value(sep, "late_h mean");
+    let r = row(oct, "late_h mean");
+    assert!((num(&r[5]) - change).abs() < 1e-12);
+    // Welch (1947): sqrt(sd1^2/n1 + sd2^2/n2) from the same rows' sd and n.
+    let se = (value(sep, "late_h sd").powi(2) / value(sep, "late_h n")
+        + value(oct, "late_h sd").powi(2) / value(oct, "late_h n"))
+    .sqrt();
+    assert!((num(&r[6]) - se).abs() < 1e-12);
+    assert!((num(&r[7]) - change / se).abs() < 1e-9);
+    // A median has no standard error yet, and says so.
+    assert_eq!(
+        row(oct, "late_h median")[6].to_string(),
+        "no standard error"
+    );
+}

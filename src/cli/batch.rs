@@ -15,7 +15,7 @@ use super::args::RunArgs;
 use super::run::{Timings, checks_failed, describe};
 use super::{
     Exit, Failure, check_headers, checked_recipe, default_out, load_options, output, paths,
-    read_recipe, recipe_warnings, run_info, summary,
+    periods, read_recipe, recipe_warnings, run_info, summary,
 };
 use crate::eval::{self, Results};
 use crate::history::{self, Record};
@@ -32,6 +32,7 @@ pub fn is_pattern(data: &str) -> bool {
 struct Done {
     path: PathBuf,
     period: String,
+    period_found: Option<history::Period>,
     table: Table,
     results: Results,
     timings: Timings,
@@ -40,6 +41,21 @@ struct Done {
 /// A file that could not be summarised, and why.
 type Skipped = (PathBuf, String);
 
+/// Why a file a pattern matched is not data: a spreadsheet program's lock
+/// file, a hidden file, or something sheaf wrote (recognised by its sheets).
+fn not_data(path: &Path) -> Option<String> {
+    let name = path.file_name()?.to_string_lossy();
+    if name.starts_with("~$") || name.starts_with(".~lock.") {
+        return Some("a spreadsheet program's lock file".into());
+    }
+    if name.starts_with('.') {
+        return Some("a hidden file".into());
+    }
+    history::made_by_sheaf(path).map(str::to_string)
+}
+
+/// The data files a pattern matches, by name; the ones left out are said,
+/// with why, on the terminal.
 fn matching_files(pattern: &str) -> Result<Vec<PathBuf>, Failure> {
     if !is_pattern(pattern) {
         let path = Path::new(pattern);
@@ -52,8 +68,26 @@ fn matching_files(pattern: &str) -> Result<Vec<PathBuf>, Failure> {
         .filter(|p| !p.is_dir())
         .collect();
     found.sort();
+    let mut left_out = Vec::new();
+    found.retain(|p| match not_data(p) {
+        Some(why) => {
+            left_out.push(format!("left out {}: {why}", p.display()));
+            false
+        }
+        None => true,
+    });
+    for line in &left_out {
+        output::problem(line);
+    }
     if found.is_empty() {
-        return Err(Failure::new(format!("--data '{pattern}' matches no file")));
+        return Err(Failure::new(format!(
+            "--data '{pattern}' matches no data file{}",
+            if left_out.is_empty() {
+                ""
+            } else {
+                " (every match was left out, see above)"
+            }
+        )));
     }
     Ok(found)
 }
@@ -81,8 +115,9 @@ fn load_and_evaluate(
     recipe_path: &Path,
     text: &str,
     recipe: &Recipe,
-    path: &Path,
+    planned: &periods::Planned,
 ) -> Result<Done, String> {
+    let path = planned.path.as_path();
     let started = Instant::now();
     let table = load::load_for(path, &load_options(recipe), &super::wanted(recipe, text))
         .map_err(|e| e.to_string())?;
@@ -91,18 +126,10 @@ fn load_and_evaluate(
     let mut results =
         eval::evaluate(recipe, &table).map_err(|e| format!("{}: {e}", path.display()))?;
     results.warnings.extend(recipe_warnings(recipe_path, text));
-    let period = history::period_of(recipe, path).map_or_else(
-        || {
-            path.file_stem()
-                .unwrap_or_default()
-                .to_string_lossy()
-                .into_owned()
-        },
-        |p| p.label,
-    );
     Ok(Done {
         path: path.to_path_buf(),
-        period,
+        period: planned.label.clone(),
+        period_found: planned.period.clone(),
         table,
         results,
         timings: Timings {
@@ -125,21 +152,21 @@ fn progress_bar(len: usize) -> ProgressBar {
     bar
 }
 
-/// Reads and evaluates every file in parallel; the read ones in period order.
+/// Reads and evaluates every file in parallel; the read ones in the plan's order.
 fn evaluate_all(
     recipe_path: &Path,
     text: &str,
     recipe: &Recipe,
-    files: &[PathBuf],
+    files: &[periods::Planned],
 ) -> (Vec<Done>, Vec<Skipped>) {
     let bar = progress_bar(files.len());
     let outcomes: Vec<Result<Done, Skipped>> = files
         .par_iter()
-        .map(|path| {
-            let result = load_and_evaluate(recipe_path, text, recipe, path);
+        .map(|planned| {
+            let result = load_and_evaluate(recipe_path, text, recipe, planned);
             bar.inc(1);
-            bar.set_message(path.display().to_string());
-            result.map_err(|e| (path.clone(), e))
+            bar.set_message(planned.path.display().to_string());
+            result.map_err(|e| (planned.path.clone(), e))
         })
         .collect();
     bar.finish_and_clear();
@@ -150,7 +177,6 @@ fn evaluate_all(
             Err(e) => skipped.push(e),
         }
     }
-    done.sort_by(|a, b| (&a.period, &a.path).cmp(&(&b.period, &b.path)));
     (done, skipped)
 }
 
@@ -178,9 +204,21 @@ fn chain_periods(
             }
             d.timings.evaluate += started.elapsed();
         }
-        let info = run_info(recipe_path, text, recipe, &d.path, previous.clone());
+        let info = run_info(
+            recipe_path,
+            text,
+            recipe,
+            d.period_found.clone(),
+            previous.clone(),
+        );
         let record =
             Record::from_results(&d.results, info.fingerprint.clone(), Some(d.period.clone()));
+        if let Some(groups) = previous
+            .as_ref()
+            .and_then(|p| history::group_changes(p, &record))
+        {
+            d.results.warnings.push(groups);
+        }
         records.push((d.period.clone(), record.clone()));
         previous = Some(record);
         infos.push(info);
@@ -199,6 +237,7 @@ pub fn run(args: &RunArgs) -> Result<Exit, Failure> {
     let text = read_recipe(&args.recipe)?;
     let recipe = checked_recipe(&args.recipe, &text, None)?;
     let files = matching_files(pattern)?;
+    let plan = periods::plan(&recipe, &files)?;
     std::fs::create_dir_all(&out_dir).map_err(|e| {
         Failure::new(format!(
             "{}: cannot create the folder: {e}",
@@ -206,13 +245,27 @@ pub fn run(args: &RunArgs) -> Result<Exit, Failure> {
         ))
     })?;
     check_outputs(&out_dir, &files, args.force)?;
+    if let Some(note) = &plan.ordering_note {
+        output::problem(note);
+    }
     let compare = match &args.compare {
         Some(path) => Some(Record::read(path, &recipe)?),
         None => None,
     };
 
-    let (mut done, mut skipped) = evaluate_all(&args.recipe, &text, &recipe, &files);
+    let (mut done, mut skipped) = evaluate_all(&args.recipe, &text, &recipe, &plan.files);
+    let order_warning = compare.as_ref().and_then(|previous| {
+        history::compare_order_warning(
+            args.compare.as_deref()?,
+            previous.period.as_deref(),
+            Some(done.first()?.period.as_str()),
+        )
+    });
     let (infos, records) = chain_periods(&args.recipe, &text, &recipe, &mut done, compare);
+    if let (Some(w), Some(first)) = (order_warning, done.first_mut()) {
+        output::problem(&w);
+        first.results.warnings.push(w);
+    }
     let written = write_all(&mut done, &infos, &out_dir, args.force);
     // Every file is written before anything is printed, so a reader that
     // stops early (`| head -1`) never stops the work.

@@ -9,6 +9,7 @@ mod look;
 mod manual;
 mod output;
 mod paths;
+mod periods;
 mod run;
 mod summary;
 
@@ -336,7 +337,7 @@ fn run_info(
     recipe_path: &Path,
     text: &str,
     recipe: &recipe::Recipe,
-    data: &Path,
+    period: Option<crate::history::Period>,
     previous: Option<crate::history::Record>,
 ) -> RunInfo {
     RunInfo {
@@ -345,7 +346,7 @@ fn run_info(
         run_time: now(),
         version: env!("CARGO_PKG_VERSION").into(),
         fingerprint: crate::history::fingerprint(recipe),
-        period: crate::history::period_of(recipe, data),
+        period,
         previous,
         drift: crate::history::drift_of(recipe),
     }

@@ -90,6 +90,7 @@ fn run(args: &RunArgs) -> Result<Exit, Failure> {
     let text = read_recipe(&args.recipe)?;
     let (recipe, table) = load_for(&args.recipe, &text, data)?;
     let loaded = Instant::now();
+    let period = crate::history::period_of(&recipe, data).map_err(Failure::new)?;
     let previous = match &args.compare {
         Some(path) => Some(crate::history::Record::read(path, &recipe)?),
         None => None,
@@ -102,8 +103,25 @@ fn run(args: &RunArgs) -> Result<Exit, Failure> {
     results
         .warnings
         .extend(recipe_warnings(&args.recipe, &text));
+    if let Some(w) = previous.as_ref().and_then(|p| {
+        crate::history::compare_order_warning(
+            args.compare.as_deref()?,
+            p.period.as_deref(),
+            period.as_ref().map(|q| q.label.as_str()),
+        )
+    }) {
+        output::problem(&w);
+        results.warnings.push(w);
+    }
+    if let Some(groups) = previous.as_ref().and_then(|p| {
+        let now = crate::history::Record::from_results(&results, String::new(), None);
+        crate::history::group_changes(p, &now)
+    }) {
+        output::problem(&format!("note: {groups}"));
+        results.warnings.push(groups);
+    }
     let evaluated = Instant::now();
-    let info = run_info(&args.recipe, &text, &recipe, data, previous);
+    let info = run_info(&args.recipe, &text, &recipe, period, previous);
     write::save(&results, &table, &info, &out, args.force)?;
     if args.timings {
         let timings = Timings {

@@ -6,11 +6,15 @@ mod period;
 mod record;
 mod trend;
 
-pub use period::{Period, PeriodSource, period_of};
+pub use period::{Period, PeriodSource, compare_order_warning, order_key, period_of};
 pub use record::{
     Entry, RECORD_BAND_WIDTH, RECORD_SHEET, Record, RecordError, TERM_BLOCK, fingerprint,
+    made_by_sheaf,
 };
-pub use trend::{Move, largest_moves, moves_between, trend_workbook};
+pub use trend::{
+    Move, NOISE_SES, group_changes, largest_moves, moves_between, trend_workbook, welch_se,
+    write_noise,
+};
 
 /// Relative change beyond which a figure is flagged when the recipe sets no
 /// `drift` (sheaf's default; common practice, not from a published source).

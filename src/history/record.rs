@@ -216,3 +216,20 @@ impl Record {
         })
     }
 }
+
+/// What sheaf wrote, recognised by its sheets rather than its name: a
+/// result (it has a Record sheet) or a trend workbook (its Trend and
+/// Largest moves sheets). None for anything else, or a file that cannot be
+/// opened as a workbook (the loader then says why).
+pub fn made_by_sheaf(path: &Path) -> Option<&'static str> {
+    let workbook = open_workbook_auto(path).ok()?;
+    let names = workbook.sheet_names();
+    let has = |sheet: &str| names.iter().any(|n| n == sheet);
+    if has(RECORD_SHEET) {
+        Some("a sheaf result workbook (it has a Record sheet)")
+    } else if has(super::trend::TREND_SHEET) && has(super::trend::MOVES_SHEET) {
+        Some("a sheaf trend workbook (it has Trend and Largest moves sheets)")
+    } else {
+        None
+    }
+}

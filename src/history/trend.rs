@@ -5,8 +5,17 @@ use std::collections::BTreeMap;
 
 use rust_xlsxwriter::{Chart, ChartType, Format, Workbook, XlsxError};
 
-use super::record::{Record, TERM_BLOCK};
+use super::record::{Entry, Record, TERM_BLOCK};
 use crate::write::style::fit;
+
+/// The sheets that mark a trend workbook, so a later batch leaves it out.
+pub const TREND_SHEET: &str = "Trend";
+pub const MOVES_SHEET: &str = "Largest moves";
+
+/// How many standard errors of the difference a change must exceed, beside
+/// the drift, to be flagged "moved" (two standard errors: common practice,
+/// about a 5% two-sided level under normality; not yet settable in the recipe).
+pub const NOISE_SES: f64 = 2.0;
 
 /// A figure's change between two consecutive periods.
 #[derive(Debug, Clone, PartialEq)]
@@ -18,7 +27,28 @@ pub struct Move {
     pub to: String,
     pub before: f64,
     pub after: f64,
+    /// The standard error of `after - before`, for figures that have one.
+    pub se: Option<f64>,
 }
+
+/// Panel figures whose size is not a level that drifts: shape figures and
+/// the extremes, which one row can move. They are never flagged "moved"
+/// (sheaf's rule: the Robustness sheet judges shape against its own noise,
+/// and a minimum or maximum is a single row, not a level); their change is
+/// still listed.
+const NOT_FLAGGED: &[&str] = &[
+    "skewness g1",
+    "Bowley skewness",
+    "kurtosis b2",
+    "min",
+    "max",
+    "range",
+    "low outliers",
+    "high outliers",
+    "missing",
+    "modes",
+    "mode basis",
+];
 
 impl Move {
     /// The change relative to the size of the value before; None when that was 0.
@@ -26,10 +56,52 @@ impl Move {
         (self.before != 0.0).then(|| (self.after - self.before) / self.before.abs())
     }
 
-    /// Whether the relative change exceeds `drift` (a change from 0 never does).
-    pub fn moved(&self, drift: f64) -> bool {
-        self.relative().is_some_and(|r| r.abs() > drift)
+    /// The change in units of its standard error; None without one.
+    pub fn noise_scaled(&self) -> Option<f64> {
+        self.se
+            .filter(|se| *se > 0.0)
+            .map(|se| (self.after - self.before) / se)
     }
+
+    /// Whether the change exceeds `drift` (relative; a change from 0 never
+    /// does) and, for a figure with a standard error, also [`NOISE_SES`]
+    /// standard errors of the difference. Shape figures and extremes are
+    /// never flagged (see `NOT_FLAGGED`).
+    pub fn moved(&self, drift: f64) -> bool {
+        let panel_figure = NOT_FLAGGED
+            .iter()
+            .any(|f| self.name.ends_with(&format!(" {f}")));
+        if panel_figure && self.se.is_none() {
+            return false;
+        }
+        let beyond_drift = self.relative().is_some_and(|r| r.abs() > drift);
+        match self.se {
+            Some(_) => beyond_drift && self.noise_scaled().is_some_and(|z| z.abs() > NOISE_SES),
+            None => beyond_drift,
+        }
+    }
+}
+
+/// The standard error of the difference of two independent means, from
+/// each period's sd and n: sqrt(s1^2/n1 + s2^2/n2) (Welch 1947, "The
+/// generalization of Student's problem when several different population
+/// variances are involved", Biometrika 34; the denominator of Welch's t).
+pub fn welch_se(sd_before: f64, n_before: f64, sd_after: f64, n_after: f64) -> Option<f64> {
+    (n_before >= 2.0 && n_after >= 2.0 && sd_before.is_finite() && sd_after.is_finite())
+        .then(|| (sd_before.powi(2) / n_before + sd_after.powi(2) / n_after).sqrt())
+}
+
+/// The standard error of a change of a panel column's mean, from the sd and
+/// n both Records hold beside it; None for every other figure.
+fn se_of(before: &Record, after: &Record, e: &Entry) -> Option<f64> {
+    let column = e.name.strip_suffix(" mean")?;
+    let of = |r: &Record, label: &str| r.find(&e.block, &e.group, &format!("{column} {label}"));
+    welch_se(
+        of(before, "sd")?,
+        of(before, "n")?,
+        of(after, "sd")?,
+        of(after, "n")?,
+    )
 }
 
 /// Every figure of `after` that `before` also holds, in `after`'s order:
@@ -48,22 +120,157 @@ pub fn moves_between(from: &str, before: &Record, to: &str, after: &Record) -> V
                 to: to.to_string(),
                 before: b,
                 after: e.value,
+                se: se_of(before, after, e),
             })
         })
         .collect()
 }
 
-/// Moves between consecutive periods, largest relative change first.
+/// Moves between consecutive periods: those with a standard error first,
+/// by the size of the noise-scaled change; then the others by the size of
+/// the relative change.
 pub fn largest_moves(records: &[(String, Record)]) -> Vec<Move> {
     let mut moves: Vec<Move> = records
         .windows(2)
         .flat_map(|pair| moves_between(&pair[0].0, &pair[0].1, &pair[1].0, &pair[1].1))
         .collect();
+    let key = |m: &Move| match m.noise_scaled() {
+        Some(z) => (1, z.abs()),
+        None => (0, m.relative().map_or(-1.0, f64::abs)),
+    };
     moves.sort_by(|a, b| {
-        let size = |m: &Move| m.relative().map_or(-1.0, f64::abs);
-        size(b).total_cmp(&size(a))
+        let (ka, kb) = (key(a), key(b));
+        kb.0.cmp(&ka.0).then(kb.1.total_cmp(&ka.1))
     });
     moves
+}
+
+/// A move's standard error and noise-scaled change in columns `col` and
+/// `col + 1`, or why there is none.
+pub fn write_noise(
+    sheet: &mut rust_xlsxwriter::Worksheet,
+    r: u32,
+    col: u16,
+    m: &Move,
+) -> Result<(), XlsxError> {
+    match (m.se, m.noise_scaled()) {
+        (Some(se), Some(z)) => {
+            sheet.write_number(r, col, se)?;
+            sheet.write_number_with_format(r, col + 1, z, &Format::new().set_num_format("0.00"))?;
+        }
+        _ => {
+            sheet.write_string(r, col, "no standard error")?;
+        }
+    }
+    Ok(())
+}
+
+/// One row per (period, block, group, figure): its value and, from the
+/// second period on, its change since the period before and that change in
+/// standard errors where the figure has one. Returns the last row written.
+fn trend_rows(
+    sheet: &mut rust_xlsxwriter::Worksheet,
+    records: &[(String, Record)],
+) -> Result<u32, XlsxError> {
+    let mut r = 0u32;
+    let mut history: std::collections::HashMap<(String, String, String), Vec<f64>> =
+        Default::default();
+    for (i, (period, record)) in records.iter().enumerate() {
+        // Keyed by figure, so each row finds its change without a search.
+        let moves: std::collections::HashMap<(String, String, String), Move> = match i {
+            0 => Default::default(),
+            _ => {
+                let (from, before) = &records[i - 1];
+                moves_between(from, before, period, record)
+                    .into_iter()
+                    .map(|m| ((m.block.clone(), m.group.clone(), m.name.clone()), m))
+                    .collect()
+            }
+        };
+        for e in record.entries.iter().filter(|e| e.block != TERM_BLOCK) {
+            r += 1;
+            sheet.write_string(r, 0, fit(period))?;
+            sheet.write_string(r, 1, fit(&e.block))?;
+            sheet.write_string(r, 2, fit(&e.group))?;
+            sheet.write_string(r, 3, fit(&e.name))?;
+            sheet.write_number(r, 4, e.value)?;
+            if let Some(m) = moves.get(&(e.block.clone(), e.group.clone(), e.name.clone())) {
+                sheet.write_number(r, 5, m.after - m.before)?;
+                write_noise(sheet, r, 6, m)?;
+            }
+            let earlier = history
+                .entry((e.block.clone(), e.group.clone(), e.name.clone()))
+                .or_default();
+            if let Some(outside) = outside_band(earlier, e.value) {
+                sheet.write_string(r, 8, outside)?;
+            }
+            earlier.push(e.value);
+        }
+    }
+    Ok(r)
+}
+
+/// Periods before a value needed for its control band.
+pub const BAND_MIN_PERIODS: usize = 3;
+
+/// Whether `value` lies outside the mean of the `earlier` periods' values
+/// +/- 3 of their sample sds (a Shewhart-style band, common practice; no
+/// source for using it on summary figures): "above" or "below" the band,
+/// "inside", or None with fewer than [`BAND_MIN_PERIODS`] earlier periods.
+pub fn outside_band(earlier: &[f64], value: f64) -> Option<&'static str> {
+    if earlier.len() < BAND_MIN_PERIODS {
+        return None;
+    }
+    let n = earlier.len() as f64;
+    let mean = earlier.iter().sum::<f64>() / n;
+    let sd = (earlier.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / (n - 1.0)).sqrt();
+    Some(if value > mean + 3.0 * sd {
+        "above"
+    } else if value < mean - 3.0 * sd {
+        "below"
+    } else {
+        "inside"
+    })
+}
+
+/// The groups of each block in a record, as (block, group).
+fn groups_of(record: &Record) -> std::collections::BTreeSet<(&str, &str)> {
+    record
+        .entries
+        .iter()
+        .filter(|e| e.block != TERM_BLOCK)
+        .map(|e| (e.block.as_str(), e.group.as_str()))
+        .collect()
+}
+
+/// Groups present in one period and not the other: one sentence, or None
+/// when every block has the same groups in both.
+pub fn group_changes(before: &Record, after: &Record) -> Option<String> {
+    let (was, now) = (groups_of(before), groups_of(after));
+    let blocks_now: std::collections::BTreeSet<&str> = now.iter().map(|g| g.0).collect();
+    let blocks_was: std::collections::BTreeSet<&str> = was.iter().map(|g| g.0).collect();
+    let list = |only: &std::collections::BTreeSet<(&str, &str)>,
+                other: &std::collections::BTreeSet<(&str, &str)>,
+                blocks: &std::collections::BTreeSet<&str>| {
+        only.iter()
+            // A block the other period lacks altogether is a recipe change, not a group's.
+            .filter(|g| !other.contains(*g) && blocks.contains(g.0))
+            .map(|(block, group)| format!("{block}: {group}"))
+            .collect::<Vec<_>>()
+    };
+    let appeared = list(&now, &was, &blocks_was);
+    let gone = list(&was, &now, &blocks_now);
+    let said = |label: &str, groups: &[String]| {
+        (!groups.is_empty()).then(|| format!("{label} {}", groups.join(", ")))
+    };
+    let parts: Vec<String> = [
+        said("groups that appeared since the previous period:", &appeared),
+        said("groups that disappeared since the previous period:", &gone),
+    ]
+    .into_iter()
+    .flatten()
+    .collect();
+    (!parts.is_empty()).then(|| parts.join("; "))
 }
 
 /// Figures drawn over time: each panel column's mean and median, and every
@@ -88,22 +295,25 @@ pub fn trend_workbook(
             Ok(())
         };
 
-    let sheet = workbook.add_worksheet().set_name("Trend")?;
-    header(sheet, &["period", "block", "group", "figure", "value"])?;
-    let mut r = 1u32;
-    for (period, record) in records {
-        for e in record.entries.iter().filter(|e| e.block != TERM_BLOCK) {
-            sheet.write_string(r, 0, fit(period))?;
-            sheet.write_string(r, 1, fit(&e.block))?;
-            sheet.write_string(r, 2, fit(&e.group))?;
-            sheet.write_string(r, 3, fit(&e.name))?;
-            sheet.write_number(r, 4, e.value)?;
-            r += 1;
-        }
-    }
-    sheet.autofilter(0, 0, r.max(1) - 1, 4)?;
+    let sheet = workbook.add_worksheet().set_name(TREND_SHEET)?;
+    header(
+        sheet,
+        &[
+            "period",
+            "block",
+            "group",
+            "figure",
+            "value",
+            "change",
+            "SE of change",
+            "change / SE",
+            "control band",
+        ],
+    )?;
+    let rows = trend_rows(sheet, records)?;
+    sheet.autofilter(0, 0, rows.max(1), 8)?;
 
-    let sheet = workbook.add_worksheet().set_name("Largest moves")?;
+    let sheet = workbook.add_worksheet().set_name(MOVES_SHEET)?;
     header(
         sheet,
         &[
@@ -116,6 +326,8 @@ pub fn trend_workbook(
             "after",
             "change",
             "relative change",
+            "SE of change",
+            "change / SE",
         ],
     )?;
     let moves = largest_moves(records);
@@ -136,8 +348,9 @@ pub fn trend_workbook(
             }
             None => sheet.write_string(r, 8, "before was 0")?,
         };
+        write_noise(sheet, r, 9, m)?;
     }
-    sheet.autofilter(0, 0, moves.len().clamp(1, 200) as u32, 8)?;
+    sheet.autofilter(0, 0, moves.len().clamp(1, 200) as u32, 10)?;
 
     // One chart per (block, figure): periods down, groups across.
     let sheet_name = "Trend charts";
@@ -187,4 +400,124 @@ pub fn trend_workbook(
         top = (last + 2).max(top + 16);
     }
     workbook.save_to_buffer()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{Move, group_changes, largest_moves, outside_band, welch_se};
+
+    /// Earlier values 1, 2, 3: mean 2, sample sd 1, band 2 +/- 3 = [-1, 5].
+    #[test]
+    fn control_band_is_three_sds_of_the_earlier_periods() {
+        assert_eq!(outside_band(&[1.0, 2.0], 100.0), None);
+        assert_eq!(outside_band(&[1.0, 2.0, 3.0], 5.0), Some("inside"));
+        assert_eq!(outside_band(&[1.0, 2.0, 3.0], 5.001), Some("above"));
+        assert_eq!(outside_band(&[1.0, 2.0, 3.0], -1.001), Some("below"));
+    }
+    use crate::history::{Entry, Record};
+
+    /// Welch's standard error against scipy: `scipy.stats.ttest_ind_from_stats(
+    /// 2.5, 1.2, 40, 2.9, 1.5, 35, equal_var=False).statistic` is
+    /// -1.263107911241789 (scipy 1.17.1, numpy 2.4.6, the versions pinned in
+    /// tests/reference/requirements.txt; run by hand, typed here).
+    #[test]
+    fn welch_standard_error_matches_scipy() {
+        let se = welch_se(1.2, 40.0, 1.5, 35.0).unwrap();
+        let t = (2.5 - 2.9) / se;
+        assert!((t - -1.263107911241789).abs() < 1e-14, "{t}");
+        assert_eq!(welch_se(1.2, 1.0, 1.5, 35.0), None, "n of 1 has no sd");
+    }
+
+    fn period(label: &str, entries: &[(&str, f64)]) -> (String, Record) {
+        let record = Record {
+            fingerprint: "f".into(),
+            period: Some(label.into()),
+            entries: entries
+                .iter()
+                .map(|(name, value)| Entry {
+                    block: "Lateness".into(),
+                    group: "North".into(),
+                    name: name.to_string(),
+                    value: *value,
+                })
+                .collect(),
+        };
+        (label.into(), record)
+    }
+
+    /// A mean that drifts by one sd over 200 rows each month is far beyond
+    /// two standard errors; a skewness near zero changing sign is a huge
+    /// relative change but not a level; a mean over 5 rows moving 20% is
+    /// within its noise.
+    #[test]
+    fn real_drift_is_flagged_and_noise_is_not() {
+        let months = [
+            period(
+                "2026-09",
+                &[
+                    ("late_h mean", 1.0),
+                    ("late_h sd", 0.3),
+                    ("late_h n", 200.0),
+                    ("late_h skewness g1", 0.02),
+                    ("few mean", 1.0),
+                    ("few sd", 1.0),
+                    ("few n", 5.0),
+                ],
+            ),
+            period(
+                "2026-10",
+                &[
+                    ("late_h mean", 1.3),
+                    ("late_h sd", 0.3),
+                    ("late_h n", 200.0),
+                    ("late_h skewness g1", -0.3),
+                    ("few mean", 1.2),
+                    ("few sd", 1.0),
+                    ("few n", 5.0),
+                ],
+            ),
+        ];
+        let moves = largest_moves(&months);
+        let find = |name: &str| moves.iter().find(|m| m.name == name).unwrap();
+        let drift = 0.15;
+        let mean = find("late_h mean");
+        // 0.3 / sqrt(0.09/200 * 2) = 0.3 / 0.03 = 10 standard errors.
+        assert!((mean.noise_scaled().unwrap() - 10.0).abs() < 1e-9);
+        assert!(mean.moved(drift));
+        assert!(!find("late_h skewness g1").moved(drift));
+        let few: &Move = find("few mean");
+        assert!(few.relative().unwrap() > drift && !few.moved(drift));
+        // Ranked by the noise-scaled change, the real drift comes first.
+        assert_eq!(moves[0].name, "late_h mean");
+    }
+
+    fn record(groups: &[(&str, &str)]) -> Record {
+        Record {
+            fingerprint: "f".into(),
+            period: None,
+            entries: groups
+                .iter()
+                .map(|(block, group)| Entry {
+                    block: block.to_string(),
+                    group: group.to_string(),
+                    name: "m".into(),
+                    value: 1.0,
+                })
+                .collect(),
+        }
+    }
+
+    #[test]
+    fn appearing_and_disappearing_groups_are_named() {
+        let before = record(&[("Levels", "North"), ("Levels", "Ridge"), ("Old", "A")]);
+        let after = record(&[("Levels", "North"), ("Levels", "Harbour"), ("New", "B")]);
+        assert_eq!(
+            group_changes(&before, &after).as_deref(),
+            Some(
+                "groups that appeared since the previous period: Levels: Harbour; \
+                 groups that disappeared since the previous period: Levels: Ridge"
+            )
+        );
+        assert_eq!(group_changes(&before, &before), None);
+    }
 }

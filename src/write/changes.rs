@@ -24,16 +24,28 @@ pub fn changes(
         "change",
         "relative change",
         "flag",
+        "SE of change",
+        "change / SE",
     ]
     .map(String::from)
     .to_vec();
     sheet.write_string_with_format(0, 0, "Changes", &style::title())?;
     let note = format!(
-        "Each figure against period {}. Flagged when the relative change exceeds {}% (the recipe's drift, or sheaf's default of 10%).",
+        "Each figure against period {}. Flagged when the relative change exceeds {}% (the recipe's drift, or sheaf's default of 10%) and, for a figure with a standard error (a panel column's mean: Welch's, from each period's sd and n), also {} standard errors of the change. Shape figures, minimums, maximums and outlier counts are never flagged; their change is listed.",
         previous.period.as_deref().unwrap_or("(unknown)"),
-        crate::format::shortest(run.drift * 100.0)
+        crate::format::shortest(run.drift * 100.0),
+        crate::history::NOISE_SES
     );
-    sheet.merge_range(1, 0, 1, 7, &note, &style::note())?;
+    sheet.merge_range(1, 0, 1, 9, &note, &style::note())?;
+    let groups = crate::history::group_changes(previous, current).map_or_else(
+        || "No group appeared or disappeared.".to_string(),
+        |g| {
+            let mut g = g;
+            g[..1].make_ascii_uppercase();
+            format!("{g}.")
+        },
+    );
+    sheet.merge_range(2, 0, 2, 9, &groups, &style::note())?;
     style::table_header(sheet, 3, &labels, 3)?;
     let percent = Format::new().set_num_format("0.0%");
     let mut r = 4;
@@ -57,6 +69,7 @@ pub fn changes(
                 sheet.write_string_with_format(r, 6, "previous was 0", &style::reason())?;
             }
         }
+        crate::history::write_noise(sheet, r, 8, &m)?;
         r += 1;
     }
     style::filter(sheet, 3, r - 1, labels.len())

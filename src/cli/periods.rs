@@ -1,0 +1,122 @@
+//! The periods of a batch's files, settled before any file is read: each
+//! from its name, in time order; a fixed `period` in the recipe, a date that
+//! cannot exist or two files of one period stop the batch with a message
+//! naming the files. When a name holds no date the files are ordered by
+//! name, and the batch says so.
+
+use std::path::{Path, PathBuf};
+
+use super::Failure;
+use crate::history::{self, Period, PeriodSource};
+use crate::recipe::Recipe;
+
+/// One file of a batch and the period it covers.
+pub struct Planned {
+    pub path: PathBuf,
+    /// None when the name holds no date; `label` is then the file's stem.
+    pub period: Option<Period>,
+    pub label: String,
+}
+
+/// The files in the order they are compared, and a note when that order is
+/// not the order of their periods.
+pub struct Plan {
+    pub files: Vec<Planned>,
+    pub ordering_note: Option<String>,
+}
+
+fn stem(path: &Path) -> String {
+    path.file_stem()
+        .unwrap_or_default()
+        .to_string_lossy()
+        .into_owned()
+}
+
+/// Settles every file's period; `Err` says what to do and that nothing was read.
+pub fn plan(recipe: &Recipe, files: &[PathBuf]) -> Result<Plan, Failure> {
+    let mut planned = Vec::new();
+    let mut refused = Vec::new();
+    for path in files {
+        match history::period_of(recipe, path) {
+            Ok(period) => planned.push(Planned {
+                path: path.clone(),
+                label: period
+                    .as_ref()
+                    .map_or_else(|| stem(path), |p| p.label.clone()),
+                period,
+            }),
+            Err(e) => refused.push(e),
+        }
+    }
+    if let Some(fixed) = planned.first().and_then(|p| p.period.as_ref())
+        && fixed.source == PeriodSource::Recipe
+        && files.len() > 1
+    {
+        return Err(Failure::new(format!(
+            "the recipe fixes `period \"{}\"` but --data matches {} files, which would all \
+             be labelled {0}; remove the `period` line so each file's period comes from \
+             its name\nnothing was read or written",
+            fixed.label,
+            files.len()
+        )));
+    }
+    if !refused.is_empty() {
+        return Err(Failure::new(format!(
+            "{}\nnothing was read or written",
+            refused.join("\n")
+        )));
+    }
+    let undated: Vec<String> = planned
+        .iter()
+        .filter(|p| p.period.is_none())
+        .map(|p| p.path.display().to_string())
+        .collect();
+    if undated.is_empty() {
+        planned.sort_by_key(|p| (history::order_key(&p.label), p.path.clone()));
+        refuse_shared_periods(&planned)?;
+        return Ok(Plan {
+            files: planned,
+            ordering_note: None,
+        });
+    }
+    planned.sort_by(|a, b| a.path.cmp(&b.path));
+    let note = (planned.len() > 1).then(|| {
+        format!(
+            "warning: no date found in the name of {}; the files were ordered by file name \
+             and each compared with the one before: {}",
+            undated.join(", "),
+            planned
+                .iter()
+                .map(|p| p.path.display().to_string())
+                .collect::<Vec<_>>()
+                .join(" -> ")
+        )
+    });
+    Ok(Plan {
+        files: planned,
+        ordering_note: note,
+    })
+}
+
+/// Two files of one period would be compared with each other as if a month apart.
+fn refuse_shared_periods(sorted: &[Planned]) -> Result<(), Failure> {
+    let shared: Vec<String> = sorted
+        .windows(2)
+        .filter(|w| w[0].label == w[1].label)
+        .map(|w| {
+            format!(
+                "{} and {} are both of period {}",
+                w[0].path.display(),
+                w[1].path.display(),
+                w[0].label
+            )
+        })
+        .collect();
+    if shared.is_empty() {
+        return Ok(());
+    }
+    Err(Failure::new(format!(
+        "{}; keep one file per period in the pattern (or rename one)\nnothing was read or written",
+        shared.join("\n")
+    )))
+}
