@@ -74,7 +74,7 @@ pub fn run_path(bytes: &[u8]) {
         run_time: "2026-11-01 09:00:00 UTC".into(),
         version: "fuzz".into(),
         fingerprint,
-        period: sheaf::history::period_of(&recipe, &path),
+        period: sheaf::history::period_of(&recipe, &path).ok().flatten(),
         previous: None,
         drift: sheaf::history::drift_of(&recipe),
     };
