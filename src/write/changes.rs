@@ -33,7 +33,7 @@ pub fn changes(
         previous.period.as_deref().unwrap_or("(unknown)"),
         crate::format::shortest(run.drift * 100.0)
     );
-    sheet.merge_range(1, 0, 1, 7, &note, &style::note())?;
+    sheet.merge_range(1, 0, 1, 7, &note, &style::note_format())?;
     style::table_header(sheet, 3, &labels, 3)?;
     let percent = Format::new().set_num_format("0.0%");
     let mut r = 4;
@@ -70,6 +70,8 @@ pub fn record(
     let sheet = workbook
         .add_worksheet()
         .set_name(names.claim_reserved(RECORD_SHEET))?;
+    // For `--compare`, not for reading: hidden, still read by name.
+    sheet.set_hidden(true);
     let bold = Format::new().set_bold();
     sheet.write_string_with_format(0, 0, "recipe fingerprint", &bold)?;
     sheet.write_string(0, 1, &record.fingerprint)?;

@@ -88,6 +88,11 @@ pub fn workbook_bytes(
     }
     about::about(&mut workbook, &mut names, results, table, run)?;
     changes::record(&mut workbook, &mut names, &current)?;
+    let title = results.title.as_deref().unwrap_or("sheaf result");
+    let period = run.period.as_ref().map(|p| p.label.as_str());
+    for sheet in workbook.worksheets_mut() {
+        style::paper(sheet, title, period)?;
+    }
     Ok(workbook.save_to_buffer()?)
 }
 
