@@ -84,6 +84,16 @@ fn sheet(xlsx: &Path, position: usize) -> String {
     part(xlsx, &format!("xl/worksheets/sheet{position}.xml"))
 }
 
+/// A sheet's XML by its name.
+fn sheet_named(xlsx: &Path, name: &str) -> String {
+    let workbook = part(xlsx, "xl/workbook.xml");
+    let position = tags(&workbook, "sheet")
+        .iter()
+        .position(|s| attribute(s, "name") == Some(name))
+        .unwrap();
+    sheet(xlsx, position + 1)
+}
+
 /// Most decimals written in a column of the input, counted independently
 /// of sheaf from the shortest text of each number.
 fn input_decimals(column: &str) -> usize {
@@ -108,7 +118,7 @@ fn input_decimals(column: &str) -> usize {
 fn each_panel_figure_has_the_format_of_its_kind() {
     let dir = tempfile::tempdir().unwrap();
     let out = demo(dir.path());
-    let panel = sheet(&out, 1);
+    let panel = sheet_named(&out, "Lateness");
     // Row 5 is North late_h, row 6 North weight_kg (header on row 4):
     // C n, E mean, P skewness g1.
     assert_eq!(number_format(&out, &panel, "C5"), "#,##0");
@@ -152,7 +162,7 @@ fn cells_named_in_text_carry_no_float_noise() {
 fn columns_fit_their_content_and_headers_show_every_line() {
     let dir = tempfile::tempdir().unwrap();
     let out = demo(dir.path());
-    let robustness = sheet(&out, 2);
+    let robustness = sheet_named(&out, "Lateness robustness");
     let widths: Vec<f64> = tags(&robustness, "col")
         .iter()
         .map(|c| attribute(c, "width").unwrap().parse().unwrap())
@@ -238,4 +248,75 @@ fn the_record_sheet_is_hidden_and_still_compared() {
         "{}",
         text(&o)
     );
+}
+
+/// The links of a sheet's XML: (cell, target) pairs.
+fn links(sheet_xml: &str) -> Vec<(String, String)> {
+    tags(sheet_xml, "hyperlink")
+        .iter()
+        .map(|h| {
+            let target = attribute(h, "location").unwrap().replace("&apos;", "'");
+            (attribute(h, "ref").unwrap().to_string(), target)
+        })
+        .collect()
+}
+
+/// The row (0-based) and column of an A1 reference like "A5".
+fn row_col(reference: &str) -> (usize, usize) {
+    let letters: String = reference
+        .chars()
+        .take_while(char::is_ascii_alphabetic)
+        .collect();
+    let row: usize = reference[letters.len()..].parse().unwrap();
+    let col = letters
+        .bytes()
+        .fold(0, |n, b| n * 26 + (b - b'A' + 1) as usize)
+        - 1;
+    (row - 1, col)
+}
+
+#[test]
+fn the_first_sheet_counts_the_checks_and_links_every_warning_to_its_row() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = demo(dir.path());
+    let wb = open_workbook_auto(&out).unwrap();
+    assert_eq!(wb.sheet_names()[0], "At a glance");
+    let glance = common::cells(&out, "At a glance");
+    let all: Vec<String> = glance.iter().flatten().map(|d| d.to_string()).collect();
+    // The demo month: one check passes, five warn (the CLI says the same).
+    assert!(
+        all.iter().any(|t| t == "1 passed, 5 warned, 0 failed"),
+        "{all:?}"
+    );
+    assert!(all.iter().any(|t| t == "2026-10"), "period: {all:?}");
+    let found = links(&sheet_named(&out, "At a glance"));
+    // Five checks that did not pass and four robustness warnings.
+    assert_eq!(found.len(), 9, "{found:?}");
+    for (cell, target) in found {
+        let (row, col) = row_col(&cell);
+        let shown = glance[row][col].to_string();
+        let (sheet_name, address) = target.rsplit_once('!').unwrap();
+        let sheet_name = sheet_name.trim_matches('\'');
+        let (target_row, _) = row_col(address);
+        let rows = common::cells(&out, sheet_name);
+        let line: Vec<String> = rows[target_row].iter().map(|d| d.to_string()).collect();
+        // The link's words name what stands on the row it points to.
+        if sheet_name == "Checks" {
+            let (name, group) = shown.split_once(", ").unwrap();
+            assert_eq!(
+                (line[0].as_str(), line[2].as_str()),
+                (name, group),
+                "{cell}"
+            );
+        } else {
+            assert_eq!(sheet_name, "Lateness robustness");
+            let (column, group) = shown.split_once(", ").unwrap();
+            assert_eq!(
+                (line[0].as_str(), line[1].as_str()),
+                (group, column),
+                "{cell}"
+            );
+            assert_eq!(line[2], "warn", "{cell}");
+        }
+    }
 }

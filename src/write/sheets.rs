@@ -127,11 +127,14 @@ fn finish_table(
     style::filter(sheet, TABLE_TOP, last_row, labels.len())
 }
 
+/// Writes every block's sheets. Returns each panel's robustness sheet name
+/// and the 0-based row of its first entry, for links to it.
 pub fn blocks(
     workbook: &mut Workbook,
     names: &mut SheetNames,
     results: &Results,
-) -> Result<(), XlsxError> {
+) -> Result<Vec<(String, u32)>, XlsxError> {
+    let mut robustness = Vec::new();
     for block in &results.blocks {
         match block {
             Block::Panel {
@@ -146,14 +149,14 @@ pub fn blocks(
                     keys,
                     entries,
                 )?;
+                let sheet_name = names.claim(&format!("{name} robustness"));
                 robustness_sheet(
-                    workbook
-                        .add_worksheet()
-                        .set_name(names.claim(&format!("{name} robustness")))?,
+                    workbook.add_worksheet().set_name(&sheet_name)?,
                     name,
                     keys,
                     entries,
                 )?;
+                robustness.push((sheet_name, TABLE_TOP + 1));
             }
             Block::Figures {
                 name,
@@ -174,11 +177,11 @@ pub fn blocks(
                     write_group(sheet, r, &row.group, &mut widths)?;
                     let c = keys.len() as u16;
                     let n = One::Number(row.rows as f64);
-                    widths.seen(c, write_one(sheet, r, c, &n, Shown::Count)?);
+                    widths.seen(r, c, write_one(sheet, r, c, &n, Shown::Count)?);
                     for (j, value) in row.values.iter().enumerate() {
                         let c = c + 1 + j as u16;
                         let shown = Shown::unknown_kind(value);
-                        widths.seen(c, write_one(sheet, r, c, value, shown)?);
+                        widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
                     }
                 }
                 finish_table(
@@ -192,7 +195,7 @@ pub fn blocks(
             }
         }
     }
-    Ok(())
+    Ok(robustness)
 }
 
 fn write_group(
@@ -202,7 +205,7 @@ fn write_group(
     widths: &mut Widths,
 ) -> Result<(), XlsxError> {
     for (c, key) in group.iter().enumerate() {
-        widths.seen(c as u16, style::write_text(sheet, row, c as u16, key)?);
+        widths.seen(row, c as u16, style::write_text(sheet, row, c as u16, key)?);
     }
     Ok(())
 }
@@ -240,7 +243,7 @@ fn write_entry_labels(
 ) -> Result<u16, XlsxError> {
     write_group(sheet, row, &e.group, widths)?;
     let c = e.group.len() as u16;
-    widths.seen(c, style::write_text(sheet, row, c, &e.column)?);
+    widths.seen(row, c, style::write_text(sheet, row, c, &e.column)?);
     Ok(c + 1)
 }
 
@@ -261,7 +264,7 @@ fn panel_sheet(
         for (j, (figure, value)) in PANEL_FIGURES.iter().zip(&e.figures).enumerate() {
             let c = first + j as u16;
             let shown = Shown::of(figure.kind, decimals);
-            widths.seen(c, write_one(sheet, r, c, value, shown)?);
+            widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
         }
     }
     finish_table(
@@ -496,15 +499,15 @@ fn robustness_sheet(
         let c = write_entry_labels(sheet, r, e, &mut widths)?;
         let word = b.status.word();
         sheet.write_string_with_format(r, c, word, &style::status(word))?;
-        widths.seen(c, word.len());
-        widths.seen(c + 1, style::write_text(sheet, r, c + 1, &b.reason)?);
+        widths.seen(r, c, word.len());
+        widths.seen(r, c + 1, style::write_text(sheet, r, c + 1, &b.reason)?);
         let decimals = entry_decimals(e);
         let measure = Shown::of(FigureKind::Measure, decimals);
         for (j, column) in ROBUSTNESS_COLUMNS.iter().enumerate() {
             let col = c + 2 + j as u16;
             let value = (column.value)(b, measure);
             let shown = Shown::of(column.kind, decimals);
-            widths.seen(col, write_one(sheet, r, col, &value, shown)?);
+            widths.seen(r, col, write_one(sheet, r, col, &value, shown)?);
         }
     }
     let last = top + entries.len() as u32;
@@ -518,12 +521,15 @@ fn robustness_sheet(
     )
 }
 
+/// Writes the Checks sheet. Returns its name and the 0-based row of its
+/// first check, for links to it.
 pub fn checks(
     workbook: &mut Workbook,
     names: &mut SheetNames,
     results: &Results,
-) -> Result<(), XlsxError> {
-    let sheet = workbook.add_worksheet().set_name(names.claim("Checks"))?;
+) -> Result<(String, u32), XlsxError> {
+    let sheet_name = names.claim("Checks");
+    let sheet = workbook.add_worksheet().set_name(&sheet_name)?;
     let labels: Vec<String> = [
         "check",
         "level",
@@ -555,18 +561,18 @@ condition, limit the right side. A check that cannot be evaluated counts as not 
             (2, &group),
             (3, &c.condition),
         ] {
-            widths.seen(col, style::write_text(sheet, r, col, text)?);
+            widths.seen(r, col, style::write_text(sheet, r, col, text)?);
         }
         let shown = Shown::unknown_kind;
-        widths.seen(4, write_one(sheet, r, 4, &c.value, shown(&c.value))?);
+        widths.seen(r, 4, write_one(sheet, r, 4, &c.value, shown(&c.value))?);
         if let Some(limit) = &c.limit {
-            widths.seen(5, write_one(sheet, r, 5, limit, shown(limit))?);
+            widths.seen(r, 5, write_one(sheet, r, 5, limit, shown(limit))?);
         }
         let word = c.outcome.word();
         sheet.write_string_with_format(r, 6, word, &style::status(word))?;
-        widths.seen(6, word.len());
+        widths.seen(r, 6, word.len());
         if let Some(n) = &c.note {
-            widths.seen(7, style::write_text(sheet, r, 7, n)?);
+            widths.seen(r, 7, style::write_text(sheet, r, 7, n)?);
         }
         r += 1;
     }
@@ -593,7 +599,7 @@ condition, limit the right side. A check that cannot be evaluated counts as not 
             r += 1;
         }
     }
-    Ok(())
+    Ok((sheet_name, TABLE_TOP + 1))
 }
 
 /// (where, why) for every figure that has no value.

@@ -235,22 +235,47 @@ const HEADER_WRAP: usize = 18;
 /// Points per line of text in a row (the default font's line height).
 const LINE_HEIGHT: f64 = 15.0;
 
-/// The widest cell seen in each column of a table, in characters.
+/// The widest cell seen in each column of a table, in characters, and the
+/// long cells that wrap, for their rows' heights.
 #[derive(Debug, Default)]
-pub struct Widths(Vec<usize>);
+pub struct Widths {
+    columns: Vec<usize>,
+    /// (row, column, characters) of each cell longer than [`WIDEST`].
+    wrapping: Vec<(u32, u16, usize)>,
+}
 
 impl Widths {
-    /// Records a cell of `chars` characters in column `col`.
-    pub fn seen(&mut self, col: u16, chars: usize) {
-        let col = col as usize;
-        if self.0.len() <= col {
-            self.0.resize(col + 1, 0);
+    /// Records a cell of `chars` characters at (`row`, `col`).
+    pub fn seen(&mut self, row: u32, col: u16, chars: usize) {
+        let c = col as usize;
+        if self.columns.len() <= c {
+            self.columns.resize(c + 1, 0);
         }
-        self.0[col] = self.0[col].max(chars);
+        self.columns[c] = self.columns[c].max(chars);
+        if chars > WIDEST {
+            self.wrapping.push((row, col, chars));
+        }
     }
 
     fn content(&self, col: usize) -> usize {
-        self.0.get(col).copied().unwrap_or(0)
+        self.columns.get(col).copied().unwrap_or(0)
+    }
+
+    /// Sets each row holding wrapped text tall enough for its lines
+    /// (spreadsheet programs do not all grow such rows when opening a file).
+    fn set_row_heights(&self, sheet: &mut Worksheet, widths: &[usize]) -> Result<(), XlsxError> {
+        let mut lines: std::collections::BTreeMap<u32, usize> = Default::default();
+        for &(row, col, chars) in &self.wrapping {
+            let width = widths.get(col as usize).copied().unwrap_or(WIDEST).max(1);
+            // Words do not fill a line to its last character.
+            let needed = (chars * 6 / 5).div_ceil(width);
+            let entry = lines.entry(row).or_insert(1);
+            *entry = (*entry).max(needed);
+        }
+        for (row, n) in lines {
+            sheet.set_row_height(row, (LINE_HEIGHT * n as f64).min(409.0))?;
+        }
+        Ok(())
     }
 }
 
@@ -297,6 +322,7 @@ pub fn fit_columns(
         chosen.push(width);
     }
     sheet.set_row_height(header_row, LINE_HEIGHT * lines as f64)?;
+    widths.set_row_heights(sheet, &chosen)?;
     Ok(chosen)
 }
 
