@@ -320,3 +320,30 @@ fn the_first_sheet_counts_the_checks_and_links_every_warning_to_its_row() {
         }
     }
 }
+
+#[test]
+fn histogram_titles_are_in_words_and_bin_labels_are_clean() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = demo(dir.path());
+    let chart = part(&out, "xl/charts/chart1.xml");
+    assert!(
+        chart.contains("late_h, North: 10 bins by the Freedman-Diaconis rule"),
+        "{chart}"
+    );
+    assert!(!chart.contains("freedman_diaconis"));
+    let charts = common::cells(&out, "Charts");
+    let labels: Vec<String> = charts
+        .iter()
+        .filter_map(|r| match r.first() {
+            Some(Data::String(t)) if t.contains(" to ") => Some(t.clone()),
+            _ => None,
+        })
+        .collect();
+    assert!(!labels.is_empty());
+    for label in labels {
+        for edge in label.split(" to ") {
+            assert!(edge.parse::<f64>().is_ok(), "{label}");
+            assert!(!edge.contains('e') && edge.len() <= 9, "{label}");
+        }
+    }
+}
