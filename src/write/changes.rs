@@ -39,13 +39,16 @@ pub fn changes(
     let mut r = 4;
     let previous_period = previous.period.as_deref().unwrap_or_default();
     let now_period = current.period.as_deref().unwrap_or_default();
+    let mut widths = style::Widths::default();
     for m in crate::history::moves_between(previous_period, previous, now_period, current) {
-        sheet.write_string(r, 0, style::fit(&m.block))?;
-        sheet.write_string(r, 1, style::fit(&m.group))?;
-        sheet.write_string(r, 2, style::fit(&m.name))?;
-        sheet.write_number(r, 3, m.before)?;
-        sheet.write_number(r, 4, m.after)?;
-        sheet.write_number(r, 5, m.after - m.before)?;
+        for (c, text) in [(0, &m.block), (1, &m.group), (2, &m.name)] {
+            widths.seen(r, c, style::write_text(sheet, r, c, text)?);
+        }
+        for (c, x) in [(3, m.before), (4, m.after), (5, m.after - m.before)] {
+            let value = crate::eval::One::Number(x);
+            let shown = style::Shown::unknown_kind(&value);
+            widths.seen(r, c, style::write_one(sheet, r, c, &value, shown)?);
+        }
         match m.relative() {
             Some(relative) => {
                 sheet.write_number_with_format(r, 6, relative, &percent)?;
@@ -59,6 +62,9 @@ pub fn changes(
         }
         r += 1;
     }
+    widths.seen(3, 6, "previous was 0".len());
+    style::print_titles(sheet, 3, 3)?;
+    style::fit_columns(sheet, 3, &labels, &widths)?;
     style::filter(sheet, 3, r - 1, labels.len())
 }
 
