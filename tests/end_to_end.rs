@@ -81,6 +81,7 @@ fn the_demo_run_writes_every_sheet_and_its_figures_agree_with_the_core() {
     assert_eq!(
         wb.sheet_names(),
         [
+            "At a glance",
             "Lateness",
             "Lateness robustness",
             "Service levels",

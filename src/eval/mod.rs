@@ -17,8 +17,9 @@ use crate::recipe::ast::{Bins, CheckLevel, ColumnRef, Expr, ExprKind, Recipe, St
 use crate::stats::{self, BinRule, Histogram};
 
 pub use panel::{
-    BoxSummary, CellName, CellPlace, Finding, Flagged, GAP_NOTE_IQR, GAP_WARN_IQR, Influence,
-    PANEL_LABELS, PanelEntry, Robustness, Rule, Signals, Status, dates_note, findings,
+    BoxSummary, CellName, CellPlace, FigureKind, Finding, Flagged, GAP_NOTE_IQR, GAP_WARN_IQR,
+    Influence, PANEL_FIGURES, PANEL_LABELS, PanelEntry, PanelFigure, Robustness, Rule, Signals,
+    Status, dates_note, findings,
 };
 pub use value::{Context, One, Previous, Row, Rows, Scope, Term, Value};
 

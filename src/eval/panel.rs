@@ -7,27 +7,65 @@ use crate::stats::{self, Denominator, QuantileMethod, Sample};
 use super::aggregate::from_stat;
 use super::value::One;
 
+/// How a figure is shown in the workbook (the JSON report keeps full values).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum FigureKind {
+    /// A whole number of values or cells.
+    Count,
+    /// In the column's own units: shown to the data's decimals plus two.
+    Measure,
+    /// A unitless shape or ratio figure: shown to 4 significant digits.
+    Shape,
+    /// A fraction shown as a percentage.
+    Share,
+    /// Words.
+    Words,
+}
+
+/// One figure of the standard panel: its label and how it is shown.
+#[derive(Debug, Clone, Copy)]
+pub struct PanelFigure {
+    pub label: &'static str,
+    pub kind: FigureKind,
+}
+
+const fn figure(label: &'static str, kind: FigureKind) -> PanelFigure {
+    PanelFigure { label, kind }
+}
+
 /// The standard panel's figures, in the order the panel sheet shows them.
-pub const PANEL_LABELS: &[&str] = &[
-    "n",
-    "missing",
-    "mean",
-    "sd",
-    "min",
-    "Q1",
-    "median",
-    "Q3",
-    "max",
-    "range",
-    "IQR",
-    "modes",
-    "mode basis",
-    "skewness g1",
-    "Bowley skewness",
-    "kurtosis b2",
-    "low outliers",
-    "high outliers",
+pub const PANEL_FIGURES: [PanelFigure; 18] = [
+    figure("n", FigureKind::Count),
+    figure("missing", FigureKind::Count),
+    figure("mean", FigureKind::Measure),
+    figure("sd", FigureKind::Measure),
+    figure("min", FigureKind::Measure),
+    figure("Q1", FigureKind::Measure),
+    figure("median", FigureKind::Measure),
+    figure("Q3", FigureKind::Measure),
+    figure("max", FigureKind::Measure),
+    figure("range", FigureKind::Measure),
+    figure("IQR", FigureKind::Measure),
+    figure("modes", FigureKind::Measure),
+    figure("mode basis", FigureKind::Words),
+    figure("skewness g1", FigureKind::Shape),
+    figure("Bowley skewness", FigureKind::Shape),
+    figure("kurtosis b2", FigureKind::Shape),
+    figure("low outliers", FigureKind::Count),
+    figure("high outliers", FigureKind::Count),
 ];
+
+/// The labels of [`PANEL_FIGURES`], in the same order (read off it, not a
+/// second list).
+pub const PANEL_LABELS: &[&str] = &{
+    let mut labels = [""; PANEL_FIGURES.len()];
+    let mut i = 0;
+    while i < labels.len() {
+        labels[i] = PANEL_FIGURES[i].label;
+        i += 1;
+    }
+    labels
+};
 
 /// Where the values of one panel column come from: `Deliveries!D` for a
 /// data column (or a `let` computed from one), or a sheet and a name for a

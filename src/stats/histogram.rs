@@ -34,6 +34,16 @@ impl BinRule {
         }
     }
 
+    /// The rule in words, for chart titles.
+    pub fn words(self) -> String {
+        match self {
+            BinRule::Sturges => "Sturges' rule".into(),
+            BinRule::Scott => "Scott's rule".into(),
+            BinRule::FreedmanDiaconis => "the Freedman-Diaconis rule".into(),
+            BinRule::Fixed(k) => format!("a fixed count of {k}"),
+        }
+    }
+
     pub fn from_word(word: &str) -> Option<BinRule> {
         match word {
             "sturges" => Some(BinRule::Sturges),

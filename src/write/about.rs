@@ -46,7 +46,7 @@ pub fn about(
         style::fit(results.title.as_deref().unwrap_or("sheaf result")),
         &style::title(),
     )?;
-    sheet.merge_range(1, 0, 1, 3, DISCLAIMER, &style::note())?;
+    sheet.merge_range(1, 0, 1, 3, DISCLAIMER, &style::note_format())?;
     sheet.set_row_height(1, 45)?;
     let mut r = 3;
     let mut pair = |label: &str, value: String| -> Result<(), XlsxError> {

@@ -36,7 +36,7 @@ pub fn changes(
         crate::format::shortest(run.drift * 100.0),
         crate::history::NOISE_SES
     );
-    sheet.merge_range(1, 0, 1, 9, &note, &style::note())?;
+    sheet.merge_range(1, 0, 1, 9, &note, &style::note_format())?;
     let groups = crate::history::group_changes(previous, current).map_or_else(
         || "No group appeared or disappeared.".to_string(),
         |g| {
@@ -45,19 +45,22 @@ pub fn changes(
             format!("{g}.")
         },
     );
-    sheet.merge_range(2, 0, 2, 9, &groups, &style::note())?;
+    sheet.merge_range(2, 0, 2, 9, &groups, &style::note_format())?;
     style::table_header(sheet, 3, &labels, 3)?;
     let percent = Format::new().set_num_format("0.0%");
     let mut r = 4;
     let previous_period = previous.period.as_deref().unwrap_or_default();
     let now_period = current.period.as_deref().unwrap_or_default();
+    let mut widths = style::Widths::default();
     for m in crate::history::moves_between(previous_period, previous, now_period, current) {
-        sheet.write_string(r, 0, style::fit(&m.block))?;
-        sheet.write_string(r, 1, style::fit(&m.group))?;
-        sheet.write_string(r, 2, style::fit(&m.name))?;
-        sheet.write_number(r, 3, m.before)?;
-        sheet.write_number(r, 4, m.after)?;
-        sheet.write_number(r, 5, m.after - m.before)?;
+        for (c, text) in [(0, &m.block), (1, &m.group), (2, &m.name)] {
+            widths.seen(r, c, style::write_text(sheet, r, c, text)?);
+        }
+        for (c, x) in [(3, m.before), (4, m.after), (5, m.after - m.before)] {
+            let value = crate::eval::One::Number(x);
+            let shown = style::Shown::unknown_kind(&value);
+            widths.seen(r, c, style::write_one(sheet, r, c, &value, shown)?);
+        }
         match m.relative() {
             Some(relative) => {
                 sheet.write_number_with_format(r, 6, relative, &percent)?;
@@ -72,6 +75,9 @@ pub fn changes(
         crate::history::write_noise(sheet, r, 8, &m)?;
         r += 1;
     }
+    widths.seen(3, 6, "previous was 0".len());
+    style::print_titles(sheet, 3, 3)?;
+    style::fit_columns(sheet, 3, &labels, &widths)?;
     style::filter(sheet, 3, r - 1, labels.len())
 }
 
@@ -83,6 +89,8 @@ pub fn record(
     let sheet = workbook
         .add_worksheet()
         .set_name(names.claim_reserved(RECORD_SHEET))?;
+    // For `--compare`, not for reading: hidden, still read by name.
+    sheet.set_hidden(true);
     let bold = Format::new().set_bold();
     sheet.write_string_with_format(0, 0, "recipe fingerprint", &bold)?;
     sheet.write_string(0, 1, &record.fingerprint)?;

@@ -9,9 +9,8 @@ use rust_xlsxwriter::{
 };
 
 use super::sheets::SheetNames;
-use super::style;
-use crate::eval::{Chart as ChartData, Results, group_label};
-use crate::format::rounded;
+use super::style::{self, Shown};
+use crate::eval::{Chart as ChartData, One, Results, group_label};
 
 const ROWS_PER_CHART: u32 = 18;
 
@@ -29,6 +28,7 @@ pub fn charts(
         "Each chart's numbers stand beside it, so the chart can be checked and redrawn.",
     )?;
     sheet.set_column_width(0, 22)?;
+    sheet.set_column_width(1, 14)?;
     let mut top: u32 = 3;
     for chart in &results.charts {
         match chart {
@@ -38,18 +38,24 @@ pub fn charts(
                 histogram,
                 rule,
             } => {
+                let rule_words = crate::stats::BinRule::from_word(rule)
+                    .map_or_else(|| rule.clone(), |r| r.words());
                 let title = format!(
-                    "{column}, {} ({} bins, {rule})",
+                    "{column}, {}: {} bins by {rule_words}",
                     group_label(group),
                     histogram.counts.len()
                 );
                 sheet.write_string_with_format(top, 0, "bin", &style::header())?;
-                sheet.write_string_with_format(top, 1, "count", &style::header())?;
+                sheet.write_string_with_format(top, 1, "values in bin", &style::header())?;
+                // Edges to 4 significant digits of the bin width: clean
+                // labels that still tell neighbouring bins apart.
+                let width = histogram.edges.get(1).zip(histogram.edges.first());
+                let shown = Shown::unknown_kind(&One::Number(width.map_or(0.0, |(b, a)| b - a)));
                 for (i, count) in histogram.counts.iter().enumerate() {
                     let label = format!(
                         "{} to {}",
-                        rounded(histogram.edges[i], 4),
-                        rounded(histogram.edges[i + 1], 4)
+                        shown.text(histogram.edges[i]),
+                        shown.text(histogram.edges[i + 1])
                     );
                     sheet.write_string(top + 1 + i as u32, 0, style::fit(&label))?;
                     sheet.write_number(top + 1 + i as u32, 1, *count as f64)?;
@@ -66,7 +72,7 @@ pub fn charts(
                         rust_xlsxwriter::ChartSolidFill::new().set_color(style::HEADER_COLOUR),
                     ));
                 c.x_axis().set_name(column);
-                c.y_axis().set_name("count");
+                c.y_axis().set_name("values in bin");
                 sheet.insert_chart(top, 3, &c)?;
                 top = (last + 2).max(top + ROWS_PER_CHART);
             }
@@ -128,6 +134,7 @@ pub fn charts(
                 c.combine(&medians);
                 c.set_up_down_bars(true);
                 c.set_high_low_lines(true);
+                c.x_axis().set_name("group");
                 c.y_axis().set_name(column);
                 sheet.insert_chart(top, 7, &c)?;
                 top = (last + 2).max(top + ROWS_PER_CHART);

@@ -6,6 +6,7 @@ mod about;
 pub mod atomic;
 mod changes;
 mod charts;
+mod glance;
 mod plan;
 mod sheets;
 pub(crate) mod style;
@@ -74,8 +75,12 @@ pub fn workbook_bytes(
     }
     workbook.set_properties(&properties);
     let mut names = sheets::SheetNames::default();
-    sheets::blocks(&mut workbook, &mut names, results)?;
-    sheets::checks(&mut workbook, &mut names, results)?;
+    // First, so the workbook opens on it; filled once the rows it links to
+    // are known.
+    let glance_name = names.claim(glance::GLANCE_SHEET);
+    workbook.add_worksheet().set_name(&glance_name)?;
+    let robustness = sheets::blocks(&mut workbook, &mut names, results)?;
+    let checks = sheets::checks(&mut workbook, &mut names, results)?;
     charts::charts(&mut workbook, &mut names, results)?;
     // This run's figures, for the Changes sheet and for the next run.
     let current = crate::history::Record::from_results(
@@ -88,6 +93,15 @@ pub fn workbook_bytes(
     }
     about::about(&mut workbook, &mut names, results, table, run)?;
     changes::record(&mut workbook, &mut names, &current)?;
+    let title = results.title.as_deref().unwrap_or("sheaf result");
+    let period = run.period.as_ref().map(|p| p.label.as_str());
+    let places = glance::Places { checks, robustness };
+    let input = &table.source.path;
+    let sheet = workbook.worksheet_from_name(&glance_name)?;
+    glance::glance(sheet, results, input, period, &places)?;
+    for sheet in workbook.worksheets_mut() {
+        style::paper(sheet, title, period)?;
+    }
     Ok(workbook.save_to_buffer()?)
 }
 

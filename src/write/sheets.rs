@@ -4,10 +4,10 @@ use std::collections::HashSet;
 
 use rust_xlsxwriter::{Workbook, Worksheet, XlsxError};
 
-use super::style::{self, write_one};
+use super::style::{self, Shown, Widths, write_one};
 use crate::eval::{
-    Block, Flagged, GAP_NOTE_IQR, GAP_WARN_IQR, Influence, One, PANEL_LABELS, PanelEntry, Results,
-    Robustness, group_label,
+    Block, FigureKind, Flagged, GAP_NOTE_IQR, GAP_WARN_IQR, Influence, One, PANEL_FIGURES,
+    PANEL_LABELS, PanelEntry, Results, Robustness, group_label,
 };
 use crate::stats::{
     AgainstNoise, BOOTSTRAP_MIN_VALUES, BootstrapIntervals, DEFAULT_RESAMPLES, DEFAULT_SEED,
@@ -101,19 +101,40 @@ listed but raise no status: normal data show them often. Thresholds are common p
     )
 }
 
-fn heading(sheet: &mut Worksheet, title: &str, note: &str, width: usize) -> Result<u32, XlsxError> {
+/// Row of a table sheet's header: under the title (row 0) and its note
+/// (row 1), after a blank row.
+const TABLE_TOP: u32 = 3;
+
+/// Writes a sheet's title; its note follows once the columns are sized.
+fn heading(sheet: &mut Worksheet, title: &str) -> Result<u32, XlsxError> {
     sheet.write_string_with_format(0, 0, style::fit(title), &style::title())?;
-    let last = (width.max(8) - 1) as u16;
-    sheet.merge_range(1, 0, 1, last, note, &style::note())?;
-    sheet.set_row_height(1, 92)?;
-    Ok(3)
+    Ok(TABLE_TOP)
 }
 
+/// Finishes a table written under [`heading`]: columns sized to their
+/// content, the note as a block above it, filter buttons over it.
+fn finish_table(
+    sheet: &mut Worksheet,
+    labels: &[String],
+    label_columns: u16,
+    widths: &Widths,
+    note: &str,
+    last_row: u32,
+) -> Result<(), XlsxError> {
+    style::print_titles(sheet, TABLE_TOP, label_columns)?;
+    let chosen = style::fit_columns(sheet, TABLE_TOP, labels, widths)?;
+    style::note_block(sheet, 1, note, &chosen)?;
+    style::filter(sheet, TABLE_TOP, last_row, labels.len())
+}
+
+/// Writes every block's sheets. Returns each panel's robustness sheet name
+/// and the 0-based row of its first entry, for links to it.
 pub fn blocks(
     workbook: &mut Workbook,
     names: &mut SheetNames,
     results: &Results,
-) -> Result<(), XlsxError> {
+) -> Result<Vec<(String, u32)>, XlsxError> {
+    let mut robustness = Vec::new();
     for block in &results.blocks {
         match block {
             Block::Panel {
@@ -128,14 +149,14 @@ pub fn blocks(
                     keys,
                     entries,
                 )?;
+                let sheet_name = names.claim(&format!("{name} robustness"));
                 robustness_sheet(
-                    workbook
-                        .add_worksheet()
-                        .set_name(names.claim(&format!("{name} robustness")))?,
+                    workbook.add_worksheet().set_name(&sheet_name)?,
                     name,
                     keys,
                     entries,
                 )?;
+                robustness.push((sheet_name, TABLE_TOP + 1));
             }
             Block::Figures {
                 name,
@@ -148,31 +169,43 @@ pub fn blocks(
                 labels.push("rows".into());
                 labels.extend(figure_names.iter().cloned());
                 let note = "Each figure is computed over the rows of its group that pass the recipe's filters. A cell without a number says why.";
-                let top = heading(sheet, name, note, labels.len())?;
+                let top = heading(sheet, name)?;
                 style::table_header(sheet, top, &labels, keys.len() as u16)?;
+                let mut widths = Widths::default();
                 for (i, row) in rows.iter().enumerate() {
                     let r = top + 1 + i as u32;
-                    write_group(sheet, r, &row.group)?;
-                    sheet.write_number_with_format(
-                        r,
-                        keys.len() as u16,
-                        row.rows as f64,
-                        &style::count(),
-                    )?;
+                    write_group(sheet, r, &row.group, &mut widths)?;
+                    let c = keys.len() as u16;
+                    let n = One::Number(row.rows as f64);
+                    widths.seen(r, c, write_one(sheet, r, c, &n, Shown::Count)?);
                     for (j, value) in row.values.iter().enumerate() {
-                        write_one(sheet, r, (keys.len() + 1 + j) as u16, value, false)?;
+                        let c = c + 1 + j as u16;
+                        let shown = Shown::unknown_kind(value);
+                        widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
                     }
                 }
-                style::filter(sheet, top, top + rows.len() as u32, labels.len())?;
+                finish_table(
+                    sheet,
+                    &labels,
+                    keys.len() as u16,
+                    &widths,
+                    note,
+                    top + rows.len() as u32,
+                )?;
             }
         }
     }
-    Ok(())
+    Ok(robustness)
 }
 
-fn write_group(sheet: &mut Worksheet, row: u32, group: &[String]) -> Result<(), XlsxError> {
+fn write_group(
+    sheet: &mut Worksheet,
+    row: u32,
+    group: &[String],
+    widths: &mut Widths,
+) -> Result<(), XlsxError> {
     for (c, key) in group.iter().enumerate() {
-        sheet.write_string(row, c as u16, style::fit(key))?;
+        widths.seen(row, c as u16, style::write_text(sheet, row, c as u16, key)?);
     }
     Ok(())
 }
@@ -184,6 +217,34 @@ fn entry_labels(keys: &[String], figures: &[&str]) -> Vec<String> {
     labels.push("column".into());
     labels.extend(figures.iter().map(|s| s.to_string()));
     labels
+}
+
+/// Decimals of an entry's data, read off its min and max (which are data
+/// values), so its measures show those decimals plus two.
+fn entry_decimals(e: &PanelEntry) -> u8 {
+    let data: Vec<f64> = PANEL_FIGURES
+        .iter()
+        .zip(&e.figures)
+        .filter(|(f, _)| f.label == "min" || f.label == "max")
+        .filter_map(|(_, v)| match v {
+            One::Number(x) => Some(*x),
+            _ => None,
+        })
+        .collect();
+    style::data_decimals(&data)
+}
+
+/// Writes the group keys and the column name of an entry's row.
+fn write_entry_labels(
+    sheet: &mut Worksheet,
+    row: u32,
+    e: &PanelEntry,
+    widths: &mut Widths,
+) -> Result<u16, XlsxError> {
+    write_group(sheet, row, &e.group, widths)?;
+    let c = e.group.len() as u16;
+    widths.seen(row, c, style::write_text(sheet, row, c, &e.column)?);
+    Ok(c + 1)
 }
 
 fn panel_sheet(
@@ -200,121 +261,157 @@ fn panel_sheet(
         true => format!("{PANEL_NOTE} {}", crate::eval::dates_note()),
         false => PANEL_NOTE.to_string(),
     };
-    let top = heading(sheet, name, &note, labels.len())?;
+    let top = heading(sheet, name)?;
     style::table_header(sheet, top, &labels, keys.len() as u16 + 1)?;
-    let whole = ["n", "missing", "low outliers", "high outliers"];
+    let mut widths = Widths::default();
     for (i, e) in entries.iter().enumerate() {
         let r = top + 1 + i as u32;
-        write_group(sheet, r, &e.group)?;
-        sheet.write_string(r, keys.len() as u16, style::fit(&e.column))?;
-        for (j, value) in e.figures.iter().enumerate() {
-            write_one(
-                sheet,
-                r,
-                (keys.len() + 1 + j) as u16,
-                value,
-                whole.contains(&PANEL_LABELS[j]),
-            )?;
+        let first = write_entry_labels(sheet, r, e, &mut widths)?;
+        let decimals = entry_decimals(e);
+        for (j, (figure, value)) in PANEL_FIGURES.iter().zip(&e.figures).enumerate() {
+            let c = first + j as u16;
+            let shown = Shown::of(figure.kind, decimals);
+            widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
         }
     }
-    style::filter(sheet, top, top + entries.len() as u32, labels.len())
+    finish_table(
+        sheet,
+        &labels,
+        keys.len() as u16 + 1,
+        &widths,
+        &note,
+        top + entries.len() as u32,
+    )
 }
 
-/// One column of the robustness sheet: its header, whether it holds a
-/// count, and how its cell is read off an entry's robustness.
+/// One column of the robustness sheet: its header, how it is shown, and
+/// how its cell is read off an entry's robustness (given how the entry's
+/// measures are shown, for values written inside text).
 struct RobustnessColumn {
     label: &'static str,
-    count: bool,
-    value: fn(&Robustness) -> One,
+    kind: FigureKind,
+    value: fn(&Robustness, Shown) -> One,
 }
 
-const fn column(label: &'static str, value: fn(&Robustness) -> One) -> RobustnessColumn {
-    RobustnessColumn {
-        label,
-        count: false,
-        value,
-    }
-}
-
-const fn count(label: &'static str, value: fn(&Robustness) -> One) -> RobustnessColumn {
-    RobustnessColumn {
-        label,
-        count: true,
-        value,
-    }
+const fn column(
+    label: &'static str,
+    kind: FigureKind,
+    value: fn(&Robustness, Shown) -> One,
+) -> RobustnessColumn {
+    RobustnessColumn { label, kind, value }
 }
 
 /// The robustness sheet's columns after group, column, status and reason.
 const ROBUSTNESS_COLUMNS: &[RobustnessColumn] = &[
-    column("(mean - median) / sd", |b| b.gap_in_sd.clone()),
-    column("(mean - median) / IQR", |b| b.gap_in_iqr.clone()),
-    count("outliers 1.5 IQR", |b| fenced_count(b, &b.outliers_wide)),
-    column("1.5 IQR cells", |b| fenced_cells(b, &b.outliers_wide)),
-    count("outliers 3 IQR", |b| fenced_count(b, &b.outliers_far)),
-    column("3 IQR cells", |b| fenced_cells(b, &b.outliers_far)),
-    column("mean without", |b| b.mean_without.clone()),
-    column("mean change", |b| b.mean_change.clone()),
-    column("sd without", |b| b.sd_without.clone()),
-    column("sd change", |b| b.sd_change.clone()),
-    column("skewness without", |b| b.skewness_without.clone()),
-    column("skewness change", |b| b.skewness_change.clone()),
+    column("(mean - median) / sd", FigureKind::Shape, |b, _| {
+        b.gap_in_sd.clone()
+    }),
+    column("(mean - median) / IQR", FigureKind::Shape, |b, _| {
+        b.gap_in_iqr.clone()
+    }),
+    column("outliers 1.5 IQR", FigureKind::Count, |b, _| {
+        fenced_count(b, &b.outliers_wide)
+    }),
+    column("1.5 IQR cells", FigureKind::Words, |b, m| {
+        fenced_cells(b, &b.outliers_wide, m)
+    }),
+    column("outliers 3 IQR", FigureKind::Count, |b, _| {
+        fenced_count(b, &b.outliers_far)
+    }),
+    column("3 IQR cells", FigureKind::Words, |b, m| {
+        fenced_cells(b, &b.outliers_far, m)
+    }),
+    column("mean without", FigureKind::Measure, |b, _| {
+        b.mean_without.clone()
+    }),
+    column("mean change", FigureKind::Measure, |b, _| {
+        b.mean_change.clone()
+    }),
+    column("sd without", FigureKind::Measure, |b, _| {
+        b.sd_without.clone()
+    }),
+    column("sd change", FigureKind::Measure, |b, _| b.sd_change.clone()),
+    column("skewness without", FigureKind::Shape, |b, _| {
+        b.skewness_without.clone()
+    }),
+    column("skewness change", FigureKind::Shape, |b, _| {
+        b.skewness_change.clone()
+    }),
     column(
         "leave-one-out mean change (after - before, largest in size)",
-        |b| influence(&b.mean_influence, |i| One::Number(i.change)),
+        FigureKind::Measure,
+        |b, _| influence(&b.mean_influence, |i| One::Number(i.change)),
     ),
-    column("its cell (first row if tied)", |b| {
-        influence(&b.mean_influence, influence_cell)
+    column("its cell (first row if tied)", FigureKind::Words, |b, m| {
+        influence_cell(&b.mean_influence, m)
     }),
     column(
         "leave-one-out sd change (after - before, largest in size)",
-        |b| influence(&b.sd_influence, |i| One::Number(i.change)),
+        FigureKind::Measure,
+        |b, _| influence(&b.sd_influence, |i| One::Number(i.change)),
     ),
-    column("its cell, sd (first row if tied)", |b| {
-        influence(&b.sd_influence, influence_cell)
+    column(
+        "its cell, sd (first row if tied)",
+        FigureKind::Words,
+        |b, m| influence_cell(&b.sd_influence, m),
+    ),
+    column(
+        "|modified z| above 3.5",
+        FigureKind::Count,
+        |b, _| match &b.modified_z {
+            Ok(list) => One::Number(list.len() as f64),
+            Err(why) => One::Undefined(why.clone()),
+        },
+    ),
+    column("|modified z| cells", FigureKind::Words, |b, m| {
+        match &b.modified_z {
+            Ok(list) => One::Text(cells(list, m)),
+            Err(why) => One::Undefined(why.clone()),
+        }
     }),
-    count("|modified z| above 3.5", |b| match &b.modified_z {
-        Ok(list) => One::Number(list.len() as f64),
-        Err(why) => One::Undefined(why.clone()),
+    column("skewness G1", FigureKind::Shape, |b, _| {
+        shape(&b.skewness, |k| k.estimate)
     }),
-    column("|modified z| cells", |b| match &b.modified_z {
-        Ok(list) => One::Text(cells(list)),
-        Err(why) => One::Undefined(why.clone()),
-    }),
-    column("skewness G1", |b| shape(&b.skewness, |k| k.estimate)),
-    column("SE of G1 if normal", |b| {
+    column("SE of G1 if normal", FigureKind::Shape, |b, _| {
         shape(&b.skewness, |k| k.standard_error)
     }),
-    column("G1 / SE", |b| shape(&b.skewness, |k| k.ratio)),
-    column("skewed", |b| {
+    column("G1 / SE", FigureKind::Shape, |b, _| {
+        shape(&b.skewness, |k| k.ratio)
+    }),
+    column("skewed", FigureKind::Words, |b, _| {
         shape_note(
             &b.skewness,
             &format!("yes: |G1 / SE| above {SHAPE_NOTE_CUTOFF}"),
         )
     }),
-    column("excess kurtosis G2", |b| shape(&b.tails, |k| k.estimate)),
-    column("SE of G2 if normal", |b| {
+    column("excess kurtosis G2", FigureKind::Shape, |b, _| {
+        shape(&b.tails, |k| k.estimate)
+    }),
+    column("SE of G2 if normal", FigureKind::Shape, |b, _| {
         shape(&b.tails, |k| k.standard_error)
     }),
-    column("G2 / SE", |b| shape(&b.tails, |k| k.ratio)),
-    column("heavy tails", |b| {
+    column("G2 / SE", FigureKind::Shape, |b, _| {
+        shape(&b.tails, |k| k.ratio)
+    }),
+    column("heavy tails", FigureKind::Words, |b, _| {
         shape_note(&b.tails, &format!("yes: G2 / SE above {SHAPE_NOTE_CUTOFF}"))
     }),
-    column("mean 95% low", |b| {
+    column("mean 95% low", FigureKind::Measure, |b, _| {
         bootstrap(b, |i| One::Number(i.mean.low))
     }),
-    column("mean 95% high", |b| {
+    column("mean 95% high", FigureKind::Measure, |b, _| {
         bootstrap(b, |i| One::Number(i.mean.high))
     }),
-    column("median 95% low", |b| {
+    column("median 95% low", FigureKind::Measure, |b, _| {
         bootstrap(b, |i| One::Number(i.median.low))
     }),
-    column("median 95% high", |b| {
+    column("median 95% high", FigureKind::Measure, |b, _| {
         bootstrap(b, |i| One::Number(i.median.high))
     }),
-    count("resamples", |b| {
+    column("resamples", FigureKind::Count, |b, _| {
         bootstrap(b, |i| One::Number(i.resamples as f64))
     }),
-    column("bootstrap method", |b| {
+    column("bootstrap method", FigureKind::Words, |b, _| {
         bootstrap(b, |i| One::Text(i.method.words().into()))
     }),
 ];
@@ -328,10 +425,10 @@ fn fenced_count(b: &Robustness, list: &[Flagged]) -> One {
 }
 
 /// The outliers' cells, or why there are no fences.
-fn fenced_cells(b: &Robustness, list: &[Flagged]) -> One {
+fn fenced_cells(b: &Robustness, list: &[Flagged], measure: Shown) -> One {
     match &b.fences_undefined {
         Some(why) => One::Undefined(why.clone()),
-        None => One::Text(cells(list)),
+        None => One::Text(cells(list, measure)),
     }
 }
 
@@ -341,8 +438,12 @@ fn influence(found: &Result<Influence, String>, part: fn(&Influence) -> One) -> 
         .map_or_else(|why| One::Undefined(why.clone()), part)
 }
 
-fn influence_cell(i: &Influence) -> One {
-    One::Text(cells(std::slice::from_ref(&i.cell)))
+/// The cell whose removal moves a figure most, with its value.
+fn influence_cell(found: &Result<Influence, String>, measure: Shown) -> One {
+    match found {
+        Ok(i) => One::Text(cells(std::slice::from_ref(&i.cell), measure)),
+        Err(why) => One::Undefined(why.clone()),
+    }
 }
 
 fn shape(found: &Result<AgainstNoise, String>, part: fn(&AgainstNoise) -> f64) -> One {
@@ -368,14 +469,14 @@ fn bootstrap(b: &Robustness, part: fn(&BootstrapIntervals) -> One) -> One {
 /// Cells listed in one spreadsheet cell; the rest are counted, not listed.
 const LISTED_CELLS: usize = 100;
 
-fn cells(list: &[Flagged]) -> String {
+fn cells(list: &[Flagged], measure: Shown) -> String {
     if list.is_empty() {
         return "none".into();
     }
     let mut text = list
         .iter()
         .take(LISTED_CELLS)
-        .map(|f| format!("{} ({})", f.address, crate::format::shortest(f.value)))
+        .map(|f| format!("{} ({})", f.address, measure.text(f.value)))
         .collect::<Vec<_>>()
         .join(", ");
     if list.len() > LISTED_CELLS {
@@ -396,39 +497,46 @@ fn robustness_sheet(
     let mut figures = vec!["status", "reason"];
     figures.extend(ROBUSTNESS_COLUMNS.iter().map(|c| c.label));
     let labels = entry_labels(keys, &figures);
-    let top = heading(
-        sheet,
-        &format!("{name}: robustness"),
-        &robustness_note(),
-        labels.len(),
-    )?;
+    let top = heading(sheet, &format!("{name}: robustness"))?;
     style::table_header(sheet, top, &labels, keys.len() as u16 + 1)?;
+    let mut widths = Widths::default();
     for (i, e) in entries.iter().enumerate() {
         let r = top + 1 + i as u32;
         let b = &e.robustness;
-        write_group(sheet, r, &e.group)?;
-        let c = keys.len() as u16;
-        sheet.write_string(r, c, style::fit(&e.column))?;
-        sheet.write_string_with_format(
-            r,
-            c + 1,
-            b.status.word(),
-            &style::status(b.status.word()),
-        )?;
-        sheet.write_string(r, c + 2, &b.reason)?;
+        let c = write_entry_labels(sheet, r, e, &mut widths)?;
+        let word = b.status.word();
+        sheet.write_string_with_format(r, c, word, &style::status(word))?;
+        widths.seen(r, c, word.len());
+        widths.seen(r, c + 1, style::write_text(sheet, r, c + 1, &b.reason)?);
+        let decimals = entry_decimals(e);
+        let measure = Shown::of(FigureKind::Measure, decimals);
         for (j, column) in ROBUSTNESS_COLUMNS.iter().enumerate() {
-            write_one(sheet, r, c + 3 + j as u16, &(column.value)(b), column.count)?;
+            let col = c + 2 + j as u16;
+            let value = (column.value)(b, measure);
+            let shown = Shown::of(column.kind, decimals);
+            widths.seen(r, col, write_one(sheet, r, col, &value, shown)?);
         }
     }
-    style::filter(sheet, top, top + entries.len() as u32, labels.len())
+    let last = top + entries.len() as u32;
+    finish_table(
+        sheet,
+        &labels,
+        keys.len() as u16 + 1,
+        &widths,
+        &robustness_note(),
+        last,
+    )
 }
 
+/// Writes the Checks sheet. Returns its name and the 0-based row of its
+/// first check, for links to it.
 pub fn checks(
     workbook: &mut Workbook,
     names: &mut SheetNames,
     results: &Results,
-) -> Result<(), XlsxError> {
-    let sheet = workbook.add_worksheet().set_name(names.claim("Checks"))?;
+) -> Result<(String, u32), XlsxError> {
+    let sheet_name = names.claim("Checks");
+    let sheet = workbook.add_worksheet().set_name(&sheet_name)?;
     let labels: Vec<String> = [
         "check",
         "level",
@@ -443,37 +551,39 @@ pub fn checks(
     .to_vec();
     let note = "Every check of the recipe, overall and for each group when it names groups. value is the left side of the \
 condition, limit the right side. A check that cannot be evaluated counts as not passed. Figures that had no value are listed below the checks.";
-    let top = heading(sheet, "Checks", note, labels.len())?;
+    let top = heading(sheet, "Checks")?;
     style::table_header(sheet, top, &labels, 1)?;
+    let mut widths = Widths::default();
     let mut r = top + 1;
     for c in &results.checks {
-        sheet.write_string(r, 0, style::fit(&c.name))?;
-        sheet.write_string(
-            r,
-            1,
-            if c.level == crate::recipe::ast::CheckLevel::Warn {
-                "warn"
-            } else {
-                "fail"
-            },
-        )?;
-        sheet.write_string(
-            r,
-            2,
-            style::fit(&group_label(c.group.as_deref().unwrap_or_default())),
-        )?;
-        sheet.write_string(r, 3, style::fit(&c.condition))?;
-        write_one(sheet, r, 4, &c.value, false)?;
-        if let Some(limit) = &c.limit {
-            write_one(sheet, r, 5, limit, false)?;
+        let level = if c.level == crate::recipe::ast::CheckLevel::Warn {
+            "warn"
+        } else {
+            "fail"
+        };
+        let group = group_label(c.group.as_deref().unwrap_or_default());
+        for (col, text) in [
+            (0, c.name.as_str()),
+            (1, level),
+            (2, &group),
+            (3, &c.condition),
+        ] {
+            widths.seen(r, col, style::write_text(sheet, r, col, text)?);
         }
-        sheet.write_string_with_format(r, 6, c.outcome.word(), &style::status(c.outcome.word()))?;
+        let shown = Shown::unknown_kind;
+        widths.seen(r, 4, write_one(sheet, r, 4, &c.value, shown(&c.value))?);
+        if let Some(limit) = &c.limit {
+            widths.seen(r, 5, write_one(sheet, r, 5, limit, shown(limit))?);
+        }
+        let word = c.outcome.word();
+        sheet.write_string_with_format(r, 6, word, &style::status(word))?;
+        widths.seen(r, 6, word.len());
         if let Some(n) = &c.note {
-            sheet.write_string(r, 7, n)?;
+            widths.seen(r, 7, style::write_text(sheet, r, 7, n)?);
         }
         r += 1;
     }
-    style::filter(sheet, top, r - 1, labels.len())?;
+    finish_table(sheet, &labels, 1, &widths, note, r - 1)?;
     // Warnings about the recipe, each with its fix.
     if !results.warnings.is_empty() {
         r += 1;
@@ -496,7 +606,7 @@ condition, limit the right side. A check that cannot be evaluated counts as not 
             r += 1;
         }
     }
-    Ok(())
+    Ok((sheet_name, TABLE_TOP + 1))
 }
 
 /// (where, why) for every figure that has no value.
@@ -518,8 +628,9 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
                             found.push((place(name, label), why.clone()));
                         }
                     }
+                    let measure = Shown::of(FigureKind::Measure, entry_decimals(e));
                     for column in ROBUSTNESS_COLUMNS {
-                        if let One::Undefined(why) = (column.value)(&e.robustness) {
+                        if let One::Undefined(why) = (column.value)(&e.robustness, measure) {
                             found.push((place(&format!("{name} robustness"), column.label), why));
                         }
                     }
