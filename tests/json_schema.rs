@@ -248,7 +248,7 @@ fn date_figures_are_dates_in_json_in_the_workbook_and_on_the_terminal() {
     let cells = common::cells(&dir.path().join("r.xlsx"), "Shipping");
     let row = cells
         .iter()
-        .find(|r| r.first().is_some_and(|c| c.to_string() == "2026-10"))
+        .find(|r| r.first().is_some_and(|c| *c == "2026-10"))
         .expect("a row for 2026-10");
     match &row[2] {
         calamine::Data::DateTime(d) => assert_eq!(d.as_f64(), 46296.0),

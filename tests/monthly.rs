@@ -354,12 +354,7 @@ fn trend_rows_carry_the_change_and_its_noise_scaled_size() {
     let row = |period: &str, figure: &str| {
         trend
             .iter()
-            .find(|r| {
-                r[0].to_string() == period
-                    && r[1].to_string() == "Lateness"
-                    && r[2].to_string() == "North"
-                    && r[3].to_string() == figure
-            })
+            .find(|r| r[0] == period && r[1] == "Lateness" && r[2] == "North" && r[3] == figure)
             .unwrap_or_else(|| panic!("{period} {figure}"))
             .clone()
     };

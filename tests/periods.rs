@@ -62,7 +62,7 @@ fn month_names_without_a_year_order_the_files_in_the_year() {
     assert_eq!(o.status.code(), Some(0), "{}", text(&o));
     assert_eq!(trend_periods(dir.path()), ["January", "February", "March"]);
     let about = cells(&dir.path().join("out/qc-march-summary.xlsx"), "About");
-    let period = about.iter().find(|r| r[0].to_string() == "period").unwrap();
+    let period = about.iter().find(|r| r[0] == "period").unwrap();
     assert_eq!(
         period[1].to_string(),
         "March (from \"march\" in the data file's name)"
@@ -314,7 +314,7 @@ fn a_real_drift_is_flagged_and_a_noisy_skewness_is_not() {
     let row = |figure: &str| {
         changes
             .iter()
-            .find(|r| r.len() > 7 && r[2].to_string() == figure)
+            .find(|r| r.len() > 7 && r[2] == figure)
             .unwrap_or_else(|| panic!("{figure}: {changes:?}"))
             .clone()
     };

@@ -100,10 +100,7 @@ fn input_decimals(column: &str) -> usize {
     let mut wb = open_workbook_auto(root().join("workbooks/depot-2026-10.xlsx")).unwrap();
     let range = wb.worksheet_range("Deliveries").unwrap();
     let rows: Vec<&[Data]> = range.rows().collect();
-    let at = rows[0]
-        .iter()
-        .position(|h| h.to_string() == column)
-        .unwrap();
+    let at = rows[0].iter().position(|h| *h == column).unwrap();
     rows[1..]
         .iter()
         .filter_map(|r| match r[at] {
