@@ -153,6 +153,18 @@ fn titles_blank_rows_totals_and_similar_keys() {
             "`merge similar keys`",
         ],
     );
+    // The first sheet says it too, beside the checks.
+    let glance = cells(&dir.path().join("o.xlsx"), "At a glance");
+    let said: Vec<String> = glance.iter().flatten().map(|c| c.to_string()).collect();
+    assert!(said.iter().any(|t| t == "reading the file"), "{said:?}");
+    assert!(
+        said.iter()
+            .any(|t| t.starts_with("row 13 left out as a summary row"))
+    );
+    assert!(
+        said.iter()
+            .any(|t| t.contains("differ only in case or spaces"))
+    );
     // Trailing spaces are trimmed (`Line A ` is `Line A`); `line A` is its own group.
     let rows = cells(&dir.path().join("o.xlsx"), "Per line");
     let count_of = |key: &str| {

@@ -27,6 +27,7 @@ pub fn glance(
     input: &str,
     period: Option<&str>,
     places: &Places,
+    reading: &[crate::load::ReadingNote],
 ) -> Result<(), XlsxError> {
     sheet.set_column_width(0, 16)?;
     sheet.set_column_width(1, 50)?;
@@ -43,9 +44,35 @@ pub fn glance(
         style::write_text(sheet, r, 1, value)?;
         r += 1;
     }
+    r = reading_file(sheet, r, reading)?;
     r = checks(sheet, r + 1, results, &places.checks)?;
     robustness(sheet, r + 1, results, &places.robustness)?;
     Ok(())
+}
+
+/// What the loader decided that changes what was read (rows left out, a
+/// header row or sheet it chose, keys spelled apart or merged, a number
+/// style it could read two ways); the About sheet lists every decision.
+/// Written after a blank row below `r`; returns the last row written (`r`
+/// itself when there is nothing to say).
+fn reading_file(
+    sheet: &mut Worksheet,
+    r: u32,
+    reading: &[crate::load::ReadingNote],
+) -> Result<u32, XlsxError> {
+    let notable: Vec<&crate::load::ReadingNote> = reading.iter().filter(|n| n.attention).collect();
+    if notable.is_empty() {
+        return Ok(r);
+    }
+    let mut r = r + 1;
+    sheet.write_string_with_format(r, 0, "reading the file", &style::header())?;
+    for note in notable {
+        r += 1;
+        sheet.write_string_with_format(r, 0, "note", &top(style::status("note")))?;
+        sheet.write_string_with_format(r, 1, note.topic, &top(Format::new()))?;
+        explanation(sheet, r, &note.text)?;
+    }
+    Ok(r + 1)
 }
 
 /// Links: a deep teal of sheaf's own, readable on white.

@@ -98,7 +98,8 @@ pub fn workbook_bytes(
     let places = glance::Places { checks, robustness };
     let input = &table.source.path;
     let sheet = workbook.worksheet_from_name(&glance_name)?;
-    glance::glance(sheet, results, input, period, &places)?;
+    let reading = crate::load::reading_notes(table);
+    glance::glance(sheet, results, input, period, &places, &reading)?;
     for sheet in workbook.worksheets_mut() {
         style::paper(sheet, title, period)?;
     }
