@@ -165,6 +165,14 @@ fn titles_blank_rows_totals_and_similar_keys() {
         said.iter()
             .any(|t| t.contains("differ only in case or spaces"))
     );
+    let checks = cells(&dir.path().join("o.xlsx"), "Checks");
+    assert!(
+        checks
+            .iter()
+            .flatten()
+            .any(|c| c.to_string().contains("differ only in case or spaces")),
+        "the Checks sheet lists the similar keys"
+    );
     // Trailing spaces are trimmed (`Line A ` is `Line A`); `line A` is its own group.
     let rows = cells(&dir.path().join("o.xlsx"), "Per line");
     let count_of = |key: &str| {

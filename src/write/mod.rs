@@ -80,7 +80,8 @@ pub fn workbook_bytes(
     let glance_name = names.claim(glance::GLANCE_SHEET);
     workbook.add_worksheet().set_name(&glance_name)?;
     let robustness = sheets::blocks(&mut workbook, &mut names, results)?;
-    let checks = sheets::checks(&mut workbook, &mut names, results)?;
+    let reading = crate::load::reading_notes(table);
+    let checks = sheets::checks(&mut workbook, &mut names, results, &reading)?;
     charts::charts(&mut workbook, &mut names, results)?;
     // This run's figures, for the Changes sheet and for the next run.
     let current = crate::history::Record::from_results(
@@ -98,7 +99,6 @@ pub fn workbook_bytes(
     let places = glance::Places { checks, robustness };
     let input = &table.source.path;
     let sheet = workbook.worksheet_from_name(&glance_name)?;
-    let reading = crate::load::reading_notes(table);
     glance::glance(sheet, results, input, period, &places, &reading)?;
     for sheet in workbook.worksheets_mut() {
         style::paper(sheet, title, period)?;

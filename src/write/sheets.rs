@@ -534,6 +534,7 @@ pub fn checks(
     workbook: &mut Workbook,
     names: &mut SheetNames,
     results: &Results,
+    reading: &[crate::load::ReadingNote],
 ) -> Result<(String, u32), XlsxError> {
     let sheet_name = names.claim("Checks");
     let sheet = workbook.add_worksheet().set_name(&sheet_name)?;
@@ -591,6 +592,19 @@ condition, limit the right side. A check that cannot be evaluated counts as not 
         for warning in &results.warnings {
             r += 1;
             sheet.write_string_with_format(r, 0, warning, &style::reason())?;
+        }
+        r += 1;
+    }
+    // What reading the file changed (rows left out, keys spelled apart or
+    // merged, a chosen header row or sheet): a check of the data in itself.
+    let notable: Vec<_> = reading.iter().filter(|n| n.attention).collect();
+    if !notable.is_empty() {
+        r += 1;
+        sheet.write_string_with_format(r, 0, "reading the file", &style::title())?;
+        for note in notable {
+            r += 1;
+            sheet.write_string(r, 0, note.topic)?;
+            sheet.write_string_with_format(r, 3, style::fit(&note.text), &style::reason())?;
         }
         r += 1;
     }
