@@ -206,6 +206,30 @@ fn titles_blank_rows_totals_and_similar_keys() {
 }
 
 #[test]
+fn the_json_report_carries_the_reading_decisions() {
+    let dir = tempfile::tempdir().unwrap();
+    exports::titled_xlsx(&dir.path().join("w.xlsx")).unwrap();
+    std::fs::write(
+        dir.path().join("r.sheaf"),
+        "figures \"F\":\n    n = count(weight_g)\n",
+    )
+    .unwrap();
+    let o = sheaf(
+        &[
+            "run", "r.sheaf", "--data", "w.xlsx", "--out", "o.xlsx", "--json",
+        ],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let doc: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let reading = doc["reading"].as_array().unwrap();
+    assert!(reading.iter().any(|n| n["topic"] == "summary rows"
+        && n["attention"] == true
+        && n["text"].as_str().unwrap().contains("\"Total\"")));
+    assert!(reading.iter().any(|n| n["topic"] == "blank rows"));
+}
+
+#[test]
 fn numbers_stored_as_text_are_read_and_counted() {
     let dir = tempfile::tempdir().unwrap();
     exports::text_numbers_xlsx(&dir.path().join("w.xlsx")).unwrap();

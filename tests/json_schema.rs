@@ -147,6 +147,26 @@ fn a_batch_prints_json_lines_one_per_file_then_the_trend() {
     assert_eq!(changes["previous_period"], "2026-08");
     let figures = changes["figures"].as_array().unwrap();
     assert!(figures.iter().any(|f| f["moved"] == true));
+    // A panel mean carries its standard error (Welch) and the change in its units;
+    // a shape figure has none.
+    let mean = figures
+        .iter()
+        .find(|f| f["figure"].as_str().is_some_and(|n| n.ends_with(" mean")))
+        .expect("a panel mean among the changes");
+    let (se, z) = (
+        mean["standard_error"].as_f64().unwrap(),
+        mean["change_in_standard_errors"].as_f64().unwrap(),
+    );
+    assert!(se > 0.0 && (z - mean["change"].as_f64().unwrap() / se).abs() < 1e-12);
+    let shape = figures
+        .iter()
+        .find(|f| {
+            f["figure"]
+                .as_str()
+                .is_some_and(|n| n.ends_with("skewness g1"))
+        })
+        .expect("a skewness among the changes");
+    assert!(shape["standard_error"].is_null());
     for f in figures {
         let (now, previous) = (f["now"].as_f64().unwrap(), f["previous"].as_f64().unwrap());
         assert!((f["change"].as_f64().unwrap() - (now - previous)).abs() < 1e-12);

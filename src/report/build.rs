@@ -92,6 +92,15 @@ pub fn result_document(results: &Results, table: &Table, run: &RunInfo, output: 
                 content: m.content.clone(),
             })
             .collect(),
+        reading: crate::load::reading_notes(table)
+            .into_iter()
+            .map(|n| ReadingReport {
+                topic: n.topic.to_string(),
+                text: n.text,
+                attention: n.attention,
+            })
+            .collect(),
+        warnings: results.warnings.clone(),
         blocks: results.blocks.iter().map(block).collect(),
         checks: results.checks.iter().map(check).collect(),
         charts: results.charts.iter().map(chart).collect(),
@@ -302,6 +311,8 @@ fn changes(results: &Results, run: &RunInfo) -> Option<ChangesReport> {
                 now: m.after,
                 change: m.after - m.before,
                 relative_change: relative(m),
+                standard_error: m.se,
+                change_in_standard_errors: m.noise_scaled(),
                 moved: m.moved(run.drift),
             })
             .collect(),

@@ -91,12 +91,28 @@ pub struct ResultReport {
     pub rows_read: usize,
     pub rows_skipped: Vec<SkippedRows>,
     pub missing_cells: Vec<MissingCell>,
+    /// What the loader decided while reading the file (header row found,
+    /// blank and summary rows left out, number style, encoding, similar
+    /// keys): the About sheet's list.
+    pub reading: Vec<ReadingReport>,
+    /// The recipe's warnings, each with its fix (the Checks sheet's list).
+    pub warnings: Vec<String>,
     pub blocks: Vec<BlockReport>,
     pub checks: Vec<CheckReport>,
     pub charts: Vec<ChartReport>,
     /// Against the previous period (`--compare`, or the period before in a
     /// batch); null when there was none.
     pub changes: Option<ChangesReport>,
+}
+
+/// One decision of the loader.
+#[derive(Debug, Clone, Serialize, JsonSchema)]
+pub struct ReadingReport {
+    /// `header row`, `summary rows`, `similar keys`, `numbers`, ...
+    pub topic: String,
+    pub text: String,
+    /// Listed on the first sheet and the Checks sheet too: it changed what was read.
+    pub attention: bool,
 }
 
 #[derive(Debug, Clone, Serialize, JsonSchema)]
@@ -352,7 +368,13 @@ pub struct ChangeReport {
     pub change: f64,
     /// (now - previous) / |previous|; a reason when previous was 0.
     pub relative_change: OrReason<f64>,
-    /// Whether |relative change| exceeds the recipe's drift.
+    /// The standard error of the change (a panel mean's: Welch's, from each
+    /// period's sd and n); null for a figure without one.
+    pub standard_error: Option<f64>,
+    /// change / standard_error; null without a standard error.
+    pub change_in_standard_errors: Option<f64>,
+    /// Beyond the recipe's drift and, where there is a standard error,
+    /// beyond the noise rule too (the Changes sheet's flag).
     pub moved: bool,
 }
 
