@@ -111,7 +111,8 @@ pub fn serial_from_calendar(text: &str) -> Result<f64, String> {
     Ok((days_from_civil(i64::from(y), m, d) + 25569) as f64)
 }
 
-const MONTH_NAMES: [&str; 12] = [
+/// English month names, January first.
+pub const MONTH_NAMES: [&str; 12] = [
     "January",
     "February",
     "March",
@@ -141,7 +142,8 @@ fn is_leap(y: i64) -> bool {
     (y % 4 == 0 && y % 100 != 0) || y % 400 == 0
 }
 
-fn days_in_month(y: i64, m: u32) -> u32 {
+/// Days in month `m` (1 to 12) of year `y`, Gregorian.
+pub fn days_in_month(y: i64, m: u32) -> u32 {
     match m {
         2 if is_leap(y) => 29,
         2 => 28,

@@ -80,39 +80,19 @@ fn tokens(name: &str) -> Vec<Token<'_>> {
 
 /// English month names and their usual abbreviations, January = 1.
 fn month_named(word: &str) -> Option<u32> {
-    const NAMES: [&str; 12] = [
-        "january",
-        "february",
-        "march",
-        "april",
-        "may",
-        "june",
-        "july",
-        "august",
-        "september",
-        "october",
-        "november",
-        "december",
-    ];
     let word = word.to_lowercase();
     if word == "sept" {
         return Some(9);
     }
-    NAMES
+    crate::format::MONTH_NAMES
         .iter()
-        .position(|n| word == *n || (word.len() == 3 && n.starts_with(word.as_str())))
+        .map(|n| n.to_lowercase())
+        .position(|n| word == n || (word.len() == 3 && n.starts_with(word.as_str())))
         .map(|i| i as u32 + 1)
 }
 
 fn days_in(year: u32, month: u32) -> u32 {
-    match month {
-        4 | 6 | 9 | 11 => 30,
-        2 if year.is_multiple_of(4) && (!year.is_multiple_of(100) || year.is_multiple_of(400)) => {
-            29
-        }
-        2 => 28,
-        _ => 31,
-    }
+    crate::format::days_in_month(i64::from(year), month)
 }
 
 fn year_of(token: &Token) -> Option<u32> {
@@ -169,20 +149,7 @@ impl NameDate {
 }
 
 /// How a month without a year is labelled (and sorted, by its position here).
-const MONTH_LABELS: [&str; 12] = [
-    "January",
-    "February",
-    "March",
-    "April",
-    "May",
-    "June",
-    "July",
-    "August",
-    "September",
-    "October",
-    "November",
-    "December",
-];
+const MONTH_LABELS: [&str; 12] = crate::format::MONTH_NAMES;
 
 /// The text of tokens `from..=to` as it stands in the name.
 fn span(t: &[Token], from: usize, to: usize) -> String {
