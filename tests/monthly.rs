@@ -7,29 +7,17 @@ use std::path::{Path, PathBuf};
 mod common;
 
 use calamine::{Data, Reader, open_workbook_auto};
-use common::{cells, root, sheaf, text};
+use common::{cells, sheaf, text};
 
-const MONTHS: [&str; 3] = ["depot-2026-08", "depot-2026-09", "depot-2026-10"];
+const MONTHS: [&str; 3] = common::DEMO_MONTHS;
 
 /// The demo months copied into `dir/months`, so a batch can add files beside them.
 fn months_in(dir: &Path) -> PathBuf {
-    let months = dir.join("months");
-    std::fs::create_dir_all(&months).unwrap();
-    for m in MONTHS {
-        std::fs::copy(
-            root().join(format!("workbooks/{m}.xlsx")),
-            months.join(format!("{m}.xlsx")),
-        )
-        .unwrap();
-    }
-    months
+    common::demo_months_as(dir, MONTHS)
 }
 
 fn recipe() -> String {
-    root()
-        .join("workbooks/depot-monthly.sheaf")
-        .display()
-        .to_string()
+    common::demo_recipe()
 }
 
 #[test]

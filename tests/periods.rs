@@ -8,30 +8,15 @@ use std::path::{Path, PathBuf};
 
 mod common;
 
-use common::{cells, root, sheaf, text};
+use common::{cells, sheaf, text};
 
 /// The demo months (August, September, October 2026) copied as `names`.
 fn months_as(dir: &Path, names: [&str; 3]) -> PathBuf {
-    let months = dir.join("months");
-    std::fs::create_dir_all(&months).unwrap();
-    for (m, name) in ["depot-2026-08", "depot-2026-09", "depot-2026-10"]
-        .iter()
-        .zip(names)
-    {
-        std::fs::copy(
-            root().join(format!("workbooks/{m}.xlsx")),
-            months.join(format!("{name}.xlsx")),
-        )
-        .unwrap();
-    }
-    months
+    common::demo_months_as(dir, names)
 }
 
 fn recipe() -> String {
-    root()
-        .join("workbooks/depot-monthly.sheaf")
-        .display()
-        .to_string()
+    common::demo_recipe()
 }
 
 fn batch(dir: &Path, recipe: &str) -> std::process::Output {

@@ -12,6 +12,32 @@ pub fn root() -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR"))
 }
 
+/// The invented demo months, oldest first.
+pub const DEMO_MONTHS: [&str; 3] = ["depot-2026-08", "depot-2026-09", "depot-2026-10"];
+
+/// The demo months copied into `dir/months` as `names` (plus `.xlsx`), so a
+/// batch can add files beside them or read them under other names.
+pub fn demo_months_as(dir: &Path, names: [&str; 3]) -> PathBuf {
+    let months = dir.join("months");
+    std::fs::create_dir_all(&months).unwrap();
+    for (m, name) in DEMO_MONTHS.iter().zip(names) {
+        std::fs::copy(
+            root().join(format!("workbooks/{m}.xlsx")),
+            months.join(format!("{name}.xlsx")),
+        )
+        .unwrap();
+    }
+    months
+}
+
+/// The demo recipe's path, as an argument.
+pub fn demo_recipe() -> String {
+    root()
+        .join("workbooks/depot-monthly.sheaf")
+        .display()
+        .to_string()
+}
+
 /// Runs the built binary in `dir` with a fixed recorded run time.
 pub fn sheaf(args: &[&str], dir: &Path) -> Output {
     Command::new(env!("CARGO_BIN_EXE_sheaf"))
