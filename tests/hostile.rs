@@ -241,6 +241,24 @@ fn handmade_xlsx(path: &Path, rows: &[(u32, &str)]) {
     use zip::write::SimpleFileOptions;
     let stored = SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
     let mut zip = zip::ZipWriter::new(std::fs::File::create(path).unwrap());
+    workbook_parts(&mut zip);
+    let body: String = rows
+        .iter()
+        .map(|(r, cells)| format!(r#"<row r="{r}">{cells}</row>"#))
+        .collect();
+    zip.start_file("xl/worksheets/sheet1.xml", stored).unwrap();
+    zip.write_all(format!("{SHEET_HEAD}{body}{SHEET_TAIL}").as_bytes())
+        .unwrap();
+    zip.finish().unwrap();
+}
+
+const SHEET_HEAD: &str = r#"<?xml version="1.0" encoding="UTF-8"?><worksheet xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"><sheetData>"#;
+const SHEET_TAIL: &str = "</sheetData></worksheet>";
+
+/// The parts of a one-sheet workbook besides the sheet (xl/worksheets/sheet1.xml).
+fn workbook_parts(zip: &mut zip::ZipWriter<std::fs::File>) {
+    use zip::write::SimpleFileOptions;
+    let stored = SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
     let mut part = |name: &str, text: &str| {
         zip.start_file(name, stored).unwrap();
         zip.write_all(text.as_bytes()).unwrap();
@@ -261,17 +279,6 @@ fn handmade_xlsx(path: &Path, rows: &[(u32, &str)]) {
         "xl/_rels/workbook.xml.rels",
         r#"<?xml version="1.0" encoding="UTF-8"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="rId1" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/worksheet" Target="worksheets/sheet1.xml"/></Relationships>"#,
     );
-    let body: String = rows
-        .iter()
-        .map(|(r, cells)| format!(r#"<row r="{r}">{cells}</row>"#))
-        .collect();
-    part(
-        "xl/worksheets/sheet1.xml",
-        &format!(
-            r#"<?xml version="1.0" encoding="UTF-8"?><worksheet xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"><sheetData>{body}</sheetData></worksheet>"#
-        ),
-    );
-    zip.finish().unwrap();
 }
 
 /// The streamed reader meets row 4 before row 2 in the second file and falls
@@ -867,4 +874,131 @@ fn an_xls_range_ending_before_it_starts_is_refused() {
         "{}",
         text(&o)
     );
+}
+
+/// Peak resident memory of `sheaf ARGS` in kilobytes, measured by
+/// `/usr/bin/time` (the `time` package; `.ci/run` installs it).
+#[cfg(target_os = "linux")]
+fn peak_kilobytes(args: &[&str], dir: &Path) -> (std::process::Output, u64) {
+    let report = dir.join("peak.txt");
+    let o = Command::new("/usr/bin/time")
+        .args(["-f", "%M", "-o", report.to_str().unwrap()])
+        .arg(env!("CARGO_BIN_EXE_sheaf"))
+        .args(args)
+        .current_dir(dir)
+        .output()
+        .expect("/usr/bin/time runs (install the `time` package)");
+    let peak = std::fs::read_to_string(&report).unwrap();
+    let kilobytes = peak.lines().last().unwrap().trim().parse().unwrap();
+    (o, kilobytes)
+}
+
+/// No input under 1 MB makes sheaf take more than about 100 times its size
+/// in memory beyond what it takes for a two-line file (with a floor of
+/// 64 MB: a sheet may unpack to 24 MB whatever its ratio, about 60 MB read).
+/// Every small hostile input of this file and of tests/hostile/ is read by
+/// `inspect` and measured; each must end cleanly (status 0 or 2). (Not in
+/// the list: a CSV of 100,000 one-row columns, honest data that takes about
+/// 1 KB per column, 127 times its 790 KB; the README says so.)
+#[cfg(target_os = "linux")]
+#[test]
+fn small_inputs_stay_within_a_hundred_times_their_size_in_memory() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let header = (1, r#"<c r="A1" t="inlineStr"><is><t>x</t></is></c>"#);
+    handmade_xlsx(
+        &d.join("far-row.xlsx"),
+        &[
+            header,
+            (4_000_000_000, r#"<c r="A4000000000"><v>1</v></c>"#),
+        ],
+    );
+    handmade_xlsx(
+        &d.join("scattered.xlsx"),
+        &[
+            header,
+            (1_048_576, r#"<c r="XFD1048576"><v>1</v></c>"#),
+            (2, r#"<c r="A2"><v>1</v></c>"#),
+        ],
+    );
+    handmade_ods(
+        &d.join("repeats.ods"),
+        &format!(
+            r#"{ODS_HEAD}<table:table-row><table:table-cell office:value-type="string"><text:p>x</text:p></table:table-cell></table:table-row><table:table-row table:number-rows-repeated="6000"><table:table-cell table:number-columns-repeated="16384" office:value-type="float" office:value="4"><text:p>4</text:p></table:table-cell></table:table-row></table:table></office:spreadsheet></office:body></office:document-content>"#
+        ),
+    );
+    handmade_ods(&d.join("cut.ods"), ODS_HEAD);
+    // 9,600,000 repeated cells deflated into about 600 KB, with honest sizes.
+    let row = format!("<row>{}</row>", "<c><v>1</v></c>".repeat(12));
+    let headers: String = (0..12)
+        .map(|c| format!(r#"<c t="inlineStr"><is><t>c{c}</t></is></c>"#))
+        .collect();
+    let headers = format!("<row>{headers}</row>");
+    deflated_xlsx(&d.join("repeated.xlsx"), &headers, &row, 800_000);
+    write(d, "tiny.csv", b"x\n1\n");
+    let mut inputs: Vec<PathBuf> = std::fs::read_dir(root().join("tests/hostile"))
+        .unwrap()
+        .flatten()
+        .map(|e| e.path())
+        .collect();
+    for name in [
+        "far-row.xlsx",
+        "scattered.xlsx",
+        "repeats.ods",
+        "cut.ods",
+        "repeated.xlsx",
+    ] {
+        inputs.push(d.join(name));
+    }
+    let (_, baseline) = peak_kilobytes(&["inspect", "tiny.csv"], d);
+    for input in &inputs {
+        let size = std::fs::metadata(input).unwrap().len();
+        assert!(
+            size < 1 << 20,
+            "{} ({size} bytes) is a small input",
+            input.display()
+        );
+        let (o, peak) = peak_kilobytes(&["inspect", input.to_str().unwrap()], d);
+        assert!(
+            matches!(o.status.code(), Some(0 | 2)),
+            "{}: {}",
+            input.display(),
+            text(&o)
+        );
+        let allowed = (100 * size / 1024).max(64 * 1024);
+        assert!(
+            peak.saturating_sub(baseline) <= allowed,
+            "{} ({size} bytes) took {peak} KB at its peak, {baseline} KB for a two-line file",
+            input.display()
+        );
+    }
+    let o = sheaf(&["inspect", "repeated.xlsx"], d);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(
+        text(&o).contains("repeated.xlsx: cannot read the file: the workbook would unpack to")
+            && text(&o).contains("SHEAF_MAX_UNPACK_RATIO"),
+        "{}",
+        text(&o)
+    );
+}
+
+/// A workbook whose one sheet is `first` then `row` `times` over, deflated
+/// and streamed into the zip so the test never holds the sheet.
+fn deflated_xlsx(path: &Path, first: &str, row: &str, times: usize) {
+    use zip::write::SimpleFileOptions;
+    let deflated = SimpleFileOptions::default()
+        .compression_method(zip::CompressionMethod::Deflated)
+        .compression_level(Some(9));
+    let mut zip = zip::ZipWriter::new(std::fs::File::create(path).unwrap());
+    workbook_parts(&mut zip);
+    zip.start_file("xl/worksheets/sheet1.xml", deflated)
+        .unwrap();
+    zip.write_all(SHEET_HEAD.as_bytes()).unwrap();
+    zip.write_all(first.as_bytes()).unwrap();
+    let chunk = row.repeat(1000);
+    for _ in 0..times / 1000 {
+        zip.write_all(chunk.as_bytes()).unwrap();
+    }
+    zip.write_all(SHEET_TAIL.as_bytes()).unwrap();
+    zip.finish().unwrap();
 }

@@ -26,6 +26,18 @@ pub struct Entry {
     pub value: f64,
 }
 
+/// A record's values by (block, group, name); see [`Record::lookup`].
+pub struct Lookup<'a> {
+    values: std::collections::HashMap<(&'a str, &'a str, &'a str), f64>,
+}
+
+impl Lookup<'_> {
+    /// The value of one figure, if the record holds it.
+    pub fn find(&self, block: &str, group: &str, name: &str) -> Option<f64> {
+        self.values.get(&(block, group, name)).copied()
+    }
+}
+
 #[derive(Debug, Clone, PartialEq)]
 pub struct Record {
     pub fingerprint: String,
@@ -158,6 +170,19 @@ impl Record {
             .iter()
             .find(|e| e.block == block && e.group == group && e.name == name)
             .map(|e| e.value)
+    }
+
+    /// Every entry's value by (block, group, name), for finding many: a
+    /// comparison of two records of a million figures each would take hours
+    /// through [`Record::find`]. The first entry wins, as with `find`.
+    pub fn lookup(&self) -> Lookup<'_> {
+        let mut values = std::collections::HashMap::with_capacity(self.entries.len());
+        for e in &self.entries {
+            values
+                .entry((e.block.as_str(), e.group.as_str(), e.name.as_str()))
+                .or_insert(e.value);
+        }
+        Lookup { values }
     }
 
     /// Reads the Record sheet of a sheaf result; refuses another recipe's.

@@ -5,7 +5,7 @@ use std::collections::BTreeMap;
 
 use rust_xlsxwriter::{Chart, ChartType, Format, Workbook, XlsxError};
 
-use super::record::{Entry, Record, TERM_BLOCK};
+use super::record::{Entry, Lookup, Record, TERM_BLOCK};
 use crate::write::style::fit;
 
 /// The sheets that mark a trend workbook, so a later batch leaves it out.
@@ -93,9 +93,9 @@ pub fn welch_se(sd_before: f64, n_before: f64, sd_after: f64, n_after: f64) -> O
 
 /// The standard error of a change of a panel column's mean, from the sd and
 /// n both Records hold beside it; None for every other figure.
-fn se_of(before: &Record, after: &Record, e: &Entry) -> Option<f64> {
+fn se_of(before: &Lookup, after: &Lookup, e: &Entry) -> Option<f64> {
     let column = e.name.strip_suffix(" mean")?;
-    let of = |r: &Record, label: &str| r.find(&e.block, &e.group, &format!("{column} {label}"));
+    let of = |r: &Lookup, label: &str| r.find(&e.block, &e.group, &format!("{column} {label}"));
     welch_se(
         of(before, "sd")?,
         of(before, "n")?,
@@ -107,12 +107,13 @@ fn se_of(before: &Record, after: &Record, e: &Entry) -> Option<f64> {
 /// Every figure of `after` that `before` also holds, in `after`'s order:
 /// the one comparison behind the Changes sheet, `--json` and the trend.
 pub fn moves_between(from: &str, before: &Record, to: &str, after: &Record) -> Vec<Move> {
+    let (earlier, later) = (before.lookup(), after.lookup());
     after
         .entries
         .iter()
         .filter(|e| e.block != TERM_BLOCK)
         .filter_map(|e| {
-            before.find(&e.block, &e.group, &e.name).map(|b| Move {
+            earlier.find(&e.block, &e.group, &e.name).map(|b| Move {
                 block: e.block.clone(),
                 group: e.group.clone(),
                 name: e.name.clone(),
@@ -120,7 +121,7 @@ pub fn moves_between(from: &str, before: &Record, to: &str, after: &Record) -> V
                 to: to.to_string(),
                 before: b,
                 after: e.value,
-                se: se_of(before, after, e),
+                se: se_of(&earlier, &later, e),
             })
         })
         .collect()

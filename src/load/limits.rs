@@ -30,7 +30,7 @@ pub const MAX_LINE_BYTES: u64 = 64 << 20;
 pub const MAX_FILE_BYTES: u64 = 64 << 30;
 
 /// A limit, from its environment variable when that holds a number.
-fn limit(variable: &str, default: u64) -> u64 {
+pub(crate) fn limit(variable: &str, default: u64) -> u64 {
     std::env::var(variable)
         .ok()
         .and_then(|v| v.trim().replace('_', "").parse().ok())

@@ -104,13 +104,26 @@ fn cell_of(data: &Data) -> Cell {
     }
 }
 
-/// Most bytes the parts of a zipped workbook (xlsx, ods) may unpack to, and
-/// the largest unpacking ratio of a big part: beyond either it is refused
-/// as a likely zip bomb before calamine inflates anything.
+/// Most bytes the parts of a zipped workbook (xlsx, ods) may unpack to;
+/// beyond it the file is refused before calamine inflates anything.
 pub const MAX_UNPACKED: u64 = 4 << 30;
-const MAX_RATIO: u64 = 200;
-const RATIO_CHECKED_ABOVE: u64 = 64 << 20;
+/// Most bytes a zipped workbook may unpack to per byte of the file, unless
+/// `SHEAF_MAX_UNPACK_RATIO` says otherwise. Reading takes up to about 2.5
+/// bytes of memory per unpacked byte (a cell of `<c><v>1</v></c>` is 15
+/// bytes and up to 32 in memory), so this keeps a small file within about
+/// 100 times its size. Real exports unpack 2 to 10 times; only highly
+/// repetitive sheets come near 40.
+pub const MAX_UNPACK_RATIO: u64 = 40;
+/// Unpacked bytes allowed whatever the ratio: small workbooks are never
+/// refused for compressing well.
+const RATIO_FREE_BYTES: u64 = 24 << 20;
 
+/// Refuses a zipped workbook whose parts would unpack to more than
+/// [`MAX_UNPACKED`] bytes or, beyond [`RATIO_FREE_BYTES`], to more than
+/// [`MAX_UNPACK_RATIO`] times the file's size: a zip bomb, or a sheet of
+/// millions of repeated cells that would take far more memory than its
+/// file suggests. The sizes come from the zip directory, so nothing is
+/// inflated to judge.
 fn refuse_zip_bombs(path: &Path) -> Result<(), LoadError> {
     let Ok(file) = std::fs::File::open(path) else {
         return Ok(());
@@ -119,31 +132,31 @@ fn refuse_zip_bombs(path: &Path) -> Result<(), LoadError> {
     if std::io::Read::read_exact(&mut &file, &mut head).is_err() || &head != b"PK\x03\x04" {
         return Ok(()); // not a zip (xls is an OLE file): calamine judges it
     }
+    let size = file.metadata().map(|m| m.len()).unwrap_or(0).max(1);
     let mut archive = zip::ZipArchive::new(file)
         .map_err(|e| unreadable(path, format!("the file is not a complete workbook ({e})")))?;
     let mut total = 0u64;
     for i in 0..archive.len() {
-        let Ok(entry) = archive.by_index_raw(i) else {
-            continue;
-        };
-        let (packed, unpacked) = (entry.compressed_size().max(1), entry.size());
-        total = total.saturating_add(unpacked);
-        if unpacked > RATIO_CHECKED_ABOVE && unpacked / packed > MAX_RATIO {
-            return Err(unreadable(
-                path,
-                format!(
-                    "part {} would unpack {} times its size ({unpacked} bytes); refused as a likely zip bomb",
-                    entry.name().unwrap_or_default(),
-                    unpacked / packed
-                ),
-            ));
+        if let Ok(entry) = archive.by_index_raw(i) {
+            total = total.saturating_add(entry.size());
         }
     }
     if total > MAX_UNPACKED {
         return Err(unreadable(
             path,
             format!(
-                "the workbook would unpack to {total} bytes, more than the {MAX_UNPACKED} sheaf reads"
+                "the workbook would unpack to {total} bytes, more than the {MAX_UNPACKED} sheaf reads; refused as a likely zip bomb"
+            ),
+        ));
+    }
+    let most_ratio = super::limits::limit("SHEAF_MAX_UNPACK_RATIO", MAX_UNPACK_RATIO);
+    if total > RATIO_FREE_BYTES && total / size > most_ratio {
+        return Err(unreadable(
+            path,
+            format!(
+                "the workbook would unpack to {total} bytes, {} times its {size} bytes (sheaf reads up to {most_ratio} times, beyond {} MB): a zip bomb, or a sheet of millions of repeated cells that would take far more memory than the file suggests. If the file is honest, export it as CSV, or set SHEAF_MAX_UNPACK_RATIO to a larger number",
+                total / size,
+                RATIO_FREE_BYTES >> 20
             ),
         ));
     }
