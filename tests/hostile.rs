@@ -1002,3 +1002,34 @@ fn deflated_xlsx(path: &Path, first: &str, row: &str, times: usize) {
     zip.write_all(SHEET_TAIL.as_bytes()).unwrap();
     zip.finish().unwrap();
 }
+
+/// Outputs that cannot fit are refused as soon as their groups are known,
+/// before their figures are computed, with the statement named: a histogram
+/// per key of 100,000 keys (100,000 charts), and checks per key whose
+/// results overflow the Checks sheet's rows.
+#[test]
+fn charts_and_checks_beyond_a_result_are_refused_before_the_work() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut csv = String::from("key,x\n");
+    for i in 0..100_000 {
+        csv.push_str(&format!("k{i},{}\n", i % 7));
+    }
+    let o = run_recipe(dir.path(), "histogram x per key\n", &csv, &[]);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(
+        text(&o).contains("the histogram of x brings the charts to 100000, more than the 500"),
+        "{}",
+        text(&o)
+    );
+    let checks: String = (0..11)
+        .map(|c| format!("check \"c{c}\" warn per key: max(x) < 10\n"))
+        .collect();
+    let o = run_recipe(dir.path(), &checks, &csv, &[]);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(
+        text(&o).contains("check \"c10\" brings the checks to 1100011 results"),
+        "{}",
+        text(&o)
+    );
+    assert!(!dir.path().join("out.xlsx").exists());
+}

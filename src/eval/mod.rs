@@ -153,6 +153,10 @@ pub const MAX_GROUPS: usize = 100_000;
 /// note and header above it. A panel has one row per (group, column).
 pub const MAX_SHEET_ENTRIES: usize = crate::load::MAX_SHEET_ROWS as usize - 16;
 
+/// Most charts of one result: a histogram per group of 100,000 groups would
+/// make a Charts sheet no one can read and a workbook too large to open.
+pub const MAX_CHARTS: usize = 500;
+
 #[derive(Debug, thiserror::Error)]
 pub enum EvalError {
     #[error(
@@ -163,6 +167,14 @@ pub enum EvalError {
         "panel \"{block}\" would have {pairs} (group, column) rows, more than the {MAX_SHEET_ENTRIES} a sheet holds; group by fewer keys, list fewer columns, or split the panel"
     )]
     PanelTooLarge { block: String, pairs: usize },
+    #[error(
+        "check \"{check}\" brings the checks to {rows} results, one row each, more than the {MAX_SHEET_ENTRIES} a sheet holds; check per fewer keys, or filter the rows with `rows where`"
+    )]
+    TooManyChecks { check: String, rows: usize },
+    #[error(
+        "the histogram of {column} brings the charts to {charts}, more than the {MAX_CHARTS} a result holds; draw it per fewer keys, or filter the rows with `rows where`"
+    )]
+    TooManyCharts { column: String, charts: usize },
 }
 
 /// Each row's value of one group key as a small id, and each id's label.
@@ -532,7 +544,16 @@ pub fn evaluate_against(
                     .checks
                     .push(check(&scope, &name.value, *level, condition, None));
                 if !per.is_empty() {
-                    for (group, group_rows) in groups(&scope, per)? {
+                    let check_groups = groups(&scope, per)?;
+                    // Known before the work: the Checks sheet holds a row per result.
+                    let rows = results.checks.len() + check_groups.len();
+                    if rows > MAX_SHEET_ENTRIES {
+                        return Err(EvalError::TooManyChecks {
+                            check: name.value.clone(),
+                            rows,
+                        });
+                    }
+                    for (group, group_rows) in check_groups {
                         let group_scope =
                             Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                         results.checks.push(check(
@@ -552,7 +573,16 @@ pub fn evaluate_against(
                     Some(Bins::Rule(word)) => BinRule::from_word(word).unwrap_or(BinRule::Sturges),
                     None => BinRule::Sturges,
                 };
-                for (group, group_rows) in groups(&scope, per)? {
+                let chart_groups = groups(&scope, per)?;
+                // Known before the work: one chart per group, each a block of rows.
+                let charts = results.charts.len() + chart_groups.len();
+                if charts > MAX_CHARTS {
+                    return Err(EvalError::TooManyCharts {
+                        column: column.name.clone(),
+                        charts,
+                    });
+                }
+                for (group, group_rows) in chart_groups {
                     let group_scope =
                         Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     let sample = group_scope.sample(&column_expr(column));

@@ -52,7 +52,9 @@ pub fn changes(
     let previous_period = previous.period.as_deref().unwrap_or_default();
     let now_period = current.period.as_deref().unwrap_or_default();
     let mut widths = style::Widths::default();
-    for m in crate::history::moves_between(previous_period, previous, now_period, current) {
+    let moves = crate::history::moves_between(previous_period, previous, now_period, current);
+    let (moves, unlisted) = listed(moves, run.drift, crate::eval::MAX_SHEET_ENTRIES);
+    for m in moves {
         for (c, text) in [(0, &m.block), (1, &m.group), (2, &m.name)] {
             widths.seen(r, c, style::write_text(sheet, r, c, text)?);
         }
@@ -75,10 +77,45 @@ pub fn changes(
         crate::history::write_noise(sheet, r, 8, &m)?;
         r += 1;
     }
+    if unlisted > 0 {
+        let said = format!(
+            "... and {unlisted} more changes, none flagged, not listed: a sheet holds {} rows (every figure is on the Record sheet and in --json)",
+            crate::load::MAX_SHEET_ROWS
+        );
+        sheet.write_string_with_format(r, 0, &said, &style::reason())?;
+    }
     widths.seen(3, 6, "previous was 0".len());
     style::print_titles(sheet, 3, 3)?;
     style::fit_columns(sheet, 3, &labels, &widths)?;
     style::filter(sheet, 3, r - 1, labels.len())
+}
+
+/// The moves the Changes sheet lists when they fit in `room` rows; else
+/// every flagged move and as many others as fit, in their order, with how
+/// many were left out (a comparison of 100,000 groups can have millions).
+fn listed(
+    moves: Vec<crate::history::Move>,
+    drift: f64,
+    room: usize,
+) -> (Vec<crate::history::Move>, usize) {
+    if moves.len() <= room {
+        return (moves, 0);
+    }
+    let flagged = moves.iter().filter(|m| m.moved(drift)).count();
+    let mut others_room = room.saturating_sub(flagged);
+    let total = moves.len();
+    let kept: Vec<_> = moves
+        .into_iter()
+        .filter(|m| {
+            m.moved(drift)
+                || others_room.checked_sub(1).is_some_and(|left| {
+                    others_room = left;
+                    true
+                })
+        })
+        .collect();
+    let unlisted = total - kept.len();
+    (kept, unlisted)
 }
 
 pub fn record(
@@ -145,6 +182,28 @@ fn record_entries(
 mod tests {
     use super::*;
     use crate::history::{Entry, Record};
+
+    /// A comparison longer than the sheet keeps every flagged move and fills
+    /// the rest with the others in order, counting those left out.
+    #[test]
+    fn changes_beyond_the_sheet_keep_the_flagged_ones() {
+        let mv = |after: f64| crate::history::Move {
+            block: "B".into(),
+            group: format!("g{after}"),
+            name: "m".into(),
+            from: "1".into(),
+            to: "2".into(),
+            before: 1.0,
+            after,
+            se: None,
+        };
+        let moves = vec![mv(1.0), mv(1.01), mv(5.0), mv(1.02), mv(9.0)];
+        let (kept, unlisted) = listed(moves.clone(), 0.1, 3);
+        let groups: Vec<&str> = kept.iter().map(|m| m.group.as_str()).collect();
+        assert_eq!(groups, ["g1", "g5", "g9"]);
+        assert_eq!(unlisted, 2);
+        assert_eq!(listed(moves, 0.1, 5).1, 0);
+    }
 
     /// Entries spread over bands read back whole and in order (bands of 4
     /// rows here; a real band is 1,048,573 rows).
