@@ -7,7 +7,7 @@ use std::path::Path;
 use calamine::{Data, Reader, open_workbook_auto};
 use sha2::{Digest, Sha256};
 
-use crate::eval::{Block, One, PANEL_LABELS, Results, group_label};
+use crate::eval::{Block, One, PANEL_FIGURES, PanelFigure, Results, group_label};
 use crate::recipe::ast::StatementKind;
 use crate::recipe::{Recipe, pretty};
 
@@ -15,6 +15,12 @@ pub const RECORD_SHEET: &str = "Record";
 /// Columns from one band of entries on the Record sheet to the next (four
 /// and a blank); a long record continues in the next band.
 pub const RECORD_BAND_WIDTH: u16 = 5;
+/// The header of each band of entries on the Record sheet. Records written
+/// before stable keys head the third column `figure` and name panel
+/// figures by their labels; they are read with the names translated.
+pub const RECORD_HEADERS: [&str; 4] = ["block", "group", "figure key", "value"];
+/// The third header of a Record that names panel figures by their labels.
+const LABELS_HEADER: &str = "figure";
 /// The block name under which `change(...)` arguments are recorded.
 pub const TERM_BLOCK: &str = "(compared values)";
 
@@ -49,6 +55,43 @@ pub enum RecordError {
         theirs: String,
         ours: String,
     },
+}
+
+/// The Record's name for a panel figure of a column: the column's name and
+/// the figure's stable key (`late_h q1`). Keys have no spaces, so the key is
+/// whatever follows the last space.
+pub fn panel_entry_name(column: &str, figure: &PanelFigure) -> String {
+    format!("{column} {}", figure.key)
+}
+
+/// The column and panel figure a Record name stands for, or None for a
+/// figures block's figure (a recipe name, which has no space).
+pub fn panel_figure_of(name: &str) -> Option<(&str, &'static PanelFigure)> {
+    let (column, key) = name.rsplit_once(' ')?;
+    Some((column, crate::eval::panel_figure(key)?))
+}
+
+/// A Record name as the workbook shows it: a panel figure by its label
+/// (`late_h Q1`), anything else as recorded.
+pub fn shown_name(block: &str, name: &str) -> String {
+    match panel_figure_of(name) {
+        Some((column, figure)) if block != TERM_BLOCK => format!("{column} {}", figure.label),
+        _ => name.to_string(),
+    }
+}
+
+/// A name from a Record written before stable keys, which named a panel
+/// figure by its display label (`late_h skewness g1`), in today's form
+/// (`late_h skewness_g1`); other names are returned as they are.
+fn name_from_label(name: String) -> String {
+    PANEL_FIGURES
+        .iter()
+        .find_map(|f| {
+            name.strip_suffix(f.label)
+                .and_then(|column| column.strip_suffix(' '))
+                .map(|column| panel_entry_name(column, f))
+        })
+        .unwrap_or(name)
 }
 
 /// SHA-256 of the canonical text of what the recipe computes: layout and
@@ -97,13 +140,13 @@ impl Record {
                     ..
                 } => {
                     for e in rows {
-                        for (label, value) in PANEL_LABELS.iter().zip(&e.figures) {
+                        for (figure, value) in PANEL_FIGURES.iter().zip(&e.figures) {
                             // A date figure is kept as its serial, as before dates were typed.
                             if let One::Number(x) | One::Date(x) = value {
                                 entries.push(Entry {
                                     block: name.clone(),
                                     group: group_label(&e.group),
-                                    name: format!("{} {label}", e.column),
+                                    name: panel_entry_name(&e.column, figure),
                                     value: *x,
                                 });
                             }
@@ -189,6 +232,7 @@ impl Record {
             });
         }
         let period = Some(cell(1, 1)).filter(|p| !p.is_empty() && p != "(none)");
+        let by_label = cell(2, 2) == LABELS_HEADER;
         let width = rows.iter().map(|r| r.len()).max().unwrap_or(0);
         let bands = width.div_ceil(RECORD_BAND_WIDTH as usize);
         let entries = (0..bands)
@@ -200,10 +244,15 @@ impl Record {
                         Data::Int(i) => *i as f64,
                         _ => return None,
                     };
+                    let block = text(row.get(left));
+                    let name = match by_label && block != TERM_BLOCK {
+                        true => name_from_label(text(row.get(left + 2))),
+                        false => text(row.get(left + 2)),
+                    };
                     Some(Entry {
-                        block: text(row.get(left)),
+                        block,
                         group: text(row.get(left + 1)),
-                        name: text(row.get(left + 2)),
+                        name,
                         value,
                     })
                 })

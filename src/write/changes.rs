@@ -53,7 +53,8 @@ pub fn changes(
     let now_period = current.period.as_deref().unwrap_or_default();
     let mut widths = style::Widths::default();
     for m in crate::history::moves_between(previous_period, previous, now_period, current) {
-        for (c, text) in [(0, &m.block), (1, &m.group), (2, &m.name)] {
+        let name = crate::history::shown_name(&m.block, &m.name);
+        for (c, text) in [(0, &m.block), (1, &m.group), (2, &name)] {
             widths.seen(r, c, style::write_text(sheet, r, c, text)?);
         }
         for (c, x) in [(3, m.before), (4, m.after), (5, m.after - m.before)] {
@@ -125,7 +126,7 @@ fn record_entries(
     }
     for band in 0..bands as u16 {
         let left = band * RECORD_BAND_WIDTH;
-        for (c, h) in ["block", "group", "figure", "value"].iter().enumerate() {
+        for (c, h) in crate::history::RECORD_HEADERS.iter().enumerate() {
             sheet.write_string_with_format(2, left + c as u16, *h, &style::header())?;
             sheet.set_column_width(left + c as u16, 24)?;
         }
