@@ -60,6 +60,11 @@ const EXPRESSIONS: &[(&str, &str)] = &[
     ("2 != 2", "false"),
     ("\"a\" == \"a\"", "true"),
     ("\"a\" != \"b\"", "true"),
+    // Truths compared with truths (single values).
+    ("(3 > 2) == (1 > 0)", "true"),
+    ("(3 > 2) == (1 > 5)", "false"),
+    ("(3 > 2) != (1 > 0)", "false"),
+    ("(3 > 2) != (1 > 5)", "true"),
     // Per row: missing stays missing through arithmetic; non-finite is missing.
     ("w", "10 20 _ 40 30"),
     ("w + 1", "11 21 _ 41 31"),
@@ -434,6 +439,11 @@ const RECIPES: &[(&str, &str)] = &[
     (
         "figures \"F\" per k, m:\n    s = sum(x)\n",
         "7 / 1: 1; 7 / (blank): 2; 7 / 3: 3; 7 / 4: 4; 7 / 5: 10",
+    ),
+    // Two keys whose pair repeats: rows 1, 2 and 4 are one group.
+    (
+        "figures \"F\" per k, status:\n    n = count(x)\n    s = sum(x)\n",
+        "7 / done: 3, 7; 7 / cancelled: 1, 3; 7 / late: 1, 10",
     ),
     // A block's own where, and groups formed after it.
     (
@@ -991,4 +1001,25 @@ fn the_table_is_large_enough_and_its_matcher_can_fail() {
         "none(needs at least 3 values, has 1)"
     ));
     assert!(matches("-5 _ 1e-7", "-5 _ 0.0000001"));
+}
+
+/// A panel with more (group, column) rows than a sheet holds is refused
+/// before any figure is computed: 100,000 groups of 11 columns.
+#[test]
+fn a_panel_larger_than_a_sheet_is_refused_before_the_work() {
+    let mut csv = String::from("id,x\n");
+    for i in 0..100_000 {
+        csv.push_str(&format!("{i},{}\n", i % 7));
+    }
+    let (_dir, t) = table(&csv);
+    let lets: String = (0..10).map(|i| format!("let x{i} = x + {i}\n")).collect();
+    let columns: Vec<String> = (0..10).map(|i| format!("x{i}")).collect();
+    let source = format!("{lets}panel \"P\" of x, {} per id:\n", columns.join(", "));
+    let started = std::time::Instant::now();
+    let said = run_recipe(&source, &t, None).unwrap_err();
+    assert!(
+        said.contains("would have 1100000 (group, column) rows"),
+        "{said}"
+    );
+    assert!(started.elapsed() < std::time::Duration::from_secs(60));
 }

@@ -101,7 +101,7 @@ fn a_single_run_prints_one_valid_document_with_everything_the_workbook_holds() {
     let panel = &doc["blocks"][0];
     assert_eq!(panel["kind"], "panel");
     let entry = &panel["entries"][0];
-    // Keys from the panel's own labels ("Bowley skewness", "Q1").
+    // Stable keys from the panel table (labels "Bowley skewness", "Q1").
     assert!(entry["figures"]["bowley_skewness"].is_number(), "{entry}");
     assert!(entry["figures"]["q1"].is_number());
     let robustness = &entry["robustness"];
@@ -163,7 +163,7 @@ fn a_batch_prints_json_lines_one_per_file_then_the_trend() {
         .find(|f| {
             f["figure"]
                 .as_str()
-                .is_some_and(|n| n.ends_with("skewness g1"))
+                .is_some_and(|n| n.ends_with("skewness_g1"))
         })
         .expect("a skewness among the changes");
     assert!(shape["standard_error"].is_null());

@@ -7,7 +7,7 @@ use std::path::{Path, PathBuf};
 mod common;
 
 use calamine::{Data, Reader, open_workbook_auto};
-use common::{cells, sheaf, text};
+use common::{cells, root, sheaf, text};
 
 const MONTHS: [&str; 3] = common::DEMO_MONTHS;
 
@@ -368,4 +368,54 @@ fn trend_rows_carry_the_change_and_its_noise_scaled_size() {
         row(oct, "late_h median")[6].to_string(),
         "no standard error"
     );
+}
+
+/// A result written before the Record stored stable keys (its Record names
+/// panel figures by their labels, `late_h skewness g1`) compares exactly as
+/// a result written today: the same Changes sheet, row for row. Today's
+/// Record stores keys (`late_h skewness_g1`); the Changes sheet shows labels.
+#[test]
+fn an_older_record_with_display_labels_still_compares() {
+    let dir = tempfile::tempdir().unwrap();
+    let months = months_in(dir.path());
+    let old = root().join("tests/fixtures/record-labels-2026-09.xlsx");
+    let old_record = cells(&old, "Record");
+    assert_eq!(old_record[2][2], "figure", "the fixture is of the old form");
+    assert!(old_record.iter().any(|r| r[2] == "late_h skewness g1"));
+    let new = dir.path().join("sept.xlsx");
+    let recipe_path = recipe();
+    let run = |data: &Path, out: &Path, extra: &[&str]| {
+        let mut args = vec!["run", &recipe_path, "--data"];
+        let (data, out) = (data.display().to_string(), out.display().to_string());
+        args.extend([data.as_str(), "--out", out.as_str()]);
+        args.extend_from_slice(extra);
+        let o = sheaf(&args, dir.path());
+        assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    };
+    run(&months.join("depot-2026-09.xlsx"), &new, &[]);
+    let new_record = cells(&new, "Record");
+    assert_eq!(new_record[2][2], "figure key");
+    assert!(new_record.iter().any(|r| r[2] == "late_h skewness_g1"));
+    assert!(!new_record.iter().any(|r| r[2] == "late_h skewness g1"));
+
+    let oct = months.join("depot-2026-10.xlsx");
+    let (against_old, against_new) = (dir.path().join("a.xlsx"), dir.path().join("b.xlsx"));
+    run(&oct, &against_old, &["--compare", old.to_str().unwrap()]);
+    run(&oct, &against_new, &["--compare", new.to_str().unwrap()]);
+    let changes = cells(&against_old, "Changes");
+    assert_eq!(changes, cells(&against_new, "Changes"));
+    for shown in [
+        "late_h skewness g1",
+        "late_h Q1",
+        "weight_kg Bowley skewness",
+    ] {
+        assert!(
+            changes.iter().any(|r| r[2] == shown),
+            "{shown}: {changes:?}"
+        );
+    }
+    // Every panel figure of both months is compared: 18 figures, less the
+    // modes (a list) and the mode basis (words), for 2 columns in 3 depots.
+    let panel_rows = changes.iter().filter(|r| r[0] == "Lateness").count();
+    assert_eq!(panel_rows, 16 * 2 * 3);
 }

@@ -13,13 +13,15 @@ use std::collections::HashMap;
 use rayon::prelude::*;
 
 use crate::load::{IssueKind, Table};
-use crate::recipe::ast::{Bins, CheckLevel, ColumnRef, Expr, ExprKind, Recipe, StatementKind};
+use crate::recipe::ast::{
+    Bins, CheckLevel, ColumnRef, Expr, ExprKind, Figure, Recipe, StatementKind,
+};
 use crate::stats::{self, BinRule, Histogram};
 
 pub use panel::{
     BoxSummary, CellName, CellPlace, FigureKind, Finding, Flagged, GAP_NOTE_IQR, GAP_WARN_IQR,
-    Influence, PANEL_FIGURES, PANEL_LABELS, PanelEntry, PanelFigure, Robustness, Rule, Signals,
-    Status, dates_note, findings,
+    Influence, OnDates, PANEL_FIGURES, PANEL_LABELS, PanelEntry, PanelFigure, Robustness, Rule,
+    Signals, Status, dates_note, figure_value, findings, panel_figure,
 };
 pub use value::{Context, One, Previous, Row, Rows, Scope, Term, Value};
 
@@ -371,29 +373,45 @@ pub fn evaluate_against(
     table: &Table,
     previous: Option<Previous>,
 ) -> Result<Results, EvalError> {
-    let context = Context {
-        previous,
-        terms: Default::default(),
+    let mut run = Run {
+        table,
+        context: Context {
+            previous,
+            terms: Default::default(),
+        },
+        lets: value::Lets::new(),
+        sources: HashMap::new(),
+        kept: (0..table.rows as Row).collect(),
+        results: Results {
+            title: None,
+            blocks: Vec::new(),
+            checks: Vec::new(),
+            charts: Vec::new(),
+            rows_read: table.rows,
+            rows_skipped: Vec::new(),
+            missing_cells: missing_cells(recipe, table),
+            terms: Vec::new(),
+            warnings: Vec::new(),
+        },
     };
-    let mut lets = value::Lets::new();
-    // For each let, the data columns it is computed from (for source cells).
-    let mut sources: HashMap<String, Vec<String>> = HashMap::new();
-    let mut kept: Vec<Row> = (0..table.rows as Row).collect();
-    let mut results = Results {
-        title: None,
-        blocks: Vec::new(),
-        checks: Vec::new(),
-        charts: Vec::new(),
-        rows_read: table.rows,
-        rows_skipped: Vec::new(),
-        missing_cells: Vec::new(),
-        terms: Vec::new(),
-        warnings: Vec::new(),
-    };
+    for statement in &recipe.statements {
+        run.statement(&statement.kind)?;
+    }
+    let mut terms = run.context.terms.into_inner();
+    let mut seen = std::collections::HashSet::new();
+    terms.retain(|t| seen.insert((t.expression.clone(), t.group.clone())));
+    run.results.terms = terms;
+    Ok(run.results)
+}
+
+/// The cells of the columns a recipe uses that hold no number where one was
+/// expected, or text that could not be read.
+fn missing_cells(recipe: &Recipe, table: &Table) -> Vec<MissingCell> {
+    let mut cells = Vec::new();
     for name in columns_used(recipe) {
         if let Some(column) = table.column(&name) {
             for issue in column.issues() {
-                results.missing_cells.push(MissingCell {
+                cells.push(MissingCell {
                     address: table.address(column, issue.row),
                     column: name.clone(),
                     kind: issue.kind,
@@ -402,239 +420,311 @@ pub fn evaluate_against(
             }
         }
     }
-    for statement in &recipe.statements {
-        match &statement.kind {
-            StatementKind::Title(t) => results.title = Some(t.value.clone()),
+    cells
+}
+
+/// The state of one evaluation as it goes down the recipe: the `let`
+/// columns so far, the rows `rows where` has kept, and the results.
+struct Run<'a> {
+    table: &'a Table,
+    context: Context,
+    lets: value::Lets,
+    /// For each let, the data columns it is computed from (for source cells).
+    sources: HashMap<String, Vec<String>>,
+    kept: Vec<Row>,
+    results: Results,
+}
+
+impl Run<'_> {
+    /// Evaluates one statement; every statement kind is listed here.
+    fn statement(&mut self, kind: &StatementKind) -> Result<(), EvalError> {
+        match kind {
+            StatementKind::Title(t) => self.results.title = Some(t.value.clone()),
             StatementKind::Input { .. }
             | StatementKind::Header { .. }
             | StatementKind::Period(_)
             | StatementKind::Drift(_) => {}
-            StatementKind::Let { name, value: e } => {
-                let scope = Scope::new(table, &lets, &kept);
-                let full = widen(scope.eval(e), &kept, table.rows);
-                lets.insert(name.value.clone(), full);
-                let mut used = Vec::new();
-                collect_columns(e, &mut used);
-                let mut data_columns: Vec<String> = Vec::new();
-                for u in used {
-                    let behind = sources.get(&u).cloned().unwrap_or_else(|| vec![u]);
-                    for b in behind {
-                        if !data_columns.contains(&b) {
-                            data_columns.push(b);
-                        }
-                    }
-                }
-                sources.insert(name.value.clone(), data_columns);
-            }
-            StatementKind::RowsWhere(condition) => {
-                let scope = Scope::new(table, &lets, &kept);
-                let (now, failed, unknown) = filter(&scope, condition);
-                let text = crate::recipe::pretty::expr(condition);
-                if failed > 0 {
-                    results
-                        .rows_skipped
-                        .push((format!("rows where {text}: condition false"), failed));
-                }
-                if unknown > 0 {
-                    results.rows_skipped.push((
-                        format!(
-                            "rows where {text}: condition could not be evaluated (missing value)"
-                        ),
-                        unknown,
-                    ));
-                }
-                kept = now;
-            }
+            StatementKind::Let { name, value } => self.let_column(&name.value, value),
+            StatementKind::RowsWhere(condition) => self.rows_where(condition),
             StatementKind::Panel {
                 name,
                 columns,
                 per,
-                filter: block_filter,
-            } => {
-                let rows = block_rows(table, &lets, &kept, block_filter);
-                let scope = Scope::new(table, &lets, &rows);
-                // Each (group, column) is independent and the robustness checks
-                // dominate, so they run in parallel; a sample is built inside its
-                // job, so only as many exist at once as there are threads.
-                let all_groups = groups(&scope, per)?;
-                // Known before the work: the panel sheet must hold a row per job.
-                let pairs = all_groups.len() * columns.len();
-                if pairs > MAX_SHEET_ENTRIES {
-                    return Err(EvalError::PanelTooLarge {
-                        block: name.value.clone(),
-                        pairs,
-                    });
-                }
-                let jobs: Vec<(usize, &ColumnRef)> = (0..all_groups.len())
-                    .flat_map(|g| columns.iter().map(move |c| (g, c)))
-                    .collect();
-                let date_columns: Vec<&str> = columns
-                    .iter()
-                    .map(|c| c.name.as_str())
-                    .filter(|name| scope.column_holds_dates(name))
-                    .collect();
-                let entries: Vec<PanelEntry> = jobs
-                    .par_iter()
-                    .map(|&(g, column)| {
-                        let (group, group_rows) = &all_groups[g];
-                        let sample =
-                            Scope::new(table, &lets, group_rows).column_sample(&column.name);
-                        let cells = CellNamer::new(table, &sources, &column.name);
-                        let address =
-                            |i: usize| cells.name(group_rows[sample.position(i)] as usize);
-                        let fenced = panel::fenced(&sample);
-                        let mut figures = panel::panel_figures(&sample, &fenced);
-                        if date_columns.contains(&column.name.as_str()) {
-                            figures = panel::figures_of_dates(figures);
-                        }
-                        PanelEntry {
-                            group: group.clone(),
-                            column: column.name.clone(),
-                            figures,
-                            robustness: panel::robustness(&sample, &fenced, &address),
-                            sample_summary: panel::box_summary(&sample),
-                        }
-                    })
-                    .collect();
-                let keys = per.iter().map(|k| k.name.clone()).collect();
-                results.blocks.push(Block::Panel {
-                    name: name.value.clone(),
-                    keys,
-                    entries,
-                    rows_used: rows.len(),
-                });
-            }
+                filter,
+            } => self.panel(&name.value, columns, per, filter.as_ref())?,
             StatementKind::Figures {
                 name,
                 per,
-                filter: block_filter,
+                filter,
                 figures,
-            } => {
-                let rows = block_rows(table, &lets, &kept, block_filter);
-                let scope = Scope::new(table, &lets, &rows);
-                let mut out = Vec::new();
-                for (group, group_rows) in groups(&scope, per)? {
-                    let group_scope =
-                        Scope::new(table, &lets, &group_rows).grouped(&group, &context);
-                    let values = figures
-                        .iter()
-                        .map(|f| one(group_scope.eval(&f.value)))
-                        .collect();
-                    out.push(FigureRow {
-                        group,
-                        rows: group_rows.len(),
-                        values,
-                    });
-                }
-                results.blocks.push(Block::Figures {
-                    name: name.value.clone(),
-                    keys: per.iter().map(|k| k.name.clone()).collect(),
-                    names: figures.iter().map(|f| f.name.value.clone()).collect(),
-                    rows: out,
-                });
-            }
+            } => self.figures(&name.value, per, filter.as_ref(), figures)?,
             StatementKind::Check {
                 name,
                 level,
                 per,
                 condition,
-            } => {
-                let scope = Scope::new(table, &lets, &kept).grouped(&[], &context);
-                results
-                    .checks
-                    .push(check(&scope, &name.value, *level, condition, None));
-                if !per.is_empty() {
-                    let check_groups = groups(&scope, per)?;
-                    // Known before the work: the Checks sheet holds a row per result.
-                    let rows = results.checks.len() + check_groups.len();
-                    if rows > MAX_SHEET_ENTRIES {
-                        return Err(EvalError::TooManyChecks {
-                            check: name.value.clone(),
-                            rows,
-                        });
-                    }
-                    for (group, group_rows) in check_groups {
-                        let group_scope =
-                            Scope::new(table, &lets, &group_rows).grouped(&group, &context);
-                        results.checks.push(check(
-                            &group_scope,
-                            &name.value,
-                            *level,
-                            condition,
-                            Some(group),
-                        ));
-                    }
-                }
-            }
+            } => self.check(&name.value, *level, per, condition)?,
             StatementKind::Histogram { column, per, bins } => {
-                let scope = Scope::new(table, &lets, &kept);
-                let rule = match bins.as_ref().map(|b| &b.value) {
-                    Some(Bins::Count(k)) => BinRule::Fixed(*k as usize),
-                    Some(Bins::Rule(word)) => BinRule::from_word(word).unwrap_or(BinRule::Sturges),
-                    None => BinRule::Sturges,
-                };
-                let chart_groups = groups(&scope, per)?;
-                // Known before the work: one chart per group, each a block of rows.
-                let charts = results.charts.len() + chart_groups.len();
-                if charts > MAX_CHARTS {
-                    return Err(EvalError::TooManyCharts {
-                        column: column.name.clone(),
-                        charts,
-                    });
-                }
-                for (group, group_rows) in chart_groups {
-                    let group_scope =
-                        Scope::new(table, &lets, &group_rows).grouped(&group, &context);
-                    let sample = group_scope.sample(&column_expr(column));
-                    match stats::histogram(&sample, rule) {
-                        Ok(histogram) => results.charts.push(Chart::Histogram {
-                            column: column.name.clone(),
-                            group,
-                            histogram,
-                            rule: rule.word(),
-                        }),
-                        // Not drawn, but said: a chart never goes missing in silence.
-                        Err(why) => results.warnings.push(format!(
-                            "histogram of {}, {}: not drawn ({why})",
-                            column.name,
-                            group_label(&group)
-                        )),
-                    }
-                }
+                self.histogram(column, per, bins.as_ref().map(|b| &b.value))?
             }
-            StatementKind::Boxplot { column, per } => {
-                let scope = Scope::new(table, &lets, &kept);
-                let mut boxes = Vec::new();
-                for (group, group_rows) in groups(&scope, per)? {
-                    let group_scope =
-                        Scope::new(table, &lets, &group_rows).grouped(&group, &context);
-                    let sample = group_scope.sample(&column_expr(column));
-                    match panel::box_summary(&sample) {
-                        Some(summary) => boxes.push((group, summary)),
-                        None => results.warnings.push(format!(
-                            "box plot of {}, {}: no box drawn ({})",
-                            column.name,
-                            group_label(&group),
-                            if sample.is_empty() {
-                                "no values"
-                            } else {
-                                "its quartiles could not be computed"
-                            }
-                        )),
-                    }
+            StatementKind::Boxplot { column, per } => self.boxplot(column, per)?,
+        }
+        Ok(())
+    }
+
+    /// The scope of the rows kept so far.
+    fn scope(&self) -> Scope<'_> {
+        Scope::new(self.table, &self.lets, &self.kept)
+    }
+
+    /// The scope of one group's rows, with its key for `change(...)`.
+    fn group_scope<'s>(&'s self, group: &'s [String], rows: &'s [Row]) -> Scope<'s> {
+        Scope::new(self.table, &self.lets, rows).grouped(group, &self.context)
+    }
+
+    fn let_column(&mut self, name: &str, e: &Expr) {
+        let full = widen(self.scope().eval(e), &self.kept, self.table.rows);
+        self.lets.insert(name.to_string(), full);
+        let mut used = Vec::new();
+        collect_columns(e, &mut used);
+        let mut data_columns: Vec<String> = Vec::new();
+        for u in used {
+            let behind = self.sources.get(&u).cloned().unwrap_or_else(|| vec![u]);
+            for b in behind {
+                if !data_columns.contains(&b) {
+                    data_columns.push(b);
                 }
-                results.charts.push(Chart::Boxplot {
-                    column: column.name.clone(),
-                    boxes,
-                });
             }
         }
+        self.sources.insert(name.to_string(), data_columns);
     }
-    let mut terms = context.terms.into_inner();
-    let mut seen = std::collections::HashSet::new();
-    terms.retain(|t| seen.insert((t.expression.clone(), t.group.clone())));
-    results.terms = terms;
-    Ok(results)
+
+    fn rows_where(&mut self, condition: &Expr) {
+        let (now, failed, unknown) = filter(&self.scope(), condition);
+        let text = crate::recipe::pretty::expr(condition);
+        if failed > 0 {
+            self.results
+                .rows_skipped
+                .push((format!("rows where {text}: condition false"), failed));
+        }
+        if unknown > 0 {
+            self.results.rows_skipped.push((
+                format!("rows where {text}: condition could not be evaluated (missing value)"),
+                unknown,
+            ));
+        }
+        self.kept = now;
+    }
+
+    fn panel(
+        &mut self,
+        name: &str,
+        columns: &[ColumnRef],
+        per: &[ColumnRef],
+        block_filter: Option<&Expr>,
+    ) -> Result<(), EvalError> {
+        let rows = block_rows(self.table, &self.lets, &self.kept, block_filter);
+        let scope = Scope::new(self.table, &self.lets, &rows);
+        let all_groups = groups(&scope, per)?;
+        // Known before the work: the panel sheet must hold a row per job.
+        let pairs = all_groups.len() * columns.len();
+        if pairs > MAX_SHEET_ENTRIES {
+            return Err(EvalError::PanelTooLarge {
+                block: name.to_string(),
+                pairs,
+            });
+        }
+        let jobs: Vec<(usize, &ColumnRef)> = (0..all_groups.len())
+            .flat_map(|g| columns.iter().map(move |c| (g, c)))
+            .collect();
+        let date_columns: Vec<&str> = columns
+            .iter()
+            .map(|c| c.name.as_str())
+            .filter(|name| scope.column_holds_dates(name))
+            .collect();
+        // Each (group, column) is independent and the robustness checks
+        // dominate, so they run in parallel; a sample is built inside its
+        // job, so only as many exist at once as there are threads.
+        let (table, lets, sources) = (self.table, &self.lets, &self.sources);
+        let entries: Vec<PanelEntry> = jobs
+            .par_iter()
+            .map(|&(g, column)| {
+                let (group, group_rows) = &all_groups[g];
+                let is_date = date_columns.contains(&column.name.as_str());
+                let scope = Scope::new(table, lets, group_rows);
+                let cells = CellNamer::new(table, sources, &column.name);
+                panel_entry(&scope, &cells, group, column, is_date)
+            })
+            .collect();
+        self.results.blocks.push(Block::Panel {
+            name: name.to_string(),
+            keys: per.iter().map(|k| k.name.clone()).collect(),
+            entries,
+            rows_used: rows.len(),
+        });
+        Ok(())
+    }
+
+    fn figures(
+        &mut self,
+        name: &str,
+        per: &[ColumnRef],
+        block_filter: Option<&Expr>,
+        figures: &[Figure],
+    ) -> Result<(), EvalError> {
+        let rows = block_rows(self.table, &self.lets, &self.kept, block_filter);
+        let scope = Scope::new(self.table, &self.lets, &rows);
+        let mut out = Vec::new();
+        for (group, group_rows) in groups(&scope, per)? {
+            let group_scope = self.group_scope(&group, &group_rows);
+            let values = figures
+                .iter()
+                .map(|f| one(group_scope.eval(&f.value)))
+                .collect();
+            out.push(FigureRow {
+                group,
+                rows: group_rows.len(),
+                values,
+            });
+        }
+        self.results.blocks.push(Block::Figures {
+            name: name.to_string(),
+            keys: per.iter().map(|k| k.name.clone()).collect(),
+            names: figures.iter().map(|f| f.name.value.clone()).collect(),
+            rows: out,
+        });
+        Ok(())
+    }
+
+    /// A check over all kept rows, then, with `per`, over each group.
+    fn check(
+        &mut self,
+        name: &str,
+        level: CheckLevel,
+        per: &[ColumnRef],
+        condition: &Expr,
+    ) -> Result<(), EvalError> {
+        let scope = self.group_scope(&[], &self.kept);
+        let overall = check(&scope, name, level, condition, None);
+        let mut found = vec![overall];
+        if !per.is_empty() {
+            let check_groups = groups(&scope, per)?;
+            // Known before the work: the Checks sheet holds a row per result.
+            let rows = self.results.checks.len() + 1 + check_groups.len();
+            if rows > MAX_SHEET_ENTRIES {
+                return Err(EvalError::TooManyChecks {
+                    check: name.to_string(),
+                    rows,
+                });
+            }
+            for (group, group_rows) in check_groups {
+                let group_scope = self.group_scope(&group, &group_rows);
+                found.push(check(
+                    &group_scope,
+                    name,
+                    level,
+                    condition,
+                    Some(group.clone()),
+                ));
+            }
+        }
+        self.results.checks.extend(found);
+        Ok(())
+    }
+
+    fn histogram(
+        &mut self,
+        column: &ColumnRef,
+        per: &[ColumnRef],
+        bins: Option<&Bins>,
+    ) -> Result<(), EvalError> {
+        let rule = match bins {
+            Some(Bins::Count(k)) => BinRule::Fixed(*k as usize),
+            Some(Bins::Rule(word)) => BinRule::from_word(word).unwrap_or(BinRule::Sturges),
+            None => BinRule::Sturges,
+        };
+        let chart_groups = groups(&self.scope(), per)?;
+        // Known before the work: one chart per group, each a block of rows.
+        let charts = self.results.charts.len() + chart_groups.len();
+        if charts > MAX_CHARTS {
+            return Err(EvalError::TooManyCharts {
+                column: column.name.clone(),
+                charts,
+            });
+        }
+        for (group, group_rows) in chart_groups {
+            let sample = self
+                .group_scope(&group, &group_rows)
+                .sample(&column_expr(column));
+            match stats::histogram(&sample, rule) {
+                Ok(histogram) => self.results.charts.push(Chart::Histogram {
+                    column: column.name.clone(),
+                    group,
+                    histogram,
+                    rule: rule.word(),
+                }),
+                // Not drawn, but said: a chart never goes missing in silence.
+                Err(why) => self.results.warnings.push(format!(
+                    "histogram of {}, {}: not drawn ({why})",
+                    column.name,
+                    group_label(&group)
+                )),
+            }
+        }
+        Ok(())
+    }
+
+    fn boxplot(&mut self, column: &ColumnRef, per: &[ColumnRef]) -> Result<(), EvalError> {
+        let mut boxes = Vec::new();
+        for (group, group_rows) in groups(&self.scope(), per)? {
+            let sample = self
+                .group_scope(&group, &group_rows)
+                .sample(&column_expr(column));
+            match panel::box_summary(&sample) {
+                Some(summary) => boxes.push((group, summary)),
+                None => self.results.warnings.push(format!(
+                    "box plot of {}, {}: no box drawn ({})",
+                    column.name,
+                    group_label(&group),
+                    if sample.is_empty() {
+                        "no values"
+                    } else {
+                        "its quartiles could not be computed"
+                    }
+                )),
+            }
+        }
+        self.results.charts.push(Chart::Boxplot {
+            column: column.name.clone(),
+            boxes,
+        });
+        Ok(())
+    }
+}
+
+/// The panel and robustness of one column in one group (`scope` holds the
+/// group's rows).
+fn panel_entry(
+    scope: &Scope,
+    cells: &CellNamer,
+    group: &[String],
+    column: &ColumnRef,
+    is_date: bool,
+) -> PanelEntry {
+    let sample = scope.column_sample(&column.name);
+    let address = |i: usize| cells.name(scope.rows[sample.position(i)] as usize);
+    let fenced = panel::fenced(&sample);
+    let mut figures = panel::panel_figures(&sample, &fenced);
+    if is_date {
+        figures = panel::figures_of_dates(figures);
+    }
+    PanelEntry {
+        group: group.to_vec(),
+        column: column.name.clone(),
+        figures,
+        robustness: panel::robustness(&sample, &fenced, &address),
+        sample_summary: panel::box_summary(&sample),
+    }
 }
 
 fn column_expr(column: &ColumnRef) -> Expr {
@@ -690,7 +780,7 @@ fn block_rows<'a>(
     table: &Table,
     lets: &value::Lets,
     kept: &'a [Row],
-    condition: &Option<Expr>,
+    condition: Option<&Expr>,
 ) -> std::borrow::Cow<'a, [Row]> {
     match condition {
         None => std::borrow::Cow::Borrowed(kept),

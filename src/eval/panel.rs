@@ -22,38 +22,147 @@ pub enum FigureKind {
     Words,
 }
 
-/// One figure of the standard panel: its label and how it is shown.
+/// One figure of the standard panel: the one place that says what it is
+/// called, how it is shown, how it is computed and how it is compared
+/// between periods. The panel sheet, the `--json` report, the Record, the
+/// Changes sheet and the list of figures without values all read this row.
 #[derive(Debug, Clone, Copy)]
 pub struct PanelFigure {
+    /// Stable key: the `--json` key and the name the Record stores (after
+    /// the column's name). Never renamed, so older Records still compare.
+    pub key: &'static str,
+    /// The panel sheet's column header; may be reworded freely.
     pub label: &'static str,
+    /// How the workbook shows it.
     pub kind: FigureKind,
+    /// What it becomes for a date column.
+    pub on_dates: OnDates,
+    /// Whether a move beyond the recipe's `drift` flags it on the Changes
+    /// sheet. Shape figures, extremes and counts of odd cells are not
+    /// flagged (sheaf's rule: the robustness sheet judges shape against its
+    /// own noise, and a minimum or maximum is one row, not a level); their
+    /// change is still listed.
+    pub drift_flagged: bool,
+    /// Computes it from a group's sample and its fenced outliers.
+    pub value: fn(&Sample, &Fenced) -> One,
 }
 
-const fn figure(label: &'static str, kind: FigureKind) -> PanelFigure {
-    PanelFigure { label, kind }
+/// What a panel figure of a date column is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum OnDates {
+    /// A date (the mean and the order statistics).
+    Date,
+    /// A number of days (the spreads).
+    Days,
+    /// A list of dates, shown as ISO dates (the modes).
+    DateList,
+    /// As for numbers (counts, shape figures, words).
+    Same,
 }
+
+const fn figure(
+    key: &'static str,
+    label: &'static str,
+    kind: FigureKind,
+    on_dates: OnDates,
+    drift_flagged: bool,
+    value: fn(&Sample, &Fenced) -> One,
+) -> PanelFigure {
+    PanelFigure {
+        key,
+        label,
+        kind,
+        on_dates,
+        drift_flagged,
+        value,
+    }
+}
+
+use FigureKind::{Count, Measure, Shape, Words};
+use OnDates::{Date, DateList, Days, Same};
 
 /// The standard panel's figures, in the order the panel sheet shows them.
 pub const PANEL_FIGURES: [PanelFigure; 18] = [
-    figure("n", FigureKind::Count),
-    figure("missing", FigureKind::Count),
-    figure("mean", FigureKind::Measure),
-    figure("sd", FigureKind::Measure),
-    figure("min", FigureKind::Measure),
-    figure("Q1", FigureKind::Measure),
-    figure("median", FigureKind::Measure),
-    figure("Q3", FigureKind::Measure),
-    figure("max", FigureKind::Measure),
-    figure("range", FigureKind::Measure),
-    figure("IQR", FigureKind::Measure),
-    figure("modes", FigureKind::Measure),
-    figure("mode basis", FigureKind::Words),
-    figure("skewness g1", FigureKind::Shape),
-    figure("Bowley skewness", FigureKind::Shape),
-    figure("kurtosis b2", FigureKind::Shape),
-    figure("low outliers", FigureKind::Count),
-    figure("high outliers", FigureKind::Count),
+    figure("n", "n", Count, Same, true, |s, _| {
+        One::Number(s.count() as f64)
+    }),
+    figure("missing", "missing", Count, Same, false, |s, _| {
+        One::Number(s.missing() as f64)
+    }),
+    figure("mean", "mean", Measure, Date, true, |s, _| {
+        from_stat(s.mean())
+    }),
+    figure("sd", "sd", Measure, Days, true, |s, _| {
+        from_stat(s.sd(Denominator::Sample))
+    }),
+    figure("min", "min", Measure, Date, false, |s, _| {
+        from_stat(s.min())
+    }),
+    figure("q1", "Q1", Measure, Date, true, |s, _| {
+        from_stat(stats::quartile(s, 1, QuantileMethod::default()))
+    }),
+    figure("median", "median", Measure, Date, true, |s, _| {
+        from_stat(stats::median(s))
+    }),
+    figure("q3", "Q3", Measure, Date, true, |s, _| {
+        from_stat(stats::quartile(s, 3, QuantileMethod::default()))
+    }),
+    figure("max", "max", Measure, Date, false, |s, _| {
+        from_stat(s.max())
+    }),
+    figure("range", "range", Measure, Days, false, |s, _| {
+        from_stat(s.range())
+    }),
+    figure("iqr", "IQR", Measure, Days, true, |s, _| {
+        from_stat(stats::iqr(s, QuantileMethod::default()))
+    }),
+    figure("modes", "modes", Measure, DateList, false, |s, _| modes(s)),
+    figure("mode_basis", "mode basis", Words, Same, false, |s, _| {
+        mode_basis(s)
+    }),
+    figure("skewness_g1", "skewness g1", Shape, Same, false, |s, _| {
+        from_stat(moment_skewness(s))
+    }),
+    figure(
+        "bowley_skewness",
+        "Bowley skewness",
+        Shape,
+        Same,
+        false,
+        |s, _| from_stat(stats::bowley(s, QuantileMethod::default())),
+    ),
+    figure("kurtosis_b2", "kurtosis b2", Shape, Same, false, |s, _| {
+        from_stat(s.kurtosis(false))
+    }),
+    figure(
+        "low_outliers",
+        "low outliers",
+        Count,
+        Same,
+        false,
+        |_, f| outlier_count(f, |o| o.low.len()),
+    ),
+    figure(
+        "high_outliers",
+        "high outliers",
+        Count,
+        Same,
+        false,
+        |_, f| outlier_count(f, |o| o.high.len()),
+    ),
 ];
+
+/// The panel figure with this stable key.
+pub fn panel_figure(key: &str) -> Option<&'static PanelFigure> {
+    PANEL_FIGURES.iter().find(|f| f.key == key)
+}
+
+/// The figure an entry holds under `key` (entries hold
+/// [`PANEL_FIGURES`]' values in its order, computed from it).
+pub fn figure_value<'a>(figures: &'a [One], key: &str) -> Option<&'a One> {
+    let i = PANEL_FIGURES.iter().position(|f| f.key == key)?;
+    figures.get(i)
+}
 
 /// The labels of [`PANEL_FIGURES`], in the same order (read off it, not a
 /// second list).
@@ -162,7 +271,7 @@ pub struct Robustness {
 pub struct PanelEntry {
     pub group: Vec<String>,
     pub column: String,
-    /// Same order as [`PANEL_LABELS`].
+    /// In [`PANEL_FIGURES`]' order (computed from it).
     pub figures: Vec<One>,
     pub robustness: Robustness,
     /// For the box plot: the five numbers and the whisker ends.
@@ -194,71 +303,65 @@ pub fn fenced(s: &Sample) -> Fenced {
     Fenced { wide, far }
 }
 
-/// Figures of the standard panel.
+/// Figures of the standard panel, in [`PANEL_FIGURES`]' order.
 pub fn panel_figures(s: &Sample, fenced: &Fenced) -> Vec<One> {
-    let m = QuantileMethod::default();
-    let outliers = &fenced.wide;
-    let (modes, basis) = if s.is_empty() {
-        (
-            One::Undefined("no values".into()),
-            One::Undefined("no values".into()),
-        )
-    } else if is_whole(s.values()) {
-        (list(stats::modes(s)), One::Text("exact values".into()))
-    } else {
-        let k = stats::sturges_bins(s.count());
-        (
-            list(stats::binned_mode(s, k)),
-            One::Text(format!(
-                "binned, {k} equal bin{} (Sturges)",
-                if k == 1 { "" } else { "s" }
-            )),
-        )
-    };
-    vec![
-        One::Number(s.count() as f64),
-        One::Number(s.missing() as f64),
-        from_stat(s.mean()),
-        from_stat(s.sd(Denominator::Sample)),
-        from_stat(s.min()),
-        from_stat(stats::quartile(s, 1, m)),
-        from_stat(stats::median(s)),
-        from_stat(stats::quartile(s, 3, m)),
-        from_stat(s.max()),
-        from_stat(s.range()),
-        from_stat(stats::iqr(s, m)),
-        modes,
-        basis,
-        from_stat(moment_skewness(s)),
-        from_stat(stats::bowley(s, m)),
-        from_stat(s.kurtosis(false)),
-        from_stat(
-            outliers
-                .as_ref()
-                .map(|o| o.low.len() as f64)
-                .map_err(Clone::clone),
-        ),
-        from_stat(
-            outliers
-                .as_ref()
-                .map(|o| o.high.len() as f64)
-                .map_err(Clone::clone),
-        ),
-    ]
+    PANEL_FIGURES.iter().map(|f| (f.value)(s, fenced)).collect()
 }
 
-/// Panel figures of a date column that are dates themselves.
-pub const PANEL_DATE_LABELS: &[&str] = &["mean", "min", "Q1", "median", "Q3", "max"];
+/// The modes: exact values for whole numbers, else the middles of the
+/// fullest of Sturges' equal bins.
+fn modes(s: &Sample) -> One {
+    if s.is_empty() {
+        One::Undefined("no values".into())
+    } else if is_whole(s.values()) {
+        list(stats::modes(s))
+    } else {
+        list(stats::binned_mode(s, stats::sturges_bins(s.count())))
+    }
+}
 
-/// Panel figures of a date column that are numbers of days.
-pub const PANEL_DAY_LABELS: &[&str] = &["sd", "range", "IQR"];
+/// How the modes were found, in words.
+fn mode_basis(s: &Sample) -> One {
+    if s.is_empty() {
+        One::Undefined("no values".into())
+    } else if is_whole(s.values()) {
+        One::Text("exact values".into())
+    } else {
+        let k = stats::sturges_bins(s.count());
+        One::Text(format!(
+            "binned, {k} equal bin{} (Sturges)",
+            if k == 1 { "" } else { "s" }
+        ))
+    }
+}
+
+/// How many values lie beyond one side of Tukey's 1.5 IQR fences.
+fn outlier_count(fenced: &Fenced, side: fn(&stats::Outliers) -> usize) -> One {
+    from_stat(
+        fenced
+            .wide
+            .as_ref()
+            .map(|o| side(o) as f64)
+            .map_err(Clone::clone),
+    )
+}
+
+/// The labels of the panel figures that are `kind` for a date column.
+fn labels_on_dates(kind: OnDates) -> String {
+    PANEL_FIGURES
+        .iter()
+        .filter(|f| f.on_dates == kind)
+        .map(|f| f.label)
+        .collect::<Vec<_>>()
+        .join(", ")
+}
 
 /// What the panel figures of a date column are, for the panel sheet's note.
 pub fn dates_note() -> String {
     format!(
         "For a date column: {} are dates; {} are numbers of days; the modes are dates; n, missing, the shape figures and the outlier counts are as for numbers.",
-        PANEL_DATE_LABELS.join(", "),
-        PANEL_DAY_LABELS.join(", ")
+        labels_on_dates(OnDates::Date),
+        labels_on_dates(OnDates::Days)
     )
 }
 
@@ -268,17 +371,17 @@ pub fn dates_note() -> String {
 pub fn figures_of_dates(figures: Vec<One>) -> Vec<One> {
     figures
         .into_iter()
-        .zip(PANEL_LABELS)
-        .map(|(figure, label)| match figure {
-            One::Number(x) if PANEL_DATE_LABELS.contains(label) => One::Date(x),
-            One::List(dates) if *label == "modes" => One::Text(
+        .zip(&PANEL_FIGURES)
+        .map(|(value, figure)| match (value, figure.on_dates) {
+            (One::Number(x), OnDates::Date) => One::Date(x),
+            (One::List(dates), OnDates::DateList) => One::Text(
                 dates
                     .iter()
                     .map(|&d| crate::format::date(d))
                     .collect::<Vec<_>>()
                     .join("; "),
             ),
-            other => other,
+            (other, _) => other,
         })
         .collect()
 }
@@ -649,8 +752,10 @@ mod tests {
         assert_eq!(r.skewness, Err("needs at least 3 values, has 2".into()));
         // Two values are symmetric about their mean: skewness exactly 0.
         let figures = panel_figures(&two, &fenced(&two));
-        let at = |label: &str| &figures[PANEL_LABELS.iter().position(|l| *l == label).unwrap()];
-        assert_eq!(at("skewness g1"), &One::Number(0.0));
+        assert_eq!(
+            figure_value(&figures, "skewness_g1"),
+            Some(&One::Number(0.0))
+        );
         assert_eq!(r.skewness_without, One::Number(0.0));
         assert_eq!(r.reason, "only 2 value(s)");
     }

@@ -8,8 +8,8 @@ mod trend;
 
 pub use period::{Period, PeriodSource, compare_order_warning, order_key, period_of};
 pub use record::{
-    Entry, RECORD_BAND_WIDTH, RECORD_SHEET, Record, RecordError, TERM_BLOCK, fingerprint,
-    made_by_sheaf,
+    Entry, RECORD_SHEET, Record, RecordError, TERM_BLOCK, fingerprint, made_by_sheaf,
+    panel_entry_name, panel_figure_of, shown_name,
 };
 pub use trend::{
     Move, NOISE_SES, group_changes, largest_moves, moves_between, trend_workbook, welch_se,

@@ -5,16 +5,39 @@
 use std::path::Path;
 
 use calamine::{Data, Reader, open_workbook_auto};
+use rust_xlsxwriter::{Format, Worksheet, XlsxError};
 use sha2::{Digest, Sha256};
 
-use crate::eval::{Block, One, PANEL_LABELS, Results, group_label};
+use crate::eval::{Block, One, PANEL_FIGURES, PanelFigure, Results, group_label};
 use crate::recipe::ast::StatementKind;
 use crate::recipe::{Recipe, pretty};
+use crate::write::style;
 
 pub const RECORD_SHEET: &str = "Record";
+// The Record sheet's layout, written by `Record::write_sheet` and read by
+// `Record::read_accepting` (nothing else touches it): the fingerprint in
+// B1, the period in B2, band headers in row 3, entries from row 4 in bands
+// of four columns (block, group, figure key, value) and a blank column.
+const FINGERPRINT_ROW: u32 = 0;
+const PERIOD_ROW: u32 = 1;
+const HEADER_ROW: u32 = 2;
+const FIRST_ENTRY_ROW: u32 = 3;
+/// The period cell of a Record without a period.
+const NO_PERIOD: &str = "(none)";
+
+/// Rows of entries in one band of the Record sheet: a sheet's 1,048,576
+/// rows less those above the entries.
+pub const RECORD_BAND_ROWS: u32 = crate::load::MAX_SHEET_ROWS - FIRST_ENTRY_ROW;
+
 /// Columns from one band of entries on the Record sheet to the next (four
 /// and a blank); a long record continues in the next band.
 pub const RECORD_BAND_WIDTH: u16 = 5;
+/// The header of each band of entries on the Record sheet. Records written
+/// before stable keys head the third column `figure` and name panel
+/// figures by their labels; they are read with the names translated.
+pub const RECORD_HEADERS: [&str; 4] = ["block", "group", "figure key", "value"];
+/// The third header of a Record that names panel figures by their labels.
+const LABELS_HEADER: &str = "figure";
 /// The block name under which `change(...)` arguments are recorded.
 pub const TERM_BLOCK: &str = "(compared values)";
 
@@ -63,6 +86,43 @@ pub enum RecordError {
     },
 }
 
+/// The Record's name for a panel figure of a column: the column's name and
+/// the figure's stable key (`late_h q1`). Keys have no spaces, so the key is
+/// whatever follows the last space.
+pub fn panel_entry_name(column: &str, figure: &PanelFigure) -> String {
+    format!("{column} {}", figure.key)
+}
+
+/// The column and panel figure a Record name stands for, or None for a
+/// figures block's figure (a recipe name, which has no space).
+pub fn panel_figure_of(name: &str) -> Option<(&str, &'static PanelFigure)> {
+    let (column, key) = name.rsplit_once(' ')?;
+    Some((column, crate::eval::panel_figure(key)?))
+}
+
+/// A Record name as the workbook shows it: a panel figure by its label
+/// (`late_h Q1`), anything else as recorded.
+pub fn shown_name(block: &str, name: &str) -> String {
+    match panel_figure_of(name) {
+        Some((column, figure)) if block != TERM_BLOCK => format!("{column} {}", figure.label),
+        _ => name.to_string(),
+    }
+}
+
+/// A name from a Record written before stable keys, which named a panel
+/// figure by its display label (`late_h skewness g1`), in today's form
+/// (`late_h skewness_g1`); other names are returned as they are.
+fn name_from_label(name: String) -> String {
+    PANEL_FIGURES
+        .iter()
+        .find_map(|f| {
+            name.strip_suffix(f.label)
+                .and_then(|column| column.strip_suffix(' '))
+                .map(|column| panel_entry_name(column, f))
+        })
+        .unwrap_or(name)
+}
+
 /// SHA-256 of the canonical text of what the recipe computes: layout and
 /// comments do not count, nor do the `input` and `header` lines, which say
 /// how to read a file (a header renamed this month, a decimal comma) and
@@ -109,13 +169,13 @@ impl Record {
                     ..
                 } => {
                     for e in rows {
-                        for (label, value) in PANEL_LABELS.iter().zip(&e.figures) {
+                        for (figure, value) in PANEL_FIGURES.iter().zip(&e.figures) {
                             // A date figure is kept as its serial, as before dates were typed.
                             if let One::Number(x) | One::Date(x) = value {
                                 entries.push(Entry {
                                     block: name.clone(),
                                     group: group_label(&e.group),
-                                    name: format!("{} {label}", e.column),
+                                    name: panel_entry_name(&e.column, figure),
                                     value: *x,
                                 });
                             }
@@ -205,7 +265,7 @@ impl Record {
         let text = |d: Option<&Data>| d.map(|d| d.to_string()).unwrap_or_default();
         let rows: Vec<&[Data]> = range.rows().collect();
         let cell = |r: usize, c: usize| text(rows.get(r).and_then(|row| row.get(c)));
-        let fingerprint = cell(0, 1);
+        let fingerprint = cell(FINGERPRINT_ROW as usize, 1);
         if !accepted.contains(&fingerprint) {
             return Err(RecordError::OtherRecipe {
                 path: shown,
@@ -213,25 +273,33 @@ impl Record {
                 ours: accepted.first().cloned().unwrap_or_default(),
             });
         }
-        let period = Some(cell(1, 1)).filter(|p| !p.is_empty() && p != "(none)");
+        let period = Some(cell(PERIOD_ROW as usize, 1)).filter(|p| !p.is_empty() && p != NO_PERIOD);
+        let by_label = cell(HEADER_ROW as usize, 2) == LABELS_HEADER;
         let width = rows.iter().map(|r| r.len()).max().unwrap_or(0);
         let bands = width.div_ceil(RECORD_BAND_WIDTH as usize);
         let entries = (0..bands)
             .flat_map(|band| {
                 let left = band * RECORD_BAND_WIDTH as usize;
-                rows.iter().skip(3).filter_map(move |row| {
-                    let value = match row.get(left + 3)? {
-                        Data::Float(x) => *x,
-                        Data::Int(i) => *i as f64,
-                        _ => return None,
-                    };
-                    Some(Entry {
-                        block: text(row.get(left)),
-                        group: text(row.get(left + 1)),
-                        name: text(row.get(left + 2)),
-                        value,
+                rows.iter()
+                    .skip(FIRST_ENTRY_ROW as usize)
+                    .filter_map(move |row| {
+                        let value = match row.get(left + 3)? {
+                            Data::Float(x) => *x,
+                            Data::Int(i) => *i as f64,
+                            _ => return None,
+                        };
+                        let block = text(row.get(left));
+                        let name = match by_label && block != TERM_BLOCK {
+                            true => name_from_label(text(row.get(left + 2))),
+                            false => text(row.get(left + 2)),
+                        };
+                        Some(Entry {
+                            block,
+                            group: text(row.get(left + 1)),
+                            name,
+                            value,
+                        })
                     })
-                })
             })
             .collect();
         Ok(Record {
@@ -240,6 +308,56 @@ impl Record {
             entries,
         })
     }
+}
+
+impl Record {
+    /// Writes this Record on `sheet` (hidden: it is for `--compare`, not
+    /// for reading) in the layout [`Record::read_accepting`] reads.
+    pub fn write_sheet(&self, sheet: &mut Worksheet) -> Result<(), XlsxError> {
+        sheet.set_hidden(true);
+        let bold = Format::new().set_bold();
+        sheet.write_string_with_format(FINGERPRINT_ROW, 0, "recipe fingerprint", &bold)?;
+        sheet.write_string(FINGERPRINT_ROW, 1, &self.fingerprint)?;
+        sheet.write_string_with_format(PERIOD_ROW, 0, "period", &bold)?;
+        let period = self.period.as_deref().unwrap_or(NO_PERIOD);
+        sheet.write_string(PERIOD_ROW, 1, style::fit(period))?;
+        write_entries(sheet, &self.entries, RECORD_BAND_ROWS)
+    }
+}
+
+/// The entries in bands of four columns (block, group, figure key, value)
+/// side by side, a blank column between them, `band_rows` entries each: so
+/// the Record holds every figure the evaluator allows (100,000 groups of a
+/// panel of many columns overflow one sheet's rows).
+fn write_entries(
+    sheet: &mut Worksheet,
+    entries: &[Entry],
+    band_rows: u32,
+) -> Result<(), XlsxError> {
+    let bands = entries.len().div_ceil(band_rows as usize).max(1);
+    if bands * RECORD_BAND_WIDTH as usize > crate::load::MAX_SHEET_COLUMNS as usize {
+        return Err(XlsxError::ParameterError(format!(
+            "{} figures are more than the Record sheet holds",
+            entries.len()
+        )));
+    }
+    for band in 0..bands as u16 {
+        let left = band * RECORD_BAND_WIDTH;
+        for (c, h) in RECORD_HEADERS.iter().enumerate() {
+            sheet.write_string_with_format(HEADER_ROW, left + c as u16, *h, &style::header())?;
+            sheet.set_column_width(left + c as u16, 24)?;
+        }
+    }
+    for (i, e) in entries.iter().enumerate() {
+        let band = i / band_rows as usize;
+        let r = FIRST_ENTRY_ROW + (i % band_rows as usize) as u32;
+        let left = band as u16 * RECORD_BAND_WIDTH;
+        sheet.write_string(r, left, style::fit(&e.block))?;
+        sheet.write_string(r, left + 1, style::fit(&e.group))?;
+        sheet.write_string(r, left + 2, style::fit(&e.name))?;
+        sheet.write_number(r, left + 3, e.value)?;
+    }
+    Ok(())
 }
 
 /// What sheaf wrote, recognised by its sheets rather than its name: a
@@ -256,5 +374,60 @@ pub fn made_by_sheaf(path: &Path) -> Option<&'static str> {
         Some("a sheaf trend workbook (it has Trend and Largest moves sheets)")
     } else {
         None
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Entries spread over bands read back whole and in order (bands of 4
+    /// rows here; a real band is 1,048,573 rows).
+    #[test]
+    fn record_bands_read_back_in_order() {
+        let entries: Vec<Entry> = (0..10)
+            .map(|i| Entry {
+                block: "Record".into(),
+                group: format!("g{i}"),
+                name: "m".into(),
+                value: i as f64 / 4.0,
+            })
+            .collect();
+        let mut workbook = rust_xlsxwriter::Workbook::new();
+        let sheet = workbook.add_worksheet().set_name(RECORD_SHEET).unwrap();
+        sheet.write_string(FINGERPRINT_ROW, 1, "abc").unwrap();
+        sheet.write_string(PERIOD_ROW, 1, NO_PERIOD).unwrap();
+        write_entries(sheet, &entries, 4).unwrap();
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("r.xlsx");
+        workbook.save(&path).unwrap();
+        let read = Record::read_accepting(&path, &["abc".to_string()]).unwrap();
+        assert_eq!(read.entries, entries);
+        assert_eq!(read.period, None);
+    }
+
+    /// A Record written with its period and read back is the same Record.
+    #[test]
+    fn a_written_record_reads_back_the_same() {
+        let record = Record {
+            fingerprint: "f00d".into(),
+            period: Some("2026-10".into()),
+            entries: vec![Entry {
+                block: "Lateness".into(),
+                group: "North".into(),
+                name: "late_h q1".into(),
+                value: 0.25,
+            }],
+        };
+        let mut workbook = rust_xlsxwriter::Workbook::new();
+        let sheet = workbook.add_worksheet().set_name(RECORD_SHEET).unwrap();
+        record.write_sheet(sheet).unwrap();
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("r.xlsx");
+        workbook.save(&path).unwrap();
+        assert_eq!(
+            Record::read_accepting(&path, &["f00d".into()]).unwrap(),
+            record
+        );
     }
 }

@@ -31,25 +31,6 @@ pub struct Move {
     pub se: Option<f64>,
 }
 
-/// Panel figures whose size is not a level that drifts: shape figures and
-/// the extremes, which one row can move. They are never flagged "moved"
-/// (sheaf's rule: the Robustness sheet judges shape against its own noise,
-/// and a minimum or maximum is a single row, not a level); their change is
-/// still listed.
-const NOT_FLAGGED: &[&str] = &[
-    "skewness g1",
-    "Bowley skewness",
-    "kurtosis b2",
-    "min",
-    "max",
-    "range",
-    "low outliers",
-    "high outliers",
-    "missing",
-    "modes",
-    "mode basis",
-];
-
 impl Move {
     /// The change relative to the size of the value before; None when that was 0.
     pub fn relative(&self) -> Option<f64> {
@@ -66,11 +47,10 @@ impl Move {
     /// Whether the change exceeds `drift` (relative; a change from 0 never
     /// does) and, for a figure with a standard error, also [`NOISE_SES`]
     /// standard errors of the difference. Shape figures and extremes are
-    /// never flagged (see `NOT_FLAGGED`).
+    /// never flagged (see `PanelFigure::drift_flagged`).
     pub fn moved(&self, drift: f64) -> bool {
-        let panel_figure = NOT_FLAGGED
-            .iter()
-            .any(|f| self.name.ends_with(&format!(" {f}")));
+        let panel_figure =
+            super::panel_figure_of(&self.name).is_some_and(|(_, f)| !f.drift_flagged);
         if panel_figure && self.se.is_none() {
             return false;
         }
@@ -193,7 +173,7 @@ fn trend_rows(
             sheet.write_string(r, 0, fit(period))?;
             sheet.write_string(r, 1, fit(&e.block))?;
             sheet.write_string(r, 2, fit(&e.group))?;
-            sheet.write_string(r, 3, fit(&e.name))?;
+            sheet.write_string(r, 3, fit(&super::shown_name(&e.block, &e.name)))?;
             sheet.write_number(r, 4, e.value)?;
             if let Some(m) = moves.get(&(e.block.clone(), e.group.clone(), e.name.clone())) {
                 sheet.write_number(r, 5, m.after - m.before)?;
@@ -334,7 +314,8 @@ pub fn trend_workbook(
     let moves = largest_moves(records);
     for (i, m) in moves.iter().take(200).enumerate() {
         let r = 1 + i as u32;
-        for (c, t) in [&m.block, &m.group, &m.name, &m.from, &m.to]
+        let name = super::shown_name(&m.block, &m.name);
+        for (c, t) in [&m.block, &m.group, &name, &m.from, &m.to]
             .into_iter()
             .enumerate()
         {
@@ -375,6 +356,7 @@ pub fn trend_workbook(
     let periods: Vec<&String> = records.iter().map(|(p, _)| p).collect();
     let mut top = 0u32;
     for ((block, name), groups) in &series {
+        let name = super::shown_name(block, name);
         sheet.write_string_with_format(top, 0, fit(&format!("{block}: {name}")), &bold)?;
         sheet.write_string_with_format(top + 1, 0, "period", &bold)?;
         for (i, p) in periods.iter().enumerate() {
@@ -459,7 +441,7 @@ mod tests {
                     ("late_h mean", 1.0),
                     ("late_h sd", 0.3),
                     ("late_h n", 200.0),
-                    ("late_h skewness g1", 0.02),
+                    ("late_h skewness_g1", 0.02),
                     ("few mean", 1.0),
                     ("few sd", 1.0),
                     ("few n", 5.0),
@@ -471,7 +453,7 @@ mod tests {
                     ("late_h mean", 1.3),
                     ("late_h sd", 0.3),
                     ("late_h n", 200.0),
-                    ("late_h skewness g1", -0.3),
+                    ("late_h skewness_g1", -0.3),
                     ("few mean", 1.2),
                     ("few sd", 1.0),
                     ("few n", 5.0),
@@ -485,7 +467,7 @@ mod tests {
         // 0.3 / sqrt(0.09/200 * 2) = 0.3 / 0.03 = 10 standard errors.
         assert!((mean.noise_scaled().unwrap() - 10.0).abs() < 1e-9);
         assert!(mean.moved(drift));
-        assert!(!find("late_h skewness g1").moved(drift));
+        assert!(!find("late_h skewness_g1").moved(drift));
         let few: &Move = find("few mean");
         assert!(few.relative().unwrap() > drift && !few.moved(drift));
         // Ranked by the noise-scaled change, the real drift comes first.

@@ -13,7 +13,7 @@ use schemars::JsonSchema;
 use serde::Serialize;
 
 pub use build::{result_document, trend_document};
-pub use named::{NamedValues, PanelFigures, figure_key};
+pub use named::{NamedValues, PanelFigures};
 
 /// Raised when a key is renamed or removed, or a value changes shape;
 /// adding a key keeps the version.

@@ -7,18 +7,7 @@ use schemars::{JsonSchema, Schema, SchemaGenerator, json_schema};
 use serde::ser::{Serialize, SerializeMap, Serializer};
 
 use super::Value;
-use crate::eval::PANEL_LABELS;
-
-/// A display label as a JSON key: lower case, words joined by `_`
-/// (`Bowley skewness` -> `bowley_skewness`, `Q1` -> `q1`).
-pub fn figure_key(label: &str) -> String {
-    label
-        .split(|c: char| !c.is_alphanumeric())
-        .filter(|w| !w.is_empty())
-        .map(str::to_lowercase)
-        .collect::<Vec<_>>()
-        .join("_")
-}
+use crate::eval::PANEL_FIGURES;
 
 /// Values by name, serialised as one JSON object in their own order.
 #[derive(Debug, Clone, PartialEq, Default)]
@@ -49,19 +38,19 @@ impl JsonSchema for NamedValues {
     }
 }
 
-/// The standard panel's figures, keyed by [`figure_key`] of each of
-/// [`PANEL_LABELS`] (`n`, `mean`, ..., `bowley_skewness`, ...).
+/// The standard panel's figures, keyed by each figure's stable key in
+/// [`PANEL_FIGURES`] (`n`, `mean`, ..., `bowley_skewness`, ...).
 #[derive(Debug, Clone, PartialEq)]
 pub struct PanelFigures(pub NamedValues);
 
 impl PanelFigures {
-    /// Pairs the panel's figures with their labels; both come from the panel's definition.
+    /// Pairs the panel's figures with their keys; both come from the panel's definition.
     pub fn new(figures: &[crate::eval::One]) -> PanelFigures {
         PanelFigures(NamedValues(
-            PANEL_LABELS
+            PANEL_FIGURES
                 .iter()
                 .zip(figures)
-                .map(|(label, v)| (figure_key(label), super::build::value(v)))
+                .map(|(f, v)| (f.key.to_string(), super::build::value(v)))
                 .collect(),
         ))
     }
@@ -80,9 +69,11 @@ impl JsonSchema for PanelFigures {
 
     fn json_schema(generator: &mut SchemaGenerator) -> Schema {
         let value = generator.subschema_for::<Value>().to_value();
-        let keys: Vec<String> = PANEL_LABELS.iter().map(|l| figure_key(l)).collect();
-        let properties: serde_json::Map<String, serde_json::Value> =
-            keys.iter().map(|k| (k.clone(), value.clone())).collect();
+        let keys: Vec<&str> = PANEL_FIGURES.iter().map(|f| f.key).collect();
+        let properties: serde_json::Map<String, serde_json::Value> = keys
+            .iter()
+            .map(|k| (k.to_string(), value.clone()))
+            .collect();
         json_schema!({
             "description": "The standard panel's figures, in the panel sheet's order.",
             "type": "object",
@@ -98,13 +89,9 @@ mod tests {
     use super::*;
 
     #[test]
-    fn panel_labels_become_distinct_snake_case_keys() {
-        assert_eq!(figure_key("Bowley skewness"), "bowley_skewness");
-        assert_eq!(figure_key("skewness g1"), "skewness_g1");
-        assert_eq!(figure_key("Q1"), "q1");
-        let keys: std::collections::HashSet<String> =
-            PANEL_LABELS.iter().map(|l| figure_key(l)).collect();
-        assert_eq!(keys.len(), PANEL_LABELS.len(), "two labels share a key");
+    fn panel_keys_are_distinct_snake_case() {
+        let keys: std::collections::HashSet<&str> = PANEL_FIGURES.iter().map(|f| f.key).collect();
+        assert_eq!(keys.len(), PANEL_FIGURES.len(), "two figures share a key");
         for k in &keys {
             assert!(
                 k.chars()

@@ -289,6 +289,24 @@ mod tests {
         }
     }
 
+    /// The method is shown on the robustness sheet and in `--json`: a
+    /// short column is resampled in full, a long one drawn directly.
+    #[test]
+    fn the_method_chosen_is_named_in_words() {
+        let short = Sample::from_values((1..=50).map(f64::from));
+        let long = Sample::from_values((1..=20_000).map(f64::from));
+        let method = |s: &Sample| {
+            bootstrap_intervals(s, 2000, 0.95, DEFAULT_SEED)
+                .unwrap()
+                .method
+        };
+        assert_eq!(method(&short).words(), "full resamples");
+        assert_eq!(
+            method(&long).words(),
+            "median: direct order statistics; mean: Cornish-Fisher"
+        );
+    }
+
     #[test]
     fn same_seed_same_interval() {
         let s = Sample::from_values((1..=50).map(|i| f64::from(i * i % 17)));

@@ -5,7 +5,7 @@ use rust_xlsxwriter::{Format, Workbook, XlsxError};
 
 use super::sheets::SheetNames;
 use super::{RunInfo, style};
-use crate::history::{RECORD_BAND_WIDTH, RECORD_SHEET, Record};
+use crate::history::{RECORD_SHEET, Record};
 
 pub fn changes(
     workbook: &mut Workbook,
@@ -55,7 +55,8 @@ pub fn changes(
     let moves = crate::history::moves_between(previous_period, previous, now_period, current);
     let (moves, unlisted) = listed(moves, run.drift, crate::eval::MAX_SHEET_ENTRIES);
     for m in moves {
-        for (c, text) in [(0, &m.block), (1, &m.group), (2, &m.name)] {
+        let name = crate::history::shown_name(&m.block, &m.name);
+        for (c, text) in [(0, &m.block), (1, &m.group), (2, &name)] {
             widths.seen(r, c, style::write_text(sheet, r, c, text)?);
         }
         for (c, x) in [(3, m.before), (4, m.after), (5, m.after - m.before)] {
@@ -118,6 +119,7 @@ fn listed(
     (kept, unlisted)
 }
 
+/// Adds the hidden Record sheet; its layout is `history::record`'s.
 pub fn record(
     workbook: &mut Workbook,
     names: &mut SheetNames,
@@ -126,62 +128,12 @@ pub fn record(
     let sheet = workbook
         .add_worksheet()
         .set_name(names.claim_reserved(RECORD_SHEET))?;
-    // For `--compare`, not for reading: hidden, still read by name.
-    sheet.set_hidden(true);
-    let bold = Format::new().set_bold();
-    sheet.write_string_with_format(0, 0, "recipe fingerprint", &bold)?;
-    sheet.write_string(0, 1, &record.fingerprint)?;
-    sheet.write_string_with_format(1, 0, "period", &bold)?;
-    sheet.write_string(
-        1,
-        1,
-        style::fit(record.period.as_deref().unwrap_or("(none)")),
-    )?;
-    record_entries(sheet, &record.entries, RECORD_BAND_ROWS)
-}
-
-/// Rows of entries in one band of the Record sheet: a sheet's 1,048,576 rows
-/// less the three above the entries.
-pub const RECORD_BAND_ROWS: u32 = crate::load::MAX_SHEET_ROWS - 3;
-
-/// The entries in bands of four columns (block, group, figure, value) side
-/// by side, a blank column between them, `band_rows` entries each: so the
-/// Record holds every figure the evaluator allows (100,000 groups of a
-/// panel of many columns overflow one sheet's rows).
-fn record_entries(
-    sheet: &mut rust_xlsxwriter::Worksheet,
-    entries: &[crate::history::Entry],
-    band_rows: u32,
-) -> Result<(), XlsxError> {
-    let bands = entries.len().div_ceil(band_rows as usize).max(1);
-    if bands * RECORD_BAND_WIDTH as usize > crate::load::MAX_SHEET_COLUMNS as usize {
-        return Err(XlsxError::ParameterError(format!(
-            "{} figures are more than the Record sheet holds",
-            entries.len()
-        )));
-    }
-    for band in 0..bands as u16 {
-        let left = band * RECORD_BAND_WIDTH;
-        for (c, h) in ["block", "group", "figure", "value"].iter().enumerate() {
-            sheet.write_string_with_format(2, left + c as u16, *h, &style::header())?;
-            sheet.set_column_width(left + c as u16, 24)?;
-        }
-    }
-    for (i, e) in entries.iter().enumerate() {
-        let (band, r) = (i / band_rows as usize, 3 + (i % band_rows as usize) as u32);
-        let left = band as u16 * RECORD_BAND_WIDTH;
-        sheet.write_string(r, left, style::fit(&e.block))?;
-        sheet.write_string(r, left + 1, style::fit(&e.group))?;
-        sheet.write_string(r, left + 2, style::fit(&e.name))?;
-        sheet.write_number(r, left + 3, e.value)?;
-    }
-    Ok(())
+    record.write_sheet(sheet)
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::history::{Entry, Record};
 
     /// A comparison longer than the sheet keeps every flagged move and fills
     /// the rest with the others in order, counting those left out.
@@ -203,29 +155,5 @@ mod tests {
         assert_eq!(groups, ["g1", "g5", "g9"]);
         assert_eq!(unlisted, 2);
         assert_eq!(listed(moves, 0.1, 5).1, 0);
-    }
-
-    /// Entries spread over bands read back whole and in order (bands of 4
-    /// rows here; a real band is 1,048,573 rows).
-    #[test]
-    fn record_bands_read_back_in_order() {
-        let entries: Vec<Entry> = (0..10)
-            .map(|i| Entry {
-                block: "Record".into(),
-                group: format!("g{i}"),
-                name: "m".into(),
-                value: i as f64 / 4.0,
-            })
-            .collect();
-        let mut workbook = Workbook::new();
-        let sheet = workbook.add_worksheet().set_name(RECORD_SHEET).unwrap();
-        sheet.write_string(0, 1, "abc").unwrap();
-        sheet.write_string(1, 1, "(none)").unwrap();
-        record_entries(sheet, &entries, 4).unwrap();
-        let dir = tempfile::tempdir().unwrap();
-        let path = dir.path().join("r.xlsx");
-        workbook.save(&path).unwrap();
-        let read = Record::read_accepting(&path, &["abc".to_string()]).unwrap();
-        assert_eq!(read.entries, entries);
     }
 }

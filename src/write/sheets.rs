@@ -222,12 +222,10 @@ fn entry_labels(keys: &[String], figures: &[&str]) -> Vec<String> {
 /// Decimals of an entry's data, read off its min and max (which are data
 /// values), so its measures show those decimals plus two.
 fn entry_decimals(e: &PanelEntry) -> u8 {
-    let data: Vec<f64> = PANEL_FIGURES
+    let data: Vec<f64> = ["min", "max"]
         .iter()
-        .zip(&e.figures)
-        .filter(|(f, _)| f.label == "min" || f.label == "max")
-        .filter_map(|(_, v)| match v {
-            One::Number(x) => Some(*x),
+        .filter_map(|key| match crate::eval::figure_value(&e.figures, key) {
+            Some(One::Number(x)) => Some(*x),
             _ => None,
         })
         .collect();
@@ -637,9 +635,9 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
                             e.column
                         )
                     };
-                    for (label, value) in PANEL_LABELS.iter().zip(&e.figures) {
+                    for (figure, value) in PANEL_FIGURES.iter().zip(&e.figures) {
                         if let One::Undefined(why) = value {
-                            found.push((place(name, label), why.clone()));
+                            found.push((place(name, figure.label), why.clone()));
                         }
                     }
                     let measure = Shown::of(FigureKind::Measure, entry_decimals(e));
