@@ -336,6 +336,8 @@ fn columns_used(recipe: &Recipe) -> Vec<String> {
             | StatementKind::Input { .. }
             | StatementKind::Header { .. }
             | StatementKind::Period(_)
+            | StatementKind::PeriodFrom(_)
+            | StatementKind::Noise(_)
             | StatementKind::Drift(_) => {}
         }
         out.extend(refs.into_iter().map(|c| c.name.clone()));
@@ -396,6 +398,8 @@ pub fn evaluate_against(
             StatementKind::Input { .. }
             | StatementKind::Header { .. }
             | StatementKind::Period(_)
+            | StatementKind::PeriodFrom(_)
+            | StatementKind::Noise(_)
             | StatementKind::Drift(_) => {}
             StatementKind::Let { name, value: e } => {
                 let scope = Scope::new(table, &lets, &kept);

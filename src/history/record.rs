@@ -52,30 +52,49 @@ pub enum RecordError {
 }
 
 /// SHA-256 of the canonical text of what the recipe computes: layout and
-/// comments do not count, nor do the `input` and `header` lines, which say
-/// how to read a file (a header renamed this month, a decimal comma) and
-/// not what is computed; adding one keeps last month comparable.
+/// comments do not count, nor do the lines that say how to read a file
+/// (`input`, `header`: a header renamed this month, a decimal comma), where
+/// its period comes from (`period`) or how changes are judged (`noise`);
+/// adding or editing one keeps last month comparable.
 pub fn fingerprint(recipe: &Recipe) -> String {
-    let computing = Recipe {
+    digest(&keeping(recipe, |kind| {
+        !matches!(
+            kind,
+            StatementKind::Input { .. }
+                | StatementKind::Header { .. }
+                | StatementKind::Period(_)
+                | StatementKind::PeriodFrom(_)
+                | StatementKind::Noise(_)
+        )
+    }))
+}
+
+/// The recipe with only the statements `keep` accepts.
+fn keeping(recipe: &Recipe, keep: impl Fn(&StatementKind) -> bool) -> Recipe {
+    Recipe {
         statements: recipe
             .statements
             .iter()
-            .filter(|s| {
-                !matches!(
-                    s.kind,
-                    StatementKind::Input { .. } | StatementKind::Header { .. }
-                )
-            })
+            .filter(|s| keep(&s.kind))
             .cloned()
             .collect(),
-    };
-    digest(&computing)
+    }
 }
 
-/// The fingerprint results made before `input` lines were left out of it
-/// (the whole canonical text); such results can still be compared with.
-fn earlier_fingerprint(recipe: &Recipe) -> String {
-    digest(recipe)
+/// The fingerprints earlier versions gave the same recipe, whose results
+/// can still be compared with: the whole canonical text (before `input`
+/// lines were left out), and the text without `input` and `header` lines
+/// (before `period` and `noise` lines were).
+fn earlier_fingerprints(recipe: &Recipe) -> [String; 2] {
+    [
+        digest(recipe),
+        digest(&keeping(recipe, |kind| {
+            !matches!(
+                kind,
+                StatementKind::Input { .. } | StatementKind::Header { .. }
+            )
+        })),
+    ]
 }
 
 fn digest(recipe: &Recipe) -> String {
@@ -162,7 +181,8 @@ impl Record {
 
     /// Reads the Record sheet of a sheaf result; refuses another recipe's.
     pub fn read(path: &Path, recipe: &Recipe) -> Result<Record, RecordError> {
-        Record::read_accepting(path, &[fingerprint(recipe), earlier_fingerprint(recipe)])
+        let [whole, without_input] = earlier_fingerprints(recipe);
+        Record::read_accepting(path, &[fingerprint(recipe), whole, without_input])
     }
 
     /// Reads the Record sheet of a sheaf result made by a recipe with one of
