@@ -3,10 +3,12 @@
 //! the trend workbook of a batch.
 
 mod period;
+mod period_data;
 mod record;
 mod trend;
 
 pub use period::{Period, PeriodSource, compare_order_warning, order_key, period_of};
+pub use period_data::{period_column, period_from_data, period_of_file};
 pub use record::{
     Entry, RECORD_BAND_WIDTH, RECORD_SHEET, Record, RecordError, TERM_BLOCK, fingerprint,
     made_by_sheaf,

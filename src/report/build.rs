@@ -69,8 +69,10 @@ pub fn result_document(results: &Results, table: &Table, run: &RunInfo, output: 
         period: run.period.as_ref().map(|p| PeriodReport {
             label: p.label.clone(),
             source: match p.source {
+                PeriodSource::DataColumn => PeriodSourceReport::DataColumn,
                 PeriodSource::Recipe => PeriodSourceReport::Recipe,
                 PeriodSource::FileName => PeriodSourceReport::FileName,
+                PeriodSource::NameFallback => PeriodSourceReport::NameFallback,
             },
         }),
         rows_read: results.rows_read,

@@ -145,10 +145,14 @@ pub struct PeriodReport {
 #[derive(Debug, Clone, Copy, Serialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum PeriodSourceReport {
+    /// The dates or periods in the column the recipe's `period from` names.
+    DataColumn,
     /// The recipe's `period` statement.
     Recipe,
     /// A date in the data file's name.
     FileName,
+    /// No date in the data or the name: the file's name itself (a batch).
+    NameFallback,
 }
 
 #[derive(Debug, Clone, Serialize, JsonSchema)]
