@@ -353,10 +353,11 @@ fn print_all(
         ));
     }
     if args.json {
-        let drift = files
-            .first()
-            .map_or(history::DEFAULT_DRIFT, |(_, i, _)| i.drift);
-        let document = report::trend_document(records, trend_path, drift, skipped);
+        let (drift, noise) = files.first().map_or(
+            (history::DEFAULT_DRIFT, history::DEFAULT_NOISE_SES),
+            |(_, i, _)| (i.drift, i.noise),
+        );
+        let document = report::trend_document(records, trend_path, (drift, noise), skipped);
         output::out_line(&report::to_line(&document))?;
         output::note(&lines);
     } else if !output::quiet() {

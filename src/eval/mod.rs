@@ -5,6 +5,7 @@
 //! order their first row appears in the data.
 
 mod aggregate;
+mod noise;
 mod panel;
 mod value;
 
@@ -41,6 +42,9 @@ pub struct FigureRow {
     pub group: Vec<String>,
     pub rows: usize,
     pub values: Vec<One>,
+    /// Each figure's standard error where it has one (see `noise`), in
+    /// the order of `values`.
+    pub standard_errors: Vec<Option<f64>>,
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -483,6 +487,7 @@ pub fn evaluate_against(
                             group: group.clone(),
                             column: column.name.clone(),
                             figures,
+                            standard_errors: noise::panel_standard_errors(&sample),
                             robustness: panel::robustness(&sample, &fenced, &address),
                             sample_summary: panel::box_summary(&sample),
                         }
@@ -512,10 +517,15 @@ pub fn evaluate_against(
                         .iter()
                         .map(|f| one(group_scope.eval(&f.value)))
                         .collect();
+                    let standard_errors = figures
+                        .iter()
+                        .map(|f| noise::figure_standard_error(&group_scope, &f.value))
+                        .collect();
                     out.push(FigureRow {
                         group,
                         rows: group_rows.len(),
                         values,
+                        standard_errors,
                     });
                 }
                 results.blocks.push(Block::Figures {

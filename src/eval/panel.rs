@@ -164,6 +164,9 @@ pub struct PanelEntry {
     pub column: String,
     /// Same order as [`PANEL_LABELS`].
     pub figures: Vec<One>,
+    /// The figures that have a standard error, by label (mean, sd, Q1,
+    /// median, Q3), for judging their change against noise.
+    pub standard_errors: Vec<(&'static str, f64)>,
     pub robustness: Robustness,
     /// For the box plot: the five numbers and the whisker ends.
     pub sample_summary: Option<BoxSummary>,

@@ -31,7 +31,15 @@ pub struct Record {
     pub fingerprint: String,
     pub period: Option<String>,
     pub entries: Vec<Entry>,
+    /// The standard error of each figure that has one, keyed like its
+    /// figure (block, group, name); the value is the standard error.
+    pub standard_errors: Vec<Entry>,
 }
+
+/// How a standard error's row is named on the Record sheet: its figure's
+/// name and this. No figure's name ends so: a figures block's names are
+/// identifiers and a panel's end in a panel label.
+pub const SE_SUFFIX: &str = " (standard error)";
 
 #[derive(Debug, thiserror::Error)]
 pub enum RecordError {
@@ -148,6 +156,39 @@ impl Record {
                 }
             }
         }
+        let mut standard_errors = Vec::new();
+        for block in &results.blocks {
+            match block {
+                Block::Panel { name, entries, .. } => {
+                    for e in entries {
+                        for (label, se) in &e.standard_errors {
+                            standard_errors.push(Entry {
+                                block: name.clone(),
+                                group: group_label(&e.group),
+                                name: format!("{} {label}", e.column),
+                                value: *se,
+                            });
+                        }
+                    }
+                }
+                Block::Figures {
+                    name, names, rows, ..
+                } => {
+                    for r in rows {
+                        for (figure, se) in names.iter().zip(&r.standard_errors) {
+                            if let Some(se) = se {
+                                standard_errors.push(Entry {
+                                    block: name.clone(),
+                                    group: group_label(&r.group),
+                                    name: figure.clone(),
+                                    value: *se,
+                                });
+                            }
+                        }
+                    }
+                }
+            }
+        }
         for t in &results.terms {
             entries.push(Entry {
                 block: TERM_BLOCK.into(),
@@ -160,7 +201,26 @@ impl Record {
             fingerprint,
             period,
             entries,
+            standard_errors,
         }
+    }
+
+    /// The rows of the Record sheet: every figure, then every standard
+    /// error named with [`SE_SUFFIX`] (results of earlier versions have none).
+    pub fn sheet_entries(&self) -> Vec<Entry> {
+        let named = self.standard_errors.iter().map(|e| Entry {
+            name: format!("{}{SE_SUFFIX}", e.name),
+            ..e.clone()
+        });
+        self.entries.iter().cloned().chain(named).collect()
+    }
+
+    /// The standard error kept for a figure, if it has one.
+    pub fn standard_error(&self, block: &str, group: &str, name: &str) -> Option<f64> {
+        self.standard_errors
+            .iter()
+            .find(|e| e.block == block && e.group == group && e.name == name)
+            .map(|e| e.value)
     }
 
     /// The values `change(...)` compares with.
@@ -211,7 +271,7 @@ impl Record {
         let period = Some(cell(1, 1)).filter(|p| !p.is_empty() && p != "(none)");
         let width = rows.iter().map(|r| r.len()).max().unwrap_or(0);
         let bands = width.div_ceil(RECORD_BAND_WIDTH as usize);
-        let entries = (0..bands)
+        let rows_read: Vec<Entry> = (0..bands)
             .flat_map(|band| {
                 let left = band * RECORD_BAND_WIDTH as usize;
                 rows.iter().skip(3).filter_map(move |row| {
@@ -229,10 +289,17 @@ impl Record {
                 })
             })
             .collect();
+        let (mut standard_errors, entries): (Vec<Entry>, Vec<Entry>) = rows_read
+            .into_iter()
+            .partition(|e| e.name.ends_with(SE_SUFFIX));
+        for e in &mut standard_errors {
+            e.name.truncate(e.name.len() - SE_SUFFIX.len());
+        }
         Ok(Record {
             fingerprint,
             period,
             entries,
+            standard_errors,
         })
     }
 }

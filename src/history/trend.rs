@@ -5,17 +5,15 @@ use std::collections::BTreeMap;
 
 use rust_xlsxwriter::{Chart, ChartType, Format, Workbook, XlsxError};
 
-use super::record::{Entry, Record, TERM_BLOCK};
+use std::collections::HashMap;
+
+use super::judge::{self, Basis, Flag};
+use super::record::{Record, TERM_BLOCK};
 use crate::write::style::fit;
 
 /// The sheets that mark a trend workbook, so a later batch leaves it out.
 pub const TREND_SHEET: &str = "Trend";
 pub const MOVES_SHEET: &str = "Largest moves";
-
-/// How many standard errors of the difference a change must exceed, beside
-/// the drift, to be flagged "moved" (two standard errors: common practice,
-/// about a 5% two-sided level under normality; not yet settable in the recipe).
-pub const NOISE_SES: f64 = 2.0;
 
 /// A figure's change between two consecutive periods.
 #[derive(Debug, Clone, PartialEq)]
@@ -29,26 +27,9 @@ pub struct Move {
     pub after: f64,
     /// The standard error of `after - before`, for figures that have one.
     pub se: Option<f64>,
+    /// What the change is judged by (see [`super::judge`]).
+    pub basis: Basis,
 }
-
-/// Panel figures whose size is not a level that drifts: shape figures and
-/// the extremes, which one row can move. They are never flagged "moved"
-/// (sheaf's rule: the Robustness sheet judges shape against its own noise,
-/// and a minimum or maximum is a single row, not a level); their change is
-/// still listed.
-const NOT_FLAGGED: &[&str] = &[
-    "skewness g1",
-    "Bowley skewness",
-    "kurtosis b2",
-    "min",
-    "max",
-    "range",
-    "low outliers",
-    "high outliers",
-    "missing",
-    "modes",
-    "mode basis",
-];
 
 impl Move {
     /// The change relative to the size of the value before; None when that was 0.
@@ -63,22 +44,37 @@ impl Move {
             .map(|se| (self.after - self.before) / se)
     }
 
-    /// Whether the change exceeds `drift` (relative; a change from 0 never
-    /// does) and, for a figure with a standard error, also [`NOISE_SES`]
-    /// standard errors of the difference. Shape figures and extremes are
-    /// never flagged (see `NOT_FLAGGED`).
-    pub fn moved(&self, drift: f64) -> bool {
-        let panel_figure = NOT_FLAGGED
-            .iter()
-            .any(|f| self.name.ends_with(&format!(" {f}")));
-        if panel_figure && self.se.is_none() {
-            return false;
-        }
-        let beyond_drift = self.relative().is_some_and(|r| r.abs() > drift);
-        match self.se {
-            Some(_) => beyond_drift && self.noise_scaled().is_some_and(|z| z.abs() > NOISE_SES),
-            None => beyond_drift,
-        }
+    /// The flag the change earns under the recipe's `drift` (relative; a
+    /// change from 0 never exceeds it) and noise rule (`noise` standard
+    /// errors of the change), by the figure's [`Basis`].
+    pub fn flag(&self, drift: f64, noise: f64) -> Option<Flag> {
+        let flagged = match self.basis {
+            Basis::Level => {
+                let beyond_drift = self.relative().is_some_and(|r| r.abs() > drift);
+                match self.se {
+                    Some(_) => beyond_drift && self.noise_scaled().is_some_and(|z| z.abs() > noise),
+                    None => beyond_drift,
+                }
+            }
+            Basis::Shape {
+                was_beyond: Some(was),
+                now_beyond: Some(now),
+            } => was != now,
+            Basis::Extreme {
+                beyond_previous_fences: Some(beyond),
+            } => beyond,
+            Basis::Shape { .. } | Basis::Extreme { .. } | Basis::Listed => false,
+        };
+        flagged.then_some(match self.basis {
+            Basis::Shape { .. } => Flag::ShapeChanged,
+            Basis::Extreme { .. } => Flag::NewExtreme,
+            Basis::Level | Basis::Listed => Flag::Moved,
+        })
+    }
+
+    /// Whether the change is flagged at all.
+    pub fn moved(&self, drift: f64, noise: f64) -> bool {
+        self.flag(drift, noise).is_some()
     }
 }
 
@@ -91,28 +87,27 @@ pub fn welch_se(sd_before: f64, n_before: f64, sd_after: f64, n_after: f64) -> O
         .then(|| (sd_before.powi(2) / n_before + sd_after.powi(2) / n_after).sqrt())
 }
 
-/// The standard error of a change of a panel column's mean, from the sd and
-/// n both Records hold beside it; None for every other figure.
-fn se_of(before: &Record, after: &Record, e: &Entry) -> Option<f64> {
-    let column = e.name.strip_suffix(" mean")?;
-    let of = |r: &Record, label: &str| r.find(&e.block, &e.group, &format!("{column} {label}"));
-    welch_se(
-        of(before, "sd")?,
-        of(before, "n")?,
-        of(after, "sd")?,
-        of(after, "n")?,
-    )
-}
-
 /// Every figure of `after` that `before` also holds, in `after`'s order:
 /// the one comparison behind the Changes sheet, `--json` and the trend.
 pub fn moves_between(from: &str, before: &Record, to: &str, after: &Record) -> Vec<Move> {
+    // Keyed once, so a long record is not searched once per figure.
+    let earlier: HashMap<(&str, &str, &str), f64> = before
+        .entries
+        .iter()
+        .map(|e| {
+            (
+                (e.block.as_str(), e.group.as_str(), e.name.as_str()),
+                e.value,
+            )
+        })
+        .collect();
     after
         .entries
         .iter()
         .filter(|e| e.block != TERM_BLOCK)
         .filter_map(|e| {
-            before.find(&e.block, &e.group, &e.name).map(|b| Move {
+            let b = *earlier.get(&(e.block.as_str(), e.group.as_str(), e.name.as_str()))?;
+            Some(Move {
                 block: e.block.clone(),
                 group: e.group.clone(),
                 name: e.name.clone(),
@@ -120,7 +115,8 @@ pub fn moves_between(from: &str, before: &Record, to: &str, after: &Record) -> V
                 to: to.to_string(),
                 before: b,
                 after: e.value,
-                se: se_of(before, after, e),
+                se: judge::change_se(before, after, &e.block, &e.group, &e.name),
+                basis: judge::basis(before, after, &e.block, &e.group, &e.name),
             })
         })
         .collect()
@@ -441,6 +437,7 @@ mod tests {
                     value: *value,
                 })
                 .collect(),
+            standard_errors: Vec::new(),
         };
         (label.into(), record)
     }
@@ -483,10 +480,10 @@ mod tests {
         let mean = find("late_h mean");
         // 0.3 / sqrt(0.09/200 * 2) = 0.3 / 0.03 = 10 standard errors.
         assert!((mean.noise_scaled().unwrap() - 10.0).abs() < 1e-9);
-        assert!(mean.moved(drift));
-        assert!(!find("late_h skewness g1").moved(drift));
+        assert!(mean.moved(drift, 2.0));
+        assert!(!find("late_h skewness g1").moved(drift, 2.0));
         let few: &Move = find("few mean");
-        assert!(few.relative().unwrap() > drift && !few.moved(drift));
+        assert!(few.relative().unwrap() > drift && !few.moved(drift, 2.0));
         // Ranked by the noise-scaled change, the real drift comes first.
         assert_eq!(moves[0].name, "late_h mean");
     }
@@ -504,6 +501,7 @@ mod tests {
                     value: 1.0,
                 })
                 .collect(),
+            standard_errors: Vec::new(),
         }
     }
 

@@ -315,7 +315,8 @@ fn changes(results: &Results, run: &RunInfo) -> Option<ChangesReport> {
                 relative_change: relative(m),
                 standard_error: m.se,
                 change_in_standard_errors: m.noise_scaled(),
-                moved: m.moved(run.drift),
+                moved: m.moved(run.drift, run.noise),
+                flag: m.flag(run.drift, run.noise).map(|f| f.word().to_string()),
             })
             .collect(),
     })
@@ -325,7 +326,7 @@ fn changes(results: &Results, run: &RunInfo) -> Option<ChangesReport> {
 pub fn trend_document(
     records: &[(String, Record)],
     output: Option<&Path>,
-    drift: f64,
+    (drift, noise): (f64, f64),
     skipped: &[(std::path::PathBuf, String)],
 ) -> Document {
     Document::Trend(TrendReport {
@@ -359,7 +360,10 @@ pub fn trend_document(
                 before: m.before,
                 after: m.after,
                 relative_change: relative(m),
-                moved: m.moved(drift),
+                standard_error: m.se,
+                change_in_standard_errors: m.noise_scaled(),
+                moved: m.moved(drift, noise),
+                flag: m.flag(drift, noise).map(|f| f.word().to_string()),
             })
             .collect(),
         skipped: skipped

@@ -31,10 +31,9 @@ pub fn changes(
     .to_vec();
     sheet.write_string_with_format(0, 0, "Changes", &style::title())?;
     let note = format!(
-        "Each figure against period {}. Flagged when the relative change exceeds {}% (the recipe's drift, or sheaf's default of 10%) and, for a figure with a standard error (a panel column's mean: Welch's, from each period's sd and n), also {} standard errors of the change. Shape figures, minimums, maximums and outlier counts are never flagged; their change is listed.",
+        "Each figure against period {}. {}",
         previous.period.as_deref().unwrap_or("(unknown)"),
-        crate::format::shortest(run.drift * 100.0),
-        crate::history::NOISE_SES
+        crate::history::rules_in_words(run.drift, run.noise)
     );
     sheet.merge_range(1, 0, 1, 9, &note, &style::note_format())?;
     let groups = crate::history::group_changes(previous, current).map_or_else(
@@ -64,13 +63,14 @@ pub fn changes(
         match m.relative() {
             Some(relative) => {
                 sheet.write_number_with_format(r, 6, relative, &percent)?;
-                if m.moved(run.drift) {
-                    sheet.write_string_with_format(r, 7, "moved", &style::status("warn"))?;
-                }
             }
             None => {
                 sheet.write_string_with_format(r, 6, "previous was 0", &style::reason())?;
             }
+        }
+        if let Some(flag) = m.flag(run.drift, run.noise) {
+            widths.seen(r, 7, flag.word().len());
+            sheet.write_string_with_format(r, 7, flag.word(), &style::status("warn"))?;
         }
         crate::history::write_noise(sheet, r, 8, &m)?;
         r += 1;
@@ -100,7 +100,7 @@ pub fn record(
         1,
         style::fit(record.period.as_deref().unwrap_or("(none)")),
     )?;
-    record_entries(sheet, &record.entries, RECORD_BAND_ROWS)
+    record_entries(sheet, &record.sheet_entries(), RECORD_BAND_ROWS)
 }
 
 /// Rows of entries in one band of the Record sheet: a sheet's 1,048,576 rows
