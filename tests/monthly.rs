@@ -580,3 +580,72 @@ fn largest_moves_rank_by_the_noise_scaled_change() {
     assert!(first["standard_error"].as_f64().unwrap() > 0.0, "{first}");
     assert!(first["change_in_standard_errors"].as_f64().unwrap().abs() > 5.0);
 }
+
+/// The text of one part of an xlsx (a zip).
+fn xlsx_part(xlsx: &Path, name: &str) -> String {
+    use std::io::Read;
+    let mut zip = zip::ZipArchive::new(std::fs::File::open(xlsx).unwrap()).unwrap();
+    let mut text = String::new();
+    zip.by_name(name)
+        .unwrap()
+        .read_to_string(&mut text)
+        .unwrap();
+    text
+}
+
+#[test]
+fn a_value_outside_its_control_band_is_marked_on_the_trend_sheet_and_chart() {
+    let dir = tempfile::tempdir().unwrap();
+    let months = dir.path().join("m");
+    std::fs::create_dir_all(&months).unwrap();
+    // Invented: four months of one line's fill weights; the fourth jumps.
+    // Earlier means 10, 10.1, 9.9: band 10 +/- 3 * 0.1 = [9.7, 10.3].
+    for (month, centre) in [("07", 10.0), ("08", 10.1), ("09", 9.9), ("10", 12.0)] {
+        let rows: String = [-1.0, 0.0, 1.0]
+            .iter()
+            .map(|d| format!("North,{}\n", centre + d))
+            .collect();
+        std::fs::write(
+            months.join(format!("fill-2026-{month}.csv")),
+            format!("line,w\n{rows}"),
+        )
+        .unwrap();
+    }
+    std::fs::write(
+        dir.path().join("r.sheaf"),
+        "panel \"Fill\" of w per line:\n",
+    )
+    .unwrap();
+    let o = sheaf(
+        &["run", "r.sheaf", "--data", "m/*.csv", "--out-dir", "out"],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let trend_path = dir.path().join("out/trend.xlsx");
+    let trend = cells(&trend_path, "Trend");
+    let band = |period: &str| {
+        trend
+            .iter()
+            .find(|r| r[0] == period && r[3] == "w mean")
+            .unwrap()[8]
+            .to_string()
+    };
+    assert_eq!(band("2026-09"), "");
+    assert_eq!(band("2026-10"), "above");
+    // The chart's table has a marker column holding only October's mean.
+    let charts = cells(&trend_path, "Trend charts");
+    let header = charts.iter().position(|r| r[0] == "Fill: w mean").unwrap() + 1;
+    let marker = charts[header]
+        .iter()
+        .position(|c| *c == "North outside band")
+        .expect("a marker column");
+    let marked: Vec<String> = charts[header + 1..header + 5]
+        .iter()
+        .map(|r| r.get(marker).map(|c| c.to_string()).unwrap_or_default())
+        .collect();
+    assert_eq!(marked, ["", "", "", "12"]);
+    // Drawn as markers without a line.
+    let xml = xlsx_part(&trend_path, "xl/charts/chart1.xml");
+    assert!(xml.contains("<c:symbol val=\"diamond\"/>"), "{xml}");
+    assert!(xml.contains("<a:ln><a:noFill/></a:ln>"), "{xml}");
+}

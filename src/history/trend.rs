@@ -3,7 +3,9 @@
 
 use std::collections::BTreeMap;
 
-use rust_xlsxwriter::{Chart, ChartType, Format, Workbook, XlsxError};
+use rust_xlsxwriter::{
+    Chart, ChartFormat, ChartMarker, ChartMarkerType, ChartType, Format, Workbook, XlsxError,
+};
 
 use std::collections::HashMap;
 
@@ -167,13 +169,12 @@ pub fn write_noise(
 fn trend_rows(
     sheet: &mut rust_xlsxwriter::Worksheet,
     records: &[(String, Record)],
+    bands: &Bands,
 ) -> Result<u32, XlsxError> {
     let mut r = 0u32;
-    let mut history: std::collections::HashMap<(String, String, String), Vec<f64>> =
-        Default::default();
     for (i, (period, record)) in records.iter().enumerate() {
         // Keyed by figure, so each row finds its change without a search.
-        let moves: std::collections::HashMap<(String, String, String), Move> = match i {
+        let moves: HashMap<(String, String, String), Move> = match i {
             0 => Default::default(),
             _ => {
                 let (from, before) = &records[i - 1];
@@ -194,16 +195,44 @@ fn trend_rows(
                 sheet.write_number(r, 5, m.after - m.before)?;
                 write_noise(sheet, r, 6, m)?;
             }
-            let earlier = history
-                .entry((e.block.clone(), e.group.clone(), e.name.clone()))
-                .or_default();
-            if let Some(outside) = outside_band(earlier, e.value) {
-                sheet.write_string(r, 8, outside)?;
+            if let Some(verdict) = bands.get(&band_key(e, period)) {
+                sheet.write_string(r, 8, *verdict)?;
             }
-            earlier.push(e.value);
         }
     }
     Ok(r)
+}
+
+/// Each (block, group, figure, period)'s control-band verdict, from the
+/// fourth period on (see [`outside_band`]).
+type Bands = HashMap<(String, String, String, String), &'static str>;
+
+fn band_key(e: &super::record::Entry, period: &str) -> (String, String, String, String) {
+    (
+        e.block.clone(),
+        e.group.clone(),
+        e.name.clone(),
+        period.to_string(),
+    )
+}
+
+/// The control-band verdict of every figure in every period: one
+/// definition for the Trend sheet's column and the charts' markers.
+fn band_verdicts(records: &[(String, Record)]) -> Bands {
+    let mut earlier: HashMap<(String, String, String), Vec<f64>> = HashMap::new();
+    let mut bands = Bands::new();
+    for (period, record) in records {
+        for e in record.entries.iter().filter(|e| e.block != TERM_BLOCK) {
+            let seen = earlier
+                .entry((e.block.clone(), e.group.clone(), e.name.clone()))
+                .or_default();
+            if let Some(verdict) = outside_band(seen, e.value) {
+                bands.insert(band_key(e, period), verdict);
+            }
+            seen.push(e.value);
+        }
+    }
+    bands
 }
 
 /// Periods before a value needed for its control band.
@@ -306,7 +335,8 @@ pub fn trend_workbook(
             "control band",
         ],
     )?;
-    let rows = trend_rows(sheet, records)?;
+    let bands = band_verdicts(records);
+    let rows = trend_rows(sheet, records, &bands)?;
     sheet.autofilter(0, 0, rows.max(1), 8)?;
 
     let sheet = workbook.add_worksheet().set_name(MOVES_SHEET)?;
@@ -348,11 +378,26 @@ pub fn trend_workbook(
     }
     sheet.autofilter(0, 0, moves.len().clamp(1, 200) as u32, 10)?;
 
-    // One chart per (block, figure): periods down, groups across.
+    trend_charts(&mut workbook, records, panel_blocks, &bands)?;
+    workbook.save_to_buffer()
+}
+
+/// The values of one chart: per group, per period.
+type ChartValues = BTreeMap<String, BTreeMap<String, f64>>;
+
+/// One line chart per (block, figure): periods down, groups across, and
+/// for each group with a value outside its control band a marker series
+/// (markers only, no line) at those values, named "GROUP outside band".
+fn trend_charts(
+    workbook: &mut Workbook,
+    records: &[(String, Record)],
+    panel_blocks: &[String],
+    bands: &Bands,
+) -> Result<(), XlsxError> {
+    let bold = Format::new().set_bold();
     let sheet_name = "Trend charts";
     let sheet = workbook.add_worksheet().set_name(sheet_name)?;
-    let mut series: BTreeMap<(String, String), BTreeMap<String, BTreeMap<String, f64>>> =
-        BTreeMap::new();
+    let mut series: BTreeMap<(String, String), ChartValues> = BTreeMap::new();
     for (period, record) in records {
         for e in record
             .entries
@@ -378,24 +423,58 @@ pub fn trend_workbook(
         let mut chart = Chart::new(ChartType::Line);
         chart.title().set_name(&format!("{block}: {name}"));
         let last = top + 1 + periods.len() as u32;
-        for (j, (group, values)) in groups.iter().enumerate() {
-            let c = 1 + j as u16;
-            sheet.write_string_with_format(top + 1, c, fit(group), &bold)?;
+        let mut column = 1u16;
+        let mut add = |sheet: &mut rust_xlsxwriter::Worksheet,
+                       label: String,
+                       values: &BTreeMap<String, f64>|
+         -> Result<u16, XlsxError> {
+            let c = column;
+            column += 1;
+            sheet.write_string_with_format(top + 1, c, fit(&label), &bold)?;
             for (i, p) in periods.iter().enumerate() {
                 if let Some(v) = values.get(*p) {
                     sheet.write_number(top + 2 + i as u32, c, *v)?;
                 }
             }
+            Ok(c)
+        };
+        for (group, values) in groups {
+            let c = add(sheet, group.clone(), values)?;
             chart
                 .add_series()
                 .set_name((sheet_name, top + 1, c))
                 .set_categories((sheet_name, top + 2, 0, last, 0))
                 .set_values((sheet_name, top + 2, c, last, c));
         }
-        sheet.insert_chart(top, (groups.len() + 2) as u16, &chart)?;
+        for (group, values) in groups {
+            let outside: BTreeMap<String, f64> = values
+                .iter()
+                .filter(|(p, _)| {
+                    let key = (block.clone(), group.clone(), name.clone(), p.to_string());
+                    matches!(bands.get(&key), Some(&"above" | &"below"))
+                })
+                .map(|(p, v)| (p.clone(), *v))
+                .collect();
+            if outside.is_empty() {
+                continue;
+            }
+            let c = add(sheet, format!("{group} outside band"), &outside)?;
+            chart
+                .add_series()
+                .set_name((sheet_name, top + 1, c))
+                .set_categories((sheet_name, top + 2, 0, last, 0))
+                .set_values((sheet_name, top + 2, c, last, c))
+                .set_format(ChartFormat::new().set_no_line())
+                .set_marker(
+                    ChartMarker::new()
+                        .set_type(ChartMarkerType::Diamond)
+                        .set_size(9),
+                );
+        }
+        sheet.insert_chart(top, column + 1, &chart)?;
         top = (last + 2).max(top + 16);
     }
-    workbook.save_to_buffer()
+    Ok(())
 }
 
 #[cfg(test)]
