@@ -12,10 +12,11 @@
 //!   and not in the other. Their size moves a lot from sampling alone
 //!   (a skewness near 0 changing sign is an infinite relative change), so
 //!   a relative or standard-error rule on the figure itself would cry wolf;
-//! - min and max: flagged "new extreme" when beyond the previous period's
-//!   far fences, Q1 - 3 IQR or Q3 + 3 IQR (Tukey 1977's "far out"): one row
-//!   moves an extreme, so the question is whether that row would have been
-//!   far out last period;
+//! - min and max: flagged "new extreme" when beyond both the previous
+//!   period's extreme and its far fences, Q1 - 3 IQR or Q3 + 3 IQR (Tukey
+//!   1977's "far out"): one row moves an extreme, so the question is whether
+//!   a row lies further out than any last period and would have been far
+//!   out then (an outlier that stays from month to month is not new);
 //! - Bowley skewness, range, outlier counts, missing, modes: listed, never
 //!   flagged (no standard error kept, or a count of single rows).
 
@@ -99,12 +100,14 @@ pub fn basis(before: &Record, after: &Record, block: &str, group: &str, name: &s
         if let Some(column) = column_of(name, label) {
             let beyond = (|| {
                 let (q1, q3) = (of(before, column, "Q1")?, of(before, column, "Q3")?);
+                let was = before.find(block, group, name)?;
                 let value = after.find(block, group, name)?;
                 let far = 3.0 * (q3 - q1);
+                // Beyond last period's extreme too: an outlier that stays is not new.
                 Some(if low {
-                    value < q1 - far
+                    value < q1 - far && value < was
                 } else {
-                    value > q3 + far
+                    value > q3 + far && value > was
                 })
             })();
             return Basis::Extreme {
@@ -169,8 +172,8 @@ pub fn rules_in_words(drift: f64, noise: f64) -> String {
          s^2, a median's, quartile's or percentile's by Maritz and Jarrett (1978), a trimmed \
          mean's by Tukey and McLaughlin (1963). \"shape changed\": skewness or kurtosis beyond \
          2.58 standard errors under normality in one period and not the other. \"new \
-         extreme\": a min or max beyond the previous period's 3 IQR fences. Bowley skewness, \
-         ranges and outlier counts are listed, never flagged.",
+         extreme\": a min or max beyond both the previous period's extreme and its 3 IQR \
+         fences. Bowley skewness, ranges and outlier counts are listed, never flagged.",
         crate::format::shortest(drift * 100.0),
         crate::format::shortest(noise)
     )
@@ -191,6 +194,56 @@ pub fn noise_of(recipe: &crate::recipe::Recipe) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::history::Entry;
+
+    fn record(figures: &[(&str, f64)]) -> Record {
+        Record {
+            fingerprint: "f".into(),
+            period: None,
+            entries: figures
+                .iter()
+                .map(|(name, value)| Entry {
+                    block: "B".into(),
+                    group: "G".into(),
+                    name: name.to_string(),
+                    value: *value,
+                })
+                .collect(),
+            standard_errors: Vec::new(),
+        }
+    }
+
+    /// Previous quartiles 10 and 12: far fences 4 and 18 (3 IQR, Tukey 1977).
+    #[test]
+    fn a_new_extreme_lies_beyond_the_old_one_and_the_far_fence() {
+        let judged = |(was_max, was_min): (f64, f64), max: f64, min: f64| {
+            let was = record(&[
+                ("x Q1", 10.0),
+                ("x Q3", 12.0),
+                ("x max", was_max),
+                ("x min", was_min),
+            ]);
+            let now = record(&[
+                ("x Q1", 10.0),
+                ("x Q3", 12.0),
+                ("x max", max),
+                ("x min", min),
+            ]);
+            ["x max", "x min"].map(|name| match basis(&was, &now, "B", "G", name) {
+                Basis::Extreme {
+                    beyond_previous_fences: Some(b),
+                } => b,
+                other => panic!("{other:?}"),
+            })
+        };
+        // Inside the far fences: not new.
+        assert_eq!(judged((15.0, 9.0), 17.0, 5.0), [false, false]);
+        // The same outliers of 25 and -1 as last month are not new either.
+        assert_eq!(judged((25.0, -1.0), 25.0, -1.0), [false, false]);
+        // Beyond both: new.
+        assert_eq!(judged((15.0, 9.0), 20.0, 3.0), [true, true]);
+        assert_eq!(judged((25.0, -1.0), 30.0, -2.0), [true, true]);
+    }
 
     /// n = 200: SES = sqrt(6*200*199/(198*201*203)) = 0.17193 (worked by
     /// hand); 2.58 SES is 0.4436 in G1, and G1 = g1 * 1.00757 here.
