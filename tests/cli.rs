@@ -151,13 +151,14 @@ fn a_comparison_says_how_many_figures_moved_and_verbose_says_what_was_read() {
         dir.path(),
     );
     snapshot("summary-compare-verbose", &o, dir.path());
-    // The summary's count is the Changes sheet's.
+    // The summary's count is the Changes sheet's flags.
+    let flags = ["moved", "shape changed", "new extreme"];
     let moved = common::cells(&dir.path().join("oct.xlsx"), "Changes")
         .iter()
-        .filter(|row| row.iter().any(|c| *c == "moved"))
+        .filter(|row| row.iter().any(|c| flags.iter().any(|f| *c == *f)))
         .count();
     assert!(
-        text(&o).contains(&format!("changes: {moved} figures moved")),
+        text(&o).contains(&format!("changes: {moved} figures flagged")),
         "{moved}: {}",
         text(&o)
     );

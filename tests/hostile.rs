@@ -797,7 +797,9 @@ fn extreme_values_give_exact_moments() {
 
 /// A recipe of 10^4 nesting levels, or a 120,000-row CSV file given as the
 /// recipe: the diagnostics come in time proportional to the recipe's size
-/// (once 57 s for 30,000 rows), and only the first 20 are printed.
+/// (once 57 s for 30,000 rows, so about 15 minutes for these 120,000; the
+/// 60 s bound leaves room for a loaded machine), and only the first 20 are
+/// printed.
 #[test]
 fn diagnostics_of_huge_bad_recipes_are_quick_and_capped() {
     let dir = tempfile::tempdir().unwrap();
@@ -823,7 +825,7 @@ fn diagnostics_of_huge_bad_recipes_are_quick_and_capped() {
         );
         assert!(said.contains("more problems in"), "{name}: {said}");
         assert!(
-            took < std::time::Duration::from_secs(30),
+            took < std::time::Duration::from_secs(60),
             "{name}: {took:?}"
         );
     }

@@ -363,10 +363,31 @@ fn trend_rows_carry_the_change_and_its_noise_scaled_size() {
     .sqrt();
     assert!((num(&r[6]) - se).abs() < 1e-12);
     assert!((num(&r[7]) - change / se).abs() < 1e-9);
-    // A median has no standard error yet, and says so.
-    assert_eq!(
-        row(oct, "late_h median")[6].to_string(),
-        "no standard error"
+    // A median's: sqrt(se1^2 + se2^2) from the standard errors each
+    // period's Record keeps (Maritz-Jarrett, checked against scipy in
+    // tests/reference.rs).
+    let kept = |file: &str| {
+        let record = cells(
+            &dir.path().join(format!("out/{file}-summary.xlsx")),
+            "Record",
+        );
+        record
+            .iter()
+            .find(|r| {
+                r[0] == "Lateness" && r[1] == "North" && r[2] == "late_h median (standard error)"
+            })
+            .map(|r| num(&r[3]))
+            .unwrap()
+    };
+    let median_se = kept("depot-2026-09").hypot(kept("depot-2026-10"));
+    assert!((num(&row(oct, "late_h median")[6]) - median_se).abs() < 1e-15);
+    // An IQR has none, and says so.
+    assert_eq!(row(oct, "late_h IQR")[6].to_string(), "no standard error");
+    // Standard errors are not figures of their own on the trend sheet.
+    assert!(
+        !trend
+            .iter()
+            .any(|r| r[3].to_string().contains("standard error"))
     );
 }
 
@@ -418,4 +439,263 @@ fn an_older_record_with_display_labels_still_compares() {
     // modes (a list) and the mode basis (words), for 2 columns in 3 depots.
     let panel_rows = changes.iter().filter(|r| r[0] == "Lateness").count();
     assert_eq!(panel_rows, 16 * 2 * 3);
+}
+
+/// A seeded generator for invented test data (xorshift64*; the numbers
+/// need only be fixed, not good).
+struct Draws(u64);
+
+impl Draws {
+    fn uniform(&mut self) -> f64 {
+        self.0 ^= self.0 >> 12;
+        self.0 ^= self.0 << 25;
+        self.0 ^= self.0 >> 27;
+        ((self.0.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 + 0.5) / (1u64 << 53) as f64
+    }
+
+    /// Standard normal by Box-Muller.
+    fn normal(&mut self) -> f64 {
+        let (u, v) = (self.uniform(), self.uniform());
+        (-2.0 * u.ln()).sqrt() * (2.0 * std::f64::consts::PI * v).cos()
+    }
+
+    fn exponential(&mut self) -> f64 {
+        -self.uniform().ln()
+    }
+}
+
+/// `xs` rescaled to mean exactly `mean` and sample sd exactly `sd`.
+fn standardised(xs: &[f64], mean: f64, sd: f64) -> Vec<f64> {
+    let n = xs.len() as f64;
+    let m = xs.iter().sum::<f64>() / n;
+    let s = (xs.iter().map(|x| (x - m).powi(2)).sum::<f64>() / (n - 1.0)).sqrt();
+    xs.iter().map(|x| mean + sd * (x - m) / s).collect()
+}
+
+/// Invented: minutes to pack a parcel at four depots, September and
+/// October. South drifts by one sd (and one parcel takes very long); East
+/// moves its mean by 2.5 standard errors of the change; West's times are
+/// skewed and two independent months of the same process.
+fn packing_months(dir: &Path) {
+    let mut draws = Draws(0x5EAF_0012);
+    let south: Vec<f64> = (0..200).map(|_| draws.normal()).collect();
+    let south = standardised(&south, 5.0, 1.0);
+    let east: Vec<f64> = (0..50).map(|_| draws.normal()).collect();
+    let east = standardised(&east, 5.0, 1.0);
+    // 2.5 standard errors of a change of the mean: sd sqrt(2/n) each.
+    let east_shift = 2.5 * (2.0f64 / 50.0).sqrt();
+    let west = |draws: &mut Draws| -> Vec<f64> {
+        (0..150).map(|_| 2.0 + 3.0 * draws.exponential()).collect()
+    };
+    let (west_sep, west_oct) = (west(&mut draws), west(&mut draws));
+    let write = |name: &str, rows: Vec<(&str, f64)>| {
+        let mut t = String::from("depot,minutes\n");
+        for (depot, x) in rows {
+            t.push_str(&format!("{depot},{x}\n"));
+        }
+        std::fs::write(dir.join(name), t).unwrap();
+    };
+    let mut sep: Vec<(&str, f64)> = south.iter().map(|&x| ("South", x)).collect();
+    sep.extend(east.iter().map(|&x| ("East", x)));
+    sep.extend(west_sep.iter().map(|&x| ("West", x)));
+    let mut oct: Vec<(&str, f64)> = south.iter().map(|&x| ("South", x + 1.0)).collect();
+    oct.push(("South", 30.0));
+    oct.extend(east.iter().map(|&x| ("East", x + east_shift)));
+    oct.extend(west_oct.iter().map(|&x| ("West", x)));
+    write("pack-2026-09.csv", sep);
+    write("pack-2026-10.csv", oct);
+}
+
+/// The Changes sheet of October against September under `rules`.
+fn packing_changes(dir: &Path, rules: &str) -> Vec<Vec<Data>> {
+    std::fs::write(
+        dir.join("r.sheaf"),
+        format!("panel \"Packing\" of minutes per depot:\n{rules}"),
+    )
+    .unwrap();
+    for (data, out, compare) in [
+        ("pack-2026-09.csv", "sep.xlsx", None),
+        ("pack-2026-10.csv", "oct.xlsx", Some("sep.xlsx")),
+    ] {
+        let mut args = vec!["run", "r.sheaf", "--data", data, "--out", out, "--force"];
+        args.extend(compare.iter().flat_map(|c| ["--compare", *c]));
+        let o = sheaf(&args, dir);
+        assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    }
+    cells(&dir.join("oct.xlsx"), "Changes")
+}
+
+fn change_row<'a>(changes: &'a [Vec<Data>], depot: &str, figure: &str) -> &'a [Data] {
+    changes
+        .iter()
+        .find(|r| r.len() > 9 && r[1] == depot && r[2] == figure)
+        .unwrap_or_else(|| panic!("{depot} {figure}"))
+}
+
+fn number(d: &Data) -> f64 {
+    match d {
+        Data::Float(x) => *x,
+        other => panic!("not a number: {other:?}"),
+    }
+}
+
+#[test]
+fn a_real_drift_is_flagged_a_noisy_skewness_is_not_and_the_noise_rule_is_the_recipes() {
+    let dir = tempfile::tempdir().unwrap();
+    packing_months(dir.path());
+    let changes = packing_changes(dir.path(), "drift 5%\n");
+    let flag = |depot: &str, figure: &str| change_row(&changes, depot, figure)[7].to_string();
+    let scaled = |depot: &str, figure: &str| number(&change_row(&changes, depot, figure)[9]);
+
+    // South's median drifts by one sd: many standard errors, flagged.
+    assert_eq!(flag("South", "minutes median"), "moved");
+    assert!(scaled("South", "minutes median") > 5.0);
+    assert_eq!(flag("South", "minutes Q1"), "moved");
+    // Its one very long parcel lies beyond September's 3 IQR fence.
+    assert_eq!(flag("South", "minutes max"), "new extreme");
+    assert_eq!(flag("South", "minutes min"), "");
+
+    // West: two months of one skewed process. Its skewness changes by more
+    // than the drift but is skewed beyond its noise both months: not flagged.
+    let west_skew = change_row(&changes, "West", "minutes skewness g1");
+    assert!(number(&west_skew[6]).abs() > 0.05, "{west_skew:?}");
+    assert_eq!(west_skew[7].to_string(), "");
+    // A month's sampling noise in its median is not a move either.
+    assert!(scaled("West", "minutes median").abs() < 2.0);
+    assert_eq!(flag("West", "minutes median"), "");
+
+    // East's mean moves 2.5 standard errors of the change (Welch): flagged
+    // by the default rule of 2, not by `noise 3 se`.
+    assert!((scaled("East", "minutes mean") - 2.5).abs() < 1e-9);
+    assert_eq!(flag("East", "minutes mean"), "moved");
+    let strict = packing_changes(dir.path(), "drift 5%\nnoise 3 se\n");
+    assert_eq!(
+        change_row(&strict, "East", "minutes mean")[7].to_string(),
+        ""
+    );
+    assert_eq!(
+        change_row(&strict, "South", "minutes median")[7].to_string(),
+        "moved"
+    );
+    assert!(
+        strict[1][0]
+            .to_string()
+            .contains("beyond 3 standard errors")
+    );
+}
+
+#[test]
+fn largest_moves_rank_by_the_noise_scaled_change() {
+    let dir = tempfile::tempdir().unwrap();
+    packing_months(dir.path());
+    std::fs::create_dir_all(dir.path().join("m")).unwrap();
+    for m in ["pack-2026-09.csv", "pack-2026-10.csv"] {
+        std::fs::rename(dir.path().join(m), dir.path().join("m").join(m)).unwrap();
+    }
+    std::fs::write(
+        dir.path().join("r.sheaf"),
+        "panel \"Packing\" of minutes per depot:\n",
+    )
+    .unwrap();
+    let o = sheaf(
+        &[
+            "run",
+            "r.sheaf",
+            "--data",
+            "m/*.csv",
+            "--out-dir",
+            "out",
+            "--json",
+        ],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let moves = cells(&dir.path().join("out/trend.xlsx"), "Largest moves");
+    // South's one-sd drift of its centre leads; sizes in standard errors fall.
+    assert_eq!(moves[1][1].to_string(), "South");
+    let sizes: Vec<f64> = moves
+        .iter()
+        .skip(1)
+        .take_while(|r| matches!(r[10], Data::Float(_)))
+        .map(|r| number(&r[10]).abs())
+        .collect();
+    assert!(
+        sizes.len() > 10 && sizes.windows(2).all(|w| w[0] >= w[1]),
+        "{sizes:?}"
+    );
+    // JSON: each move of the trend carries its standard error.
+    let stdout = String::from_utf8_lossy(&o.stdout);
+    let trend: serde_json::Value = serde_json::from_str(stdout.lines().last().unwrap()).unwrap();
+    let first = &trend["moves"][0];
+    assert!(first["standard_error"].as_f64().unwrap() > 0.0, "{first}");
+    assert!(first["change_in_standard_errors"].as_f64().unwrap().abs() > 5.0);
+}
+
+/// The text of one part of an xlsx (a zip).
+fn xlsx_part(xlsx: &Path, name: &str) -> String {
+    use std::io::Read;
+    let mut zip = zip::ZipArchive::new(std::fs::File::open(xlsx).unwrap()).unwrap();
+    let mut text = String::new();
+    zip.by_name(name)
+        .unwrap()
+        .read_to_string(&mut text)
+        .unwrap();
+    text
+}
+
+#[test]
+fn a_value_outside_its_control_band_is_marked_on_the_trend_sheet_and_chart() {
+    let dir = tempfile::tempdir().unwrap();
+    let months = dir.path().join("m");
+    std::fs::create_dir_all(&months).unwrap();
+    // Invented: four months of one line's fill weights; the fourth jumps.
+    // Earlier means 10, 10.1, 9.9: band 10 +/- 3 * 0.1 = [9.7, 10.3].
+    for (month, centre) in [("07", 10.0), ("08", 10.1), ("09", 9.9), ("10", 12.0)] {
+        let rows: String = [-1.0, 0.0, 1.0]
+            .iter()
+            .map(|d| format!("North,{}\n", centre + d))
+            .collect();
+        std::fs::write(
+            months.join(format!("fill-2026-{month}.csv")),
+            format!("line,w\n{rows}"),
+        )
+        .unwrap();
+    }
+    std::fs::write(
+        dir.path().join("r.sheaf"),
+        "panel \"Fill\" of w per line:\n",
+    )
+    .unwrap();
+    let o = sheaf(
+        &["run", "r.sheaf", "--data", "m/*.csv", "--out-dir", "out"],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let trend_path = dir.path().join("out/trend.xlsx");
+    let trend = cells(&trend_path, "Trend");
+    let band = |period: &str| {
+        trend
+            .iter()
+            .find(|r| r[0] == period && r[3] == "w mean")
+            .unwrap()[8]
+            .to_string()
+    };
+    assert_eq!(band("2026-09"), "");
+    assert_eq!(band("2026-10"), "above");
+    // The chart's table has a marker column holding only October's mean.
+    let charts = cells(&trend_path, "Trend charts");
+    let header = charts.iter().position(|r| r[0] == "Fill: w mean").unwrap() + 1;
+    let marker = charts[header]
+        .iter()
+        .position(|c| *c == "North outside band")
+        .expect("a marker column");
+    let marked: Vec<String> = charts[header + 1..header + 5]
+        .iter()
+        .map(|r| r.get(marker).map(|c| c.to_string()).unwrap_or_default())
+        .collect();
+    assert_eq!(marked, ["", "", "", "12"]);
+    // Drawn as markers without a line.
+    let xml = xlsx_part(&trend_path, "xl/charts/chart1.xml");
+    assert!(xml.contains("<c:symbol val=\"diamond\"/>"), "{xml}");
+    assert!(xml.contains("<a:ln><a:noFill/></a:ln>"), "{xml}");
 }

@@ -317,3 +317,143 @@ fn a_real_drift_is_flagged_and_a_noisy_skewness_is_not() {
     );
     assert_eq!(skew[7].to_string(), "", "{skew:?}");
 }
+
+/// The demo recipe with `period from {Delivered on}` added, in `dir`.
+fn recipe_with_period_column(dir: &Path) -> String {
+    let path = dir.join("dated.sheaf");
+    let text_of = std::fs::read_to_string(recipe()).unwrap();
+    std::fs::write(&path, format!("{text_of}\nperiod from {{Delivered on}}\n")).unwrap();
+    path.display().to_string()
+}
+
+#[test]
+fn names_without_a_date_take_the_period_from_the_data() {
+    let dir = tempfile::tempdir().unwrap();
+    // By name: October (alpha), August (beta), September (gamma).
+    let months = dir.path().join("months");
+    std::fs::create_dir_all(&months).unwrap();
+    for (m, name) in [
+        ("depot-2026-10", "alpha"),
+        ("depot-2026-08", "beta"),
+        ("depot-2026-09", "gamma"),
+    ] {
+        let from = common::root().join(format!("workbooks/{m}.xlsx"));
+        std::fs::copy(from, months.join(format!("{name}.xlsx"))).unwrap();
+    }
+    let o = batch(dir.path(), &recipe_with_period_column(dir.path()));
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    assert!(!text(&o).contains("ordered by file name"), "{}", text(&o));
+    assert_eq!(trend_periods(dir.path()), ["2026-08", "2026-09", "2026-10"]);
+    let about = cells(&dir.path().join("out/alpha-summary.xlsx"), "About");
+    let period = about.iter().find(|r| r[0] == "period").unwrap();
+    assert_eq!(
+        period[1].to_string(),
+        "2026-10 (from the dates in column `Delivered on`, 240 rows)"
+    );
+    // Compared in time order: October's Changes are against September.
+    let changes = cells(&dir.path().join("out/alpha-summary.xlsx"), "Changes");
+    assert!(changes[1][0].to_string().contains("period 2026-09"));
+}
+
+/// Invented: three deliveries, one of them filed in the month before.
+fn two_months_csv(path: &Path) {
+    std::fs::write(
+        path,
+        "depot,x,shipped\nNorth,1,2026-10-02\nNorth,2,2026-09-30\nNorth,3,2026-10-05\n",
+    )
+    .unwrap();
+}
+
+#[test]
+fn a_file_of_several_months_is_an_error_naming_file_column_and_months() {
+    let dir = tempfile::tempdir().unwrap();
+    two_months_csv(&dir.path().join("depot-2026-10.csv"));
+    std::fs::write(
+        dir.path().join("r.sheaf"),
+        "period from shipped\npanel \"P\" of x:\n",
+    )
+    .unwrap();
+    let o = sheaf(
+        &[
+            "run",
+            "r.sheaf",
+            "--data",
+            "depot-2026-10.csv",
+            "--out",
+            "r.xlsx",
+        ],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    let t = text(&o);
+    assert!(
+        t.contains("depot-2026-10.csv: `period from shipped`: the column holds dates of 2 months: 2026-09 (1 row, first 'depot-2026-10'!C3), 2026-10 (2 rows, first 'depot-2026-10'!C2)"),
+        "{t}"
+    );
+    assert!(!dir.path().join("r.xlsx").exists());
+}
+
+#[test]
+fn the_data_wins_over_a_name_that_disagrees_and_the_run_says_so() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(
+        dir.path().join("depot-2026-11.csv"),
+        "depot,x,shipped\nNorth,1,2026-10-02\nNorth,3,2026-10-05\n",
+    )
+    .unwrap();
+    std::fs::write(
+        dir.path().join("r.sheaf"),
+        "period from shipped\npanel \"P\" of x:\n",
+    )
+    .unwrap();
+    let o = sheaf(
+        &[
+            "run",
+            "r.sheaf",
+            "--data",
+            "depot-2026-11.csv",
+            "--out",
+            "r.xlsx",
+        ],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let said = "the file's name says 2026-11 but its data say 2026-10";
+    assert!(text(&o).contains(said), "{}", text(&o));
+    assert!(sheet_mentions(&dir.path().join("r.xlsx"), "Checks", said));
+    let record = cells(&dir.path().join("r.xlsx"), "Record");
+    assert_eq!(record[1][1].to_string(), "2026-10");
+}
+
+#[test]
+fn a_text_period_column_names_the_period() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(
+        dir.path().join("export.csv"),
+        "depot,x,month\nNorth,1,Oct 2026\nNorth,3,Oct 2026\nRidge,2,\n",
+    )
+    .unwrap();
+    std::fs::write(
+        dir.path().join("r.sheaf"),
+        "period from month\npanel \"P\" of x:\n",
+    )
+    .unwrap();
+    let o = sheaf(
+        &[
+            "run",
+            "r.sheaf",
+            "--data",
+            "export.csv",
+            "--out",
+            "r.xlsx",
+            "-v",
+        ],
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    assert!(
+        text(&o).contains("period: 2026-10 (from the periods in column `month`, 2 rows)"),
+        "{}",
+        text(&o)
+    );
+}

@@ -236,6 +236,13 @@ fn statement() -> impl Strategy<Value = StatementKind> {
             }),
         (column(), keys).prop_map(|(column, per)| StatementKind::Boxplot { column, per }),
         name().prop_map(StatementKind::Period),
+        column().prop_map(StatementKind::PeriodFrom),
+        prop_oneof![Just(2.0), Just(3.0), 1.0f64..10.0].prop_map(|value| StatementKind::Noise(
+            Spanned {
+                value,
+                span: Span::default()
+            }
+        )),
         (
             prop_oneof![Just(10.0), Just(2.5), 0.01f64..100.0],
             prop::bool::ANY

@@ -10,11 +10,15 @@
 //! the Joanes-Gill variants against scipy's `bias` options, MAD against
 //! scipy's median_abs_deviation, trimmed and winsorized means against
 //! scipy's trim_mean and mstats.winsorize, histograms against numpy's
-//! histogram (fixed counts and its sturges, scott and fd rules). Rows
+//! histogram (fixed counts and its sturges, scott and fd rules), the
+//! standard errors of the noise rule against scipy's `stats.sem`,
+//! `mstats.mjci` (Maritz-Jarrett, quantiles), `mstats.trimmed_stde`
+//! (Tukey-McLaughlin, trimmed means) and `stats.binom` (shares). Rows
 //! named exact_* are exact rational arithmetic (Python's fractions): the
 //! moments, and the order statistics and robustness figures (IQR, Bowley,
 //! MAD, modified z, fences, mean-median gaps, leave-one-out changes, the
-//! standard errors of G1 and G2 under normality and the ratios to them),
+//! standard errors of G1 and G2 under normality and the ratios to them, the
+//! variance of the sample variance over all 6^6 resamples of a tiny set),
 //! also on two datasets 1e8 and 1e12 from zero where only they are given.
 
 use std::collections::BTreeMap;
@@ -80,6 +84,22 @@ fn sheaf_value(s: &Sample, name: &str) -> Vec<f64> {
         "leave_one_out_mean_index" => return vec![leave_one_out(s).unwrap().mean.index as f64],
         "leave_one_out_sd_change" => return vec![leave_one_out(s).unwrap().sd.change],
         "leave_one_out_sd_index" => return vec![leave_one_out(s).unwrap().sd.index as f64],
+        // Standard errors for the noise rule of Changes: scipy's `stats.sem`,
+        // and a share's against `stats.binom(n, p).std() / n`.
+        "mean_se" => return one(mean_se(s)),
+        "share_at_or_below_mean" | "share_se_at_or_below_mean" => {
+            let mean = s.mean().unwrap();
+            let p = s.values().iter().filter(|&&x| x <= mean).count() as f64 / s.count() as f64;
+            return match name {
+                "share_at_or_below_mean" => vec![p],
+                _ => one(share_se(p, s.count())),
+            };
+        }
+        // Against every resample enumerated in exact arithmetic.
+        "variance_of_variance" => {
+            let m = s.moments().unwrap();
+            return vec![variance_of_variance(m.n, m.m2, m.m4)];
+        }
         _ => {}
     }
     if let Some(moment) = name.strip_prefix("exact_") {
@@ -96,6 +116,10 @@ fn sheaf_value(s: &Sample, name: &str) -> Vec<f64> {
     let counts = |h: Stat<Histogram>| h.unwrap().counts.iter().map(|&c| c as f64).collect();
     match head {
         "trimmed_mean" => one(trimmed_mean(s, number(tail))),
+        // Tukey-McLaughlin, against scipy's `mstats.trimmed_stde`.
+        "trimmed_mean_se" => one(trimmed_mean_se(s, number(tail))),
+        // Maritz-Jarrett, against scipy's `mstats.mjci`.
+        "quantile_se" => one(quantile_se(s, number(tail))),
         "winsorized_mean" => one(winsorized_mean(s, number(tail))),
         "fence_low" => vec![fences(s, number(tail), hf7).unwrap().low],
         "fence_high" => vec![fences(s, number(tail), hf7).unwrap().high],

@@ -74,9 +74,13 @@ pub fn run_path(bytes: &[u8]) {
         run_time: "2026-11-01 09:00:00 UTC".into(),
         version: "fuzz".into(),
         fingerprint,
-        period: sheaf::history::period_of(&recipe, &path).ok().flatten(),
+        // As `run` settles it: a period column first, then the name.
+        period: sheaf::history::period_of_file(&recipe, &path, &table)
+            .ok()
+            .and_then(|(period, _)| period),
         previous: None,
         drift: sheaf::history::drift_of(&recipe),
+        noise: sheaf::history::noise_of(&recipe),
     };
     let out = scratch().join("result.xlsx");
     if sheaf::write::save(&results, &table, &run, &out, true).is_ok() {

@@ -33,6 +33,8 @@ struct Done {
     path: PathBuf,
     period: String,
     period_found: Option<history::Period>,
+    /// The file's name and its data name different periods (the data's is used).
+    period_note: Option<String>,
     table: Table,
     results: Results,
     timings: Timings,
@@ -123,13 +125,24 @@ fn load_and_evaluate(
         .map_err(|e| e.to_string())?;
     check_headers(recipe_path, text, recipe, &table).map_err(|f| f.message)?;
     let loaded = Instant::now();
+    let (mut period, mut label) = (planned.period.clone(), planned.label.clone());
+    let mut name_disagrees = None;
+    if history::period_column(recipe).is_some() {
+        let (found, warning) = history::period_of_file(recipe, path, &table)?;
+        if let Some(p) = &found {
+            label = p.label.clone();
+        }
+        (period, name_disagrees) = (found, warning);
+    }
     let mut results =
         eval::evaluate(recipe, &table).map_err(|e| format!("{}: {e}", path.display()))?;
     results.warnings.extend(recipe_warnings(recipe_path, text));
+    results.warnings.extend(name_disagrees.clone());
     Ok(Done {
+        period_note: name_disagrees,
         path: path.to_path_buf(),
-        period: planned.label.clone(),
-        period_found: planned.period.clone(),
+        period: label,
+        period_found: period,
         table,
         results,
         timings: Timings {
@@ -254,6 +267,12 @@ pub fn run(args: &RunArgs) -> Result<Exit, Failure> {
     };
 
     let (mut done, mut skipped) = evaluate_all(&args.recipe, &text, &recipe, &plan.files);
+    if history::period_column(&recipe).is_some() {
+        periods::order_read(&mut done, |d| (d.path.as_path(), d.period.as_str()))?;
+        for note in done.iter().filter_map(|d| d.period_note.as_deref()) {
+            output::problem(note);
+        }
+    }
     let order_warning = compare.as_ref().and_then(|previous| {
         history::compare_order_warning(
             args.compare.as_deref()?,
@@ -334,10 +353,11 @@ fn print_all(
         ));
     }
     if args.json {
-        let drift = files
-            .first()
-            .map_or(history::DEFAULT_DRIFT, |(_, i, _)| i.drift);
-        let document = report::trend_document(records, trend_path, drift, skipped);
+        let (drift, noise) = files.first().map_or(
+            (history::DEFAULT_DRIFT, history::DEFAULT_NOISE_SES),
+            |(_, i, _)| (i.drift, i.noise),
+        );
+        let document = report::trend_document(records, trend_path, (drift, noise), skipped);
         output::out_line(&report::to_line(&document))?;
         output::note(&lines);
     } else if !output::quiet() {

@@ -349,6 +349,7 @@ fn run_info(
         period,
         previous,
         drift: crate::history::drift_of(recipe),
+        noise: crate::history::noise_of(recipe),
     }
 }
 

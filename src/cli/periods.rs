@@ -1,8 +1,10 @@
-//! The periods of a batch's files, settled before any file is read: each
-//! from its name, in time order; a fixed `period` in the recipe, a date that
-//! cannot exist or two files of one period stop the batch with a message
-//! naming the files. When a name holds no date the files are ordered by
-//! name, and the batch says so.
+//! The periods of a batch's files: each from its name, in time order,
+//! settled before any file is read; or, when the recipe names a period
+//! column (`period from COLUMN`), from each file's data once it is read
+//! ([`order_read`]). A fixed `period` in the recipe, a date that cannot
+//! exist or two files of one period stop the batch with a message naming
+//! the files. When a name holds no date the files are ordered by name, and
+//! the batch says so.
 
 use std::path::{Path, PathBuf};
 
@@ -13,7 +15,8 @@ use crate::recipe::Recipe;
 /// One file of a batch and the period it covers.
 pub struct Planned {
     pub path: PathBuf,
-    /// None when the name holds no date; `label` is then the file's stem.
+    /// From the name; [`Period::fallback`] (the file's stem) when it holds
+    /// no date; None until read when the period comes from the data.
     pub period: Option<Period>,
     pub label: String,
 }
@@ -34,6 +37,22 @@ fn stem(path: &Path) -> String {
 
 /// Settles every file's period; `Err` says what to do and that nothing was read.
 pub fn plan(recipe: &Recipe, files: &[PathBuf]) -> Result<Plan, Failure> {
+    if history::period_column(recipe).is_some() {
+        // Each file's period is read from its data; ordered once read.
+        let mut planned: Vec<Planned> = files
+            .iter()
+            .map(|path| Planned {
+                path: path.clone(),
+                period: None,
+                label: stem(path),
+            })
+            .collect();
+        planned.sort_by(|a, b| a.path.cmp(&b.path));
+        return Ok(Plan {
+            files: planned,
+            ordering_note: None,
+        });
+    }
     let mut planned = Vec::new();
     let mut refused = Vec::new();
     for path in files {
@@ -80,6 +99,9 @@ pub fn plan(recipe: &Recipe, files: &[PathBuf]) -> Result<Plan, Failure> {
         });
     }
     planned.sort_by(|a, b| a.path.cmp(&b.path));
+    for p in planned.iter_mut().filter(|p| p.period.is_none()) {
+        p.period = Some(Period::fallback(p.label.clone()));
+    }
     let note = (planned.len() > 1).then(|| {
         format!(
             "warning: no date found in the name of {}; the files were ordered by file name \
@@ -98,17 +120,38 @@ pub fn plan(recipe: &Recipe, files: &[PathBuf]) -> Result<Plan, Failure> {
     })
 }
 
+/// Files read for a recipe with a period column, put in period order
+/// (`of` gives each one's path and period label); two files of one period
+/// are refused, naming both.
+pub fn order_read<T>(read: &mut [T], of: impl Fn(&T) -> (&Path, &str)) -> Result<(), Failure> {
+    read.sort_by_key(|t| {
+        let (path, label) = of(t);
+        (history::order_key(label), path.to_path_buf())
+    });
+    refuse_shared(read.iter().map(of).collect())
+}
+
 /// Two files of one period would be compared with each other as if a month apart.
 fn refuse_shared_periods(sorted: &[Planned]) -> Result<(), Failure> {
+    refuse_shared(
+        sorted
+            .iter()
+            .map(|p| (p.path.as_path(), p.label.as_str()))
+            .collect(),
+    )
+}
+
+/// `sorted` as (path, period label), in period order.
+fn refuse_shared(sorted: Vec<(&Path, &str)>) -> Result<(), Failure> {
     let shared: Vec<String> = sorted
         .windows(2)
-        .filter(|w| w[0].label == w[1].label)
+        .filter(|w| w[0].1 == w[1].1)
         .map(|w| {
             format!(
                 "{} and {} are both of period {}",
-                w[0].path.display(),
-                w[1].path.display(),
-                w[0].label
+                w[0].0.display(),
+                w[1].0.display(),
+                w[0].1
             )
         })
         .collect();

@@ -90,7 +90,8 @@ fn run(args: &RunArgs) -> Result<Exit, Failure> {
     let text = read_recipe(&args.recipe)?;
     let (recipe, table) = load_for(&args.recipe, &text, data)?;
     let loaded = Instant::now();
-    let period = crate::history::period_of(&recipe, data).map_err(Failure::new)?;
+    let (period, name_disagrees) =
+        crate::history::period_of_file(&recipe, data, &table).map_err(Failure::new)?;
     let previous = match &args.compare {
         Some(path) => Some(crate::history::Record::read(path, &recipe)?),
         None => None,
@@ -103,6 +104,10 @@ fn run(args: &RunArgs) -> Result<Exit, Failure> {
     results
         .warnings
         .extend(recipe_warnings(&args.recipe, &text));
+    if let Some(w) = name_disagrees {
+        output::problem(&w);
+        results.warnings.push(w);
+    }
     if let Some(w) = previous.as_ref().and_then(|p| {
         crate::history::compare_order_warning(
             args.compare.as_deref()?,

@@ -7,15 +7,16 @@ use crate::eval::{Block, Outcome, Results, Status, group_label};
 use crate::load::Table;
 use crate::write::RunInfo;
 
-/// How many figures moved beyond the recipe's drift since the previous
-/// period; None when the run had none to compare with.
+/// How many figures the Changes sheet flags since the previous period
+/// (moved beyond the drift and their noise, shape changed, new extreme);
+/// None when the run had none to compare with.
 pub fn moved(results: &Results, run: &RunInfo) -> Option<usize> {
     let previous = run.previous.as_ref()?;
     let current = crate::history::Record::from_results(results, run.fingerprint.clone(), None);
     Some(
         crate::history::moves_between("", previous, "", &current)
             .iter()
-            .filter(|m| m.moved(run.drift))
+            .filter(|m| m.moved(run.drift, run.noise))
             .count(),
     )
 }
@@ -50,7 +51,7 @@ pub fn batch_line(
     moved: Option<usize>,
 ) -> String {
     let moved = moved
-        .map(|n| format!("; {n} figures moved beyond the drift"))
+        .map(|n| format!("; {n} figures flagged in Changes"))
         .unwrap_or_default();
     format!(
         "{period}  {}  -> {}  checks: {}{moved}\n",
@@ -151,7 +152,7 @@ pub fn render(results: &Results, table: &Table, out: &Path, moved: Option<usize>
     }
     if let Some(n) = moved {
         text.push_str(&format!(
-            "changes: {n} figure{} moved beyond the drift since the previous period (see Changes)\n",
+            "changes: {n} figure{} flagged since the previous period: moved beyond the drift and the noise, shape changed or new extreme (see Changes)\n",
             if n == 1 { "" } else { "s" }
         ));
     }

@@ -5,6 +5,7 @@
 //! order their first row appears in the data.
 
 mod aggregate;
+mod noise;
 mod panel;
 mod value;
 
@@ -43,6 +44,9 @@ pub struct FigureRow {
     pub group: Vec<String>,
     pub rows: usize,
     pub values: Vec<One>,
+    /// Each figure's standard error where it has one (see `noise`), in
+    /// the order of `values`.
+    pub standard_errors: Vec<Option<f64>>,
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -350,6 +354,8 @@ fn columns_used(recipe: &Recipe) -> Vec<String> {
             | StatementKind::Input { .. }
             | StatementKind::Header { .. }
             | StatementKind::Period(_)
+            | StatementKind::PeriodFrom(_)
+            | StatementKind::Noise(_)
             | StatementKind::Drift(_) => {}
         }
         out.extend(refs.into_iter().map(|c| c.name.clone()));
@@ -443,6 +449,8 @@ impl Run<'_> {
             StatementKind::Input { .. }
             | StatementKind::Header { .. }
             | StatementKind::Period(_)
+            | StatementKind::PeriodFrom(_)
+            | StatementKind::Noise(_)
             | StatementKind::Drift(_) => {}
             StatementKind::Let { name, value } => self.let_column(&name.value, value),
             StatementKind::RowsWhere(condition) => self.rows_where(condition),
@@ -581,10 +589,15 @@ impl Run<'_> {
                 .iter()
                 .map(|f| one(group_scope.eval(&f.value)))
                 .collect();
+            let standard_errors = figures
+                .iter()
+                .map(|f| noise::figure_standard_error(&group_scope, &f.value))
+                .collect();
             out.push(FigureRow {
                 group,
                 rows: group_rows.len(),
                 values,
+                standard_errors,
             });
         }
         self.results.blocks.push(Block::Figures {
@@ -722,6 +735,7 @@ fn panel_entry(
         group: group.to_vec(),
         column: column.name.clone(),
         figures,
+        standard_errors: noise::panel_standard_errors(&sample),
         robustness: panel::robustness(&sample, &fenced, &address),
         sample_summary: panel::box_summary(&sample),
     }

@@ -273,6 +273,9 @@ pub struct PanelEntry {
     pub column: String,
     /// In [`PANEL_FIGURES`]' order (computed from it).
     pub figures: Vec<One>,
+    /// The figures that have a standard error, by label (mean, sd, Q1,
+    /// median, Q3), for judging their change against noise.
+    pub standard_errors: Vec<(&'static str, f64)>,
     pub robustness: Robustness,
     /// For the box plot: the five numbers and the whisker ends.
     pub sample_summary: Option<BoxSummary>,

@@ -2,18 +2,21 @@
 //! the period a file covers, the comparison with the previous period and
 //! the trend workbook of a batch.
 
+mod judge;
 mod period;
+mod period_data;
 mod record;
 mod trend;
 
+pub use judge::{Basis, DEFAULT_NOISE_SES, Flag, noise_of, rules_in_words};
 pub use period::{Period, PeriodSource, compare_order_warning, order_key, period_of};
+pub use period_data::{period_column, period_from_data, period_of_file};
 pub use record::{
-    Entry, RECORD_SHEET, Record, RecordError, TERM_BLOCK, fingerprint, made_by_sheaf,
-    panel_entry_name, panel_figure_of, shown_name,
+    Entry, RECORD_BAND_WIDTH, RECORD_SHEET, Record, RecordError, SE_SUFFIX, TERM_BLOCK,
+    fingerprint, made_by_sheaf, panel_entry_name, panel_figure_of, shown_name,
 };
 pub use trend::{
-    Move, NOISE_SES, group_changes, largest_moves, moves_between, trend_workbook, welch_se,
-    write_noise,
+    Move, group_changes, largest_moves, moves_between, trend_workbook, welch_se, write_noise,
 };
 
 /// Relative change beyond which a figure is flagged when the recipe sets no

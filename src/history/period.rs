@@ -3,16 +3,25 @@
 //! `2026-10-31 ops`, `depot-10-2026`, `ops 31.10.2026`, `deliveries_Oct2026`,
 //! `qc-january` (a month without a year sorts by its place in the year).
 //! A date that cannot exist (`depot-2026-13`, `31.02.2026`) is refused.
-//! A period column or date column in the data is not read yet.
+//! A period column or date column the recipe names (`period from COLUMN`)
+//! wins over both: see `period_data`.
 
 use std::path::Path;
 
 use crate::recipe::{Recipe, ast::StatementKind};
 
+/// Where a file's period came from, in the order they are tried.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum PeriodSource {
+    /// `period from COLUMN`: the month of the column's dates or periods.
+    DataColumn,
+    /// `period "2026-10"` (a single file only).
     Recipe,
+    /// A date in the file's name.
     FileName,
+    /// No date anywhere: the file's name itself, so a batch can still
+    /// order and label it (it says so).
+    NameFallback,
 }
 
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -25,8 +34,27 @@ pub struct Period {
 }
 
 impl Period {
+    /// A file with no date in its data or name: labelled by its name.
+    pub fn fallback(stem: String) -> Period {
+        Period {
+            label: stem,
+            source: PeriodSource::NameFallback,
+            read_from: None,
+        }
+    }
+
+    /// The period and where it came from, for the About sheet and `-v`.
     pub fn explain(&self) -> String {
         match self.source {
+            PeriodSource::DataColumn => format!(
+                "{} (from {})",
+                self.label,
+                self.read_from.as_deref().unwrap_or("a column of the data")
+            ),
+            PeriodSource::NameFallback => format!(
+                "{} (the data file's name: no date was found in it, and the recipe names no period column)",
+                self.label
+            ),
             PeriodSource::Recipe => format!("{} (from the recipe's `period`)", self.label),
             PeriodSource::FileName => format!(
                 "{} (from \"{}\" in the data file's name)",
@@ -227,7 +255,7 @@ fn date_at(t: &[Token], i: usize) -> Result<Option<(NameDate, usize)>, String> {
 
 /// The first date in a file name (without its extension) and the text it
 /// was read from; `Err` names a date that cannot exist (`depot-2026-13`).
-fn from_name(stem: &str) -> Result<Option<(String, String)>, String> {
+pub(super) fn from_name(stem: &str) -> Result<Option<(String, String)>, String> {
     let t = tokens(stem);
     for i in 0..t.len() {
         if let Some((date, n)) = date_at(&t, i)? {

@@ -2,6 +2,7 @@
 //! value), with the recipe's fingerprint and the period. `--compare` and
 //! the trend workbook read it back.
 
+use std::collections::HashMap;
 use std::path::Path;
 
 use calamine::{Data, Reader, open_workbook_auto};
@@ -49,9 +50,11 @@ pub struct Entry {
     pub value: f64,
 }
 
-/// A record's values by (block, group, name); see [`Record::lookup`].
+/// A record's values and standard errors by (block, group, name); see
+/// [`Record::lookup`].
 pub struct Lookup<'a> {
-    values: std::collections::HashMap<(&'a str, &'a str, &'a str), f64>,
+    values: HashMap<(&'a str, &'a str, &'a str), f64>,
+    standard_errors: HashMap<(&'a str, &'a str, &'a str), f64>,
 }
 
 impl Lookup<'_> {
@@ -59,6 +62,22 @@ impl Lookup<'_> {
     pub fn find(&self, block: &str, group: &str, name: &str) -> Option<f64> {
         self.values.get(&(block, group, name)).copied()
     }
+
+    /// The standard error kept for a figure, if it has one.
+    pub fn standard_error(&self, block: &str, group: &str, name: &str) -> Option<f64> {
+        self.standard_errors.get(&(block, group, name)).copied()
+    }
+}
+
+/// Entries keyed by (block, group, name), the first of a repeated key kept.
+fn keyed(entries: &[Entry]) -> HashMap<(&str, &str, &str), f64> {
+    let mut values = HashMap::with_capacity(entries.len());
+    for e in entries {
+        values
+            .entry((e.block.as_str(), e.group.as_str(), e.name.as_str()))
+            .or_insert(e.value);
+    }
+    values
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -66,7 +85,15 @@ pub struct Record {
     pub fingerprint: String,
     pub period: Option<String>,
     pub entries: Vec<Entry>,
+    /// The standard error of each figure that has one, keyed like its
+    /// figure (block, group, name); the value is the standard error.
+    pub standard_errors: Vec<Entry>,
 }
+
+/// How a standard error's row is named on the Record sheet: its figure's
+/// name and this. No figure's name ends so: a figures block's names are
+/// identifiers and a panel's end in a panel label.
+pub const SE_SUFFIX: &str = " (standard error)";
 
 #[derive(Debug, thiserror::Error)]
 pub enum RecordError {
@@ -124,30 +151,49 @@ fn name_from_label(name: String) -> String {
 }
 
 /// SHA-256 of the canonical text of what the recipe computes: layout and
-/// comments do not count, nor do the `input` and `header` lines, which say
-/// how to read a file (a header renamed this month, a decimal comma) and
-/// not what is computed; adding one keeps last month comparable.
+/// comments do not count, nor do the lines that say how to read a file
+/// (`input`, `header`: a header renamed this month, a decimal comma), where
+/// its period comes from (`period`) or how changes are judged (`noise`);
+/// adding or editing one keeps last month comparable.
 pub fn fingerprint(recipe: &Recipe) -> String {
-    let computing = Recipe {
+    digest(&keeping(recipe, |kind| {
+        !matches!(
+            kind,
+            StatementKind::Input { .. }
+                | StatementKind::Header { .. }
+                | StatementKind::Period(_)
+                | StatementKind::PeriodFrom(_)
+                | StatementKind::Noise(_)
+        )
+    }))
+}
+
+/// The recipe with only the statements `keep` accepts.
+fn keeping(recipe: &Recipe, keep: impl Fn(&StatementKind) -> bool) -> Recipe {
+    Recipe {
         statements: recipe
             .statements
             .iter()
-            .filter(|s| {
-                !matches!(
-                    s.kind,
-                    StatementKind::Input { .. } | StatementKind::Header { .. }
-                )
-            })
+            .filter(|s| keep(&s.kind))
             .cloned()
             .collect(),
-    };
-    digest(&computing)
+    }
 }
 
-/// The fingerprint results made before `input` lines were left out of it
-/// (the whole canonical text); such results can still be compared with.
-fn earlier_fingerprint(recipe: &Recipe) -> String {
-    digest(recipe)
+/// The fingerprints earlier versions gave the same recipe, whose results
+/// can still be compared with: the whole canonical text (before `input`
+/// lines were left out), and the text without `input` and `header` lines
+/// (before `period` and `noise` lines were).
+fn earlier_fingerprints(recipe: &Recipe) -> [String; 2] {
+    [
+        digest(recipe),
+        digest(&keeping(recipe, |kind| {
+            !matches!(
+                kind,
+                StatementKind::Input { .. } | StatementKind::Header { .. }
+            )
+        })),
+    ]
 }
 
 fn digest(recipe: &Recipe) -> String {
@@ -201,6 +247,39 @@ impl Record {
                 }
             }
         }
+        let mut standard_errors = Vec::new();
+        for block in &results.blocks {
+            match block {
+                Block::Panel { name, entries, .. } => {
+                    for e in entries {
+                        for (label, se) in &e.standard_errors {
+                            standard_errors.push(Entry {
+                                block: name.clone(),
+                                group: group_label(&e.group),
+                                name: format!("{} {label}", e.column),
+                                value: *se,
+                            });
+                        }
+                    }
+                }
+                Block::Figures {
+                    name, names, rows, ..
+                } => {
+                    for r in rows {
+                        for (figure, se) in names.iter().zip(&r.standard_errors) {
+                            if let Some(se) = se {
+                                standard_errors.push(Entry {
+                                    block: name.clone(),
+                                    group: group_label(&r.group),
+                                    name: figure.clone(),
+                                    value: *se,
+                                });
+                            }
+                        }
+                    }
+                }
+            }
+        }
         for t in &results.terms {
             entries.push(Entry {
                 block: TERM_BLOCK.into(),
@@ -213,7 +292,26 @@ impl Record {
             fingerprint,
             period,
             entries,
+            standard_errors,
         }
+    }
+
+    /// The rows of the Record sheet: every figure, then every standard
+    /// error named with [`SE_SUFFIX`] (results of earlier versions have none).
+    pub fn sheet_entries(&self) -> Vec<Entry> {
+        let named = self.standard_errors.iter().map(|e| Entry {
+            name: format!("{}{SE_SUFFIX}", e.name),
+            ..e.clone()
+        });
+        self.entries.iter().cloned().chain(named).collect()
+    }
+
+    /// The standard error kept for a figure, if it has one.
+    pub fn standard_error(&self, block: &str, group: &str, name: &str) -> Option<f64> {
+        self.standard_errors
+            .iter()
+            .find(|e| e.block == block && e.group == group && e.name == name)
+            .map(|e| e.value)
     }
 
     /// The values `change(...)` compares with.
@@ -232,22 +330,21 @@ impl Record {
             .map(|e| e.value)
     }
 
-    /// Every entry's value by (block, group, name), for finding many: a
-    /// comparison of two records of a million figures each would take hours
-    /// through [`Record::find`]. The first entry wins, as with `find`.
+    /// Every figure's value and standard error by (block, group, name), for
+    /// finding many: a comparison of two records of a million figures each
+    /// would take hours through [`Record::find`]. The first entry wins, as
+    /// with `find`.
     pub fn lookup(&self) -> Lookup<'_> {
-        let mut values = std::collections::HashMap::with_capacity(self.entries.len());
-        for e in &self.entries {
-            values
-                .entry((e.block.as_str(), e.group.as_str(), e.name.as_str()))
-                .or_insert(e.value);
+        Lookup {
+            values: keyed(&self.entries),
+            standard_errors: keyed(&self.standard_errors),
         }
-        Lookup { values }
     }
 
     /// Reads the Record sheet of a sheaf result; refuses another recipe's.
     pub fn read(path: &Path, recipe: &Recipe) -> Result<Record, RecordError> {
-        Record::read_accepting(path, &[fingerprint(recipe), earlier_fingerprint(recipe)])
+        let [whole, without_input] = earlier_fingerprints(recipe);
+        Record::read_accepting(path, &[fingerprint(recipe), whole, without_input])
     }
 
     /// Reads the Record sheet of a sheaf result made by a recipe with one of
@@ -277,7 +374,7 @@ impl Record {
         let by_label = cell(HEADER_ROW as usize, 2) == LABELS_HEADER;
         let width = rows.iter().map(|r| r.len()).max().unwrap_or(0);
         let bands = width.div_ceil(RECORD_BAND_WIDTH as usize);
-        let entries = (0..bands)
+        let rows_read: Vec<Entry> = (0..bands)
             .flat_map(|band| {
                 let left = band * RECORD_BAND_WIDTH as usize;
                 rows.iter()
@@ -302,10 +399,17 @@ impl Record {
                     })
             })
             .collect();
+        let (mut standard_errors, entries): (Vec<Entry>, Vec<Entry>) = rows_read
+            .into_iter()
+            .partition(|e| e.name.ends_with(SE_SUFFIX));
+        for e in &mut standard_errors {
+            e.name.truncate(e.name.len() - SE_SUFFIX.len());
+        }
         Ok(Record {
             fingerprint,
             period,
             entries,
+            standard_errors,
         })
     }
 }
@@ -321,7 +425,7 @@ impl Record {
         sheet.write_string_with_format(PERIOD_ROW, 0, "period", &bold)?;
         let period = self.period.as_deref().unwrap_or(NO_PERIOD);
         sheet.write_string(PERIOD_ROW, 1, style::fit(period))?;
-        write_entries(sheet, &self.entries, RECORD_BAND_ROWS)
+        write_entries(sheet, &self.sheet_entries(), RECORD_BAND_ROWS)
     }
 }
 
@@ -406,7 +510,8 @@ mod tests {
         assert_eq!(read.period, None);
     }
 
-    /// A Record written with its period and read back is the same Record.
+    /// A Record written with its period and standard errors and read back is
+    /// the same Record.
     #[test]
     fn a_written_record_reads_back_the_same() {
         let record = Record {
@@ -417,6 +522,12 @@ mod tests {
                 group: "North".into(),
                 name: "late_h q1".into(),
                 value: 0.25,
+            }],
+            standard_errors: vec![Entry {
+                block: "Lateness".into(),
+                group: "North".into(),
+                name: "late_h q1".into(),
+                value: 0.0125,
             }],
         };
         let mut workbook = rust_xlsxwriter::Workbook::new();

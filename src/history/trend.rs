@@ -1,21 +1,19 @@
 //! The trend workbook of a batch: every figure per period, the largest
 //! month-over-month moves, and line charts of the main figures.
 
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, HashMap};
 
-use rust_xlsxwriter::{Chart, ChartType, Format, Workbook, XlsxError};
+use rust_xlsxwriter::{
+    Chart, ChartFormat, ChartMarker, ChartMarkerType, ChartType, Format, Workbook, XlsxError,
+};
 
-use super::record::{Entry, Lookup, Record, TERM_BLOCK};
+use super::judge::{self, Basis, Flag};
+use super::record::{Record, TERM_BLOCK};
 use crate::write::style::fit;
 
 /// The sheets that mark a trend workbook, so a later batch leaves it out.
 pub const TREND_SHEET: &str = "Trend";
 pub const MOVES_SHEET: &str = "Largest moves";
-
-/// How many standard errors of the difference a change must exceed, beside
-/// the drift, to be flagged "moved" (two standard errors: common practice,
-/// about a 5% two-sided level under normality; not yet settable in the recipe).
-pub const NOISE_SES: f64 = 2.0;
 
 /// A figure's change between two consecutive periods.
 #[derive(Debug, Clone, PartialEq)]
@@ -29,6 +27,8 @@ pub struct Move {
     pub after: f64,
     /// The standard error of `after - before`, for figures that have one.
     pub se: Option<f64>,
+    /// What the change is judged by (see [`super::judge`]).
+    pub basis: Basis,
 }
 
 impl Move {
@@ -44,21 +44,37 @@ impl Move {
             .map(|se| (self.after - self.before) / se)
     }
 
-    /// Whether the change exceeds `drift` (relative; a change from 0 never
-    /// does) and, for a figure with a standard error, also [`NOISE_SES`]
-    /// standard errors of the difference. Shape figures and extremes are
-    /// never flagged (see `PanelFigure::drift_flagged`).
-    pub fn moved(&self, drift: f64) -> bool {
-        let panel_figure =
-            super::panel_figure_of(&self.name).is_some_and(|(_, f)| !f.drift_flagged);
-        if panel_figure && self.se.is_none() {
-            return false;
-        }
-        let beyond_drift = self.relative().is_some_and(|r| r.abs() > drift);
-        match self.se {
-            Some(_) => beyond_drift && self.noise_scaled().is_some_and(|z| z.abs() > NOISE_SES),
-            None => beyond_drift,
-        }
+    /// The flag the change earns under the recipe's `drift` (relative; a
+    /// change from 0 never exceeds it) and noise rule (`noise` standard
+    /// errors of the change), by the figure's [`Basis`].
+    pub fn flag(&self, drift: f64, noise: f64) -> Option<Flag> {
+        let flagged = match self.basis {
+            Basis::Level => {
+                let beyond_drift = self.relative().is_some_and(|r| r.abs() > drift);
+                match self.se {
+                    Some(_) => beyond_drift && self.noise_scaled().is_some_and(|z| z.abs() > noise),
+                    None => beyond_drift,
+                }
+            }
+            Basis::Shape {
+                was_beyond: Some(was),
+                now_beyond: Some(now),
+            } => was != now,
+            Basis::Extreme {
+                beyond_previous_fences: Some(beyond),
+            } => beyond,
+            Basis::Shape { .. } | Basis::Extreme { .. } | Basis::Listed => false,
+        };
+        flagged.then_some(match self.basis {
+            Basis::Shape { .. } => Flag::ShapeChanged,
+            Basis::Extreme { .. } => Flag::NewExtreme,
+            Basis::Level | Basis::Listed => Flag::Moved,
+        })
+    }
+
+    /// Whether the change is flagged at all.
+    pub fn moved(&self, drift: f64, noise: f64) -> bool {
+        self.flag(drift, noise).is_some()
     }
 }
 
@@ -71,29 +87,18 @@ pub fn welch_se(sd_before: f64, n_before: f64, sd_after: f64, n_after: f64) -> O
         .then(|| (sd_before.powi(2) / n_before + sd_after.powi(2) / n_after).sqrt())
 }
 
-/// The standard error of a change of a panel column's mean, from the sd and
-/// n both Records hold beside it; None for every other figure.
-fn se_of(before: &Lookup, after: &Lookup, e: &Entry) -> Option<f64> {
-    let column = e.name.strip_suffix(" mean")?;
-    let of = |r: &Lookup, label: &str| r.find(&e.block, &e.group, &format!("{column} {label}"));
-    welch_se(
-        of(before, "sd")?,
-        of(before, "n")?,
-        of(after, "sd")?,
-        of(after, "n")?,
-    )
-}
-
 /// Every figure of `after` that `before` also holds, in `after`'s order:
 /// the one comparison behind the Changes sheet, `--json` and the trend.
 pub fn moves_between(from: &str, before: &Record, to: &str, after: &Record) -> Vec<Move> {
+    // Keyed once, so a long record is not searched once per figure.
     let (earlier, later) = (before.lookup(), after.lookup());
     after
         .entries
         .iter()
         .filter(|e| e.block != TERM_BLOCK)
         .filter_map(|e| {
-            earlier.find(&e.block, &e.group, &e.name).map(|b| Move {
+            let b = earlier.find(&e.block, &e.group, &e.name)?;
+            Some(Move {
                 block: e.block.clone(),
                 group: e.group.clone(),
                 name: e.name.clone(),
@@ -101,7 +106,8 @@ pub fn moves_between(from: &str, before: &Record, to: &str, after: &Record) -> V
                 to: to.to_string(),
                 before: b,
                 after: e.value,
-                se: se_of(&earlier, &later, e),
+                se: judge::change_se(&earlier, &later, &e.block, &e.group, &e.name),
+                basis: judge::basis(&earlier, &later, &e.block, &e.group, &e.name),
             })
         })
         .collect()
@@ -152,13 +158,12 @@ pub fn write_noise(
 fn trend_rows(
     sheet: &mut rust_xlsxwriter::Worksheet,
     records: &[(String, Record)],
+    bands: &Bands,
 ) -> Result<u32, XlsxError> {
     let mut r = 0u32;
-    let mut history: std::collections::HashMap<(String, String, String), Vec<f64>> =
-        Default::default();
     for (i, (period, record)) in records.iter().enumerate() {
         // Keyed by figure, so each row finds its change without a search.
-        let moves: std::collections::HashMap<(String, String, String), Move> = match i {
+        let moves: HashMap<(String, String, String), Move> = match i {
             0 => Default::default(),
             _ => {
                 let (from, before) = &records[i - 1];
@@ -179,16 +184,44 @@ fn trend_rows(
                 sheet.write_number(r, 5, m.after - m.before)?;
                 write_noise(sheet, r, 6, m)?;
             }
-            let earlier = history
-                .entry((e.block.clone(), e.group.clone(), e.name.clone()))
-                .or_default();
-            if let Some(outside) = outside_band(earlier, e.value) {
-                sheet.write_string(r, 8, outside)?;
+            if let Some(verdict) = bands.get(&band_key(e, period)) {
+                sheet.write_string(r, 8, *verdict)?;
             }
-            earlier.push(e.value);
         }
     }
     Ok(r)
+}
+
+/// Each (block, group, figure, period)'s control-band verdict, from the
+/// fourth period on (see [`outside_band`]).
+type Bands = HashMap<(String, String, String, String), &'static str>;
+
+fn band_key(e: &super::record::Entry, period: &str) -> (String, String, String, String) {
+    (
+        e.block.clone(),
+        e.group.clone(),
+        e.name.clone(),
+        period.to_string(),
+    )
+}
+
+/// The control-band verdict of every figure in every period: one
+/// definition for the Trend sheet's column and the charts' markers.
+fn band_verdicts(records: &[(String, Record)]) -> Bands {
+    let mut earlier: HashMap<(String, String, String), Vec<f64>> = HashMap::new();
+    let mut bands = Bands::new();
+    for (period, record) in records {
+        for e in record.entries.iter().filter(|e| e.block != TERM_BLOCK) {
+            let seen = earlier
+                .entry((e.block.clone(), e.group.clone(), e.name.clone()))
+                .or_default();
+            if let Some(verdict) = outside_band(seen, e.value) {
+                bands.insert(band_key(e, period), verdict);
+            }
+            seen.push(e.value);
+        }
+    }
+    bands
 }
 
 /// Periods before a value needed for its control band.
@@ -291,7 +324,8 @@ pub fn trend_workbook(
             "control band",
         ],
     )?;
-    let rows = trend_rows(sheet, records)?;
+    let bands = band_verdicts(records);
+    let rows = trend_rows(sheet, records, &bands)?;
     sheet.autofilter(0, 0, rows.max(1), 8)?;
 
     let sheet = workbook.add_worksheet().set_name(MOVES_SHEET)?;
@@ -334,11 +368,26 @@ pub fn trend_workbook(
     }
     sheet.autofilter(0, 0, moves.len().clamp(1, 200) as u32, 10)?;
 
-    // One chart per (block, figure): periods down, groups across.
+    trend_charts(&mut workbook, records, panel_blocks, &bands)?;
+    workbook.save_to_buffer()
+}
+
+/// The values of one chart: per group, per period.
+type ChartValues = BTreeMap<String, BTreeMap<String, f64>>;
+
+/// One line chart per (block, figure): periods down, groups across, and
+/// for each group with a value outside its control band a marker series
+/// (markers only, no line) at those values, named "GROUP outside band".
+fn trend_charts(
+    workbook: &mut Workbook,
+    records: &[(String, Record)],
+    panel_blocks: &[String],
+    bands: &Bands,
+) -> Result<(), XlsxError> {
+    let bold = Format::new().set_bold();
     let sheet_name = "Trend charts";
     let sheet = workbook.add_worksheet().set_name(sheet_name)?;
-    let mut series: BTreeMap<(String, String), BTreeMap<String, BTreeMap<String, f64>>> =
-        BTreeMap::new();
+    let mut series: BTreeMap<(String, String), ChartValues> = BTreeMap::new();
     for (period, record) in records {
         for e in record
             .entries
@@ -365,24 +414,58 @@ pub fn trend_workbook(
         let mut chart = Chart::new(ChartType::Line);
         chart.title().set_name(&format!("{block}: {name}"));
         let last = top + 1 + periods.len() as u32;
-        for (j, (group, values)) in groups.iter().enumerate() {
-            let c = 1 + j as u16;
-            sheet.write_string_with_format(top + 1, c, fit(group), &bold)?;
+        let mut column = 1u16;
+        let mut add = |sheet: &mut rust_xlsxwriter::Worksheet,
+                       label: String,
+                       values: &BTreeMap<String, f64>|
+         -> Result<u16, XlsxError> {
+            let c = column;
+            column += 1;
+            sheet.write_string_with_format(top + 1, c, fit(&label), &bold)?;
             for (i, p) in periods.iter().enumerate() {
                 if let Some(v) = values.get(*p) {
                     sheet.write_number(top + 2 + i as u32, c, *v)?;
                 }
             }
+            Ok(c)
+        };
+        for (group, values) in groups {
+            let c = add(sheet, group.clone(), values)?;
             chart
                 .add_series()
                 .set_name((sheet_name, top + 1, c))
                 .set_categories((sheet_name, top + 2, 0, last, 0))
                 .set_values((sheet_name, top + 2, c, last, c));
         }
-        sheet.insert_chart(top, (groups.len() + 2) as u16, &chart)?;
+        for (group, values) in groups {
+            let outside: BTreeMap<String, f64> = values
+                .iter()
+                .filter(|(p, _)| {
+                    let key = (block.clone(), group.clone(), name.clone(), p.to_string());
+                    matches!(bands.get(&key), Some(&"above" | &"below"))
+                })
+                .map(|(p, v)| (p.clone(), *v))
+                .collect();
+            if outside.is_empty() {
+                continue;
+            }
+            let c = add(sheet, format!("{group} outside band"), &outside)?;
+            chart
+                .add_series()
+                .set_name((sheet_name, top + 1, c))
+                .set_categories((sheet_name, top + 2, 0, last, 0))
+                .set_values((sheet_name, top + 2, c, last, c))
+                .set_format(ChartFormat::new().set_no_line())
+                .set_marker(
+                    ChartMarker::new()
+                        .set_type(ChartMarkerType::Diamond)
+                        .set_size(9),
+                );
+        }
+        sheet.insert_chart(top, column + 1, &chart)?;
         top = (last + 2).max(top + 16);
     }
-    workbook.save_to_buffer()
+    Ok(())
 }
 
 #[cfg(test)]
@@ -424,6 +507,7 @@ mod tests {
                     value: *value,
                 })
                 .collect(),
+            standard_errors: Vec::new(),
         };
         (label.into(), record)
     }
@@ -466,10 +550,10 @@ mod tests {
         let mean = find("late_h mean");
         // 0.3 / sqrt(0.09/200 * 2) = 0.3 / 0.03 = 10 standard errors.
         assert!((mean.noise_scaled().unwrap() - 10.0).abs() < 1e-9);
-        assert!(mean.moved(drift));
-        assert!(!find("late_h skewness_g1").moved(drift));
+        assert!(mean.moved(drift, 2.0));
+        assert!(!find("late_h skewness_g1").moved(drift, 2.0));
         let few: &Move = find("few mean");
-        assert!(few.relative().unwrap() > drift && !few.moved(drift));
+        assert!(few.relative().unwrap() > drift && !few.moved(drift, 2.0));
         // Ranked by the noise-scaled change, the real drift comes first.
         assert_eq!(moves[0].name, "late_h mean");
     }
@@ -487,6 +571,7 @@ mod tests {
                     value: 1.0,
                 })
                 .collect(),
+            standard_errors: Vec::new(),
         }
     }
 

@@ -280,6 +280,13 @@ pub enum StatementKind {
     },
     /// The period this data covers, when the file name does not say.
     Period(Spanned<String>),
+    /// `period from COLUMN`: the period is the month of the dates (or the
+    /// period written as text) in a column of the data; it wins over the
+    /// file name.
+    PeriodFrom(ColumnRef),
+    /// `noise 3 se`: how many standard errors of the change a figure that
+    /// has one must move, beside the drift, to be flagged.
+    Noise(Spanned<f64>),
     /// How large a relative change to the previous period is flagged: the
     /// number as written and whether it was a percentage.
     Drift(Spanned<(f64, bool)>),
@@ -382,6 +389,8 @@ impl Recipe {
                     clear_columns(per);
                 }
                 StatementKind::Period(p) => p.span = zero,
+                StatementKind::PeriodFrom(c) => c.span = zero,
+                StatementKind::Noise(n) => n.span = zero,
                 StatementKind::Drift(d) => d.span = zero,
             }
         }

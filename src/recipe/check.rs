@@ -52,6 +52,8 @@ impl Typed {
 /// Sheet names in xlsx: at most 31 characters, none of these.
 const SHEET_FORBIDDEN: &[char] = &['[', ']', ':', '*', '?', '/', '\\'];
 const SHEET_MAX: usize = 31;
+/// The standard errors `noise N se` accepts, both ends included.
+pub const NOISE_RANGE: (f64, f64) = (1.0, 10.0);
 pub const BIN_RULES: &[&str] = &["sturges", "scott", "freedman_diaconis"];
 
 /// What a data column holds, as far as the checker needs to know.
@@ -175,6 +177,24 @@ impl<'a> Checker<'a> {
                     "a second `period`",
                     "a recipe names one period; remove this line",
                 ),
+                StatementKind::PeriodFrom(c) => {
+                    self.at_most_once(
+                        &mut once,
+                        statement.span,
+                        "a second `period`",
+                        "a recipe names one period; remove this line",
+                    );
+                    self.period_column(c);
+                }
+                StatementKind::Noise(n) => {
+                    self.at_most_once(
+                        &mut once,
+                        statement.span,
+                        "a second `noise`",
+                        "a recipe has one noise rule; remove this line",
+                    );
+                    self.noise(n);
+                }
                 StatementKind::Drift(d) => {
                     self.at_most_once(
                         &mut once,
@@ -306,6 +326,44 @@ impl<'a> Checker<'a> {
                     "write `drift {shown}%` for {shown} percent (or `drift {}%` if that is meant)",
                     crate::format::shortest(value * 100.0)
                 )),
+            );
+        }
+    }
+
+    /// `period from COLUMN`: a column of the data as read (a `let` is
+    /// computed after the period is settled, under the recipe's filters).
+    fn period_column(&mut self, c: &ColumnRef) {
+        if self.lets.contains_key(&c.name) {
+            self.report(
+                c.span,
+                format!(
+                    "`period from` reads a column of the data, but `{}` is a `let`",
+                    c.name
+                ),
+                Some("name the data column that holds each row's date or period".into()),
+            );
+            return;
+        }
+        self.column(c);
+    }
+
+    /// `noise N se`: from 1 to 10 standard errors. Below 1, about a third of
+    /// unchanged figures would be flagged under normality; above 10 almost
+    /// nothing would (sheaf's bounds, common practice rather than a source).
+    fn noise(&mut self, n: &Spanned<f64>) {
+        if !(NOISE_RANGE.0..=NOISE_RANGE.1).contains(&n.value) {
+            let shown = crate::format::shortest(n.value);
+            self.report(
+                n.span,
+                format!(
+                    "`noise {shown} se` is outside {}..{} standard errors",
+                    NOISE_RANGE.0, NOISE_RANGE.1
+                ),
+                Some(
+                    "2 standard errors (the default) is about a 5% two-sided level for one figure; \
+                     3 is stricter (about 0.3%); write a number from 1 to 10"
+                        .into(),
+                ),
             );
         }
     }

@@ -240,6 +240,8 @@ fn expressions(recipe: &Recipe) -> Vec<&ast::Expr> {
             | Histogram { .. }
             | Boxplot { .. }
             | Period(_)
+            | PeriodFrom(_)
+            | Noise(_)
             | Drift(_) => {}
         }
     }

@@ -161,6 +161,8 @@ fn statement(out: &mut String, s: &Statement) {
             per: keys,
         } => format!("boxplot {}{}", column(c), per(keys)),
         StatementKind::Period(p) => format!("period {}", quoted(&p.value)),
+        StatementKind::PeriodFrom(c) => format!("period from {}", column(c)),
+        StatementKind::Noise(n) => format!("noise {} se", number(n.value)),
         StatementKind::Drift(d) => format!(
             "drift {}{}",
             number(d.value.0),

@@ -508,12 +508,22 @@ pub const STATEMENT_WORDS: &[&str] = &[
     "boxplot",
     "period",
     "drift",
+    "noise",
 ];
 
 fn period_statement(input: &str) -> PResult<'_, StatementKind> {
+    if let Ok((after, _)) = keyword("from")(input) {
+        let (rest, c) = need(
+            after,
+            "the column that holds each row's date or period, such as `period from shipped`",
+            column,
+        )?;
+        let (rest, _) = end_of_line(rest, "the end of the line after the period column")?;
+        return Ok((rest, StatementKind::PeriodFrom(c)));
+    }
     let (rest, text) = need(
         input,
-        "the period in double quotes, such as \"2026-10\"",
+        "the period in double quotes, such as \"2026-10\", or `from COLUMN`",
         spanned_string,
     )?;
     let (rest, _) = end_of_line(rest, "the end of the line after the period")?;
@@ -536,6 +546,31 @@ fn drift_statement(input: &str) -> PResult<'_, StatementKind> {
             span,
         }),
     ))
+}
+
+/// `noise 3 se`: the number of standard errors, then the word `se`.
+fn noise_statement(input: &str) -> PResult<'_, StatementKind> {
+    let start = input.trim_start();
+    let (rest, (value, percent)) = need(
+        input,
+        "how many standard errors of the change count as noise, such as `noise 2 se`",
+        number_literal,
+    )?;
+    let span = span_between(start, rest);
+    if percent {
+        return failure(
+            start,
+            "the noise rule is a number of standard errors, not a percentage",
+            Some("write `noise 2 se` (the relative threshold is `drift 10%`)"),
+        );
+    }
+    let (rest, _) = need(
+        rest,
+        "`se` (standard errors) after the number",
+        keyword("se"),
+    )?;
+    let (rest, _) = end_of_line(rest, "the end of the line after `se`")?;
+    Ok((rest, StatementKind::Noise(Spanned { value, span })))
 }
 
 fn statement_line(input: &str) -> PResult<'_, StatementKind> {
@@ -570,6 +605,7 @@ fn statement_line(input: &str) -> PResult<'_, StatementKind> {
         "boxplot" => boxplot_statement(rest),
         "period" => period_statement(rest),
         "drift" => drift_statement(rest),
+        "noise" => noise_statement(rest),
         other => {
             let suggestion = super::suggest::closest(other, STATEMENT_WORDS.iter().copied());
             let help = match suggestion {

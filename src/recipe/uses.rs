@@ -81,10 +81,13 @@ pub fn column_uses(recipe: &Recipe, source: &str) -> ColumnUses {
                 walker.column(column, true);
                 per.iter().for_each(|c| walker.key(c));
             }
+            // The period column is read before the recipe's filters, as it stands.
+            StatementKind::PeriodFrom(c) => walker.column(c, false),
             StatementKind::Title(_)
             | StatementKind::Input { .. }
             | StatementKind::Header { .. }
             | StatementKind::Period(_)
+            | StatementKind::Noise(_)
             | StatementKind::Drift(_) => {}
         }
     }

@@ -69,8 +69,10 @@ pub fn result_document(results: &Results, table: &Table, run: &RunInfo, output: 
         period: run.period.as_ref().map(|p| PeriodReport {
             label: p.label.clone(),
             source: match p.source {
+                PeriodSource::DataColumn => PeriodSourceReport::DataColumn,
                 PeriodSource::Recipe => PeriodSourceReport::Recipe,
                 PeriodSource::FileName => PeriodSourceReport::FileName,
+                PeriodSource::NameFallback => PeriodSourceReport::NameFallback,
             },
         }),
         rows_read: results.rows_read,
@@ -313,7 +315,8 @@ fn changes(results: &Results, run: &RunInfo) -> Option<ChangesReport> {
                 relative_change: relative(m),
                 standard_error: m.se,
                 change_in_standard_errors: m.noise_scaled(),
-                moved: m.moved(run.drift),
+                moved: m.moved(run.drift, run.noise),
+                flag: m.flag(run.drift, run.noise).map(|f| f.word().to_string()),
             })
             .collect(),
     })
@@ -323,7 +326,7 @@ fn changes(results: &Results, run: &RunInfo) -> Option<ChangesReport> {
 pub fn trend_document(
     records: &[(String, Record)],
     output: Option<&Path>,
-    drift: f64,
+    (drift, noise): (f64, f64),
     skipped: &[(std::path::PathBuf, String)],
 ) -> Document {
     Document::Trend(TrendReport {
@@ -357,7 +360,10 @@ pub fn trend_document(
                 before: m.before,
                 after: m.after,
                 relative_change: relative(m),
-                moved: m.moved(drift),
+                standard_error: m.se,
+                change_in_standard_errors: m.noise_scaled(),
+                moved: m.moved(drift, noise),
+                flag: m.flag(drift, noise).map(|f| f.word().to_string()),
             })
             .collect(),
         skipped: skipped

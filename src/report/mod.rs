@@ -145,10 +145,14 @@ pub struct PeriodReport {
 #[derive(Debug, Clone, Copy, Serialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum PeriodSourceReport {
+    /// The dates or periods in the column the recipe's `period from` names.
+    DataColumn,
     /// The recipe's `period` statement.
     Recipe,
     /// A date in the data file's name.
     FileName,
+    /// No date in the data or the name: the file's name itself (a batch).
+    NameFallback,
 }
 
 #[derive(Debug, Clone, Serialize, JsonSchema)]
@@ -368,14 +372,17 @@ pub struct ChangeReport {
     pub change: f64,
     /// (now - previous) / |previous|; a reason when previous was 0.
     pub relative_change: OrReason<f64>,
-    /// The standard error of the change (a panel mean's: Welch's, from each
-    /// period's sd and n); null for a figure without one.
+    /// The standard error of the change, sqrt(se1^2 + se2^2) from each
+    /// period's own (mean, sd, quartiles, median, percentiles, shares,
+    /// trimmed means); null for a figure without one.
     pub standard_error: Option<f64>,
     /// change / standard_error; null without a standard error.
     pub change_in_standard_errors: Option<f64>,
-    /// Beyond the recipe's drift and, where there is a standard error,
-    /// beyond the noise rule too (the Changes sheet's flag).
+    /// Flagged on the Changes sheet (any flag).
     pub moved: bool,
+    /// The Changes sheet's flag: `moved` (a level beyond the drift and the
+    /// noise rule), `shape changed` or `new extreme`; null when not flagged.
+    pub flag: Option<String>,
 }
 
 #[derive(Debug, Clone, Serialize, JsonSchema)]
@@ -388,7 +395,8 @@ pub struct TrendReport {
     pub periods: Vec<String>,
     /// Every figure of every period.
     pub figures: Vec<TrendFigure>,
-    /// Period-over-period changes, largest relative change first.
+    /// Period-over-period changes: those with a standard error first, by the
+    /// size of the change in standard errors; then the others by relative change.
     pub moves: Vec<MoveReport>,
     /// Files that could not be summarised, and why.
     pub skipped: Vec<SkippedFile>,
@@ -413,7 +421,14 @@ pub struct MoveReport {
     pub before: f64,
     pub after: f64,
     pub relative_change: OrReason<f64>,
+    /// The standard error of the change; null for a figure without one.
+    pub standard_error: Option<f64>,
+    /// change / standard_error; null without a standard error.
+    pub change_in_standard_errors: Option<f64>,
+    /// Flagged on the trend's terms (see `flag`).
     pub moved: bool,
+    /// `moved`, `shape changed` or `new extreme`; null when not flagged.
+    pub flag: Option<String>,
 }
 
 #[derive(Debug, Clone, Serialize, JsonSchema)]

@@ -18,6 +18,7 @@ mod quantile;
 mod random;
 mod sample;
 mod shape_noise;
+mod standard_error;
 mod summation;
 mod undefined;
 
@@ -44,6 +45,9 @@ pub use sample::{Sample, is_whole};
 pub use shape_noise::{
     AgainstNoise, SHAPE_NOTE_CUTOFF, kurtosis_against_noise, kurtosis_se, skewness_against_noise,
     skewness_se,
+};
+pub use standard_error::{
+    mean_se, quantile_se, sd_se, share_se, trimmed_mean_se, variance_of_variance,
 };
 pub use summation::Neumaier;
 pub use undefined::{Stat, Undefined};

@@ -125,7 +125,7 @@ pub(crate) fn median_by_selection(values: &mut [f64]) -> Stat {
 /// How many values a share `a` cuts from each end: floor(a n), with a hair
 /// of tolerance so that 10% of 30 values is 3 although 0.1 * 30 is not
 /// exactly 3 in floating point.
-fn cut_count(share: f64, n: usize) -> Stat<usize> {
+pub(crate) fn cut_count(share: f64, n: usize) -> Stat<usize> {
     if !(0.0..0.5).contains(&share) {
         return Err(Undefined::BadArgument(format!(
             "the share cut from each end must be at least 0 and below 50%, not {}%",

@@ -89,6 +89,10 @@ pub fn about(
             ),
         )?;
     }
+    pair(
+        "changes judged by",
+        crate::history::rules_in_words(run.drift, run.noise),
+    )?;
     pair("rows read", results.rows_read.to_string())?;
     for (reason, count) in &results.rows_skipped {
         pair("rows skipped", format!("{count}: {reason}"))?;

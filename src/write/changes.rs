@@ -31,10 +31,9 @@ pub fn changes(
     .to_vec();
     sheet.write_string_with_format(0, 0, "Changes", &style::title())?;
     let note = format!(
-        "Each figure against period {}. Flagged when the relative change exceeds {}% (the recipe's drift, or sheaf's default of 10%) and, for a figure with a standard error (a panel column's mean: Welch's, from each period's sd and n), also {} standard errors of the change. Shape figures, minimums, maximums and outlier counts are never flagged; their change is listed.",
+        "Each figure against period {}. {}",
         previous.period.as_deref().unwrap_or("(unknown)"),
-        crate::format::shortest(run.drift * 100.0),
-        crate::history::NOISE_SES
+        crate::history::rules_in_words(run.drift, run.noise)
     );
     sheet.merge_range(1, 0, 1, 9, &note, &style::note_format())?;
     let groups = crate::history::group_changes(previous, current).map_or_else(
@@ -53,7 +52,11 @@ pub fn changes(
     let now_period = current.period.as_deref().unwrap_or_default();
     let mut widths = style::Widths::default();
     let moves = crate::history::moves_between(previous_period, previous, now_period, current);
-    let (moves, unlisted) = listed(moves, run.drift, crate::eval::MAX_SHEET_ENTRIES);
+    let (moves, unlisted) = listed(
+        moves,
+        |m| m.flag(run.drift, run.noise).is_some(),
+        crate::eval::MAX_SHEET_ENTRIES,
+    );
     for m in moves {
         let name = crate::history::shown_name(&m.block, &m.name);
         for (c, text) in [(0, &m.block), (1, &m.group), (2, &name)] {
@@ -67,13 +70,14 @@ pub fn changes(
         match m.relative() {
             Some(relative) => {
                 sheet.write_number_with_format(r, 6, relative, &percent)?;
-                if m.moved(run.drift) {
-                    sheet.write_string_with_format(r, 7, "moved", &style::status("warn"))?;
-                }
             }
             None => {
                 sheet.write_string_with_format(r, 6, "previous was 0", &style::reason())?;
             }
+        }
+        if let Some(flag) = m.flag(run.drift, run.noise) {
+            widths.seen(r, 7, flag.word().len());
+            sheet.write_string_with_format(r, 7, flag.word(), &style::status("warn"))?;
         }
         crate::history::write_noise(sheet, r, 8, &m)?;
         r += 1;
@@ -92,23 +96,23 @@ pub fn changes(
 }
 
 /// The moves the Changes sheet lists when they fit in `room` rows; else
-/// every flagged move and as many others as fit, in their order, with how
+/// every `flagged` move and as many others as fit, in their order, with how
 /// many were left out (a comparison of 100,000 groups can have millions).
 fn listed(
     moves: Vec<crate::history::Move>,
-    drift: f64,
+    flagged: impl Fn(&crate::history::Move) -> bool,
     room: usize,
 ) -> (Vec<crate::history::Move>, usize) {
     if moves.len() <= room {
         return (moves, 0);
     }
-    let flagged = moves.iter().filter(|m| m.moved(drift)).count();
-    let mut others_room = room.saturating_sub(flagged);
+    let flagged_count = moves.iter().filter(|m| flagged(m)).count();
+    let mut others_room = room.saturating_sub(flagged_count);
     let total = moves.len();
     let kept: Vec<_> = moves
         .into_iter()
         .filter(|m| {
-            m.moved(drift)
+            flagged(m)
                 || others_room.checked_sub(1).is_some_and(|left| {
                     others_room = left;
                     true
@@ -148,12 +152,14 @@ mod tests {
             before: 1.0,
             after,
             se: None,
+            basis: crate::history::Basis::Level,
         };
         let moves = vec![mv(1.0), mv(1.01), mv(5.0), mv(1.02), mv(9.0)];
-        let (kept, unlisted) = listed(moves.clone(), 0.1, 3);
+        let flagged = |m: &crate::history::Move| m.moved(0.1, 2.0);
+        let (kept, unlisted) = listed(moves.clone(), flagged, 3);
         let groups: Vec<&str> = kept.iter().map(|m| m.group.as_str()).collect();
         assert_eq!(groups, ["g1", "g5", "g9"]);
         assert_eq!(unlisted, 2);
-        assert_eq!(listed(moves, 0.1, 5).1, 0);
+        assert_eq!(listed(moves, flagged, 5).1, 0);
     }
 }

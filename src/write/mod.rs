@@ -33,6 +33,8 @@ pub struct RunInfo {
     pub previous: Option<crate::history::Record>,
     /// Relative change that flags a figure on the Changes sheet.
     pub drift: f64,
+    /// Standard errors of the change a figure that has one must also exceed.
+    pub noise: f64,
 }
 
 #[derive(Debug, thiserror::Error)]
