@@ -7,7 +7,7 @@ use std::path::{Path, PathBuf};
 
 mod common;
 
-use calamine::{Data, Reader, open_workbook_auto};
+use calamine::{Data, DataType, Reader, open_workbook_auto};
 use common::{root, sheaf, text};
 
 /// The demo month written to `dir`.
@@ -324,7 +324,7 @@ fn histogram_titles_are_in_words_and_bin_labels_are_clean() {
     let out = demo(dir.path());
     let chart = part(&out, "xl/charts/chart1.xml");
     assert!(
-        chart.contains("late_h, North: 10 bins by the Freedman-Diaconis rule"),
+        chart.contains("late_h, North: 7 bins by the Freedman-Diaconis rule"),
         "{chart}"
     );
     assert!(!chart.contains("freedman_diaconis"));
@@ -332,15 +332,200 @@ fn histogram_titles_are_in_words_and_bin_labels_are_clean() {
     let labels: Vec<String> = charts
         .iter()
         .filter_map(|r| match r.first() {
-            Some(Data::String(t)) if t.contains(" to ") => Some(t.clone()),
+            // Bin labels: "a to b", "below a", "above b" (not the note).
+            Some(Data::String(t))
+                if t.split(' ').count() <= 3 && (t.contains(" to ") || t.starts_with("above ")) =>
+            {
+                Some(t.clone())
+            }
             _ => None,
         })
         .collect();
     assert!(!labels.is_empty());
     for label in labels {
+        let label = label
+            .trim_start_matches("below ")
+            .trim_start_matches("above ");
         for edge in label.split(" to ") {
             assert!(edge.parse::<f64>().is_ok(), "{label}");
             assert!(!edge.contains('e') && edge.len() <= 9, "{label}");
         }
     }
+}
+
+/// The charts' parts (xl/charts/chartN.xml), in order.
+fn chart_parts(xlsx: &Path) -> Vec<String> {
+    (1..)
+        .map_while(|i| {
+            let file = std::fs::File::open(xlsx).unwrap();
+            let mut zip = zip::ZipArchive::new(file).unwrap();
+            let mut text = String::new();
+            let mut part = zip.by_name(&format!("xl/charts/chart{i}.xml")).ok()?;
+            part.read_to_string(&mut text).unwrap();
+            Some(text)
+        })
+        .collect()
+}
+
+/// A number of a table row, by the column under `label` in `header`.
+fn under(header: &[Data], row: &[Data], label: &str) -> f64 {
+    let at = header.iter().position(|h| *h == label).unwrap();
+    match &row[at] {
+        Data::Float(x) => *x,
+        other => panic!("{label}: {other:?}"),
+    }
+}
+
+/// Harbour's 900-minute typo (15 hours) would stretch a Freedman-Diaconis
+/// histogram over all values to 106 bins; inside the 3 IQR fences (Tukey
+/// 1977) the rule gives a handful, the typo is counted in a labelled
+/// overflow bin, and every value of the group is counted once.
+#[test]
+fn a_typo_lands_in_an_overflow_bin_and_leaves_the_bins_readable() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = demo(dir.path());
+    let charts = chart_parts(&out);
+    let harbour = charts
+        .iter()
+        .find(|c| c.contains("late_h, Harbour:"))
+        .unwrap();
+    assert!(
+        harbour.contains("1 value beyond the 3 IQR fences in the end bins"),
+        "{harbour}"
+    );
+    // The table beside it: from its header to the first blank row.
+    let cells = common::cells(&out, "Charts");
+    let tables: Vec<&[Vec<Data>]> = cells
+        .split(|r| r.iter().all(|c| *c == Data::Empty))
+        .filter(|t| t.first().is_some_and(|h| h[0] == "bin"))
+        .collect();
+    let table = tables[1];
+    let bins: Vec<(&str, f64)> = table[1..]
+        .iter()
+        .map(|r| {
+            (
+                r[0].get_string().unwrap(),
+                under(&table[0], r, "values in bin"),
+            )
+        })
+        .collect();
+    let (last, overflow) = bins.last().unwrap();
+    assert!(last.starts_with("above "), "{bins:?}");
+    assert_eq!(*overflow, 1.0);
+    let top: f64 = last.trim_start_matches("above ").parse().unwrap();
+    assert!(top < 15.0, "the typo is above the last bin: {top}");
+    assert!(
+        (2..=20).contains(&(bins.len() - 1)),
+        "{} bins",
+        bins.len() - 1
+    );
+    // Every Harbour value counted once: n from the Lateness sheet.
+    let panel = common::cells(&out, "Lateness");
+    let header = panel.iter().position(|r| r[0] == "depot").unwrap();
+    let n = panel[header + 1..]
+        .iter()
+        .find(|r| r[0] == "Harbour" && r[1] == "late_h")
+        .map(|r| under(&panel[header], r, "n"))
+        .unwrap();
+    assert_eq!(bins.iter().map(|b| b.1).sum::<f64>(), n);
+}
+
+/// The box plot draws every 1.5 IQR outlier as a marker-only point at its
+/// value: its table counts as many per group as the robustness sheet lists,
+/// holds Harbour's 15-hour typo, and the chart has one marker series per
+/// outlier rank.
+#[test]
+fn box_plots_draw_each_outlier_as_a_point() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = demo(dir.path());
+    let cells = common::cells(&out, "Charts");
+    let head = cells.iter().position(|r| r[0] == "group").unwrap();
+    let rows = &cells[head + 1..head + 4];
+    let robust = common::cells(&out, "Lateness robustness");
+    let rh = robust.iter().position(|r| r[0] == "depot").unwrap();
+    let mut most = 0;
+    for row in rows {
+        let listed = robust[rh + 1..]
+            .iter()
+            .find(|r| r[0] == row[0] && r[1] == "late_h")
+            .map(|r| under(&robust[rh], r, "outliers 1.5 IQR"))
+            .unwrap();
+        let counted = under(&cells[head], row, "outliers beyond 1.5 IQR");
+        assert_eq!(counted, listed, "{:?}", row[0]);
+        most = most.max(listed as usize);
+        let points: Vec<f64> = row[7..].iter().filter_map(|c| c.get_float()).collect();
+        assert_eq!(points.len(), listed as usize, "{row:?}");
+    }
+    let harbour = rows.iter().find(|r| r[0] == "Harbour").unwrap();
+    assert!(harbour[7..].contains(&Data::Float(15.0)), "{harbour:?}");
+    let chart = chart_parts(&out)
+        .into_iter()
+        .find(|c| c.contains("<c:stockChart>"))
+        .unwrap();
+    let line = &chart[chart.find("<c:lineChart>").unwrap()..];
+    let outlier_series = line.matches("<c:v>outlier ").count();
+    assert_eq!(outlier_series, most, "{line}");
+    // Points only: no line joins a series's points.
+    assert!(line.contains("<c:symbol val=\"circle\"/>"));
+    assert_eq!(
+        line.matches("<c:ser>").count(),
+        line.matches("<a:ln><a:noFill/></a:ln>").count(),
+        "{line}"
+    );
+    assert!(chart.contains("<c:dispBlanksAs val=\"gap\"/>"), "{chart}");
+}
+
+/// A `label` line names the column in chart titles, on axes and in the
+/// panel's column cell, and leaves the recipe's fingerprint as it was, so
+/// last month's result stays comparable.
+#[test]
+fn a_label_names_the_column_in_charts_and_tables_but_not_the_fingerprint() {
+    let dir = tempfile::tempdir().unwrap();
+    let plain = demo(dir.path());
+    let labelled_dir = tempfile::tempdir().unwrap();
+    let recipe = std::fs::read_to_string(root().join("workbooks/depot-monthly.sheaf")).unwrap();
+    let with_label = recipe.replace("rows where", "label late_h \"Hours late\"\nrows where");
+    assert_ne!(with_label, recipe);
+    let path = labelled_dir.path().join("labelled.sheaf");
+    std::fs::write(&path, with_label).unwrap();
+    let out = labelled_dir.path().join("labelled.xlsx");
+    let data = root().join("workbooks/depot-2026-10.xlsx");
+    let o = sheaf(
+        &[
+            "run",
+            path.to_str().unwrap(),
+            "--data",
+            data.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+        ],
+        labelled_dir.path(),
+    );
+    assert!(out.exists(), "{}", text(&o));
+    let charts = chart_parts(&out);
+    assert!(
+        charts[0].contains("<a:t>Hours late, North: "),
+        "{}",
+        charts[0]
+    );
+    assert!(charts[0].contains("<a:t>Hours late</a:t>"), "axis title");
+    let boxes = charts
+        .iter()
+        .find(|c| c.contains("<c:stockChart>"))
+        .unwrap();
+    assert!(boxes.contains("<a:t>Hours late: boxes"));
+    let panel = common::cells(&out, "Lateness");
+    assert!(
+        panel
+            .iter()
+            .any(|r| r.get(1) == Some(&Data::String("Hours late (late_h)".into())))
+    );
+    let fingerprint = |xlsx: &Path| {
+        common::cells(xlsx, "About")
+            .into_iter()
+            .find(|r| r[0] == "recipe fingerprint")
+            .map(|r| r[1].clone())
+            .unwrap()
+    };
+    assert_eq!(fingerprint(&out), fingerprint(&plain));
 }

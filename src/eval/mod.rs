@@ -137,9 +137,18 @@ pub struct Results {
     /// Likely mistakes that did not stop the run, each with its fix
     /// (listed on the Checks sheet and the terminal).
     pub warnings: Vec<String>,
+    /// Labels given to columns by `label` lines (presentation only): column
+    /// name to label.
+    pub labels: std::collections::BTreeMap<String, String>,
 }
 
 impl Results {
+    /// How a column is named in titles and on axes: its label when the
+    /// recipe gives one, else its name.
+    pub fn column_label<'a>(&'a self, column: &'a str) -> &'a str {
+        self.labels.get(column).map_or(column, String::as_str)
+    }
+
     pub fn failed(&self) -> bool {
         self.checks.iter().any(|c| c.outcome == Outcome::Fail)
     }
@@ -336,7 +345,8 @@ fn columns_used(recipe: &Recipe) -> Vec<String> {
             | StatementKind::Input { .. }
             | StatementKind::Header { .. }
             | StatementKind::Period(_)
-            | StatementKind::Drift(_) => {}
+            | StatementKind::Drift(_)
+            | StatementKind::Label { .. } => {}
         }
         out.extend(refs.into_iter().map(|c| c.name.clone()));
         for e in exprs {
@@ -377,6 +387,7 @@ pub fn evaluate_against(
         missing_cells: Vec::new(),
         terms: Vec::new(),
         warnings: Vec::new(),
+        labels: Default::default(),
     };
     for name in columns_used(recipe) {
         if let Some(column) = table.column(&name) {
@@ -397,6 +408,11 @@ pub fn evaluate_against(
             | StatementKind::Header { .. }
             | StatementKind::Period(_)
             | StatementKind::Drift(_) => {}
+            StatementKind::Label { column, text } => {
+                results
+                    .labels
+                    .insert(column.name.clone(), text.value.clone());
+            }
             StatementKind::Let { name, value: e } => {
                 let scope = Scope::new(table, &lets, &kept);
                 let full = widen(scope.eval(e), &kept, table.rows);
@@ -556,7 +572,7 @@ pub fn evaluate_against(
                     let group_scope =
                         Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     let sample = group_scope.sample(&column_expr(column));
-                    match stats::histogram(&sample, rule) {
+                    match stats::fenced_histogram(&sample, rule) {
                         Ok(histogram) => results.charts.push(Chart::Histogram {
                             column: column.name.clone(),
                             group,

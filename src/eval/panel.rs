@@ -169,13 +169,16 @@ pub struct PanelEntry {
     pub sample_summary: Option<BoxSummary>,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct BoxSummary {
     pub whisker_low: f64,
     pub q1: f64,
     pub median: f64,
     pub q3: f64,
     pub whisker_high: f64,
+    /// The values beyond the 1.5 IQR fences, ascending: a box plot draws
+    /// each as a point.
+    pub outliers: Vec<f64>,
 }
 
 fn is_whole(values: &[f64]) -> bool {
@@ -566,6 +569,11 @@ pub fn box_summary(s: &Sample) -> Option<BoxSummary> {
         median: stats::median(s).ok()?,
         q3: stats::quartile(s, 3, m).ok()?,
         whisker_high,
+        outliers: sorted
+            .iter()
+            .copied()
+            .filter(|&x| x < fences.low || x > fences.high)
+            .collect(),
     })
 }
 

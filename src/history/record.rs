@@ -54,7 +54,8 @@ pub enum RecordError {
 /// SHA-256 of the canonical text of what the recipe computes: layout and
 /// comments do not count, nor do the `input` and `header` lines, which say
 /// how to read a file (a header renamed this month, a decimal comma) and
-/// not what is computed; adding one keeps last month comparable.
+/// not what is computed, nor `label` lines, which say how a column is
+/// shown; adding one keeps last month comparable.
 pub fn fingerprint(recipe: &Recipe) -> String {
     let computing = Recipe {
         statements: recipe
@@ -63,7 +64,9 @@ pub fn fingerprint(recipe: &Recipe) -> String {
             .filter(|s| {
                 !matches!(
                     s.kind,
-                    StatementKind::Input { .. } | StatementKind::Header { .. }
+                    StatementKind::Input { .. }
+                        | StatementKind::Header { .. }
+                        | StatementKind::Label { .. }
                 )
             })
             .cloned()

@@ -240,7 +240,8 @@ fn expressions(recipe: &Recipe) -> Vec<&ast::Expr> {
             | Histogram { .. }
             | Boxplot { .. }
             | Period(_)
-            | Drift(_) => {}
+            | Drift(_)
+            | Label { .. } => {}
         }
     }
     found

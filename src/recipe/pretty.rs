@@ -161,6 +161,9 @@ fn statement(out: &mut String, s: &Statement) {
             per: keys,
         } => format!("boxplot {}{}", column(c), per(keys)),
         StatementKind::Period(p) => format!("period {}", quoted(&p.value)),
+        StatementKind::Label { column: c, text } => {
+            format!("label {} {}", column(c), quoted(&text.value))
+        }
         StatementKind::Drift(d) => format!(
             "drift {}{}",
             number(d.value.0),

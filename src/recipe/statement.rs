@@ -508,7 +508,20 @@ pub const STATEMENT_WORDS: &[&str] = &[
     "boxplot",
     "period",
     "drift",
+    "label",
 ];
+
+/// `label COLUMN "TEXT"`: how a column is named in titles, axes and tables.
+fn label_statement(input: &str) -> PResult<'_, StatementKind> {
+    let (rest, column) = need(input, "the column to label", column)?;
+    let (rest, text) = need(
+        rest,
+        "the label in double quotes, such as \"Parcel weight (kg)\"",
+        spanned_string,
+    )?;
+    let (rest, _) = end_of_line(rest, "the end of the line after the label")?;
+    Ok((rest, StatementKind::Label { column, text }))
+}
 
 fn period_statement(input: &str) -> PResult<'_, StatementKind> {
     let (rest, text) = need(
@@ -570,6 +583,7 @@ fn statement_line(input: &str) -> PResult<'_, StatementKind> {
         "boxplot" => boxplot_statement(rest),
         "period" => period_statement(rest),
         "drift" => drift_statement(rest),
+        "label" => label_statement(rest),
         other => {
             let suggestion = super::suggest::closest(other, STATEMENT_WORDS.iter().copied());
             let help = match suggestion {

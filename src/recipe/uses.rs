@@ -85,7 +85,9 @@ pub fn column_uses(recipe: &Recipe, source: &str) -> ColumnUses {
             | StatementKind::Input { .. }
             | StatementKind::Header { .. }
             | StatementKind::Period(_)
-            | StatementKind::Drift(_) => {}
+            | StatementKind::Drift(_)
+            // A label names a column without reading it.
+            | StatementKind::Label { .. } => {}
         }
     }
     walker.uses

@@ -148,6 +148,7 @@ pub fn blocks(
                     name,
                     keys,
                     entries,
+                    &results.labels,
                 )?;
                 let sheet_name = names.claim(&format!("{name} robustness"));
                 robustness_sheet(
@@ -155,6 +156,7 @@ pub fn blocks(
                     name,
                     keys,
                     entries,
+                    &results.labels,
                 )?;
                 robustness.push((sheet_name, TABLE_TOP + 1));
             }
@@ -234,16 +236,25 @@ fn entry_decimals(e: &PanelEntry) -> u8 {
     style::data_decimals(&data)
 }
 
-/// Writes the group keys and the column name of an entry's row.
+/// Labels the recipe gives columns (`label` lines), by column name.
+type Labels = std::collections::BTreeMap<String, String>;
+
+/// Writes the group keys and the column of an entry's row: its label with
+/// its name in brackets when the recipe labels it, else its name.
 fn write_entry_labels(
     sheet: &mut Worksheet,
     row: u32,
     e: &PanelEntry,
+    labels: &Labels,
     widths: &mut Widths,
 ) -> Result<u16, XlsxError> {
     write_group(sheet, row, &e.group, widths)?;
     let c = e.group.len() as u16;
-    widths.seen(row, c, style::write_text(sheet, row, c, &e.column)?);
+    let column = match labels.get(&e.column) {
+        Some(label) => format!("{label} ({})", e.column),
+        None => e.column.clone(),
+    };
+    widths.seen(row, c, style::write_text(sheet, row, c, &column)?);
     Ok(c + 1)
 }
 
@@ -252,6 +263,7 @@ fn panel_sheet(
     name: &str,
     keys: &[String],
     entries: &[PanelEntry],
+    column_labels: &Labels,
 ) -> Result<(), XlsxError> {
     let labels = entry_labels(keys, PANEL_LABELS);
     let has_dates = entries
@@ -266,7 +278,7 @@ fn panel_sheet(
     let mut widths = Widths::default();
     for (i, e) in entries.iter().enumerate() {
         let r = top + 1 + i as u32;
-        let first = write_entry_labels(sheet, r, e, &mut widths)?;
+        let first = write_entry_labels(sheet, r, e, column_labels, &mut widths)?;
         let decimals = entry_decimals(e);
         for (j, (figure, value)) in PANEL_FIGURES.iter().zip(&e.figures).enumerate() {
             let c = first + j as u16;
@@ -493,6 +505,7 @@ fn robustness_sheet(
     name: &str,
     keys: &[String],
     entries: &[PanelEntry],
+    column_labels: &Labels,
 ) -> Result<(), XlsxError> {
     let mut figures = vec!["status", "reason"];
     figures.extend(ROBUSTNESS_COLUMNS.iter().map(|c| c.label));
@@ -503,7 +516,7 @@ fn robustness_sheet(
     for (i, e) in entries.iter().enumerate() {
         let r = top + 1 + i as u32;
         let b = &e.robustness;
-        let c = write_entry_labels(sheet, r, e, &mut widths)?;
+        let c = write_entry_labels(sheet, r, e, column_labels, &mut widths)?;
         let word = b.status.word();
         sheet.write_string_with_format(r, c, word, &style::status(word))?;
         widths.seen(r, c, word.len());
