@@ -127,6 +127,11 @@ fn each_panel_figure_has_the_format_of_its_kind() {
         format!("#,##0.{}", "0".repeat(weight))
     );
     assert_eq!(number_format(&out, &panel, "P5"), "#,##0.000");
+    // A figure written `share(...)` is a percentage (Service levels: C is
+    // on_time, D p90), other figures 4 significant digits.
+    let service = sheet_named(&out, "Service levels");
+    assert_eq!(number_format(&out, &service, "C5"), "0.0%");
+    assert_ne!(number_format(&out, &service, "D5"), "0.0%");
     // The cell keeps its full value: the format only rounds its look.
     let cells = common::cells(&out, "Lateness");
     let mean = match &cells[4][4] {
@@ -528,4 +533,59 @@ fn a_label_names_the_column_in_charts_and_tables_but_not_the_fingerprint() {
             .unwrap()
     };
     assert_eq!(fingerprint(&out), fingerprint(&plain));
+}
+
+/// The trend charts of a batch with October missing: October has its place
+/// on the axis with no values (a gap, not a bridge), every point is marked,
+/// both axes are titled, the on-time share is on a percentage axis ending
+/// at 100%, and the groups keep the result sheets' order (North, Harbour,
+/// Ridge: the order the demo data lists them, not alphabetical).
+#[test]
+fn trend_charts_mark_points_leave_gaps_and_show_shares_as_percentages() {
+    let dir = tempfile::tempdir().unwrap();
+    let months = common::demo_months_as(
+        dir.path(),
+        ["depot-2026-08", "depot-2026-09", "depot-2026-11"],
+    );
+    let pattern = months.join("*.xlsx");
+    let o = sheaf(
+        &[
+            "run",
+            &common::demo_recipe(),
+            "--data",
+            pattern.to_str().unwrap(),
+            "--out-dir",
+            "out",
+        ],
+        dir.path(),
+    );
+    let trend = dir.path().join("out/trend.xlsx");
+    assert!(trend.exists(), "{}", text(&o));
+    let cells = common::cells(&trend, "Trend charts");
+    let at = cells
+        .iter()
+        .position(|r| r[0] == "Service levels: on_time")
+        .unwrap();
+    assert_eq!(
+        cells[at + 1][..4],
+        ["period", "North", "Harbour", "Ridge"].map(|s| Data::String(s.into()))
+    );
+    let periods: Vec<&Data> = cells[at + 2..at + 6].iter().map(|r| &r[0]).collect();
+    assert_eq!(periods, ["2026-08", "2026-09", "2026-10", "2026-11"]);
+    assert!(cells[at + 4][1..4].iter().all(|c| *c == Data::Empty));
+    let charts = chart_parts(&trend);
+    let share = charts
+        .iter()
+        .find(|c| c.contains("<a:t>Service levels: on_time</a:t>"))
+        .unwrap();
+    assert!(share.contains("<c:dispBlanksAs val=\"gap\"/>"), "{share}");
+    assert!(share.contains("formatCode=\"0.0%\""), "{share}");
+    assert!(share.contains("<c:max val=\"1\"/>"), "{share}");
+    assert!(share.contains("<a:t>period</a:t>") && share.contains("<a:t>on_time</a:t>"));
+    assert_eq!(
+        share.matches("<c:ser>").count(),
+        share.matches("<c:symbol val=").count(),
+        "every series marked"
+    );
+    assert!(!share.contains("<c:symbol val=\"none\"/>"));
 }

@@ -140,6 +140,9 @@ pub struct Results {
     /// Labels given to columns by `label` lines (presentation only): column
     /// name to label.
     pub labels: std::collections::BTreeMap<String, String>,
+    /// (block, figure) of each figure that is a share (`share(...)`), shown
+    /// as a percentage.
+    pub shares: std::collections::BTreeSet<(String, String)>,
 }
 
 impl Results {
@@ -388,6 +391,7 @@ pub fn evaluate_against(
         terms: Vec::new(),
         warnings: Vec::new(),
         labels: Default::default(),
+        shares: Default::default(),
     };
     for name in columns_used(recipe) {
         if let Some(column) = table.column(&name) {
@@ -530,6 +534,11 @@ pub fn evaluate_against(
                         values,
                     });
                 }
+                for f in figures.iter().filter(|f| is_share(&f.value)) {
+                    results
+                        .shares
+                        .insert((name.value.clone(), f.name.value.clone()));
+                }
                 results.blocks.push(Block::Figures {
                     name: name.value.clone(),
                     keys: per.iter().map(|k| k.name.clone()).collect(),
@@ -621,6 +630,12 @@ pub fn evaluate_against(
     terms.retain(|t| seen.insert((t.expression.clone(), t.group.clone())));
     results.terms = terms;
     Ok(results)
+}
+
+/// Whether a figure's value is a share: a `share(...)` call, not within
+/// arithmetic.
+fn is_share(e: &Expr) -> bool {
+    matches!(&e.kind, ExprKind::Call { function, .. } if function.value == "share")
 }
 
 fn column_expr(column: &ColumnRef) -> Expr {

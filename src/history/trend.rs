@@ -1,9 +1,7 @@
 //! The trend workbook of a batch: every figure per period, the largest
 //! month-over-month moves, and line charts of the main figures.
 
-use std::collections::BTreeMap;
-
-use rust_xlsxwriter::{Chart, ChartType, Format, Workbook, XlsxError};
+use rust_xlsxwriter::{Format, Workbook, XlsxError};
 
 use super::record::{Entry, Record, TERM_BLOCK};
 use crate::write::style::fit;
@@ -273,15 +271,12 @@ pub fn group_changes(before: &Record, after: &Record) -> Option<String> {
     (!parts.is_empty()).then(|| parts.join("; "))
 }
 
-/// Figures drawn over time: each panel column's mean and median, and every
-/// figure of a figures block.
-fn charted(name: &str, is_panel: bool) -> bool {
-    !is_panel || name.ends_with(" mean") || name.ends_with(" median")
-}
-
+/// The trend workbook; `shares` are the (block, figure) pairs whose values
+/// are shares, charted on a percentage axis.
 pub fn trend_workbook(
     records: &[(String, Record)],
     panel_blocks: &[String],
+    shares: &std::collections::BTreeSet<(String, String)>,
 ) -> Result<Vec<u8>, XlsxError> {
     let mut workbook = Workbook::new();
     let bold = Format::new().set_bold();
@@ -353,52 +348,7 @@ pub fn trend_workbook(
     sheet.autofilter(0, 0, moves.len().clamp(1, 200) as u32, 10)?;
 
     // One chart per (block, figure): periods down, groups across.
-    let sheet_name = "Trend charts";
-    let sheet = workbook.add_worksheet().set_name(sheet_name)?;
-    let mut series: BTreeMap<(String, String), BTreeMap<String, BTreeMap<String, f64>>> =
-        BTreeMap::new();
-    for (period, record) in records {
-        for e in record
-            .entries
-            .iter()
-            .filter(|e| e.block != TERM_BLOCK && charted(&e.name, panel_blocks.contains(&e.block)))
-        {
-            series
-                .entry((e.block.clone(), e.name.clone()))
-                .or_default()
-                .entry(e.group.clone())
-                .or_default()
-                .insert(period.clone(), e.value);
-        }
-    }
-    let periods: Vec<&String> = records.iter().map(|(p, _)| p).collect();
-    let mut top = 0u32;
-    for ((block, name), groups) in &series {
-        sheet.write_string_with_format(top, 0, fit(&format!("{block}: {name}")), &bold)?;
-        sheet.write_string_with_format(top + 1, 0, "period", &bold)?;
-        for (i, p) in periods.iter().enumerate() {
-            sheet.write_string(top + 2 + i as u32, 0, fit(p))?;
-        }
-        let mut chart = Chart::new(ChartType::Line);
-        chart.title().set_name(&format!("{block}: {name}"));
-        let last = top + 1 + periods.len() as u32;
-        for (j, (group, values)) in groups.iter().enumerate() {
-            let c = 1 + j as u16;
-            sheet.write_string_with_format(top + 1, c, fit(group), &bold)?;
-            for (i, p) in periods.iter().enumerate() {
-                if let Some(v) = values.get(*p) {
-                    sheet.write_number(top + 2 + i as u32, c, *v)?;
-                }
-            }
-            chart
-                .add_series()
-                .set_name((sheet_name, top + 1, c))
-                .set_categories((sheet_name, top + 2, 0, last, 0))
-                .set_values((sheet_name, top + 2, c, last, c));
-        }
-        sheet.insert_chart(top, (groups.len() + 2) as u16, &chart)?;
-        top = (last + 2).max(top + 16);
-    }
+    crate::write::trend_charts(&mut workbook, records, panel_blocks, shares)?;
     workbook.save_to_buffer()
 }
 

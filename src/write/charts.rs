@@ -17,8 +17,8 @@ use crate::stats::{BinRule, CHART_FENCE_IQR, CHART_MAX_BINS, Histogram};
 
 /// Rows a chart takes on the sheet, and its height in pixels (13 rows of
 /// 20 pixels, so two charts and their gaps fit on a printed page).
-const ROWS_PER_CHART: u32 = 14;
-const CHART_HEIGHT: u32 = 260;
+pub(super) const ROWS_PER_CHART: u32 = 14;
+pub(super) const CHART_HEIGHT: u32 = 260;
 
 /// Rows of 15 points on one printed page of the Charts sheet at full size:
 /// landscape A4 less its margins holds about 509 points. The sheet prints
@@ -30,21 +30,33 @@ const ROWS_PER_PAGE: u32 = 33;
 /// table and counted in the title.
 const DRAWN_OUTLIERS: usize = 12;
 
-/// Where the next chart goes and where the pages break.
-struct Layout<'a> {
-    sheet_name: &'a str,
+/// Where the next chart goes and where the pages break (the Charts sheet
+/// and the trend workbook's charts).
+pub(super) struct Layout<'a> {
+    pub sheet_name: &'a str,
     /// The next free row.
     top: u32,
     /// Rows of 15 points used on the current page.
     used: u32,
-    breaks: Vec<u32>,
+    pub breaks: Vec<u32>,
 }
 
 impl Layout<'_> {
+    /// Charts from row `top` of `sheet_name` on, with `used` rows of the
+    /// first page taken above them.
+    pub fn new(sheet_name: &str, top: u32, used: u32) -> Layout<'_> {
+        Layout {
+            sheet_name,
+            top,
+            used,
+            breaks: Vec::new(),
+        }
+    }
+
     /// The top row of a block `rows` tall whose first `together` rows (its
     /// chart) must stay on one page: moved to a new page when they would
     /// cross the page's end.
-    fn place(&mut self, rows: u32, together: u32) -> u32 {
+    pub fn place(&mut self, rows: u32, together: u32) -> u32 {
         if self.used > 0 && self.used + together > ROWS_PER_PAGE {
             self.breaks.push(self.top);
             self.used = 0;
@@ -86,12 +98,7 @@ pub fn charts(
         sheet.set_column_width(c as u16, *width as f64)?;
     }
     let note_lines = style::note_block(sheet, 1, &charts_note(), &CHART_COLUMNS)?;
-    let mut layout = Layout {
-        sheet_name: &sheet_name,
-        top: 3,
-        used: 3 + note_lines as u32,
-        breaks: Vec::new(),
-    };
+    let mut layout = Layout::new(&sheet_name, 3, 3 + note_lines as u32);
     for chart in &results.charts {
         match chart {
             ChartData::Histogram {

@@ -10,6 +10,9 @@ mod glance;
 mod plan;
 mod sheets;
 pub(crate) mod style;
+mod trend_charts;
+
+pub use trend_charts::trend_charts;
 
 use std::path::Path;
 

@@ -180,9 +180,13 @@ pub fn blocks(
                     let c = keys.len() as u16;
                     let n = One::Number(row.rows as f64);
                     widths.seen(r, c, write_one(sheet, r, c, &n, Shown::Count)?);
-                    for (j, value) in row.values.iter().enumerate() {
+                    for (j, (figure, value)) in figure_names.iter().zip(&row.values).enumerate() {
                         let c = c + 1 + j as u16;
-                        let shown = Shown::unknown_kind(value);
+                        let share = results.shares.contains(&(name.clone(), figure.clone()));
+                        let shown = match share {
+                            true => Shown::Percent,
+                            false => Shown::unknown_kind(value),
+                        };
                         widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
                     }
                 }
