@@ -651,6 +651,9 @@ fn column_expr(column: &ColumnRef) -> Expr {
 struct CellNamer<'a> {
     table: &'a Table,
     place: std::sync::Arc<CellPlace>,
+    /// The data column behind a `let` of one data column, whose cell holds
+    /// the number as the input has it.
+    derived_from: Option<&'a crate::load::Column>,
 }
 
 impl<'a> CellNamer<'a> {
@@ -675,6 +678,7 @@ impl<'a> CellNamer<'a> {
         CellNamer {
             table,
             place: std::sync::Arc::new(place),
+            derived_from: (behind != column).then(|| table.column(behind)).flatten(),
         }
     }
 
@@ -682,6 +686,7 @@ impl<'a> CellNamer<'a> {
         CellName {
             place: std::sync::Arc::clone(&self.place),
             sheet_row: self.table.sheet_row(row) as u32,
+            source_value: self.derived_from.and_then(|c| c.number(row)),
         }
     }
 }

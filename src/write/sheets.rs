@@ -83,7 +83,7 @@ fn robustness_note() -> String {
     format!(
         "Each row asks whether a few values drive the figures. Gap = (mean - median) / sd and / IQR, computed from deviations \
 about a middle value so data far from zero keep their digits. Outliers lie strictly beyond Tukey's 1.5 and 3 IQR fences (type 7 \
-quartiles), each listed with its source cell. 'Without' recomputes mean, sd and skewness leaving out the 1.5 IQR outliers; \
+quartiles), each listed with its source cell and the number it holds, then the value used where a `let` derived it. 'Without' recomputes mean, sd and skewness leaving out the 1.5 IQR outliers; \
 'change' is without minus with. Leave-one-out: of all values, the one whose removal changes the mean (or the sd) most in size; \
 the change is signed (after minus before), and of equal changes the first row's is shown. |modified z| = |0.6745 (x - median) \
 / MAD| above 3.5 (Iglewicz and Hoaglin 1993), in either direction. Skewness G1 and excess kurtosis G2 (adjusted, Joanes and Gill \
@@ -482,6 +482,22 @@ fn bootstrap(b: &Robustness, part: fn(&BootstrapIntervals) -> One) -> One {
         .map_or_else(|why| One::Undefined(why.clone()), part)
 }
 
+/// A flagged cell with its value: the number as the input cell holds it,
+/// then the value used when that was derived from it (a `let`), so
+/// "Deliveries!D105 holds 55.8, used as 0.93" rather than a value the
+/// reader cannot find in the cell.
+fn cell_and_value(f: &Flagged, measure: Shown) -> String {
+    match f.address.source_value {
+        Some(source) if source != f.value => format!(
+            "{} holds {}, used as {}",
+            f.address,
+            crate::format::shortest(source),
+            measure.text(f.value)
+        ),
+        _ => format!("{} ({})", f.address, measure.text(f.value)),
+    }
+}
+
 /// Cells listed in one spreadsheet cell; the rest are counted, not listed.
 const LISTED_CELLS: usize = 100;
 
@@ -492,9 +508,9 @@ fn cells(list: &[Flagged], measure: Shown) -> String {
     let mut text = list
         .iter()
         .take(LISTED_CELLS)
-        .map(|f| format!("{} ({})", f.address, measure.text(f.value)))
+        .map(|f| cell_and_value(f, measure))
         .collect::<Vec<_>>()
-        .join(", ");
+        .join("; ");
     if list.len() > LISTED_CELLS {
         text.push_str(&format!(
             " and {} more (see the About sheet's missing cells and the JSON output for all)",
