@@ -589,3 +589,21 @@ fn trend_charts_mark_points_leave_gaps_and_show_shares_as_percentages() {
     );
     assert!(!share.contains("<c:symbol val=\"none\"/>"));
 }
+
+/// Every group of a block is listed: Ridge has no parcel of 20 kg or more
+/// this month, so "Heavy parcels" (`where heavy`) shows it with 0 rows, a
+/// count of 0 and "no rows" where a figure has no value, in the order of
+/// the other blocks.
+#[test]
+fn a_group_without_rows_is_listed_with_zero_rows() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = demo(dir.path());
+    let heavy = common::cells(&out, "Heavy parcels");
+    let at = heavy.iter().position(|r| r[0] == "depot").unwrap();
+    let groups: Vec<&Data> = heavy[at + 1..].iter().map(|r| &r[0]).collect();
+    assert_eq!(groups, ["North", "Harbour", "Ridge"]);
+    let ridge = &heavy[at + 3];
+    assert_eq!(under(&heavy[at], ridge, "rows"), 0.0);
+    assert_eq!(under(&heavy[at], ridge, "n"), 0.0);
+    assert_eq!(ridge[3], Data::String("no rows".into()));
+}

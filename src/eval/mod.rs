@@ -222,6 +222,31 @@ fn key_ids(scope: &Scope, key: &ColumnRef) -> (Vec<u32>, Vec<String>) {
 type Groups = Vec<(Vec<String>, Vec<Row>)>;
 
 /// The groups the keys make of the scope's rows, in order of first appearance.
+/// The groups of a block: every group of the rows the `rows where` lines
+/// keep (`kept`), in their order, each with its rows among the block's
+/// (`scope`, narrowed by the block's own `where`), so a group none of whose
+/// rows pass is listed with 0 rows rather than left out.
+fn block_groups(
+    table: &Table,
+    lets: &value::Lets,
+    kept: &[Row],
+    scope: &Scope,
+    keys: &[ColumnRef],
+) -> Result<Groups, EvalError> {
+    let found = groups(scope, keys)?;
+    if scope.rows.len() == kept.len() || keys.is_empty() {
+        return Ok(found);
+    }
+    let mut rows_of: HashMap<Vec<String>, Vec<Row>> = found.into_iter().collect();
+    Ok(groups(&Scope::new(table, lets, kept), keys)?
+        .into_iter()
+        .map(|(group, _)| {
+            let rows = rows_of.remove(&group).unwrap_or_default();
+            (group, rows)
+        })
+        .collect())
+}
+
 fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Groups, EvalError> {
     if keys.is_empty() {
         return Ok(vec![(Vec::new(), scope.rows.to_vec())]);
@@ -464,7 +489,7 @@ pub fn evaluate_against(
                 // Each (group, column) is independent and the robustness checks
                 // dominate, so they run in parallel; a sample is built inside its
                 // job, so only as many exist at once as there are threads.
-                let all_groups = groups(&scope, per)?;
+                let all_groups = block_groups(table, &lets, &kept, &scope, per)?;
                 // Known before the work: the panel sheet must hold a row per job.
                 let pairs = all_groups.len() * columns.len();
                 if pairs > MAX_SHEET_ENTRIES {
@@ -521,7 +546,7 @@ pub fn evaluate_against(
                 let rows = block_rows(table, &lets, &kept, block_filter);
                 let scope = Scope::new(table, &lets, &rows);
                 let mut out = Vec::new();
-                for (group, group_rows) in groups(&scope, per)? {
+                for (group, group_rows) in block_groups(table, &lets, &kept, &scope, per)? {
                     let group_scope =
                         Scope::new(table, &lets, &group_rows).grouped(&group, &context);
                     let values = figures

@@ -77,7 +77,8 @@ pub const PANEL_NOTE: &str = "Conventions: n counts numeric cells; missing count
 Quartiles, median and IQR by Hyndman-Fan type 7 (linear interpolation). Skewness g1 = m3 / m2^1.5 and kurtosis b2 = m4 / m2^2 \
 (about 3 for normal data) are the moment forms; two values lie symmetrically about their mean, so their skewness is exactly 0. Bowley skewness = (Q3 + Q1 - 2 Q2) / (Q3 - Q1). Outliers lie strictly beyond \
 Tukey's fences Q1 - 1.5 IQR and Q3 + 1.5 IQR. Modes: every most frequent value for whole-number data; otherwise the mean of the \
-values in the fullest of Sturges' equal bins. A cell without a number says why.";
+values in the fullest of Sturges' equal bins. A cell without a number says why; 'no rows' where none of a group's rows pass the \
+block's `where`.";
 
 fn robustness_note() -> String {
     format!(
@@ -170,7 +171,8 @@ pub fn blocks(
                 let mut labels: Vec<String> = keys.clone();
                 labels.push("rows".into());
                 labels.extend(figure_names.iter().cloned());
-                let note = "Each figure is computed over the rows of its group that pass the recipe's filters. A cell without a number says why.";
+                let note = "Each figure is computed over the rows of its group that pass the recipe's filters. A cell without a number says why; \
+a group none of whose rows pass the block's `where` is listed with 0 rows and 'no rows'.";
                 let top = heading(sheet, name)?;
                 style::table_header(sheet, top, &labels, keys.len() as u16)?;
                 let mut widths = Widths::default();
@@ -181,6 +183,7 @@ pub fn blocks(
                     let n = One::Number(row.rows as f64);
                     widths.seen(r, c, write_one(sheet, r, c, &n, Shown::Count)?);
                     for (j, (figure, value)) in figure_names.iter().zip(&row.values).enumerate() {
+                        let value = &no_rows_said(row.rows, value);
                         let c = c + 1 + j as u16;
                         let share = results.shares.contains(&(name.clone(), figure.clone()));
                         let shown = match share {
@@ -202,6 +205,18 @@ pub fn blocks(
         }
     }
     Ok(robustness)
+}
+
+/// What a group without rows shows where a figure has no value: that it
+/// has no rows, not merely "no values" (the notes say why).
+const NO_ROWS: &str = "no rows";
+
+/// `value`, or [`NO_ROWS`] in place of its reason when its group has no rows.
+fn no_rows_said(rows: usize, value: &One) -> One {
+    match value {
+        One::Undefined(_) if rows == 0 => One::Undefined(NO_ROWS.into()),
+        other => other.clone(),
+    }
 }
 
 fn write_group(
@@ -242,6 +257,20 @@ fn entry_decimals(e: &PanelEntry) -> u8 {
 
 /// Labels the recipe gives columns (`label` lines), by column name.
 type Labels = std::collections::BTreeMap<String, String>;
+
+/// The rows of an entry's group: every row's cell is a number (n) or
+/// missing.
+fn entry_rows(e: &PanelEntry) -> usize {
+    PANEL_FIGURES
+        .iter()
+        .zip(&e.figures)
+        .filter(|(f, _)| f.label == "n" || f.label == "missing")
+        .map(|(_, v)| match v {
+            One::Number(x) => *x as usize,
+            _ => 0,
+        })
+        .sum()
+}
 
 /// Writes the group keys and the column of an entry's row: its label with
 /// its name in brackets when the recipe labels it, else its name.
@@ -287,6 +316,7 @@ fn panel_sheet(
         for (j, (figure, value)) in PANEL_FIGURES.iter().zip(&e.figures).enumerate() {
             let c = first + j as u16;
             let shown = Shown::of(figure.kind, decimals);
+            let value = &no_rows_said(entry_rows(e), value);
             widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
         }
     }
@@ -545,7 +575,7 @@ fn robustness_sheet(
         let measure = Shown::of(FigureKind::Measure, decimals);
         for (j, column) in ROBUSTNESS_COLUMNS.iter().enumerate() {
             let col = c + 2 + j as u16;
-            let value = (column.value)(b, measure);
+            let value = no_rows_said(entry_rows(e), &(column.value)(b, measure));
             let shown = Shown::of(column.kind, decimals);
             widths.seen(r, col, write_one(sheet, r, col, &value, shown)?);
         }
