@@ -203,6 +203,13 @@ fn every_sheet_prints_landscape_one_page_wide_with_titles() {
         let setup = tags(&xml, "pageSetup")[0];
         assert_eq!(attribute(setup, "orientation"), Some("landscape"), "{name}");
         assert_eq!(attribute(setup, "fitToHeight"), Some("0"), "{name}");
+        // The robustness sheet's 40 columns print two pages wide, the
+        // others one (the default, written as no attribute).
+        let wide = attribute(setup, "fitToWidth");
+        match name.ends_with("robustness") {
+            true => assert_eq!(wide, Some("2"), "{name}"),
+            false => assert!(wide.is_none_or(|w| w == "1"), "{name}: {wide:?}"),
+        }
         assert!(
             xml.contains("<oddHeader>&amp;LDepot deliveries, monthly review&amp;R2026-10"),
             "{name}: page header"
@@ -606,4 +613,57 @@ fn a_group_without_rows_is_listed_with_zero_rows() {
     assert_eq!(under(&heavy[at], ridge, "rows"), 0.0);
     assert_eq!(under(&heavy[at], ridge, "n"), 0.0);
     assert_eq!(ridge[3], Data::String("no rows".into()));
+}
+
+/// With `--compare`, the first sheet lists each figure the Changes sheet
+/// flags as moved, linked to its row there: October against September.
+#[test]
+fn the_first_sheet_links_every_moved_figure_to_its_changes_row() {
+    let dir = tempfile::tempdir().unwrap();
+    let months = common::demo_months_as(
+        dir.path(),
+        ["depot-2026-08", "depot-2026-09", "depot-2026-10"],
+    );
+    let run = |data: &str, out: &str, compare: Option<&str>| {
+        let data = months.join(data);
+        let mut args = vec![
+            "run".to_string(),
+            common::demo_recipe(),
+            "--data".into(),
+            data.display().to_string(),
+            "--out".into(),
+            out.into(),
+        ];
+        if let Some(c) = compare {
+            args.extend(["--compare".to_string(), c.to_string()]);
+        }
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        let o = sheaf(&args, dir.path());
+        assert!(dir.path().join(out).exists(), "{}", text(&o));
+    };
+    run("depot-2026-09.xlsx", "sep.xlsx", None);
+    run("depot-2026-10.xlsx", "oct.xlsx", Some("sep.xlsx"));
+    let out = dir.path().join("oct.xlsx");
+    let changes = common::cells(&out, "Changes");
+    let flagged = changes
+        .iter()
+        .filter(|r| r.get(7) == Some(&Data::String("moved".into())))
+        .count();
+    assert!(flagged > 0);
+    let glance = common::cells(&out, "At a glance");
+    let to_changes: Vec<(String, String)> = links(&sheet_named(&out, "At a glance"))
+        .into_iter()
+        .filter(|(_, target)| target.trim_start_matches('\'').starts_with("Changes"))
+        .collect();
+    assert_eq!(to_changes.len(), flagged);
+    for (cell, target) in to_changes {
+        let (row, col) = row_col(&cell);
+        let words = glance[row][col].to_string();
+        let (target_row, _) = row_col(target.rsplit_once('!').unwrap().1);
+        let line: Vec<String> = changes[target_row].iter().map(|d| d.to_string()).collect();
+        assert_eq!(line[7], "moved", "{cell}");
+        let named = format!("{} / {} / {}: ", line[0], line[1], line[2]);
+        assert!(words.starts_with(&named), "{words} vs {named}");
+        assert_eq!(glance[row][0].to_string(), "moved");
+    }
 }

@@ -7,14 +7,22 @@ use super::sheets::SheetNames;
 use super::{RunInfo, style};
 use crate::history::{RECORD_BAND_WIDTH, RECORD_SHEET, Record};
 
+/// The figures flagged "moved" on the Changes sheet: its name, and each
+/// flagged figure's 0-based row with the figure in words.
+pub type Moved = (String, Vec<(u32, String)>);
+
+/// Writes the Changes sheet. Returns the figures it flags as moved, for
+/// the first sheet.
 pub fn changes(
     workbook: &mut Workbook,
     names: &mut SheetNames,
     current: &Record,
     run: &RunInfo,
     previous: &Record,
-) -> Result<(), XlsxError> {
-    let sheet = workbook.add_worksheet().set_name(names.claim("Changes"))?;
+) -> Result<Moved, XlsxError> {
+    let sheet_name = names.claim("Changes");
+    let sheet = workbook.add_worksheet().set_name(&sheet_name)?;
+    let mut moved = Vec::new();
     let labels: Vec<String> = [
         "block",
         "group",
@@ -66,6 +74,18 @@ pub fn changes(
                 sheet.write_number_with_format(r, 6, relative, &percent)?;
                 if m.moved(run.drift) {
                     sheet.write_string_with_format(r, 7, "moved", &style::status("warn"))?;
+                    let shown =
+                        |x: f64| style::Shown::unknown_kind(&crate::eval::One::Number(x)).text(x);
+                    let words = format!(
+                        "{} / {} / {}: {} to {} ({:+.1}%)",
+                        m.block,
+                        m.group,
+                        m.name,
+                        shown(m.before),
+                        shown(m.after),
+                        relative * 100.0
+                    );
+                    moved.push((r, words));
                 }
             }
             None => {
@@ -78,7 +98,8 @@ pub fn changes(
     widths.seen(3, 6, "previous was 0".len());
     style::print_titles(sheet, 3, 3)?;
     style::fit_columns(sheet, 3, &labels, &widths)?;
-    style::filter(sheet, 3, r - 1, labels.len())
+    style::filter(sheet, 3, r - 1, labels.len())?;
+    Ok((sheet_name, moved))
 }
 
 pub fn record(

@@ -92,19 +92,36 @@ pub fn workbook_bytes(
         run.fingerprint.clone(),
         run.period.as_ref().map(|p| p.label.clone()),
     );
-    if let Some(previous) = &run.previous {
-        changes::changes(&mut workbook, &mut names, &current, run, previous)?;
-    }
+    let moved = match &run.previous {
+        Some(previous) => Some(changes::changes(
+            &mut workbook,
+            &mut names,
+            &current,
+            run,
+            previous,
+        )?),
+        None => None,
+    };
     about::about(&mut workbook, &mut names, results, table, run)?;
     changes::record(&mut workbook, &mut names, &current)?;
     let title = results.title.as_deref().unwrap_or("sheaf result");
     let period = run.period.as_ref().map(|p| p.label.as_str());
-    let places = glance::Places { checks, robustness };
+    let wide: Vec<String> = robustness.iter().map(|(name, _)| name.clone()).collect();
+    let places = glance::Places {
+        checks,
+        robustness,
+        moved,
+    };
     let input = &table.source.path;
     let sheet = workbook.worksheet_from_name(&glance_name)?;
     glance::glance(sheet, results, input, period, &places, &reading)?;
     for sheet in workbook.worksheets_mut() {
         style::paper(sheet, title, period)?;
+        if wide.contains(&sheet.name()) {
+            // Some 40 columns on one page's width would print too small to
+            // read; its label columns repeat on each page.
+            sheet.set_print_fit_to_pages(style::WIDE_TABLE_PAGES, 0);
+        }
     }
     Ok(workbook.save_to_buffer()?)
 }

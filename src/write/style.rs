@@ -163,13 +163,37 @@ pub fn date(serial: f64) -> Format {
     Format::new().set_num_format(code)
 }
 
+/// A status cell: the word always written (so it reads without colour,
+/// in grey print and for colour-blind readers), a pale tint of an
+/// Okabe-Ito colour behind it, and a heavier mark for what needs action:
+/// bold for warn, bold on a darker tint with a left rule for fail.
 pub fn status(word: &str) -> Format {
-    let colour = match word {
-        "ok" | "pass" => 0xDCEFD9,
-        "note" => 0xFFF3C4,
-        _ => 0xF6D0C8,
+    let (colour, weight) = match word {
+        // Tint of bluish green 009E73.
+        "ok" | "pass" => (0xD9EFE8, Weight::Plain),
+        // Tint of sky blue 56B4E9: worth a look, nothing wrong.
+        "note" => (0xDDEEF9, Weight::Plain),
+        // Tint of orange E69F00.
+        "warn" => (0xFAE6BF, Weight::Bold),
+        // Tint of vermillion D55E00.
+        _ => (0xF2C9AE, Weight::Ruled),
     };
-    Format::new().set_background_color(Color::RGB(colour))
+    let format = Format::new().set_background_color(Color::RGB(colour));
+    match weight {
+        Weight::Plain => format,
+        Weight::Bold => format.set_bold(),
+        Weight::Ruled => format
+            .set_bold()
+            .set_border_left(rust_xlsxwriter::FormatBorder::Thick)
+            .set_border_left_color(Color::RGB(palette::OVERFLOW)),
+    }
+}
+
+/// How strongly a status cell is marked besides its word.
+enum Weight {
+    Plain,
+    Bold,
+    Ruled,
 }
 
 /// Writes one figure: a number as a number in the format `shown` picks,
@@ -442,6 +466,9 @@ pub fn paper(sheet: &mut Worksheet, title: &str, period: Option<&str>) -> Result
     sheet.set_footer("&Lsheaf&Rpage &P of &N");
     Ok(())
 }
+
+/// Pages wide a robustness sheet prints on.
+pub const WIDE_TABLE_PAGES: u16 = 2;
 
 /// The paper size code for A4.
 const PAPER_A4: u8 = 9;
