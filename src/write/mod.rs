@@ -82,7 +82,8 @@ pub fn workbook_bytes(
     // are known.
     let glance_name = names.claim(glance::GLANCE_SHEET);
     workbook.add_worksheet().set_name(&glance_name)?;
-    let robustness = sheets::blocks(&mut workbook, &mut names, results)?;
+    let sheets::BlockSheets { robustness, narrow } =
+        sheets::blocks(&mut workbook, &mut names, results)?;
     let reading = crate::load::reading_notes(table);
     let checks = sheets::checks(&mut workbook, &mut names, results, &reading)?;
     charts::charts(&mut workbook, &mut names, results)?;
@@ -117,6 +118,9 @@ pub fn workbook_bytes(
     glance::glance(sheet, results, input, period, &places, &reading)?;
     for sheet in workbook.worksheets_mut() {
         style::paper(sheet, title, period)?;
+        if narrow.contains(&sheet.name()) {
+            sheet.set_portrait();
+        }
         if wide.contains(&sheet.name()) {
             // Some 40 columns on one page's width would print too small to
             // read; its label columns repeat on each page.

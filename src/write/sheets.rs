@@ -113,7 +113,8 @@ fn heading(sheet: &mut Worksheet, title: &str) -> Result<u32, XlsxError> {
 }
 
 /// Finishes a table written under [`heading`]: columns sized to their
-/// content, the note as a block above it, filter buttons over it.
+/// content, the note as a block above it, filter buttons over it. Returns
+/// the table's width in characters.
 fn finish_table(
     sheet: &mut Worksheet,
     labels: &[String],
@@ -121,21 +122,32 @@ fn finish_table(
     widths: &Widths,
     note: &str,
     last_row: u32,
-) -> Result<(), XlsxError> {
+) -> Result<usize, XlsxError> {
     style::print_titles(sheet, TABLE_TOP, label_columns)?;
     let chosen = style::fit_columns(sheet, TABLE_TOP, labels, widths)?;
     style::note_block(sheet, 1, note, &chosen)?;
-    style::filter(sheet, TABLE_TOP, last_row, labels.len())
+    style::filter(sheet, TABLE_TOP, last_row, labels.len())?;
+    // Each column is set 1.5 characters wider than its content.
+    Ok(chosen.iter().map(|w| w + 2).sum())
 }
 
-/// Writes every block's sheets. Returns each panel's robustness sheet name
-/// and the 0-based row of its first entry, for links to it.
+/// The sheets written by [`blocks`] that links and page setup need.
+pub struct BlockSheets {
+    /// Each panel's robustness sheet name and the 0-based row of its first
+    /// entry, for links to it.
+    pub robustness: Vec<(String, u32)>,
+    /// Sheets narrow enough to print portrait.
+    pub narrow: Vec<String>,
+}
+
+/// Writes every block's sheets.
 pub fn blocks(
     workbook: &mut Workbook,
     names: &mut SheetNames,
     results: &Results,
-) -> Result<Vec<(String, u32)>, XlsxError> {
+) -> Result<BlockSheets, XlsxError> {
     let mut robustness = Vec::new();
+    let mut narrow = Vec::new();
     for block in &results.blocks {
         match block {
             Block::Panel {
@@ -167,7 +179,8 @@ pub fn blocks(
                 names: figure_names,
                 rows,
             } => {
-                let sheet = workbook.add_worksheet().set_name(names.claim(name))?;
+                let sheet_name = names.claim(name);
+                let sheet = workbook.add_worksheet().set_name(&sheet_name)?;
                 let mut labels: Vec<String> = keys.clone();
                 labels.push("rows".into());
                 labels.extend(figure_names.iter().cloned());
@@ -193,7 +206,7 @@ a group none of whose rows pass the block's `where` is listed with 0 rows and 'n
                         widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
                     }
                 }
-                finish_table(
+                let width = finish_table(
                     sheet,
                     &labels,
                     keys.len() as u16,
@@ -201,10 +214,13 @@ a group none of whose rows pass the block's `where` is listed with 0 rows and 'n
                     note,
                     top + rows.len() as u32,
                 )?;
+                if width <= style::PORTRAIT_CHARS {
+                    narrow.push(sheet_name);
+                }
             }
         }
     }
-    Ok(robustness)
+    Ok(BlockSheets { robustness, narrow })
 }
 
 /// What a group without rows shows where a figure has no value: that it
@@ -327,7 +343,8 @@ fn panel_sheet(
         &widths,
         &note,
         top + entries.len() as u32,
-    )
+    )?;
+    Ok(())
 }
 
 /// One column of the robustness sheet: its header, how it is shown, and
@@ -588,7 +605,8 @@ fn robustness_sheet(
         &widths,
         &robustness_note(),
         last,
-    )
+    )?;
+    Ok(())
 }
 
 /// Writes the Checks sheet. Returns its name and the 0-based row of its

@@ -467,6 +467,10 @@ pub fn paper(sheet: &mut Worksheet, title: &str, period: Option<&str>) -> Result
     Ok(())
 }
 
+/// Widest table, in characters, that prints portrait: A4 portrait less its
+/// margins is about 7 inches, some 90 characters of the default font.
+pub const PORTRAIT_CHARS: usize = 90;
+
 /// Pages wide a robustness sheet prints on.
 pub const WIDE_TABLE_PAGES: u16 = 2;
 
