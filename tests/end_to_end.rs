@@ -126,12 +126,13 @@ fn the_demo_run_writes_every_sheet_and_its_figures_agree_with_the_core() {
             < 1e-12
     );
 
-    // The typed-in 900 minutes (row 18 of the sheet) is named by its cell.
+    // The typed-in 900 minutes (row 18 of the sheet) is named by its cell,
+    // with the number the cell holds and the hours late_h made of it.
     let robust = cells(&out, "Lateness robustness");
     let (header, row) = find(&robust, &["Harbour", "late_h"]);
     assert_eq!(s(&row[column(header, "status")]), "warn");
     assert!(
-        s(&row[column(header, "3 IQR cells")]).contains("Deliveries!D18 (15)"),
+        s(&row[column(header, "3 IQR cells")]).contains("Deliveries!D18 holds 900, used as 15"),
         "{:?}",
         row
     );

@@ -445,14 +445,15 @@ const RECIPES: &[(&str, &str)] = &[
         "figures \"F\" per k, status:\n    n = count(x)\n    s = sum(x)\n",
         "7 / done: 3, 7; 7 / cancelled: 1, 3; 7 / late: 1, 10",
     ),
-    // A block's own where, and groups formed after it.
+    // A block's own where: every group of the rows kept is listed, one
+    // none of whose rows pass with no rows (0 values, no mean).
     (
         "figures \"F\" per depot where w >= 20:\n    m = mean(w)\n",
-        "South: 25; (blank): 40",
+        "North: none(no values); South: 25; (blank): 40",
     ),
     (
         "figures \"F\" per depot where not (status == \"done\"):\n    n = count(x)\n",
-        "North: 1; South: 1",
+        "North: 1; South: 1; (blank): 0",
     ),
     // A let over the rows kept at its line.
     (
@@ -495,7 +496,8 @@ const RECIPES: &[(&str, &str)] = &[
     (
         "panel \"P\" of w per status where status != \"late\":\n",
         "done w: 3, 0, 23.333333, 15.275252, 10, 15, 20, 30, 40, 30, 15, [10 20 40], exact values, 0.381802, 0.333333, 1.5, 0, 0; \
-         cancelled w: 0, 1, none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values)",
+         cancelled w: 0, 1, none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values); \
+         late w: 0, 0, none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values), none(no values)",
     ),
     // Checks: overall and per group; a check that cannot be evaluated fails to pass.
     (

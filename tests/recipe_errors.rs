@@ -16,6 +16,29 @@ const CASES: &[(&str, bool, &str, usize, usize)] = &[
         1,
     ),
     ("= mean(weight_kg)\n", false, "expected a statement", 1, 1),
+    // Labels: a known column, once, with some text in double quotes.
+    ("label weight \"Weight (kg)\"\n", true, "weight", 1, 7),
+    (
+        "label weight_kg \"kg\"\nlabel weight_kg \"Weight\"\n",
+        false,
+        "a second label for `weight_kg`",
+        2,
+        7,
+    ),
+    (
+        "label weight_kg \" \"\n",
+        false,
+        "a label cannot be empty",
+        1,
+        17,
+    ),
+    (
+        "label weight_kg kg\n",
+        false,
+        "expected the label in double quotes",
+        1,
+        17,
+    ),
     (
         "title Depot\n",
         false,

@@ -7,7 +7,7 @@ use std::path::{Path, PathBuf};
 
 mod common;
 
-use calamine::{Data, Reader, open_workbook_auto};
+use calamine::{Data, DataType, Reader, open_workbook_auto};
 use common::{root, sheaf, text};
 
 /// The demo month written to `dir`.
@@ -127,6 +127,11 @@ fn each_panel_figure_has_the_format_of_its_kind() {
         format!("#,##0.{}", "0".repeat(weight))
     );
     assert_eq!(number_format(&out, &panel, "P5"), "#,##0.000");
+    // A figure written `share(...)` is a percentage (Service levels: C is
+    // on_time, D p90), other figures 4 significant digits.
+    let service = sheet_named(&out, "Service levels");
+    assert_eq!(number_format(&out, &service, "C5"), "0.0%");
+    assert_ne!(number_format(&out, &service, "D5"), "0.0%");
     // The cell keeps its full value: the format only rounds its look.
     let cells = common::cells(&out, "Lateness");
     let mean = match &cells[4][4] {
@@ -196,8 +201,20 @@ fn every_sheet_prints_landscape_one_page_wide_with_titles() {
         let xml = sheet(&out, i + 1);
         assert!(xml.contains("fitToPage=\"1\""), "{name}: not fit to page");
         let setup = tags(&xml, "pageSetup")[0];
-        assert_eq!(attribute(setup, "orientation"), Some("landscape"), "{name}");
+        // Landscape where wide; the two narrow figures blocks portrait.
+        let orientation = match *name {
+            "Service levels" | "Heavy parcels" => "portrait",
+            _ => "landscape",
+        };
+        assert_eq!(attribute(setup, "orientation"), Some(orientation), "{name}");
         assert_eq!(attribute(setup, "fitToHeight"), Some("0"), "{name}");
+        // The robustness sheet's 40 columns print two pages wide, the
+        // others one (the default, written as no attribute).
+        let wide = attribute(setup, "fitToWidth");
+        match name.ends_with("robustness") {
+            true => assert_eq!(wide, Some("2"), "{name}"),
+            false => assert!(wide.is_none_or(|w| w == "1"), "{name}: {wide:?}"),
+        }
         assert!(
             xml.contains("<oddHeader>&amp;LDepot deliveries, monthly review&amp;R2026-10"),
             "{name}: page header"
@@ -324,7 +341,7 @@ fn histogram_titles_are_in_words_and_bin_labels_are_clean() {
     let out = demo(dir.path());
     let chart = part(&out, "xl/charts/chart1.xml");
     assert!(
-        chart.contains("late_h, North: 10 bins by the Freedman-Diaconis rule"),
+        chart.contains("late_h, North: 7 bins by the Freedman-Diaconis rule"),
         "{chart}"
     );
     assert!(!chart.contains("freedman_diaconis"));
@@ -332,15 +349,334 @@ fn histogram_titles_are_in_words_and_bin_labels_are_clean() {
     let labels: Vec<String> = charts
         .iter()
         .filter_map(|r| match r.first() {
-            Some(Data::String(t)) if t.contains(" to ") => Some(t.clone()),
+            // Bin labels: "a to b", "below a", "above b" (not the note).
+            Some(Data::String(t))
+                if t.split(' ').count() <= 3 && (t.contains(" to ") || t.starts_with("above ")) =>
+            {
+                Some(t.clone())
+            }
             _ => None,
         })
         .collect();
     assert!(!labels.is_empty());
     for label in labels {
+        let label = label
+            .trim_start_matches("below ")
+            .trim_start_matches("above ");
         for edge in label.split(" to ") {
             assert!(edge.parse::<f64>().is_ok(), "{label}");
             assert!(!edge.contains('e') && edge.len() <= 9, "{label}");
         }
+    }
+}
+
+/// The charts' parts (xl/charts/chartN.xml), in order.
+fn chart_parts(xlsx: &Path) -> Vec<String> {
+    (1..)
+        .map_while(|i| {
+            let file = std::fs::File::open(xlsx).unwrap();
+            let mut zip = zip::ZipArchive::new(file).unwrap();
+            let mut text = String::new();
+            let mut part = zip.by_name(&format!("xl/charts/chart{i}.xml")).ok()?;
+            part.read_to_string(&mut text).unwrap();
+            Some(text)
+        })
+        .collect()
+}
+
+/// A number of a table row, by the column under `label` in `header`.
+fn under(header: &[Data], row: &[Data], label: &str) -> f64 {
+    let at = header.iter().position(|h| *h == label).unwrap();
+    match &row[at] {
+        Data::Float(x) => *x,
+        other => panic!("{label}: {other:?}"),
+    }
+}
+
+/// Harbour's 900-minute typo (15 hours) would stretch a Freedman-Diaconis
+/// histogram over all values to 106 bins; inside the 3 IQR fences (Tukey
+/// 1977) the rule gives a handful, the typo is counted in a labelled
+/// overflow bin, and every value of the group is counted once.
+#[test]
+fn a_typo_lands_in_an_overflow_bin_and_leaves_the_bins_readable() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = demo(dir.path());
+    let charts = chart_parts(&out);
+    let harbour = charts
+        .iter()
+        .find(|c| c.contains("late_h, Harbour:"))
+        .unwrap();
+    assert!(
+        harbour.contains("1 value beyond the 3 IQR fences in the end bins"),
+        "{harbour}"
+    );
+    // The table beside it: from its header to the first blank row.
+    let cells = common::cells(&out, "Charts");
+    let tables: Vec<&[Vec<Data>]> = cells
+        .split(|r| r.iter().all(|c| *c == Data::Empty))
+        .filter(|t| t.first().is_some_and(|h| h[0] == "bin"))
+        .collect();
+    let table = tables[1];
+    let bins: Vec<(&str, f64)> = table[1..]
+        .iter()
+        .map(|r| {
+            (
+                r[0].get_string().unwrap(),
+                under(&table[0], r, "values in bin"),
+            )
+        })
+        .collect();
+    let (last, overflow) = bins.last().unwrap();
+    assert!(last.starts_with("above "), "{bins:?}");
+    assert_eq!(*overflow, 1.0);
+    let top: f64 = last.trim_start_matches("above ").parse().unwrap();
+    assert!(top < 15.0, "the typo is above the last bin: {top}");
+    assert!(
+        (2..=20).contains(&(bins.len() - 1)),
+        "{} bins",
+        bins.len() - 1
+    );
+    // Every Harbour value counted once: n from the Lateness sheet.
+    let panel = common::cells(&out, "Lateness");
+    let header = panel.iter().position(|r| r[0] == "depot").unwrap();
+    let n = panel[header + 1..]
+        .iter()
+        .find(|r| r[0] == "Harbour" && r[1] == "late_h")
+        .map(|r| under(&panel[header], r, "n"))
+        .unwrap();
+    assert_eq!(bins.iter().map(|b| b.1).sum::<f64>(), n);
+}
+
+/// The box plot draws every 1.5 IQR outlier as a marker-only point at its
+/// value: its table counts as many per group as the robustness sheet lists,
+/// holds Harbour's 15-hour typo, and the chart has one marker series per
+/// outlier rank.
+#[test]
+fn box_plots_draw_each_outlier_as_a_point() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = demo(dir.path());
+    let cells = common::cells(&out, "Charts");
+    let head = cells.iter().position(|r| r[0] == "group").unwrap();
+    let rows = &cells[head + 1..head + 4];
+    let robust = common::cells(&out, "Lateness robustness");
+    let rh = robust.iter().position(|r| r[0] == "depot").unwrap();
+    let mut most = 0;
+    for row in rows {
+        let listed = robust[rh + 1..]
+            .iter()
+            .find(|r| r[0] == row[0] && r[1] == "late_h")
+            .map(|r| under(&robust[rh], r, "outliers 1.5 IQR"))
+            .unwrap();
+        let counted = under(&cells[head], row, "outliers beyond 1.5 IQR");
+        assert_eq!(counted, listed, "{:?}", row[0]);
+        most = most.max(listed as usize);
+        let points: Vec<f64> = row[7..].iter().filter_map(|c| c.get_float()).collect();
+        assert_eq!(points.len(), listed as usize, "{row:?}");
+    }
+    let harbour = rows.iter().find(|r| r[0] == "Harbour").unwrap();
+    assert!(harbour[7..].contains(&Data::Float(15.0)), "{harbour:?}");
+    let chart = chart_parts(&out)
+        .into_iter()
+        .find(|c| c.contains("<c:stockChart>"))
+        .unwrap();
+    let line = &chart[chart.find("<c:lineChart>").unwrap()..];
+    let outlier_series = line.matches("<c:v>outlier ").count();
+    assert_eq!(outlier_series, most, "{line}");
+    // Points only: no line joins a series's points.
+    assert!(line.contains("<c:symbol val=\"circle\"/>"));
+    assert_eq!(
+        line.matches("<c:ser>").count(),
+        line.matches("<a:ln><a:noFill/></a:ln>").count(),
+        "{line}"
+    );
+    assert!(chart.contains("<c:dispBlanksAs val=\"gap\"/>"), "{chart}");
+}
+
+/// A `label` line names the column in chart titles, on axes and in the
+/// panel's column cell, and leaves the recipe's fingerprint as it was, so
+/// last month's result stays comparable.
+#[test]
+fn a_label_names_the_column_in_charts_and_tables_but_not_the_fingerprint() {
+    let dir = tempfile::tempdir().unwrap();
+    let plain = demo(dir.path());
+    let labelled_dir = tempfile::tempdir().unwrap();
+    let recipe = std::fs::read_to_string(root().join("workbooks/depot-monthly.sheaf")).unwrap();
+    let with_label = recipe.replace("rows where", "label late_h \"Hours late\"\nrows where");
+    assert_ne!(with_label, recipe);
+    let path = labelled_dir.path().join("labelled.sheaf");
+    std::fs::write(&path, with_label).unwrap();
+    let out = labelled_dir.path().join("labelled.xlsx");
+    let data = root().join("workbooks/depot-2026-10.xlsx");
+    let o = sheaf(
+        &[
+            "run",
+            path.to_str().unwrap(),
+            "--data",
+            data.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+        ],
+        labelled_dir.path(),
+    );
+    assert!(out.exists(), "{}", text(&o));
+    let charts = chart_parts(&out);
+    assert!(
+        charts[0].contains("<a:t>Hours late, North: "),
+        "{}",
+        charts[0]
+    );
+    assert!(charts[0].contains("<a:t>Hours late</a:t>"), "axis title");
+    let boxes = charts
+        .iter()
+        .find(|c| c.contains("<c:stockChart>"))
+        .unwrap();
+    assert!(boxes.contains("<a:t>Hours late: boxes"));
+    let panel = common::cells(&out, "Lateness");
+    assert!(
+        panel
+            .iter()
+            .any(|r| r.get(1) == Some(&Data::String("Hours late (late_h)".into())))
+    );
+    let fingerprint = |xlsx: &Path| {
+        common::cells(xlsx, "About")
+            .into_iter()
+            .find(|r| r[0] == "recipe fingerprint")
+            .map(|r| r[1].clone())
+            .unwrap()
+    };
+    assert_eq!(fingerprint(&out), fingerprint(&plain));
+}
+
+/// The trend charts of a batch with October missing: October has its place
+/// on the axis with no values (a gap, not a bridge), every point is marked,
+/// both axes are titled, the on-time share is on a percentage axis ending
+/// at 100%, and the groups keep the result sheets' order (North, Harbour,
+/// Ridge: the order the demo data lists them, not alphabetical).
+#[test]
+fn trend_charts_mark_points_leave_gaps_and_show_shares_as_percentages() {
+    let dir = tempfile::tempdir().unwrap();
+    let months = common::demo_months_as(
+        dir.path(),
+        ["depot-2026-08", "depot-2026-09", "depot-2026-11"],
+    );
+    let pattern = months.join("*.xlsx");
+    let o = sheaf(
+        &[
+            "run",
+            &common::demo_recipe(),
+            "--data",
+            pattern.to_str().unwrap(),
+            "--out-dir",
+            "out",
+        ],
+        dir.path(),
+    );
+    let trend = dir.path().join("out/trend.xlsx");
+    assert!(trend.exists(), "{}", text(&o));
+    let cells = common::cells(&trend, "Trend charts");
+    let at = cells
+        .iter()
+        .position(|r| r[0] == "Service levels: on_time")
+        .unwrap();
+    assert_eq!(
+        cells[at + 1][..4],
+        ["period", "North", "Harbour", "Ridge"].map(|s| Data::String(s.into()))
+    );
+    let periods: Vec<&Data> = cells[at + 2..at + 6].iter().map(|r| &r[0]).collect();
+    assert_eq!(periods, ["2026-08", "2026-09", "2026-10", "2026-11"]);
+    assert!(cells[at + 4][1..4].iter().all(|c| *c == Data::Empty));
+    let charts = chart_parts(&trend);
+    let share = charts
+        .iter()
+        .find(|c| c.contains("<a:t>Service levels: on_time</a:t>"))
+        .unwrap();
+    assert!(share.contains("<c:dispBlanksAs val=\"gap\"/>"), "{share}");
+    assert!(share.contains("formatCode=\"0.0%\""), "{share}");
+    assert!(share.contains("<c:max val=\"1\"/>"), "{share}");
+    assert!(share.contains("<a:t>period</a:t>") && share.contains("<a:t>on_time</a:t>"));
+    assert_eq!(
+        share.matches("<c:ser>").count(),
+        share.matches("<c:symbol val=").count(),
+        "every series marked"
+    );
+    assert!(!share.contains("<c:symbol val=\"none\"/>"));
+}
+
+/// Every group of a block is listed: Ridge has no parcel of 20 kg or more
+/// this month, so "Heavy parcels" (`where heavy`) shows it with 0 rows, a
+/// count of 0 and "no rows" where a figure has no value, in the order of
+/// the other blocks.
+#[test]
+fn a_group_without_rows_is_listed_with_zero_rows() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = demo(dir.path());
+    let heavy = common::cells(&out, "Heavy parcels");
+    let at = heavy.iter().position(|r| r[0] == "depot").unwrap();
+    let groups: Vec<&Data> = heavy[at + 1..].iter().map(|r| &r[0]).collect();
+    assert_eq!(groups, ["North", "Harbour", "Ridge"]);
+    let ridge = &heavy[at + 3];
+    assert_eq!(under(&heavy[at], ridge, "rows"), 0.0);
+    assert_eq!(under(&heavy[at], ridge, "n"), 0.0);
+    assert_eq!(ridge[3], Data::String("no rows".into()));
+}
+
+/// With `--compare`, the first sheet lists each figure the Changes sheet
+/// flags as moved, linked to its row there: October against September.
+#[test]
+fn the_first_sheet_links_every_moved_figure_to_its_changes_row() {
+    let dir = tempfile::tempdir().unwrap();
+    let months = common::demo_months_as(
+        dir.path(),
+        ["depot-2026-08", "depot-2026-09", "depot-2026-10"],
+    );
+    let run = |data: &str, out: &str, compare: Option<&str>| {
+        let data = months.join(data);
+        let mut args = vec![
+            "run".to_string(),
+            common::demo_recipe(),
+            "--data".into(),
+            data.display().to_string(),
+            "--out".into(),
+            out.into(),
+        ];
+        if let Some(c) = compare {
+            args.extend(["--compare".to_string(), c.to_string()]);
+        }
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        let o = sheaf(&args, dir.path());
+        assert!(dir.path().join(out).exists(), "{}", text(&o));
+    };
+    run("depot-2026-09.xlsx", "sep.xlsx", None);
+    run("depot-2026-10.xlsx", "oct.xlsx", Some("sep.xlsx"));
+    let out = dir.path().join("oct.xlsx");
+    let changes = common::cells(&out, "Changes");
+    let flagged = changes
+        .iter()
+        .skip(4)
+        .filter(|r| {
+            ["moved", "shape changed", "new extreme"]
+                .iter()
+                .any(|flag| r.get(7) == Some(&Data::String(flag.to_string())))
+        })
+        .count();
+    assert!(flagged > 0);
+    let glance = common::cells(&out, "At a glance");
+    let to_changes: Vec<(String, String)> = links(&sheet_named(&out, "At a glance"))
+        .into_iter()
+        .filter(|(_, target)| target.trim_start_matches('\'').starts_with("Changes"))
+        .collect();
+    assert_eq!(to_changes.len(), flagged);
+    for (cell, target) in to_changes {
+        let (row, col) = row_col(&cell);
+        let words = glance[row][col].to_string();
+        let (target_row, _) = row_col(target.rsplit_once('!').unwrap().1);
+        let line: Vec<String> = changes[target_row].iter().map(|d| d.to_string()).collect();
+        assert!(
+            ["moved", "shape changed", "new extreme"].contains(&line[7].as_str()),
+            "{cell}"
+        );
+        let named = format!("{} / {} / {}: ", line[0], line[1], line[2]);
+        assert!(words.starts_with(&named), "{words} vs {named}");
+        assert_eq!(glance[row][0].to_string(), "moved");
     }
 }

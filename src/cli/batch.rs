@@ -402,8 +402,12 @@ fn write_trend(
                 .collect()
         })
         .unwrap_or_default();
+    let shares = done
+        .first()
+        .map(|d| d.results.shares.clone())
+        .unwrap_or_default();
     let trend_path = out_dir.join("trend.xlsx");
-    let bytes = history::trend_workbook(records, &panels)?;
+    let bytes = history::trend_workbook(records, &panels, &shares)?;
     crate::write::atomic::write_file(&trend_path, &bytes, force)
         .map_err(|e| Failure::new(e.to_string()))?;
     Ok(Some(trend_path))

@@ -143,9 +143,21 @@ pub struct Results {
     /// Likely mistakes that did not stop the run, each with its fix
     /// (listed on the Checks sheet and the terminal).
     pub warnings: Vec<String>,
+    /// Labels given to columns by `label` lines (presentation only): column
+    /// name to label.
+    pub labels: std::collections::BTreeMap<String, String>,
+    /// (block, figure) of each figure that is a share (`share(...)`), shown
+    /// as a percentage.
+    pub shares: std::collections::BTreeSet<(String, String)>,
 }
 
 impl Results {
+    /// How a column is named in titles and on axes: its label when the
+    /// recipe gives one, else its name.
+    pub fn column_label<'a>(&'a self, column: &'a str) -> &'a str {
+        self.labels.get(column).map_or(column, String::as_str)
+    }
+
     pub fn failed(&self) -> bool {
         self.checks.iter().any(|c| c.outcome == Outcome::Fail)
     }
@@ -226,6 +238,31 @@ fn key_ids(scope: &Scope, key: &ColumnRef) -> (Vec<u32>, Vec<String>) {
 
 /// Each group's key labels and its rows.
 type Groups = Vec<(Vec<String>, Vec<Row>)>;
+
+/// The groups of a block: every group of the rows the `rows where` lines
+/// keep (`kept`), in their order, each with its rows among the block's
+/// (`scope`, narrowed by the block's own `where`), so a group none of whose
+/// rows pass is listed with 0 rows rather than left out.
+fn block_groups(
+    table: &Table,
+    lets: &value::Lets,
+    kept: &[Row],
+    scope: &Scope,
+    keys: &[ColumnRef],
+) -> Result<Groups, EvalError> {
+    let found = groups(scope, keys)?;
+    if scope.rows.len() == kept.len() || keys.is_empty() {
+        return Ok(found);
+    }
+    let mut rows_of: HashMap<Vec<String>, Vec<Row>> = found.into_iter().collect();
+    Ok(groups(&Scope::new(table, lets, kept), keys)?
+        .into_iter()
+        .map(|(group, _)| {
+            let rows = rows_of.remove(&group).unwrap_or_default();
+            (group, rows)
+        })
+        .collect())
+}
 
 /// The groups the keys make of the scope's rows, in order of first appearance.
 fn groups(scope: &Scope, keys: &[ColumnRef]) -> Result<Groups, EvalError> {
@@ -356,7 +393,8 @@ fn columns_used(recipe: &Recipe) -> Vec<String> {
             | StatementKind::Period(_)
             | StatementKind::PeriodFrom(_)
             | StatementKind::Noise(_)
-            | StatementKind::Drift(_) => {}
+            | StatementKind::Drift(_)
+            | StatementKind::Label { .. } => {}
         }
         out.extend(refs.into_iter().map(|c| c.name.clone()));
         for e in exprs {
@@ -398,6 +436,8 @@ pub fn evaluate_against(
             missing_cells: missing_cells(recipe, table),
             terms: Vec::new(),
             warnings: Vec::new(),
+            labels: Default::default(),
+            shares: Default::default(),
         },
     };
     for statement in &recipe.statements {
@@ -452,6 +492,11 @@ impl Run<'_> {
             | StatementKind::PeriodFrom(_)
             | StatementKind::Noise(_)
             | StatementKind::Drift(_) => {}
+            StatementKind::Label { column, text } => {
+                self.results
+                    .labels
+                    .insert(column.name.clone(), text.value.clone());
+            }
             StatementKind::Let { name, value } => self.let_column(&name.value, value),
             StatementKind::RowsWhere(condition) => self.rows_where(condition),
             StatementKind::Panel {
@@ -533,7 +578,7 @@ impl Run<'_> {
     ) -> Result<(), EvalError> {
         let rows = block_rows(self.table, &self.lets, &self.kept, block_filter);
         let scope = Scope::new(self.table, &self.lets, &rows);
-        let all_groups = groups(&scope, per)?;
+        let all_groups = block_groups(self.table, &self.lets, &self.kept, &scope, per)?;
         // Known before the work: the panel sheet must hold a row per job.
         let pairs = all_groups.len() * columns.len();
         if pairs > MAX_SHEET_ENTRIES {
@@ -583,7 +628,7 @@ impl Run<'_> {
         let rows = block_rows(self.table, &self.lets, &self.kept, block_filter);
         let scope = Scope::new(self.table, &self.lets, &rows);
         let mut out = Vec::new();
-        for (group, group_rows) in groups(&scope, per)? {
+        for (group, group_rows) in block_groups(self.table, &self.lets, &self.kept, &scope, per)? {
             let group_scope = self.group_scope(&group, &group_rows);
             let values = figures
                 .iter()
@@ -599,6 +644,11 @@ impl Run<'_> {
                 values,
                 standard_errors,
             });
+        }
+        for f in figures.iter().filter(|f| is_share(&f.value)) {
+            self.results
+                .shares
+                .insert((name.to_string(), f.name.value.clone()));
         }
         self.results.blocks.push(Block::Figures {
             name: name.to_string(),
@@ -669,7 +719,7 @@ impl Run<'_> {
             let sample = self
                 .group_scope(&group, &group_rows)
                 .sample(&column_expr(column));
-            match stats::histogram(&sample, rule) {
+            match stats::fenced_histogram(&sample, rule) {
                 Ok(histogram) => self.results.charts.push(Chart::Histogram {
                     column: column.name.clone(),
                     group,
@@ -741,6 +791,14 @@ fn panel_entry(
     }
 }
 
+/// Whether a figure's value is a share: a `share(...)` call, not within
+/// arithmetic.
+fn is_share(e: &Expr) -> bool {
+    matches!(&e.kind, ExprKind::Call { function, .. }
+        if crate::recipe::functions::lookup(&function.value)
+            .is_some_and(|f| f.evaluation == crate::recipe::functions::Evaluation::Share))
+}
+
 fn column_expr(column: &ColumnRef) -> Expr {
     Expr {
         kind: ExprKind::Column(column.clone()),
@@ -754,6 +812,9 @@ fn column_expr(column: &ColumnRef) -> Expr {
 struct CellNamer<'a> {
     table: &'a Table,
     place: std::sync::Arc<CellPlace>,
+    /// The data column behind a `let` of one data column, whose cell holds
+    /// the number as the input has it.
+    derived_from: Option<&'a crate::load::Column>,
 }
 
 impl<'a> CellNamer<'a> {
@@ -778,6 +839,7 @@ impl<'a> CellNamer<'a> {
         CellNamer {
             table,
             place: std::sync::Arc::new(place),
+            derived_from: (behind != column).then(|| table.column(behind)).flatten(),
         }
     }
 
@@ -785,6 +847,7 @@ impl<'a> CellNamer<'a> {
         CellName {
             place: std::sync::Arc::clone(&self.place),
             sheet_row: self.table.sheet_row(row) as u32,
+            source_value: self.derived_from.and_then(|c| c.number(row)),
         }
     }
 }

@@ -191,6 +191,9 @@ pub struct CellName {
     pub place: Arc<CellPlace>,
     /// 1-based sheet row.
     pub sheet_row: u32,
+    /// The number in the input cell, when the flagged value was derived
+    /// from it (a `let` of one data column): 55.8 minutes behind 0.93 hours.
+    pub source_value: Option<f64>,
 }
 
 impl std::fmt::Display for CellName {
@@ -281,13 +284,16 @@ pub struct PanelEntry {
     pub sample_summary: Option<BoxSummary>,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct BoxSummary {
     pub whisker_low: f64,
     pub q1: f64,
     pub median: f64,
     pub q3: f64,
     pub whisker_high: f64,
+    /// The values beyond the 1.5 IQR fences, ascending: a box plot draws
+    /// each as a point.
+    pub outliers: Vec<f64>,
 }
 
 fn is_whole(values: &[f64]) -> bool {
@@ -672,6 +678,11 @@ pub fn box_summary(s: &Sample) -> Option<BoxSummary> {
         median: stats::median(s).ok()?,
         q3: stats::quartile(s, 3, m).ok()?,
         whisker_high,
+        outliers: sorted
+            .iter()
+            .copied()
+            .filter(|&x| x < fences.low || x > fences.high)
+            .collect(),
     })
 }
 
@@ -686,6 +697,7 @@ mod tests {
                 sheet_and_letters: "Deliveries!C".into(),
             }),
             sheet_row: i as u32 + 2,
+            source_value: None,
         }
     }
 

@@ -16,7 +16,7 @@ pub use record::{
     fingerprint, made_by_sheaf, panel_entry_name, panel_figure_of, shown_name,
 };
 pub use trend::{
-    Move, group_changes, largest_moves, moves_between, trend_workbook, welch_se, write_noise,
+    Bands, Move, group_changes, largest_moves, moves_between, trend_workbook, welch_se, write_noise,
 };
 
 /// Relative change beyond which a figure is flagged when the recipe sets no

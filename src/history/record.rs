@@ -153,8 +153,9 @@ fn name_from_label(name: String) -> String {
 /// SHA-256 of the canonical text of what the recipe computes: layout and
 /// comments do not count, nor do the lines that say how to read a file
 /// (`input`, `header`: a header renamed this month, a decimal comma), where
-/// its period comes from (`period`) or how changes are judged (`noise`);
-/// adding or editing one keeps last month comparable.
+/// its period comes from (`period`), how changes are judged (`noise`) or
+/// how a column is shown (`label`); adding or editing one keeps last month
+/// comparable.
 pub fn fingerprint(recipe: &Recipe) -> String {
     digest(&keeping(recipe, |kind| {
         !matches!(
@@ -164,6 +165,7 @@ pub fn fingerprint(recipe: &Recipe) -> String {
                 | StatementKind::Period(_)
                 | StatementKind::PeriodFrom(_)
                 | StatementKind::Noise(_)
+                | StatementKind::Label { .. }
         )
     }))
 }

@@ -1,11 +1,9 @@
 //! The trend workbook of a batch: every figure per period, the largest
 //! month-over-month moves, and line charts of the main figures.
 
-use std::collections::{BTreeMap, HashMap};
+use std::collections::HashMap;
 
-use rust_xlsxwriter::{
-    Chart, ChartFormat, ChartMarker, ChartMarkerType, ChartType, Format, Workbook, XlsxError,
-};
+use rust_xlsxwriter::{Format, Workbook, XlsxError};
 
 use super::judge::{self, Basis, Flag};
 use super::record::{Record, TERM_BLOCK};
@@ -194,7 +192,7 @@ fn trend_rows(
 
 /// Each (block, group, figure, period)'s control-band verdict, from the
 /// fourth period on (see [`outside_band`]).
-type Bands = HashMap<(String, String, String, String), &'static str>;
+pub type Bands = HashMap<(String, String, String, String), &'static str>;
 
 fn band_key(e: &super::record::Entry, period: &str) -> (String, String, String, String) {
     (
@@ -287,15 +285,12 @@ pub fn group_changes(before: &Record, after: &Record) -> Option<String> {
     (!parts.is_empty()).then(|| parts.join("; "))
 }
 
-/// Figures drawn over time: each panel column's mean and median, and every
-/// figure of a figures block.
-fn charted(name: &str, is_panel: bool) -> bool {
-    !is_panel || name.ends_with(" mean") || name.ends_with(" median")
-}
-
+/// The trend workbook; `shares` are the (block, figure) pairs whose values
+/// are shares, charted on a percentage axis.
 pub fn trend_workbook(
     records: &[(String, Record)],
     panel_blocks: &[String],
+    shares: &std::collections::BTreeSet<(String, String)>,
 ) -> Result<Vec<u8>, XlsxError> {
     let mut workbook = Workbook::new();
     let bold = Format::new().set_bold();
@@ -368,104 +363,8 @@ pub fn trend_workbook(
     }
     sheet.autofilter(0, 0, moves.len().clamp(1, 200) as u32, 10)?;
 
-    trend_charts(&mut workbook, records, panel_blocks, &bands)?;
+    crate::write::trend_charts(&mut workbook, records, panel_blocks, shares, &bands)?;
     workbook.save_to_buffer()
-}
-
-/// The values of one chart: per group, per period.
-type ChartValues = BTreeMap<String, BTreeMap<String, f64>>;
-
-/// One line chart per (block, figure): periods down, groups across, and
-/// for each group with a value outside its control band a marker series
-/// (markers only, no line) at those values, named "GROUP outside band".
-fn trend_charts(
-    workbook: &mut Workbook,
-    records: &[(String, Record)],
-    panel_blocks: &[String],
-    bands: &Bands,
-) -> Result<(), XlsxError> {
-    let bold = Format::new().set_bold();
-    let sheet_name = "Trend charts";
-    let sheet = workbook.add_worksheet().set_name(sheet_name)?;
-    let mut series: BTreeMap<(String, String), ChartValues> = BTreeMap::new();
-    for (period, record) in records {
-        for e in record
-            .entries
-            .iter()
-            .filter(|e| e.block != TERM_BLOCK && charted(&e.name, panel_blocks.contains(&e.block)))
-        {
-            series
-                .entry((e.block.clone(), e.name.clone()))
-                .or_default()
-                .entry(e.group.clone())
-                .or_default()
-                .insert(period.clone(), e.value);
-        }
-    }
-    let periods: Vec<&String> = records.iter().map(|(p, _)| p).collect();
-    let mut top = 0u32;
-    for ((block, name), groups) in &series {
-        let name = super::shown_name(block, name);
-        sheet.write_string_with_format(top, 0, fit(&format!("{block}: {name}")), &bold)?;
-        sheet.write_string_with_format(top + 1, 0, "period", &bold)?;
-        for (i, p) in periods.iter().enumerate() {
-            sheet.write_string(top + 2 + i as u32, 0, fit(p))?;
-        }
-        let mut chart = Chart::new(ChartType::Line);
-        chart.title().set_name(&format!("{block}: {name}"));
-        let last = top + 1 + periods.len() as u32;
-        let mut column = 1u16;
-        let mut add = |sheet: &mut rust_xlsxwriter::Worksheet,
-                       label: String,
-                       values: &BTreeMap<String, f64>|
-         -> Result<u16, XlsxError> {
-            let c = column;
-            column += 1;
-            sheet.write_string_with_format(top + 1, c, fit(&label), &bold)?;
-            for (i, p) in periods.iter().enumerate() {
-                if let Some(v) = values.get(*p) {
-                    sheet.write_number(top + 2 + i as u32, c, *v)?;
-                }
-            }
-            Ok(c)
-        };
-        for (group, values) in groups {
-            let c = add(sheet, group.clone(), values)?;
-            chart
-                .add_series()
-                .set_name((sheet_name, top + 1, c))
-                .set_categories((sheet_name, top + 2, 0, last, 0))
-                .set_values((sheet_name, top + 2, c, last, c));
-        }
-        for (group, values) in groups {
-            let outside: BTreeMap<String, f64> = values
-                .iter()
-                .filter(|(p, _)| {
-                    let key = (block.clone(), group.clone(), name.clone(), p.to_string());
-                    matches!(bands.get(&key), Some(&"above" | &"below"))
-                })
-                .map(|(p, v)| (p.clone(), *v))
-                .collect();
-            if outside.is_empty() {
-                continue;
-            }
-            let c = add(sheet, format!("{group} outside band"), &outside)?;
-            chart
-                .add_series()
-                .set_name((sheet_name, top + 1, c))
-                .set_categories((sheet_name, top + 2, 0, last, 0))
-                .set_values((sheet_name, top + 2, c, last, c))
-                .set_format(ChartFormat::new().set_no_line())
-                .set_marker(
-                    ChartMarker::new()
-                        .set_type(ChartMarkerType::Diamond)
-                        .set_size(9),
-                );
-        }
-        sheet.insert_chart(top, column + 1, &chart)?;
-        top = (last + 2).max(top + 16);
-    }
-    Ok(())
 }
 
 #[cfg(test)]

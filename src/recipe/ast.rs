@@ -294,6 +294,12 @@ pub enum StatementKind {
         column: ColumnRef,
         per: Vec<ColumnRef>,
     },
+    /// How a column is named in chart titles, on axes and in tables (its
+    /// units, say); presentation only, so not part of the fingerprint.
+    Label {
+        column: ColumnRef,
+        text: Spanned<String>,
+    },
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -392,6 +398,10 @@ impl Recipe {
                 StatementKind::PeriodFrom(c) => c.span = zero,
                 StatementKind::Noise(n) => n.span = zero,
                 StatementKind::Drift(d) => d.span = zero,
+                StatementKind::Label { column, text } => {
+                    column.span = zero;
+                    text.span = zero;
+                }
             }
         }
         copy

@@ -155,6 +155,7 @@ impl<'a> Checker<'a> {
     fn statements(&mut self, recipe: &Recipe) {
         let mut blocks: HashSet<String> = HashSet::new();
         let mut checks: HashSet<String> = HashSet::new();
+        let mut labels: HashSet<String> = HashSet::new();
         // Statements a recipe has at most once, by the message for a second one.
         let mut once: HashMap<&'static str, usize> = HashMap::new();
         for statement in &recipe.statements {
@@ -206,6 +207,7 @@ impl<'a> Checker<'a> {
                 }
                 // Accepted header names are checked against the data by the loader.
                 StatementKind::Header { .. } => {}
+                StatementKind::Label { column, text } => self.label(column, text, &mut labels),
                 StatementKind::Let { name, value } => self.let_statement(name, value),
                 StatementKind::RowsWhere(condition) => self.condition(condition, "`rows where`"),
                 StatementKind::Panel {
@@ -429,6 +431,26 @@ impl<'a> Checker<'a> {
     }
 
     /// Resolves each column of a list (group keys, chart columns).
+    /// A label names a column of the data or a `let` above it, once, with
+    /// some text.
+    fn label(&mut self, c: &ColumnRef, text: &Spanned<String>, seen: &mut HashSet<String>) {
+        self.column(c);
+        if !seen.insert(c.name.clone()) {
+            self.report(
+                c.span,
+                format!("a second label for `{}`", c.name),
+                Some("a column has one label; remove this line".into()),
+            );
+        }
+        if text.value.trim().is_empty() {
+            self.report(
+                text.span,
+                "a label cannot be empty",
+                Some("write the name with its units, such as \"Hours late\"".into()),
+            );
+        }
+    }
+
     fn columns(&mut self, columns: &[ColumnRef]) {
         for c in columns {
             self.column(c);

@@ -242,7 +242,8 @@ fn expressions(recipe: &Recipe) -> Vec<&ast::Expr> {
             | Period(_)
             | PeriodFrom(_)
             | Noise(_)
-            | Drift(_) => {}
+            | Drift(_)
+            | Label { .. } => {}
         }
     }
     found

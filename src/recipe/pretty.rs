@@ -163,6 +163,9 @@ fn statement(out: &mut String, s: &Statement) {
         StatementKind::Period(p) => format!("period {}", quoted(&p.value)),
         StatementKind::PeriodFrom(c) => format!("period from {}", column(c)),
         StatementKind::Noise(n) => format!("noise {} se", number(n.value)),
+        StatementKind::Label { column: c, text } => {
+            format!("label {} {}", column(c), quoted(&text.value))
+        }
         StatementKind::Drift(d) => format!(
             "drift {}{}",
             number(d.value.0),

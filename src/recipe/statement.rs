@@ -509,7 +509,20 @@ pub const STATEMENT_WORDS: &[&str] = &[
     "period",
     "drift",
     "noise",
+    "label",
 ];
+
+/// `label COLUMN "TEXT"`: how a column is named in titles, axes and tables.
+fn label_statement(input: &str) -> PResult<'_, StatementKind> {
+    let (rest, column) = need(input, "the column to label", column)?;
+    let (rest, text) = need(
+        rest,
+        "the label in double quotes, such as \"Parcel weight (kg)\"",
+        spanned_string,
+    )?;
+    let (rest, _) = end_of_line(rest, "the end of the line after the label")?;
+    Ok((rest, StatementKind::Label { column, text }))
+}
 
 fn period_statement(input: &str) -> PResult<'_, StatementKind> {
     if let Ok((after, _)) = keyword("from")(input) {
@@ -606,6 +619,7 @@ fn statement_line(input: &str) -> PResult<'_, StatementKind> {
         "period" => period_statement(rest),
         "drift" => drift_statement(rest),
         "noise" => noise_statement(rest),
+        "label" => label_statement(rest),
         other => {
             let suggestion = super::suggest::closest(other, STATEMENT_WORDS.iter().copied());
             let help = match suggestion {

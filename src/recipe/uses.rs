@@ -88,7 +88,9 @@ pub fn column_uses(recipe: &Recipe, source: &str) -> ColumnUses {
             | StatementKind::Header { .. }
             | StatementKind::Period(_)
             | StatementKind::Noise(_)
-            | StatementKind::Drift(_) => {}
+            | StatementKind::Drift(_)
+            // A label names a column without reading it.
+            | StatementKind::Label { .. } => {}
         }
     }
     walker.uses

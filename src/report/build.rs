@@ -267,6 +267,8 @@ fn chart(c: &Chart) -> ChartReport {
             edges: histogram.edges.clone(),
             counts: histogram.counts.clone(),
             capped_from: histogram.capped_from,
+            below: histogram.below,
+            above: histogram.above,
         },
         Chart::Boxplot { column, boxes } => ChartReport::Boxplot {
             column: column.clone(),
@@ -279,6 +281,7 @@ fn chart(c: &Chart) -> ChartReport {
                     median: b.median,
                     q3: b.q3,
                     whisker_high: b.whisker_high,
+                    outliers: b.outliers.clone(),
                 })
                 .collect(),
         },

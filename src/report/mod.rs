@@ -331,11 +331,16 @@ pub enum ChartReport {
         column: String,
         group: Vec<String>,
         rule: String,
-        /// k + 1 edges for k bins.
+        /// k + 1 edges for k bins: the rule is applied to the values inside
+        /// the 3 IQR fences.
         edges: Vec<f64>,
         counts: Vec<usize>,
         /// The bin count the rule asked for, when it was more than sheaf draws.
         capped_from: Option<usize>,
+        /// Values below the first edge (beyond the low 3 IQR fence).
+        below: usize,
+        /// Values above the last edge (beyond the high 3 IQR fence).
+        above: usize,
     },
     Boxplot {
         column: String,
@@ -351,6 +356,8 @@ pub struct BoxReport {
     pub median: f64,
     pub q3: f64,
     pub whisker_high: f64,
+    /// Values beyond the 1.5 IQR fences, ascending.
+    pub outliers: Vec<f64>,
 }
 
 #[derive(Debug, Clone, Serialize, JsonSchema)]

@@ -59,8 +59,14 @@ pub struct Histogram {
     /// k + 1 edges; bin i is [edges[i], edges[i+1]), the last bin closed.
     pub edges: Vec<f64>,
     pub counts: Vec<usize>,
-    /// The bin count the rule asked for, when it was more than [`MAX_BINS`].
+    /// The bin count the rule asked for, when it was more than the most
+    /// bins allowed ([`MAX_BINS`], or [`CHART_MAX_BINS`] for a chart).
     pub capped_from: Option<usize>,
+    /// Values below the first edge, counted in one overflow bin (only a
+    /// [`fenced_histogram`] has any): they lie beyond the low far fence.
+    pub below: usize,
+    /// Values above the last edge, counted in one overflow bin.
+    pub above: usize,
 }
 
 /// Sturges' rule: ceil(log2 n) + 1 bins for n values.
@@ -109,7 +115,53 @@ pub fn histogram(sample: &Sample, rule: BinRule) -> Stat<Histogram> {
         edges,
         counts,
         capped_from,
+        below: 0,
+        above: 0,
     })
+}
+
+/// Most bins a charted histogram draws: more cannot be told apart on a
+/// page. Common practice, no source.
+pub const CHART_MAX_BINS: usize = 50;
+
+/// The fence factor of a charted histogram: Tukey's (1977) "far out"
+/// fences, Q1 - 3 IQR and Q3 + 3 IQR (type 7 quartiles).
+pub const CHART_FENCE_IQR: f64 = 3.0;
+
+/// The histogram a chart draws: the bin rule applied to the values inside
+/// the 3 IQR fences (so one typo cannot stretch every bin), the values
+/// beyond them counted in the `below` and `above` overflow bins, at most
+/// [`CHART_MAX_BINS`] bins. When the IQR is 0 the fences would call every
+/// value off the middle an outlier, so the bins cover every value instead.
+pub fn fenced_histogram(sample: &Sample, rule: BinRule) -> Stat<Histogram> {
+    let fences = super::outliers::fences(sample, CHART_FENCE_IQR, QuantileMethod::HyndmanFan(7));
+    let (low, high) = match fences {
+        Ok(f) if f.high > f.low => (f.low, f.high),
+        _ => return capped(histogram(sample, rule)?, sample),
+    };
+    let inside = Sample::from_values(
+        sample
+            .values()
+            .iter()
+            .copied()
+            .filter(|x| (low..=high).contains(x)),
+    );
+    let mut h = capped(histogram(&inside, rule)?, &inside)?;
+    h.below = sample.values().iter().filter(|&&x| x < low).count();
+    h.above = sample.values().iter().filter(|&&x| x > high).count();
+    Ok(h)
+}
+
+/// `h` redrawn with at most [`CHART_MAX_BINS`] bins, saying how many the
+/// rule asked for when that was more.
+fn capped(h: Histogram, sample: &Sample) -> Stat<Histogram> {
+    let asked = h.capped_from.unwrap_or(h.counts.len());
+    if asked <= CHART_MAX_BINS {
+        return Ok(h);
+    }
+    let mut redrawn = histogram(sample, BinRule::Fixed(CHART_MAX_BINS))?;
+    redrawn.capped_from = Some(asked);
+    Ok(redrawn)
 }
 
 /// lo + i (hi - lo) / k, with the last edge exactly hi.
@@ -206,6 +258,42 @@ mod tests {
         let h = histogram(&spread, BinRule::FreedmanDiaconis).unwrap();
         assert_eq!(h.counts.len(), MAX_BINS);
         assert!(h.capped_from.unwrap() > MAX_BINS);
+    }
+
+    /// One typo far out: the Freedman-Diaconis rule over all 21 values
+    /// would give (900 - 1) / (2 * 10 / 21^(1/3)) = 124.0 -> 125 bins; inside
+    /// the 3 IQR fences (Q1 = 6, Q3 = 16, fences -24 and 46, type 7 by hand)
+    /// the 20 values 1..20 get ceil(19 / (2 * 9.5 / 20^(1/3))) = 3 bins, and
+    /// the typo is counted above them.
+    #[test]
+    fn a_typo_goes_to_the_overflow_bin_not_into_every_bin() {
+        let s = Sample::from_values((1..=20).map(f64::from).chain([900.0]));
+        assert_eq!(
+            histogram(&s, BinRule::FreedmanDiaconis)
+                .unwrap()
+                .counts
+                .len(),
+            125
+        );
+        let h = fenced_histogram(&s, BinRule::FreedmanDiaconis).unwrap();
+        assert_eq!((h.counts.len(), h.below, h.above), (3, 0, 1));
+        assert_eq!((h.edges[0], h.edges[3]), (1.0, 20.0));
+        assert_eq!(h.counts.iter().sum::<usize>(), 20);
+    }
+
+    #[test]
+    fn a_charted_histogram_draws_at_most_the_chart_cap() {
+        let s = Sample::from_values((0..1000).map(f64::from));
+        let h = fenced_histogram(&s, BinRule::Fixed(400)).unwrap();
+        assert_eq!((h.counts.len(), h.capped_from), (CHART_MAX_BINS, Some(400)));
+        assert_eq!(h.counts.iter().sum::<usize>(), 1000);
+        // A zero IQR: no fences, every value in the bins.
+        let tied = Sample::from_values([5.0; 10].into_iter().chain([6.0, 100.0]));
+        let h = fenced_histogram(&tied, BinRule::Sturges).unwrap();
+        assert_eq!(
+            (h.below, h.above, h.counts.iter().sum::<usize>()),
+            (0, 0, 12)
+        );
     }
 
     // Hand-checked: bins of width 2 over [0, 10]: the fullest is [2, 4)

@@ -26,7 +26,10 @@ pub use bootstrap::{
     BOOTSTRAP_MIN_VALUES, BootstrapIntervals, BootstrapMethod, DEFAULT_RESAMPLES, DEFAULT_SEED,
     DRAW_BUDGET, Interval, bootstrap_intervals, resampled_in_full,
 };
-pub use histogram::{BinRule, Histogram, MAX_BINS, binned_mode, histogram, sturges_bins};
+pub use histogram::{
+    BinRule, CHART_FENCE_IQR, CHART_MAX_BINS, Histogram, MAX_BINS, binned_mode, fenced_histogram,
+    histogram, sturges_bins,
+};
 pub use influence::{
     LeaveOneOut, OneLeftOut, leave_one_out, mean_change_without, mean_minus_median,
 };

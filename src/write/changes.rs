@@ -7,14 +7,22 @@ use super::sheets::SheetNames;
 use super::{RunInfo, style};
 use crate::history::{RECORD_SHEET, Record};
 
+/// The figures flagged "moved" on the Changes sheet: its name, and each
+/// flagged figure's 0-based row with the figure in words.
+pub type Moved = (String, Vec<(u32, String)>);
+
+/// Writes the Changes sheet. Returns the figures it flags as moved, for
+/// the first sheet.
 pub fn changes(
     workbook: &mut Workbook,
     names: &mut SheetNames,
     current: &Record,
     run: &RunInfo,
     previous: &Record,
-) -> Result<(), XlsxError> {
-    let sheet = workbook.add_worksheet().set_name(names.claim("Changes"))?;
+) -> Result<Moved, XlsxError> {
+    let sheet_name = names.claim("Changes");
+    let sheet = workbook.add_worksheet().set_name(&sheet_name)?;
+    let mut moved = Vec::new();
     let labels: Vec<String> = [
         "block",
         "group",
@@ -78,6 +86,7 @@ pub fn changes(
         if let Some(flag) = m.flag(run.drift, run.noise) {
             widths.seen(r, 7, flag.word().len());
             sheet.write_string_with_format(r, 7, flag.word(), &style::status("warn"))?;
+            moved.push((r, moved_in_words(&m, &name, flag.word())));
         }
         crate::history::write_noise(sheet, r, 8, &m)?;
         r += 1;
@@ -92,7 +101,23 @@ pub fn changes(
     widths.seen(3, 6, "previous was 0".len());
     style::print_titles(sheet, 3, 3)?;
     style::fit_columns(sheet, 3, &labels, &widths)?;
-    style::filter(sheet, 3, r - 1, labels.len())
+    style::filter(sheet, 3, r - 1, labels.len())?;
+    Ok((sheet_name, moved))
+}
+
+/// A flagged change as the first sheet lists it: where, what, from and to.
+fn moved_in_words(m: &crate::history::Move, name: &str, flag: &str) -> String {
+    let shown = |x: f64| style::Shown::unknown_kind(&crate::eval::One::Number(x)).text(x);
+    let relative = m
+        .relative()
+        .map_or_else(String::new, |r| format!(", {:+.1}%", r * 100.0));
+    format!(
+        "{} / {} / {name}: {} to {} ({flag}{relative})",
+        m.block,
+        m.group,
+        shown(m.before),
+        shown(m.after)
+    )
 }
 
 /// The moves the Changes sheet lists when they fit in `room` rows; else

@@ -18,6 +18,8 @@ pub struct Places {
     /// Each panel's robustness sheet name and 0-based row of its first entry,
     /// in the order of the panel blocks.
     pub robustness: Vec<(String, u32)>,
+    /// With a previous period: the Changes sheet and the figures it flags.
+    pub moved: Option<super::changes::Moved>,
 }
 
 /// Writes the glance sheet (already added as the first sheet).
@@ -46,8 +48,30 @@ pub fn glance(
     }
     r = reading_file(sheet, r, reading)?;
     r = checks(sheet, r + 1, results, &places.checks)?;
-    robustness(sheet, r + 1, results, &places.robustness)?;
+    let r = robustness(sheet, r + 1, results, &places.robustness)?;
+    if let Some(moved) = &places.moved {
+        figures_moved(sheet, r + 1, moved)?;
+    }
     Ok(())
+}
+
+/// Each figure the Changes sheet flags as moved, with a link to its row.
+fn figures_moved(
+    sheet: &mut Worksheet,
+    mut r: u32,
+    moved: &super::changes::Moved,
+) -> Result<u32, XlsxError> {
+    let (target, rows) = moved;
+    sheet.write_string_with_format(r, 0, "moved", &style::header())?;
+    for (row, words) in rows {
+        r += 1;
+        sheet.write_string_with_format(r, 0, "moved", &top(style::status("warn")))?;
+        link(sheet, (r, 1), target, (*row, 0), words)?;
+    }
+    if rows.is_empty() {
+        sheet.write_string(r, 1, "no figure moved beyond the drift")?;
+    }
+    Ok(r + 1)
 }
 
 /// What the loader decided that changes what was read (rows left out, a

@@ -10,6 +10,9 @@ mod glance;
 mod plan;
 mod sheets;
 pub(crate) mod style;
+mod trend_charts;
+
+pub use trend_charts::trend_charts;
 
 use std::path::Path;
 
@@ -81,7 +84,8 @@ pub fn workbook_bytes(
     // are known.
     let glance_name = names.claim(glance::GLANCE_SHEET);
     workbook.add_worksheet().set_name(&glance_name)?;
-    let robustness = sheets::blocks(&mut workbook, &mut names, results)?;
+    let sheets::BlockSheets { robustness, narrow } =
+        sheets::blocks(&mut workbook, &mut names, results)?;
     let reading = crate::load::reading_notes(table);
     let checks = sheets::checks(&mut workbook, &mut names, results, &reading)?;
     charts::charts(&mut workbook, &mut names, results)?;
@@ -91,19 +95,39 @@ pub fn workbook_bytes(
         run.fingerprint.clone(),
         run.period.as_ref().map(|p| p.label.clone()),
     );
-    if let Some(previous) = &run.previous {
-        changes::changes(&mut workbook, &mut names, &current, run, previous)?;
-    }
+    let moved = match &run.previous {
+        Some(previous) => Some(changes::changes(
+            &mut workbook,
+            &mut names,
+            &current,
+            run,
+            previous,
+        )?),
+        None => None,
+    };
     about::about(&mut workbook, &mut names, results, table, run)?;
     changes::record(&mut workbook, &mut names, &current)?;
     let title = results.title.as_deref().unwrap_or("sheaf result");
     let period = run.period.as_ref().map(|p| p.label.as_str());
-    let places = glance::Places { checks, robustness };
+    let wide: Vec<String> = robustness.iter().map(|(name, _)| name.clone()).collect();
+    let places = glance::Places {
+        checks,
+        robustness,
+        moved,
+    };
     let input = &table.source.path;
     let sheet = workbook.worksheet_from_name(&glance_name)?;
     glance::glance(sheet, results, input, period, &places, &reading)?;
     for sheet in workbook.worksheets_mut() {
         style::paper(sheet, title, period)?;
+        if narrow.contains(&sheet.name()) {
+            sheet.set_portrait();
+        }
+        if wide.contains(&sheet.name()) {
+            // Some 40 columns on one page's width would print too small to
+            // read; its label columns repeat on each page.
+            sheet.set_print_fit_to_pages(style::WIDE_TABLE_PAGES, 0);
+        }
     }
     Ok(workbook.save_to_buffer()?)
 }

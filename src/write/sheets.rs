@@ -77,13 +77,14 @@ pub const PANEL_NOTE: &str = "Conventions: n counts numeric cells; missing count
 Quartiles, median and IQR by Hyndman-Fan type 7 (linear interpolation). Skewness g1 = m3 / m2^1.5 and kurtosis b2 = m4 / m2^2 \
 (about 3 for normal data) are the moment forms; two values lie symmetrically about their mean, so their skewness is exactly 0. Bowley skewness = (Q3 + Q1 - 2 Q2) / (Q3 - Q1). Outliers lie strictly beyond \
 Tukey's fences Q1 - 1.5 IQR and Q3 + 1.5 IQR. Modes: every most frequent value for whole-number data; otherwise the mean of the \
-values in the fullest of Sturges' equal bins. A cell without a number says why.";
+values in the fullest of Sturges' equal bins. A cell without a number says why; 'no rows' where none of a group's rows pass the \
+block's `where`.";
 
 fn robustness_note() -> String {
     format!(
         "Each row asks whether a few values drive the figures. Gap = (mean - median) / sd and / IQR, computed from deviations \
 about a middle value so data far from zero keep their digits. Outliers lie strictly beyond Tukey's 1.5 and 3 IQR fences (type 7 \
-quartiles), each listed with its source cell. 'Without' recomputes mean, sd and skewness leaving out the 1.5 IQR outliers; \
+quartiles), each listed with its source cell and the number it holds, then the value used where a `let` derived it. 'Without' recomputes mean, sd and skewness leaving out the 1.5 IQR outliers; \
 'change' is without minus with. Leave-one-out: of all values, the one whose removal changes the mean (or the sd) most in size; \
 the change is signed (after minus before), and of equal changes the first row's is shown. |modified z| = |0.6745 (x - median) \
 / MAD| above 3.5 (Iglewicz and Hoaglin 1993), in either direction. Skewness G1 and excess kurtosis G2 (adjusted, Joanes and Gill \
@@ -112,7 +113,8 @@ fn heading(sheet: &mut Worksheet, title: &str) -> Result<u32, XlsxError> {
 }
 
 /// Finishes a table written under [`heading`]: columns sized to their
-/// content, the note as a block above it, filter buttons over it.
+/// content, the note as a block above it, filter buttons over it. Returns
+/// the table's width in characters.
 fn finish_table(
     sheet: &mut Worksheet,
     labels: &[String],
@@ -120,21 +122,32 @@ fn finish_table(
     widths: &Widths,
     note: &str,
     last_row: u32,
-) -> Result<(), XlsxError> {
+) -> Result<usize, XlsxError> {
     style::print_titles(sheet, TABLE_TOP, label_columns)?;
     let chosen = style::fit_columns(sheet, TABLE_TOP, labels, widths)?;
     style::note_block(sheet, 1, note, &chosen)?;
-    style::filter(sheet, TABLE_TOP, last_row, labels.len())
+    style::filter(sheet, TABLE_TOP, last_row, labels.len())?;
+    // Each column is set 1.5 characters wider than its content.
+    Ok(chosen.iter().map(|w| w + 2).sum())
 }
 
-/// Writes every block's sheets. Returns each panel's robustness sheet name
-/// and the 0-based row of its first entry, for links to it.
+/// The sheets written by [`blocks`] that links and page setup need.
+pub struct BlockSheets {
+    /// Each panel's robustness sheet name and the 0-based row of its first
+    /// entry, for links to it.
+    pub robustness: Vec<(String, u32)>,
+    /// Sheets narrow enough to print portrait.
+    pub narrow: Vec<String>,
+}
+
+/// Writes every block's sheets.
 pub fn blocks(
     workbook: &mut Workbook,
     names: &mut SheetNames,
     results: &Results,
-) -> Result<Vec<(String, u32)>, XlsxError> {
+) -> Result<BlockSheets, XlsxError> {
     let mut robustness = Vec::new();
+    let mut narrow = Vec::new();
     for block in &results.blocks {
         match block {
             Block::Panel {
@@ -148,6 +161,7 @@ pub fn blocks(
                     name,
                     keys,
                     entries,
+                    &results.labels,
                 )?;
                 let sheet_name = names.claim(&format!("{name} robustness"));
                 robustness_sheet(
@@ -155,6 +169,7 @@ pub fn blocks(
                     name,
                     keys,
                     entries,
+                    &results.labels,
                 )?;
                 robustness.push((sheet_name, TABLE_TOP + 1));
             }
@@ -164,11 +179,13 @@ pub fn blocks(
                 names: figure_names,
                 rows,
             } => {
-                let sheet = workbook.add_worksheet().set_name(names.claim(name))?;
+                let sheet_name = names.claim(name);
+                let sheet = workbook.add_worksheet().set_name(&sheet_name)?;
                 let mut labels: Vec<String> = keys.clone();
                 labels.push("rows".into());
                 labels.extend(figure_names.iter().cloned());
-                let note = "Each figure is computed over the rows of its group that pass the recipe's filters. A cell without a number says why.";
+                let note = "Each figure is computed over the rows of its group that pass the recipe's filters. A cell without a number says why; \
+a group none of whose rows pass the block's `where` is listed with 0 rows and 'no rows'.";
                 let top = heading(sheet, name)?;
                 style::table_header(sheet, top, &labels, keys.len() as u16)?;
                 let mut widths = Widths::default();
@@ -178,13 +195,18 @@ pub fn blocks(
                     let c = keys.len() as u16;
                     let n = One::Number(row.rows as f64);
                     widths.seen(r, c, write_one(sheet, r, c, &n, Shown::Count)?);
-                    for (j, value) in row.values.iter().enumerate() {
+                    for (j, (figure, value)) in figure_names.iter().zip(&row.values).enumerate() {
+                        let value = &no_rows_said(row.rows, value);
                         let c = c + 1 + j as u16;
-                        let shown = Shown::unknown_kind(value);
+                        let share = results.shares.contains(&(name.clone(), figure.clone()));
+                        let shown = match share {
+                            true => Shown::Percent,
+                            false => Shown::unknown_kind(value),
+                        };
                         widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
                     }
                 }
-                finish_table(
+                let width = finish_table(
                     sheet,
                     &labels,
                     keys.len() as u16,
@@ -192,10 +214,25 @@ pub fn blocks(
                     note,
                     top + rows.len() as u32,
                 )?;
+                if width <= style::PORTRAIT_CHARS {
+                    narrow.push(sheet_name);
+                }
             }
         }
     }
-    Ok(robustness)
+    Ok(BlockSheets { robustness, narrow })
+}
+
+/// What a group without rows shows where a figure has no value: that it
+/// has no rows, not merely "no values" (the notes say why).
+const NO_ROWS: &str = "no rows";
+
+/// `value`, or [`NO_ROWS`] in place of its reason when its group has no rows.
+fn no_rows_said(rows: usize, value: &One) -> One {
+    match value {
+        One::Undefined(_) if rows == 0 => One::Undefined(NO_ROWS.into()),
+        other => other.clone(),
+    }
 }
 
 fn write_group(
@@ -232,16 +269,39 @@ fn entry_decimals(e: &PanelEntry) -> u8 {
     style::data_decimals(&data)
 }
 
-/// Writes the group keys and the column name of an entry's row.
+/// Labels the recipe gives columns (`label` lines), by column name.
+type Labels = std::collections::BTreeMap<String, String>;
+
+/// The rows of an entry's group: every row's cell is a number (n) or
+/// missing.
+fn entry_rows(e: &PanelEntry) -> usize {
+    PANEL_FIGURES
+        .iter()
+        .zip(&e.figures)
+        .filter(|(f, _)| f.label == "n" || f.label == "missing")
+        .map(|(_, v)| match v {
+            One::Number(x) => *x as usize,
+            _ => 0,
+        })
+        .sum()
+}
+
+/// Writes the group keys and the column of an entry's row: its label with
+/// its name in brackets when the recipe labels it, else its name.
 fn write_entry_labels(
     sheet: &mut Worksheet,
     row: u32,
     e: &PanelEntry,
+    labels: &Labels,
     widths: &mut Widths,
 ) -> Result<u16, XlsxError> {
     write_group(sheet, row, &e.group, widths)?;
     let c = e.group.len() as u16;
-    widths.seen(row, c, style::write_text(sheet, row, c, &e.column)?);
+    let column = match labels.get(&e.column) {
+        Some(label) => format!("{label} ({})", e.column),
+        None => e.column.clone(),
+    };
+    widths.seen(row, c, style::write_text(sheet, row, c, &column)?);
     Ok(c + 1)
 }
 
@@ -250,6 +310,7 @@ fn panel_sheet(
     name: &str,
     keys: &[String],
     entries: &[PanelEntry],
+    column_labels: &Labels,
 ) -> Result<(), XlsxError> {
     let labels = entry_labels(keys, PANEL_LABELS);
     let has_dates = entries
@@ -264,11 +325,12 @@ fn panel_sheet(
     let mut widths = Widths::default();
     for (i, e) in entries.iter().enumerate() {
         let r = top + 1 + i as u32;
-        let first = write_entry_labels(sheet, r, e, &mut widths)?;
+        let first = write_entry_labels(sheet, r, e, column_labels, &mut widths)?;
         let decimals = entry_decimals(e);
         for (j, (figure, value)) in PANEL_FIGURES.iter().zip(&e.figures).enumerate() {
             let c = first + j as u16;
             let shown = Shown::of(figure.kind, decimals);
+            let value = &no_rows_said(entry_rows(e), value);
             widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
         }
     }
@@ -279,7 +341,8 @@ fn panel_sheet(
         &widths,
         &note,
         top + entries.len() as u32,
-    )
+    )?;
+    Ok(())
 }
 
 /// One column of the robustness sheet: its header, how it is shown, and
@@ -464,6 +527,22 @@ fn bootstrap(b: &Robustness, part: fn(&BootstrapIntervals) -> One) -> One {
         .map_or_else(|why| One::Undefined(why.clone()), part)
 }
 
+/// A flagged cell with its value: the number as the input cell holds it,
+/// then the value used when that was derived from it (a `let`), so
+/// "Deliveries!D105 holds 55.8, used as 0.93" rather than a value the
+/// reader cannot find in the cell.
+fn cell_and_value(f: &Flagged, measure: Shown) -> String {
+    match f.address.source_value {
+        Some(source) if source != f.value => format!(
+            "{} holds {}, used as {}",
+            f.address,
+            crate::format::shortest(source),
+            measure.text(f.value)
+        ),
+        _ => format!("{} ({})", f.address, measure.text(f.value)),
+    }
+}
+
 /// Cells listed in one spreadsheet cell; the rest are counted, not listed.
 const LISTED_CELLS: usize = 100;
 
@@ -474,9 +553,9 @@ fn cells(list: &[Flagged], measure: Shown) -> String {
     let mut text = list
         .iter()
         .take(LISTED_CELLS)
-        .map(|f| format!("{} ({})", f.address, measure.text(f.value)))
+        .map(|f| cell_and_value(f, measure))
         .collect::<Vec<_>>()
-        .join(", ");
+        .join("; ");
     if list.len() > LISTED_CELLS {
         text.push_str(&format!(
             " and {} more (see the About sheet's missing cells and the JSON output for all)",
@@ -491,6 +570,7 @@ fn robustness_sheet(
     name: &str,
     keys: &[String],
     entries: &[PanelEntry],
+    column_labels: &Labels,
 ) -> Result<(), XlsxError> {
     let mut figures = vec!["status", "reason"];
     figures.extend(ROBUSTNESS_COLUMNS.iter().map(|c| c.label));
@@ -501,7 +581,7 @@ fn robustness_sheet(
     for (i, e) in entries.iter().enumerate() {
         let r = top + 1 + i as u32;
         let b = &e.robustness;
-        let c = write_entry_labels(sheet, r, e, &mut widths)?;
+        let c = write_entry_labels(sheet, r, e, column_labels, &mut widths)?;
         let word = b.status.word();
         sheet.write_string_with_format(r, c, word, &style::status(word))?;
         widths.seen(r, c, word.len());
@@ -510,7 +590,7 @@ fn robustness_sheet(
         let measure = Shown::of(FigureKind::Measure, decimals);
         for (j, column) in ROBUSTNESS_COLUMNS.iter().enumerate() {
             let col = c + 2 + j as u16;
-            let value = (column.value)(b, measure);
+            let value = no_rows_said(entry_rows(e), &(column.value)(b, measure));
             let shown = Shown::of(column.kind, decimals);
             widths.seen(r, col, write_one(sheet, r, col, &value, shown)?);
         }
@@ -523,7 +603,8 @@ fn robustness_sheet(
         &widths,
         &robustness_note(),
         last,
-    )
+    )?;
+    Ok(())
 }
 
 /// Writes the Checks sheet. Returns its name and the 0-based row of its

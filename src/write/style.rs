@@ -8,6 +8,25 @@ use crate::eval::{FigureKind, One};
 pub const HEADER_COLOUR: u32 = 0x34495E;
 pub const NOTE_COLOUR: u32 = 0xF4ECD8;
 
+/// Chart colours, from the colour-blind-safe palette of Okabe and Ito
+/// (2008, "Color Universal Design"), as hexadecimal RGB: told apart by
+/// readers with any common colour vision deficiency.
+pub mod palette {
+    /// Histogram bars and trend series: Okabe-Ito blue.
+    pub const BARS: u32 = 0x0072B2;
+    /// Values beyond the fences (overflow bins, outlier points): vermillion.
+    pub const OVERFLOW: u32 = 0xD55E00;
+    /// Box fill: a pale tint of Okabe-Ito sky blue.
+    pub const BOX: u32 = 0xCCE8F7;
+    /// Lines and medians: Okabe-Ito black.
+    pub const INK: u32 = 0x000000;
+    /// Series of several groups, in this order: blue, orange, bluish green,
+    /// vermillion, reddish purple, sky blue, yellow, black.
+    pub const SERIES: [u32; 8] = [
+        0x0072B2, 0xE69F00, 0x009E73, 0xD55E00, 0xCC79A7, 0x56B4E9, 0xF0E442, 0x000000,
+    ];
+}
+
 pub fn title() -> Format {
     Format::new().set_bold().set_font_size(14)
 }
@@ -83,11 +102,16 @@ impl Shown {
 
     /// The cell format.
     pub fn format(self) -> Format {
-        Format::new().set_num_format(match self {
+        Format::new().set_num_format(self.code())
+    }
+
+    /// The number format code, for cells and chart axes.
+    pub fn code(self) -> String {
+        match self {
             Shown::Count | Shown::Decimals(0) => "#,##0".to_string(),
             Shown::Decimals(d) => format!("#,##0.{}", "0".repeat(d as usize)),
             Shown::Percent => "0.0%".to_string(),
-        })
+        }
     }
 
     /// `x` as text, rounded as the format rounds it, without trailing
@@ -139,13 +163,37 @@ pub fn date(serial: f64) -> Format {
     Format::new().set_num_format(code)
 }
 
+/// A status cell: the word always written (so it reads without colour,
+/// in grey print and for colour-blind readers), a pale tint of an
+/// Okabe-Ito colour behind it, and a heavier mark for what needs action:
+/// bold for warn, bold on a darker tint with a left rule for fail.
 pub fn status(word: &str) -> Format {
-    let colour = match word {
-        "ok" | "pass" => 0xDCEFD9,
-        "note" => 0xFFF3C4,
-        _ => 0xF6D0C8,
+    let (colour, weight) = match word {
+        // Tint of bluish green 009E73.
+        "ok" | "pass" => (0xD9EFE8, Weight::Plain),
+        // Tint of sky blue 56B4E9: worth a look, nothing wrong.
+        "note" => (0xDDEEF9, Weight::Plain),
+        // Tint of orange E69F00.
+        "warn" => (0xFAE6BF, Weight::Bold),
+        // Tint of vermillion D55E00.
+        _ => (0xF2C9AE, Weight::Ruled),
     };
-    Format::new().set_background_color(Color::RGB(colour))
+    let format = Format::new().set_background_color(Color::RGB(colour));
+    match weight {
+        Weight::Plain => format,
+        Weight::Bold => format.set_bold(),
+        Weight::Ruled => format
+            .set_bold()
+            .set_border_left(rust_xlsxwriter::FormatBorder::Thick)
+            .set_border_left_color(Color::RGB(palette::OVERFLOW)),
+    }
+}
+
+/// How strongly a status cell is marked besides its word.
+enum Weight {
+    Plain,
+    Bold,
+    Ruled,
 }
 
 /// Writes one figure: a number as a number in the format `shown` picks,
@@ -346,12 +394,13 @@ const NOTE_WIDTH: usize = 110;
 
 /// Writes a note as a block about [`NOTE_WIDTH`] characters wide (merged
 /// over the first columns that reach it) and tall enough for its lines.
+/// Returns how many lines it takes.
 pub fn note_block(
     sheet: &mut Worksheet,
     row: u32,
     note: &str,
     column_widths: &[usize],
-) -> Result<(), XlsxError> {
+) -> Result<usize, XlsxError> {
     let mut last = 0;
     let mut width = 0;
     for (c, w) in column_widths.iter().enumerate() {
@@ -369,7 +418,7 @@ pub fn note_block(
     // Italic text runs a little wider than the column's character count.
     let lines = wrapped_lines(note, width.max(1) * 9 / 10);
     sheet.set_row_height(row, (LINE_HEIGHT * lines as f64).min(409.0))?;
-    Ok(())
+    Ok(lines)
 }
 
 /// Lines `text` takes when wrapped at word boundaries to `width` characters.
@@ -417,6 +466,13 @@ pub fn paper(sheet: &mut Worksheet, title: &str, period: Option<&str>) -> Result
     sheet.set_footer("&Lsheaf&Rpage &P of &N");
     Ok(())
 }
+
+/// Widest table, in characters, that prints portrait: A4 portrait less its
+/// margins is about 7 inches, some 90 characters of the default font.
+pub const PORTRAIT_CHARS: usize = 90;
+
+/// Pages wide a robustness sheet prints on.
+pub const WIDE_TABLE_PAGES: u16 = 2;
 
 /// The paper size code for A4.
 const PAPER_A4: u8 = 9;
