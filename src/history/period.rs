@@ -9,22 +9,28 @@ use std::path::Path;
 
 use crate::recipe::{Recipe, ast::StatementKind};
 
+/// Where a period was found.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum PeriodSource {
+    /// The recipe's `period` statement.
     Recipe,
+    /// A date in the data file's name.
     FileName,
 }
 
+/// The period a data file covers.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Period {
     /// `2026-10` or `2026-10-31`, sortable as text.
     pub label: String,
+    /// Where it was found.
     pub source: PeriodSource,
     /// The text of the file name the date was read from (`Oct2026`).
     pub read_from: Option<String>,
 }
 
 impl Period {
+    /// The period and where it came from, in words, for `-v` and the About sheet.
     pub fn explain(&self) -> String {
         match self.source {
             PeriodSource::Recipe => format!("{} (from the recipe's `period`)", self.label),

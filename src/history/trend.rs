@@ -20,12 +20,19 @@ pub const NOISE_SES: f64 = 2.0;
 /// A figure's change between two consecutive periods.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Move {
+    /// The block (sheet) the figure belongs to.
     pub block: String,
+    /// The group's label.
     pub group: String,
+    /// The figure's Record name (a panel figure by its stable key).
     pub name: String,
+    /// The earlier period.
     pub from: String,
+    /// The later period.
     pub to: String,
+    /// The figure in the earlier period.
     pub before: f64,
+    /// The figure in the later period.
     pub after: f64,
     /// The standard error of `after - before`, for figures that have one.
     pub se: Option<f64>,
@@ -259,6 +266,7 @@ fn charted(name: &str, is_panel: bool) -> bool {
     !is_panel || name.ends_with(" mean") || name.ends_with(" median")
 }
 
+/// The trend workbook of a batch: every figure per period, the largest moves, and line charts of each panel column's mean and median (and every figure of the other blocks), as xlsx bytes.
 pub fn trend_workbook(
     records: &[(String, Record)],
     panel_blocks: &[String],

@@ -21,16 +21,19 @@ pub fn two_sum(a: f64, b: f64) -> (f64, f64) {
 }
 
 impl Neumaier {
+    /// Adds one term, carrying its rounding error.
     pub fn add(&mut self, x: f64) {
         let (t, error) = two_sum(self.sum, x);
         self.compensation += error;
         self.sum = t;
     }
 
+    /// The sum so far with the carried error added back.
     pub fn total(&self) -> f64 {
         self.sum + self.compensation
     }
 
+    /// The compensated sum of `values`.
     pub fn of(values: impl IntoIterator<Item = f64>) -> f64 {
         let mut acc = Neumaier::default();
         for x in values {
