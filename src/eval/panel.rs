@@ -1,5 +1,4 @@
 //! The standard panel and its robustness checks for one (group, column).
-#![warn(missing_docs)] // every public item of this module is documented; keep it so
 
 use std::sync::Arc;
 
