@@ -132,5 +132,13 @@ mod tests {
             big.add(x);
         }
         assert_eq!(big.total(), 9.0);
+        // 1 + 2^-53 lies halfway between 1 and the next double up; the tie
+        // goes to the even one, 1.0. The partials are then [2^-53, 1], and
+        // the total must add the lower one to the top, not subtract it
+        // (1 - 2^-53 is a double, so a subtraction would show).
+        let mut tie = ExactSum::default();
+        tie.add(1.0);
+        tie.add(f64::EPSILON / 2.0);
+        assert_eq!(tie.total(), 1.0);
     }
 }
