@@ -789,6 +789,27 @@ mod tests {
         assert!(r.reason.contains("IQR (warn above 0.5"), "{}", r.reason);
     }
 
+    /// Without the outlier 100, [1, 2, 3, 4, 100] is [1, 2, 3, 4]: sd
+    /// sqrt(5/3) = 1.290994 against sqrt(1902.5) = 43.617657 with it (sample sds by
+    /// hand: mean 22, squared deviations 441 + 400 + 361 + 324 + 6084 =
+    /// 7610, / 4 = 1902.5), so the change (without minus with) is -42.326663.
+    #[test]
+    fn changes_without_outliers_are_without_minus_with() {
+        let s = Sample::from_values([1.0, 2.0, 3.0, 4.0, 100.0]);
+        let r = robustness(&s, &fenced(&s), &column_c);
+        let (One::Number(without), One::Number(change)) = (&r.sd_without, &r.sd_change) else {
+            panic!("{r:?}")
+        };
+        assert!((without - (5.0f64 / 3.0).sqrt()).abs() < 1e-12);
+        assert!((change - ((5.0f64 / 3.0).sqrt() - 1902.5f64.sqrt())).abs() < 1e-12);
+        assert!((change + 42.326663).abs() < 1e-6);
+        // The skewness without is 0 (1, 2, 3, 4 are symmetric); with the
+        // outlier it is positive, so the change is minus that skewness.
+        let with = moment_skewness(&s).unwrap();
+        assert_eq!(r.skewness_change, One::number(0.0 - with));
+        assert!(with > 1.0);
+    }
+
     #[test]
     fn no_values_and_too_few_values_say_why() {
         let empty = Sample::from_values([]);
