@@ -1025,3 +1025,31 @@ fn a_panel_larger_than_a_sheet_is_refused_before_the_work() {
     );
     assert!(started.elapsed() < std::time::Duration::from_secs(60));
 }
+
+/// A check's value and limit, shown on the Checks sheet and in `--json`:
+/// for a comparison its two sides (max(w) = 40 against 35), else the
+/// condition's own value and no limit.
+#[test]
+fn a_check_shows_both_sides_of_its_comparison() {
+    let (_dir, t) = table(DELIVERIES);
+    let source =
+        "check \"light\" warn: max(w) <= 35\ncheck \"both\" fail: count(w) > 3 and min(w) > 5\n";
+    let parsed = recipe::parse_and_check(source, Some(&t.headers()));
+    assert!(parsed.is_ok(), "{:?}", parsed.diagnostics);
+    let results = eval::evaluate(&parsed.recipe, &t).unwrap();
+    let shown: Vec<String> = results
+        .checks
+        .iter()
+        .map(|c| {
+            let limit = c.limit.as_ref().map_or("-".to_string(), one);
+            format!(
+                "{} {} {} {}",
+                c.name,
+                one(&c.value),
+                limit,
+                c.outcome.word()
+            )
+        })
+        .collect();
+    assert_eq!(shown, ["light 40 35 warn", "both true - pass"]);
+}

@@ -6,12 +6,19 @@ use std::process::ExitCode;
 /// How a run ended, as its exit status says.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Exit {
+    /// 0: all went well.
     Ok,
+    /// 1: a `fail` check failed (or a `warn` one with --fail-on-warn).
     CheckFailed,
+    /// 2: bad recipe, data or usage; nothing was written.
     Refused,
+    /// 3: a batch skipped files it could not read and wrote the others.
     SomeSkipped,
+    /// 4: a batch skipped files and a check failed in one it wrote.
     SkippedAndFailed,
+    /// 5: `calc` found no value.
     NoValue,
+    /// 141: standard output was closed early.
     BrokenPipe,
 }
 
@@ -27,6 +34,7 @@ impl Exit {
         Exit::BrokenPipe,
     ];
 
+    /// The exit status number.
     pub fn code(self) -> u8 {
         match self {
             Exit::Ok => 0,
@@ -41,6 +49,7 @@ impl Exit {
         }
     }
 
+    /// What the status means, as `--help`, the manual and the README say it.
     pub fn meaning(self) -> &'static str {
         match self {
             Exit::Ok => "all went well",

@@ -49,6 +49,21 @@ pub fn inspect(file: &Path, options: LoadOptions) -> Result<Exit, Failure> {
         table.header_row,
         table.rows
     );
+    text.push_str(&column_listing(&table));
+    for note in load::reading_notes(&table) {
+        text.push_str(&format!("{}: {}\n", note.topic, note.text));
+    }
+    if let Ok((sheet, rows)) = load::first_rows(file, &options, PREVIEW_ROWS) {
+        text.push('\n');
+        text.push_str(&preview(&sheet, &rows, Some(table.header_row as usize)));
+    }
+    output::out(&text)?;
+    Ok(Exit::Ok)
+}
+
+/// Per column: its cell, type, count of values, of blank, text and error
+/// cells, and the first problem cells; one aligned line each.
+fn column_listing(table: &load::Table) -> String {
     let mut lines = vec![[
         "column".to_string(),
         "cell".into(),
@@ -79,16 +94,7 @@ pub fn inspect(file: &Path, options: LoadOptions) -> Result<Exit, Failure> {
             first.join(" "),
         ]);
     }
-    text.push_str(&summary::columns(&lines));
-    for note in load::reading_notes(&table) {
-        text.push_str(&format!("{}: {}\n", note.topic, note.text));
-    }
-    if let Ok((sheet, rows)) = load::first_rows(file, &options, PREVIEW_ROWS) {
-        text.push('\n');
-        text.push_str(&preview(&sheet, &rows, Some(table.header_row as usize)));
-    }
-    output::out(&text)?;
-    Ok(Exit::Ok)
+    summary::columns(&lines)
 }
 
 /// How many rows from the top `inspect` shows.

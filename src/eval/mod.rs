@@ -3,6 +3,7 @@
 //! adds a column (its aggregates reduce over the rows kept at that point),
 //! and each block and check is evaluated per group. Groups appear in the
 //! order their first row appears in the data.
+#![warn(missing_docs)] // every public item of this module is documented; keep it so
 
 mod aggregate;
 mod noise;
@@ -39,33 +40,49 @@ pub fn group_label(group: &[String]) -> String {
     }
 }
 
+/// One group's row of a figures block.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FigureRow {
+    /// The group's key values (empty without `per`).
     pub group: Vec<String>,
+    /// Rows of the data in the group.
     pub rows: usize,
+    /// Each figure, in the block's order.
     pub values: Vec<One>,
     /// Each figure's standard error where it has one (see `noise`), in
     /// the order of `values`.
     pub standard_errors: Vec<Option<f64>>,
 }
 
+/// One block of results, written as one sheet.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Block {
+    /// A `panel` statement: the standard panel and robustness per (group, column).
     Panel {
+        /// The block's name (its sheet's name).
         name: String,
+        /// The columns it groups by.
         keys: Vec<String>,
+        /// One entry per (group, column), groups in order of appearance.
         entries: Vec<PanelEntry>,
+        /// Rows left after the filters.
         rows_used: usize,
     },
+    /// A `figures` statement: named figures per group.
     Figures {
+        /// The block's name (its sheet's name).
         name: String,
+        /// The columns it groups by.
         keys: Vec<String>,
+        /// The figures' names, in the recipe's order.
         names: Vec<String>,
+        /// One row per group.
         rows: Vec<FigureRow>,
     },
 }
 
 impl Block {
+    /// The block's name.
     pub fn name(&self) -> &str {
         match self {
             Block::Panel { name, .. } | Block::Figures { name, .. } => name,
@@ -73,14 +90,19 @@ impl Block {
     }
 }
 
+/// The result of one check.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Outcome {
+    /// The condition held.
     Pass,
+    /// A `warn` check did not pass.
     Warn,
+    /// A `fail` check did not pass.
     Fail,
 }
 
 impl Outcome {
+    /// The outcome as the sheets and `--json` write it.
     pub fn word(self) -> &'static str {
         match self {
             Outcome::Pass => "pass",
@@ -90,31 +112,46 @@ impl Outcome {
     }
 }
 
+/// One check, overall or for one group.
 #[derive(Debug, Clone, PartialEq)]
 pub struct CheckResult {
+    /// The check's name.
     pub name: String,
+    /// `warn` or `fail`.
     pub level: CheckLevel,
+    /// The condition in canonical text.
     pub condition: String,
     /// None for the overall result.
     pub group: Option<Vec<String>>,
     /// The left side of the condition when it is a comparison, else the condition's value.
     pub value: One,
+    /// The right side of the condition when it is a comparison.
     pub limit: Option<One>,
+    /// Whether it passed.
     pub outcome: Outcome,
     /// Why a check could not be evaluated (it then counts as not passed).
     pub note: Option<String>,
 }
 
+/// The data of one chart.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Chart {
+    /// A histogram of one column in one group.
     Histogram {
+        /// The column.
         column: String,
+        /// The group's key values.
         group: Vec<String>,
+        /// The bins and counts.
         histogram: Histogram,
+        /// The bin rule as the recipe writes it.
         rule: String,
     },
+    /// Box plots of one column, a box per group.
     Boxplot {
+        /// The column.
         column: String,
+        /// Each group's key values and box.
         boxes: Vec<(Vec<String>, BoxSummary)>,
     },
 }
@@ -122,21 +159,32 @@ pub enum Chart {
 /// A cell of the input that counted as missing, for the About sheet.
 #[derive(Debug, Clone, PartialEq)]
 pub struct MissingCell {
+    /// The cell (`Deliveries!D7`).
     pub address: String,
+    /// The column's name.
     pub column: String,
+    /// Blank, text or an error value.
     pub kind: IssueKind,
+    /// What the cell held, as text.
     pub content: String,
 }
 
+/// Everything a recipe computed over one table.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Results {
+    /// The recipe's `title`.
     pub title: Option<String>,
+    /// The panel and figures blocks, in the recipe's order.
     pub blocks: Vec<Block>,
+    /// Every check, overall then per group.
     pub checks: Vec<CheckResult>,
+    /// The histograms and box plots.
     pub charts: Vec<Chart>,
+    /// Data rows read from the file.
     pub rows_read: usize,
     /// Rows left out by `rows where`, with the reason.
     pub rows_skipped: Vec<(String, usize)>,
+    /// Cells of the used columns that counted as missing.
     pub missing_cells: Vec<MissingCell>,
     /// Current values of every `change(...)` argument, for the next period.
     pub terms: Vec<Term>,
@@ -158,6 +206,7 @@ impl Results {
         self.labels.get(column).map_or(column, String::as_str)
     }
 
+    /// True when a `fail` check did not pass.
     pub fn failed(&self) -> bool {
         self.checks.iter().any(|c| c.outcome == Outcome::Fail)
     }
@@ -175,24 +224,47 @@ pub const MAX_SHEET_ENTRIES: usize = crate::load::MAX_SHEET_ROWS as usize - 16;
 /// make a Charts sheet no one can read and a workbook too large to open.
 pub const MAX_CHARTS: usize = 500;
 
+/// Why a recipe could not be evaluated over a table.
 #[derive(Debug, thiserror::Error)]
 pub enum EvalError {
     #[error(
         "`per {keys}` makes more than {MAX_GROUPS} groups; group by a column with fewer distinct values"
     )]
-    TooManyGroups { keys: String },
+    /// A `per` makes more than [`MAX_GROUPS`] groups.
+    TooManyGroups {
+        /// The `per` keys, joined by commas.
+        keys: String,
+    },
     #[error(
         "panel \"{block}\" would have {pairs} (group, column) rows, more than the {MAX_SHEET_ENTRIES} a sheet holds; group by fewer keys, list fewer columns, or split the panel"
     )]
-    PanelTooLarge { block: String, pairs: usize },
+    /// A panel has more (group, column) rows than a sheet holds.
+    PanelTooLarge {
+        /// The panel's name.
+        block: String,
+        /// Its (group, column) rows.
+        pairs: usize,
+    },
     #[error(
         "check \"{check}\" brings the checks to {rows} results, one row each, more than the {MAX_SHEET_ENTRIES} a sheet holds; check per fewer keys, or filter the rows with `rows where`"
     )]
-    TooManyChecks { check: String, rows: usize },
+    /// Checks whose results would overflow the Checks sheet.
+    TooManyChecks {
+        /// The check that would overflow it.
+        check: String,
+        /// The results it would bring.
+        rows: usize,
+    },
     #[error(
         "the histogram of {column} brings the charts to {charts}, more than the {MAX_CHARTS} a result holds; draw it per fewer keys, or filter the rows with `rows where`"
     )]
-    TooManyCharts { column: String, charts: usize },
+    /// Histograms beyond [`MAX_CHARTS`].
+    TooManyCharts {
+        /// The column drawn.
+        column: String,
+        /// The charts it would bring.
+        charts: usize,
+    },
 }
 
 /// Each row's value of one group key as a small id, and each id's label.

@@ -181,13 +181,24 @@ pub const PANEL_LABELS: &[&str] = &{
 /// `let` computed from several columns.
 #[derive(Debug, PartialEq)]
 pub enum CellPlace {
-    Column { sheet_and_letters: String },
-    Row { sheet: String, column: String },
+    /// A data column: the sheet and the column's letters (`Deliveries!D`).
+    Column {
+        /// `Deliveries!D`.
+        sheet_and_letters: String,
+    },
+    /// A `let` from several columns: the sheet and the `let`'s name.
+    Row {
+        /// The data sheet.
+        sheet: String,
+        /// The `let`'s name.
+        column: String,
+    },
 }
 
 /// A source cell, named only when shown: a long column can flag thousands.
 #[derive(Debug, Clone, PartialEq)]
 pub struct CellName {
+    /// The column's place, shared by every cell of the column.
     pub place: Arc<CellPlace>,
     /// 1-based sheet row.
     pub sheet_row: u32,
@@ -212,7 +223,9 @@ impl std::fmt::Display for CellName {
 /// A value and the cell it came from.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Flagged {
+    /// The cell the value came from.
     pub address: CellName,
+    /// The value.
     pub value: f64,
 }
 
@@ -220,18 +233,25 @@ pub struct Flagged {
 /// minus before), and that value's cell; the first row wins a tie.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Influence {
+    /// After leaving the value out, minus before.
     pub change: f64,
+    /// The value left out and its cell.
     pub cell: Flagged,
 }
 
+/// The robustness verdict for one (group, column), worst last so they order.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
 pub enum Status {
+    /// Nothing suggests the mean misleads.
     Ok,
+    /// Worth a look: a moderate gap, a skewed shape, heavy tails or few values.
     Note,
+    /// The mean is likely misleading: values beyond the 3 IQR fences or a large gap.
     Warn,
 }
 
 impl Status {
+    /// The status as the sheet and `--json` write it.
     pub fn word(self) -> &'static str {
         match self {
             Status::Ok => "ok",
@@ -241,23 +261,35 @@ impl Status {
     }
 }
 
+/// The robustness checks of one (group, column): how far the mean can be trusted.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Robustness {
     /// (mean - median) / sd and / IQR.
     pub gap_in_sd: One,
+    /// (mean - median) / IQR.
     pub gap_in_iqr: One,
     /// Why there are no fences ("no values"); both outlier lists are then
     /// empty and the sheet says why instead of a count of 0.
     pub fences_undefined: Option<String>,
+    /// Values beyond Tukey's 1.5 IQR fences, with their cells.
     pub outliers_wide: Vec<Flagged>,
+    /// Values beyond Tukey's 3 IQR fences, with their cells.
     pub outliers_far: Vec<Flagged>,
+    /// The mean without the 1.5 IQR outliers.
     pub mean_without: One,
+    /// The sample sd without the 1.5 IQR outliers.
     pub sd_without: One,
+    /// The moment skewness g1 without the 1.5 IQR outliers.
     pub skewness_without: One,
+    /// The mean without the outliers minus the mean.
     pub mean_change: One,
+    /// The sd without the outliers minus the sd.
     pub sd_change: One,
+    /// The skewness without the outliers minus the skewness.
     pub skewness_change: One,
+    /// The value whose leaving out moves the mean most, or why there is none.
     pub mean_influence: Result<Influence, String>,
+    /// The value whose leaving out moves the sd most, or why there is none.
     pub sd_influence: Result<Influence, String>,
     /// Values whose modified z-score is above 3.5 in absolute value.
     pub modified_z: Result<Vec<Flagged>, String>,
@@ -265,31 +297,44 @@ pub struct Robustness {
     pub skewness: Result<stats::AgainstNoise, String>,
     /// Adjusted excess kurtosis G2 against its standard error under normality.
     pub tails: Result<stats::AgainstNoise, String>,
+    /// Bootstrap intervals of the mean and the median, or why there are none.
     pub bootstrap: Result<stats::BootstrapIntervals, String>,
+    /// The verdict from `findings`.
     pub status: Status,
+    /// The verdict's reason in words.
     pub reason: String,
 }
 
+/// The panel and robustness of one column in one group.
 #[derive(Debug, Clone, PartialEq)]
 pub struct PanelEntry {
+    /// The group's key values (empty without `per`).
     pub group: Vec<String>,
+    /// The column's name.
     pub column: String,
     /// In [`PANEL_FIGURES`]' order (computed from it).
     pub figures: Vec<One>,
-    /// The figures that have a standard error, by label (mean, sd, Q1,
-    /// median, Q3), for judging their change against noise.
+    /// The figures that have a standard error, by stable key (mean,
+    /// sd, q1, median, q3), for judging their change against noise.
     pub standard_errors: Vec<(&'static str, f64)>,
+    /// Its robustness checks.
     pub robustness: Robustness,
     /// For the box plot: the five numbers and the whisker ends.
     pub sample_summary: Option<BoxSummary>,
 }
 
+/// What a box plot draws for one group.
 #[derive(Debug, Clone, PartialEq)]
 pub struct BoxSummary {
+    /// The lowest value not below the low 1.5 IQR fence.
     pub whisker_low: f64,
+    /// The first quartile (type 7).
     pub q1: f64,
+    /// The median.
     pub median: f64,
+    /// The third quartile (type 7).
     pub q3: f64,
+    /// The highest value not above the high 1.5 IQR fence.
     pub whisker_high: f64,
     /// The values beyond the 1.5 IQR fences, ascending: a box plot draws
     /// each as a point.
@@ -502,18 +547,26 @@ fn without_outliers(s: &Sample, wide: &stats::Stat<stats::Outliers>) -> WithoutO
 /// A robustness rule whose finding raises the status.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Rule {
+    /// Values beyond the 3 IQR fences (warn).
     FarOutliers,
+    /// The mean-median gap in IQR units (note above `GAP_NOTE_IQR`, warn above `GAP_WARN_IQR`).
     Gap,
+    /// Skewness G1 beyond its noise under normality (note).
     Skewed,
+    /// Excess kurtosis G2 beyond its noise under normality (note).
     HeavyTails,
+    /// Fewer than 3 values, too few to judge (note).
     FewValues,
 }
 
 /// What one rule found: the status it raises to and why, in words.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Finding {
+    /// The rule that found it.
     pub rule: Rule,
+    /// The status it raises to.
     pub status: Status,
+    /// What it found, in words.
     pub why: String,
 }
 
@@ -522,18 +575,25 @@ pub struct Finding {
 /// samples of 20 values and almost never at 50 or 200 (the false-alarm
 /// test below); common practice, not from a published source.
 pub const GAP_NOTE_IQR: f64 = 0.3;
+/// The gap in IQR units above which the status is a warning (common practice, as above).
 pub const GAP_WARN_IQR: f64 = 0.5;
 
 /// What the status rules look at, computed once per (group, column).
 pub struct Signals {
+    /// The number of values.
     pub n: usize,
+    /// Values beyond the 3 IQR fences.
     pub far_outliers: usize,
+    /// (mean - median) / IQR.
     pub gap_in_iqr: One,
+    /// Skewness G1 against its standard error.
     pub skewness: stats::Stat<stats::AgainstNoise>,
+    /// Excess kurtosis G2 against its standard error.
     pub tails: stats::Stat<stats::AgainstNoise>,
 }
 
 impl Signals {
+    /// The signals of a sample and its fenced outliers.
     pub fn of(s: &Sample, fenced: &Fenced) -> Signals {
         Signals::with_gap(s, fenced, gaps(s).1)
     }
@@ -742,6 +802,27 @@ mod tests {
                 .any(|f| f.rule == Rule::Gap && f.status == Status::Warn)
         );
         assert!(r.reason.contains("IQR (warn above 0.5"), "{}", r.reason);
+    }
+
+    /// Without the outlier 100, [1, 2, 3, 4, 100] is [1, 2, 3, 4]: sd
+    /// sqrt(5/3) = 1.290994 against sqrt(1902.5) = 43.617657 with it (sample sds by
+    /// hand: mean 22, squared deviations 441 + 400 + 361 + 324 + 6084 =
+    /// 7610, / 4 = 1902.5), so the change (without minus with) is -42.326663.
+    #[test]
+    fn changes_without_outliers_are_without_minus_with() {
+        let s = Sample::from_values([1.0, 2.0, 3.0, 4.0, 100.0]);
+        let r = robustness(&s, &fenced(&s), &column_c);
+        let (One::Number(without), One::Number(change)) = (&r.sd_without, &r.sd_change) else {
+            panic!("{r:?}")
+        };
+        assert!((without - (5.0f64 / 3.0).sqrt()).abs() < 1e-12);
+        assert!((change - ((5.0f64 / 3.0).sqrt() - 1902.5f64.sqrt())).abs() < 1e-12);
+        assert!((change + 42.326663).abs() < 1e-6);
+        // The skewness without is 0 (1, 2, 3, 4 are symmetric); with the
+        // outlier it is positive, so the change is minus that skewness.
+        let with = moment_skewness(&s).unwrap();
+        assert_eq!(r.skewness_change, One::number(0.0 - with));
+        assert!(with > 1.0);
     }
 
     #[test]

@@ -16,14 +16,18 @@ use super::aggregate;
 /// A column's values over the rows being evaluated.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Rows {
+    /// Numbers; None where missing.
     Numbers(Vec<Option<f64>>),
+    /// True or false; None where unknown.
     Truths(Vec<Option<bool>>),
+    /// Text; None where blank.
     Texts(Vec<Option<String>>),
     /// Dates as spreadsheet serials (days since 1899-12-30).
     Dates(Vec<Option<f64>>),
 }
 
 impl Rows {
+    /// The number of rows.
     pub fn len(&self) -> usize {
         match self {
             Rows::Numbers(v) => v.len(),
@@ -33,6 +37,7 @@ impl Rows {
         }
     }
 
+    /// True when there are no rows.
     pub fn is_empty(&self) -> bool {
         self.len() == 0
     }
@@ -65,8 +70,11 @@ impl Rows {
 /// One value per group.
 #[derive(Debug, Clone, PartialEq)]
 pub enum One {
+    /// A finite number.
     Number(f64),
+    /// True or false.
     Truth(bool),
+    /// Text.
     Text(String),
     /// A date as its spreadsheet serial (days since 1899-12-30).
     Date(f64),
@@ -77,6 +85,7 @@ pub enum One {
 }
 
 impl One {
+    /// A number, or no value for infinity and NaN (which a sheet cannot show).
     pub fn number(x: f64) -> One {
         if x.is_finite() {
             One::Number(x)
@@ -86,9 +95,12 @@ impl One {
     }
 }
 
+/// What an expression gives: one value per group or one per row.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Value {
+    /// One value.
     One(One),
+    /// A value per row.
     Rows(Rows),
 }
 
@@ -102,15 +114,20 @@ pub type Previous = HashMap<(String, String), f64>;
 /// The current value of a `change(...)` argument in one group.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Term {
+    /// The argument in canonical text.
     pub expression: String,
+    /// The group's label.
     pub group: String,
+    /// Its value this period.
     pub value: f64,
 }
 
 /// What a run compares with, and the values it collects for the next run.
 #[derive(Debug, Default)]
 pub struct Context {
+    /// The previous period's terms, when comparing.
     pub previous: Option<Previous>,
+    /// This period's terms, collected as `change(...)` is evaluated.
     pub terms: RefCell<Vec<Term>>,
 }
 
@@ -120,7 +137,9 @@ pub type Row = u32;
 
 /// What an expression is evaluated over: some rows of the table.
 pub struct Scope<'a> {
+    /// The loaded table.
     pub table: &'a Table,
+    /// The `let` columns so far, over every table row.
     pub lets: &'a Lets,
     /// Table rows in this scope, ascending.
     pub rows: &'a [Row],
@@ -133,6 +152,7 @@ pub struct Scope<'a> {
 }
 
 impl<'a> Scope<'a> {
+    /// The scope of `rows` (ascending) of `table`.
     pub fn new(table: &'a Table, lets: &'a Lets, rows: &'a [Row]) -> Scope<'a> {
         Scope {
             table,
@@ -226,6 +246,7 @@ impl<'a> Scope<'a> {
         }
     }
 
+    /// A data column or `let` column, over this scope's rows.
     pub fn column(&self, name: &str) -> Rows {
         if let Some(rows) = self.lets.get(name) {
             return pick(rows, self.rows);
@@ -258,6 +279,7 @@ impl<'a> Scope<'a> {
         }
     }
 
+    /// Evaluates an expression over this scope's rows; a missing or impossible value becomes no value with why, never an error.
     pub fn eval(&self, e: &Expr) -> Value {
         match &e.kind {
             ExprKind::Number(x) => Value::One(One::Number(*x)),

@@ -29,29 +29,38 @@ pub const DEFAULT_NOISE_SES: f64 = 2.0;
 /// What the change of one figure is judged by (see the module comment).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Basis {
+    /// A level: drift and, with standard errors, the noise rule.
     Level,
     /// Whether the shape was beyond its noise before and now (None when a
     /// period's n is not kept or too small).
     Shape {
+        /// The previous period's verdict.
         was_beyond: Option<bool>,
+        /// This period's verdict.
         now_beyond: Option<bool>,
     },
     /// Whether the new extreme lies beyond the previous far fences.
     Extreme {
+        /// None when the previous quartiles are not kept.
         beyond_previous_fences: Option<bool>,
     },
+    /// Listed, never flagged.
     Listed,
 }
 
 /// A flag on the Changes sheet.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Flag {
+    /// A level moved beyond the drift and the noise rule.
     Moved,
+    /// Skewness or kurtosis crossed its noise verdict.
     ShapeChanged,
+    /// A min or max beyond the previous extreme and far fences.
     NewExtreme,
 }
 
 impl Flag {
+    /// The flag as the Changes sheet writes it.
     pub fn word(self) -> &'static str {
         match self {
             Flag::Moved => "moved",

@@ -24,10 +24,12 @@ pub enum PeriodSource {
     NameFallback,
 }
 
+/// The period a data file covers.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Period {
     /// `2026-10` or `2026-10-31`, sortable as text.
     pub label: String,
+    /// Where it was found.
     pub source: PeriodSource,
     /// The text of the file name the date was read from (`Oct2026`).
     pub read_from: Option<String>,

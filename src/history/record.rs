@@ -14,6 +14,7 @@ use crate::recipe::ast::StatementKind;
 use crate::recipe::{Recipe, pretty};
 use crate::write::style;
 
+/// The name of the hidden sheet that holds the Record.
 pub const RECORD_SHEET: &str = "Record";
 // The Record sheet's layout, written by `Record::write_sheet` and read by
 // `Record::read_accepting` (nothing else touches it): the fingerprint in
@@ -42,11 +43,16 @@ const LABELS_HEADER: &str = "figure";
 /// The block name under which `change(...)` arguments are recorded.
 pub const TERM_BLOCK: &str = "(compared values)";
 
+/// One recorded figure.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Entry {
+    /// The block (its sheet's name), or [`TERM_BLOCK`].
     pub block: String,
+    /// The group's label (`North`, `(all rows)`).
     pub group: String,
+    /// The figure: a figures block's name, `column key` for a panel figure, or a compared expression.
     pub name: String,
+    /// Its value (a date as its serial).
     pub value: f64,
 }
 
@@ -80,10 +86,14 @@ fn keyed(entries: &[Entry]) -> HashMap<(&str, &str, &str), f64> {
     values
 }
 
+/// Every figure of one result, with what made it.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Record {
+    /// The fingerprint of the recipe that made it.
     pub fingerprint: String,
+    /// The period the data covered, if known.
     pub period: Option<String>,
+    /// The figures, in the order the result holds them.
     pub entries: Vec<Entry>,
     /// The standard error of each figure that has one, keyed like its
     /// figure (block, group, name); the value is the standard error.
@@ -95,20 +105,27 @@ pub struct Record {
 /// identifiers and a panel's end in a panel label.
 pub const SE_SUFFIX: &str = " (standard error)";
 
+/// Why a previous result cannot be compared with.
 #[derive(Debug, thiserror::Error)]
 pub enum RecordError {
+    /// The file (first) could not be read as a workbook, for the reason (second).
     #[error("{0}: cannot read the previous result: {1}")]
     Unreadable(String, String),
     #[error(
         "{0} has no {RECORD_SHEET} sheet, so it is not a sheaf result workbook; compare with a workbook that sheaf wrote"
     )]
+    /// The workbook has no Record sheet.
     NotSheaf(String),
     #[error(
         "{path} was made by a different recipe (fingerprint {theirs}, this recipe {ours}); compare results of the same recipe"
     )]
+    /// The Record was made by a different recipe.
     OtherRecipe {
+        /// The file.
         path: String,
+        /// Its recipe's fingerprint.
         theirs: String,
+        /// This recipe's fingerprint.
         ours: String,
     },
 }
@@ -207,6 +224,7 @@ fn digest(recipe: &Recipe) -> String {
 }
 
 impl Record {
+    /// The Record of a result: every numeric (or date) figure of every block, and each compared expression's value.
     pub fn from_results(results: &Results, fingerprint: String, period: Option<String>) -> Record {
         let mut entries = Vec::new();
         for block in &results.blocks {
@@ -325,6 +343,7 @@ impl Record {
             .collect()
     }
 
+    /// The value recorded for (block, group, name), if any.
     pub fn find(&self, block: &str, group: &str, name: &str) -> Option<f64> {
         self.entries
             .iter()

@@ -16,12 +16,19 @@ pub const MOVES_SHEET: &str = "Largest moves";
 /// A figure's change between two consecutive periods.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Move {
+    /// The block (sheet) the figure belongs to.
     pub block: String,
+    /// The group's label.
     pub group: String,
+    /// The figure's Record name (a panel figure by its stable key).
     pub name: String,
+    /// The earlier period.
     pub from: String,
+    /// The later period.
     pub to: String,
+    /// The figure in the earlier period.
     pub before: f64,
+    /// The figure in the later period.
     pub after: f64,
     /// The standard error of `after - before`, for figures that have one.
     pub se: Option<f64>,
@@ -285,8 +292,10 @@ pub fn group_changes(before: &Record, after: &Record) -> Option<String> {
     (!parts.is_empty()).then(|| parts.join("; "))
 }
 
-/// The trend workbook; `shares` are the (block, figure) pairs whose values
-/// are shares, charted on a percentage axis.
+/// The trend workbook of a batch, as xlsx bytes: every figure per period,
+/// the largest moves, and line charts of each panel column's mean and
+/// median and every figure of the other blocks; `shares` are the (block,
+/// figure) pairs whose values are shares, charted on a percentage axis.
 pub fn trend_workbook(
     records: &[(String, Record)],
     panel_blocks: &[String],

@@ -3,6 +3,7 @@
 //! row names its evaluation through [`Evaluation`], which the evaluator
 //! matches exhaustively, so a function cannot be added to the table without
 //! its evaluation, nor an evaluation without the compiler asking for it.
+#![warn(missing_docs)] // every public item of this module is documented; keep it so
 
 /// What a function does with its first argument.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -63,49 +64,83 @@ pub enum OnDates {
 /// The aggregates, each mapped to the statistics core by the evaluator.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Aggregate {
+    /// `count`: the number of numeric values.
     Count,
+    /// `missing`: the number of missing or non-numeric cells.
     Missing,
+    /// `sum`: the sum of the values.
     Sum,
+    /// `min`: the smallest value.
     Min,
+    /// `max`: the largest value.
     Max,
+    /// `range`: max - min.
     Range,
+    /// `mean`: the arithmetic mean.
     Mean,
+    /// `median`: the middle value (the mean of the two middle ones for even n).
     Median,
+    /// `modes`: every most frequent value.
     Modes,
+    /// `binned_mode`: the mean of the values in the fullest of k equal bins.
     BinnedMode,
+    /// `variance`: the sample variance, or with `population` divided by n.
     Variance,
+    /// `sd`: the sample standard deviation, or with `population` divided by n.
     Sd,
+    /// `quartile`: quartile 1, 2 or 3.
     Quartile,
+    /// `percentile`: the p-th percentile, p from 0 to 100.
     Percentile,
+    /// `iqr`: Q3 - Q1.
     Iqr,
+    /// `skewness`: moment skewness g1, or G1 with `adjusted`.
     Skewness,
+    /// `kurtosis`: moment kurtosis b2, or G2 + 3 with `adjusted`.
     Kurtosis,
+    /// `excess_kurtosis`: b2 - 3, or G2 with `adjusted`.
     ExcessKurtosis,
+    /// `bowley`: Bowley's quartile skewness.
     Bowley,
+    /// `mad`: the median absolute deviation, times 1.4826 with `scaled`.
     Mad,
+    /// `trimmed_mean`: the mean after cutting a share from each end.
     TrimmedMean,
+    /// `winsorized_mean`: the mean after clamping a share at each end.
     WinsorizedMean,
+    /// `outliers`: the number of values beyond Tukey's fences.
     Outliers,
+    /// `fence_low`: Q1 - k IQR.
     FenceLow,
+    /// `fence_high`: Q3 + k IQR.
     FenceHigh,
 }
 
 /// The row functions.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum RowOp {
+    /// `abs`: the absolute value.
     Abs,
+    /// `ln`: the natural logarithm.
     Ln,
+    /// `log10`: the base-10 logarithm.
     Log10,
+    /// `exp`: e to the power of the value.
     Exp,
+    /// `sqrt`: the square root.
     Sqrt,
+    /// `round`: rounded to d decimals.
     Round,
+    /// `floor`: the largest whole number not above.
     Floor,
+    /// `ceil`: the smallest whole number not below.
     Ceil,
 }
 
 /// What an aggregate gives back.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Returns {
+    /// One number.
     Number,
     /// Several numbers (all tied modes); may only stand alone as a figure.
     List,
@@ -114,12 +149,17 @@ pub enum Returns {
 /// A numeric argument after the column, with the range it must fall in.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Parameter {
+    /// The parameter's name, as the help shows it (`p`, `k`).
     pub name: &'static str,
+    /// The smallest value allowed.
     pub min: f64,
+    /// The largest value allowed (see `max_exclusive`).
     pub max: f64,
     /// `max` itself is excluded (as for a trimmed share below 50%).
     pub max_exclusive: bool,
+    /// Only whole numbers are allowed.
     pub whole: bool,
+    /// It must be given (else it has a default).
     pub required: bool,
     /// Given in percent (0 to 100): a `%` is refused, and a value between
     /// 0 and 1 is warned about (a fraction where a percent was meant).
@@ -131,19 +171,24 @@ pub struct Parameter {
 /// One row of the function table.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Function {
+    /// The name recipes call it by.
     pub name: &'static str,
     /// How it is computed; its kind, result and first argument follow.
     pub evaluation: Evaluation,
+    /// The numeric arguments after the column, in order.
     pub parameters: &'static [Parameter],
     /// Bare words accepted after the column.
     pub options: &'static [&'static str],
+    /// What it computes, in a few words, for help and error messages.
     pub summary: &'static str,
 }
 
 /// Option words the evaluator reads (the quantile methods are read by
 /// `QuantileMethod::from_word`).
 pub const POPULATION: &str = "population";
+/// The option of the shape functions that gives the adjusted (sample) estimates G1 and G2.
 pub const ADJUSTED: &str = "adjusted";
+/// The option of `mad` that multiplies by 1.4826, to estimate a normal sd.
 pub const SCALED: &str = "scaled";
 
 const METHODS: &[&str] = &[
@@ -193,6 +238,7 @@ const SHARE_CUT: Parameter = Parameter {
 };
 const FENCE_K: Parameter = param("k", 0.0, f64::INFINITY, false, false);
 
+/// Every function a recipe may call: the one table the checker, the evaluator, the help and the grammar test read.
 pub const FUNCTIONS: &[Function] = &[
     aggregate(
         "count",
@@ -381,6 +427,7 @@ pub const FUNCTIONS: &[Function] = &[
     ),
 ];
 
+/// The function of this name, if any.
 pub fn lookup(name: &str) -> Option<&'static Function> {
     FUNCTIONS.iter().find(|f| f.name == name)
 }
@@ -469,10 +516,12 @@ impl Function {
         format!("{}({})", self.name, parts.join(", "))
     }
 
+    /// The fewest arguments a call takes (the column and the required parameters).
     pub fn min_args(&self) -> usize {
         1 + self.parameters.iter().filter(|p| p.required).count()
     }
 
+    /// The most arguments a call takes (the column, every parameter and an option word).
     pub fn max_args(&self) -> usize {
         1 + self.parameters.len() + usize::from(!self.options.is_empty())
     }

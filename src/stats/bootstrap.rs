@@ -26,6 +26,7 @@ use super::random::SplitMix64;
 use super::sample::Sample;
 use super::undefined::{Stat, need};
 
+/// Resamples drawn for each interval unless told otherwise.
 pub const DEFAULT_RESAMPLES: usize = 2000;
 /// Draws one interval may cost with full resampling; longer columns use
 /// the direct method described above. The robustness sheet says which.
@@ -40,9 +41,12 @@ pub const BOOTSTRAP_MIN_VALUES: usize = 10;
 /// Fixed so that reruns on the same data agree to the last digit.
 pub const DEFAULT_SEED: u64 = 0x5EAF_2026;
 
+/// A confidence interval: its lower and upper ends.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Interval {
+    /// The lower end.
     pub low: f64,
+    /// The upper end.
     pub high: f64,
 }
 
@@ -57,6 +61,7 @@ pub enum BootstrapMethod {
 }
 
 impl BootstrapMethod {
+    /// The method in words, as the robustness sheet and `--json` show it.
     pub fn words(self) -> &'static str {
         match self {
             BootstrapMethod::Resampled => "full resamples",
@@ -65,13 +70,20 @@ impl BootstrapMethod {
     }
 }
 
+/// Percentile bootstrap intervals of the mean and the median, with how they were made.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct BootstrapIntervals {
+    /// The interval of the mean.
     pub mean: Interval,
+    /// The interval of the median.
     pub median: Interval,
+    /// The number of resamples.
     pub resamples: usize,
+    /// The confidence level (0.95 for 95%).
     pub level: f64,
+    /// The seed of the generator, so a rerun gives the same interval.
     pub seed: u64,
+    /// Full resampling or the direct method for long columns.
     pub method: BootstrapMethod,
 }
 

@@ -21,10 +21,12 @@ pub enum BinRule {
     Scott,
     /// Width 2 IQR n^(-1/3) (Freedman and Diaconis 1981), IQR by type 7.
     FreedmanDiaconis,
+    /// A bin count given in the recipe.
     Fixed(usize),
 }
 
 impl BinRule {
+    /// The rule as the recipe writes it (`sturges`, `scott`, `freedman_diaconis`, or the count).
     pub fn word(self) -> String {
         match self {
             BinRule::Sturges => "sturges".into(),
@@ -44,6 +46,7 @@ impl BinRule {
         }
     }
 
+    /// The rule a recipe word names; None for an unknown word.
     pub fn from_word(word: &str) -> Option<BinRule> {
         match word {
             "sturges" => Some(BinRule::Sturges),
@@ -54,10 +57,12 @@ impl BinRule {
     }
 }
 
+/// Equal-width bins over a sample and the values in each.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Histogram {
     /// k + 1 edges; bin i is [edges[i], edges[i+1]), the last bin closed.
     pub edges: Vec<f64>,
+    /// The number of values in each bin.
     pub counts: Vec<usize>,
     /// The bin count the rule asked for, when it was more than the most
     /// bins allowed ([`MAX_BINS`], or [`CHART_MAX_BINS`] for a chart).

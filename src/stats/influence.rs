@@ -74,7 +74,9 @@ pub fn mean_change_without(sample: &Sample, left_out: &[usize]) -> Stat {
 /// the index of the value in `sample.values()`.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct OneLeftOut {
+    /// After leaving the value out, minus before.
     pub change: f64,
+    /// The value's index in `sample.values()`.
     pub index: usize,
 }
 
@@ -83,7 +85,9 @@ pub struct OneLeftOut {
 /// that comes first.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct LeaveOneOut {
+    /// The largest change of the mean.
     pub mean: OneLeftOut,
+    /// The largest change of the sample sd.
     pub sd: OneLeftOut,
 }
 

@@ -31,10 +31,15 @@ use super::undefined::{Stat, Undefined, need};
 /// moments, which are always finite.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Moments {
+    /// The number of values.
     pub n: usize,
+    /// The mean.
     pub mean: f64,
+    /// The second central moment (the population variance), unscaled; may be infinite for huge data.
     pub m2: f64,
+    /// The third central moment, unscaled.
     pub m3: f64,
+    /// The fourth central moment, unscaled.
     pub m4: f64,
     /// m2, m3, m4 of the deviations divided by 2^`scale_exponent`.
     scaled: [f64; 3],
@@ -202,8 +207,10 @@ fn power_sums(values: &[f64], deviation: impl Fn(f64) -> f64, n: f64) -> [f64; 3
 /// Whether variance divides by n - 1 (sample, the default) or by n.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum Denominator {
+    /// Divide by n - 1 (the default).
     #[default]
     Sample,
+    /// Divide by n.
     Population,
 }
 

@@ -14,10 +14,13 @@ pub const MODIFIED_Z_CUTOFF: f64 = 3.5;
 /// Tukey's (1977) fences Q1 - k IQR and Q3 + k IQR.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Fences {
+    /// Q1 - k IQR.
     pub low: f64,
+    /// Q3 + k IQR.
     pub high: f64,
 }
 
+/// Tukey's fences at k IQR beyond the quartiles (quartiles by `method`).
 pub fn fences(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<Fences> {
     let (centre, about) = fences_about(sample, k, method)?;
     Ok(Fences {
@@ -52,17 +55,22 @@ fn fences_about(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<(f64, F
 /// Values strictly beyond the fences, as indexes into `sample.values()`.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Outliers {
+    /// The fences the values were judged against.
     pub fences: Fences,
+    /// Values below the low fence.
     pub low: Vec<usize>,
+    /// Values above the high fence.
     pub high: Vec<usize>,
 }
 
 impl Outliers {
+    /// Values beyond either fence.
     pub fn count(&self) -> usize {
         self.low.len() + self.high.len()
     }
 }
 
+/// The values strictly beyond Tukey's fences at k IQR.
 pub fn outliers(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<Outliers> {
     let (centre, about) = fences_about(sample, k, method)?;
     let mut low = Vec::new();

@@ -29,6 +29,7 @@ impl QuantileMethod {
         }
     }
 
+    /// The method a recipe option names (`hinges` or `hf1` to `hf9`); None otherwise.
     pub fn from_word(word: &str) -> Option<QuantileMethod> {
         if word == "hinges" {
             return Some(QuantileMethod::Hinges);

@@ -100,26 +100,32 @@ impl Sample {
         Ok(self.moments.get_or_init(|| Moments::of(&self.values)))
     }
 
+    /// The number of numeric values.
     pub fn count(&self) -> usize {
         self.values.len()
     }
 
+    /// The number of cells without a number (blank, text, error).
     pub fn missing(&self) -> usize {
         self.missing
     }
 
+    /// True when there is no numeric value.
     pub fn is_empty(&self) -> bool {
         self.values.is_empty()
     }
 
+    /// The compensated (Neumaier) sum of the values; 0 for none.
     pub fn sum(&self) -> f64 {
         Neumaier::of(self.values.iter().copied())
     }
 
+    /// The smallest value.
     pub fn min(&self) -> Stat {
         self.extreme(|a, b| a.min(b))
     }
 
+    /// The largest value.
     pub fn max(&self) -> Stat {
         self.extreme(|a, b| a.max(b))
     }
@@ -139,6 +145,7 @@ impl Sample {
             .ok_or(Undefined::NoValues)
     }
 
+    /// max - min.
     pub fn range(&self) -> Stat {
         Ok(self.max()? - self.min()?)
     }
@@ -153,6 +160,7 @@ impl Sample {
         }
     }
 
+    /// The arithmetic mean.
     pub fn mean(&self) -> Stat {
         Ok(self.moments()?.mean)
     }

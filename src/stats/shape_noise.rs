@@ -43,7 +43,9 @@ pub fn kurtosis_se(n: usize) -> Stat {
 /// An estimate set against its standard error under normality.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct AgainstNoise {
+    /// The estimate (G1 or G2).
     pub estimate: f64,
+    /// Its standard error under normality.
     pub standard_error: f64,
     /// estimate / standard_error.
     pub ratio: f64,

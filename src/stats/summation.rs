@@ -21,16 +21,19 @@ pub fn two_sum(a: f64, b: f64) -> (f64, f64) {
 }
 
 impl Neumaier {
+    /// Adds one term, carrying its rounding error.
     pub fn add(&mut self, x: f64) {
         let (t, error) = two_sum(self.sum, x);
         self.compensation += error;
         self.sum = t;
     }
 
+    /// The sum so far with the carried error added back.
     pub fn total(&self) -> f64 {
         self.sum + self.compensation
     }
 
+    /// The compensated sum of `values`.
     pub fn of(values: impl IntoIterator<Item = f64>) -> f64 {
         let mut acc = Neumaier::default();
         for x in values {
@@ -129,5 +132,13 @@ mod tests {
             big.add(x);
         }
         assert_eq!(big.total(), 9.0);
+        // 1 + 2^-53 lies halfway between 1 and the next double up; the tie
+        // goes to the even one, 1.0. The partials are then [2^-53, 1], and
+        // the total must add the lower one to the top, not subtract it
+        // (1 - 2^-53 is a double, so a subtraction would show).
+        let mut tie = ExactSum::default();
+        tie.add(1.0);
+        tie.add(f64::EPSILON / 2.0);
+        assert_eq!(tie.total(), 1.0);
     }
 }

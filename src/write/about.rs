@@ -1,6 +1,6 @@
 //! The About sheet: where every figure came from and how it was computed.
 
-use rust_xlsxwriter::{Workbook, XlsxError};
+use rust_xlsxwriter::{Workbook, Worksheet, XlsxError};
 
 use super::sheets::SheetNames;
 use super::style;
@@ -30,6 +30,8 @@ pub const CONVENTIONS: &[&str] = &[
 /// a list longer than this is read by its count, which About gives).
 pub const MISSING_LISTED: usize = 100_000;
 
+/// The About sheet: what was run on what (the provenance facts), the cells
+/// counted as missing, and the recipe's text.
 pub fn about(
     workbook: &mut Workbook,
     names: &mut SheetNames,
@@ -49,73 +51,87 @@ pub fn about(
     sheet.merge_range(1, 0, 1, 3, DISCLAIMER, &style::note_format())?;
     sheet.set_row_height(1, 45)?;
     let mut r = 3;
-    let mut pair = |label: &str, value: String| -> Result<(), XlsxError> {
-        sheet.write_string_with_format(r, 0, label, &rust_xlsxwriter::Format::new().set_bold())?;
+    let bold = rust_xlsxwriter::Format::new().set_bold();
+    for (label, value) in facts(results, table, run) {
+        sheet.write_string_with_format(r, 0, label, &bold)?;
         sheet.write_string(r, 1, style::fit(&value))?;
         r += 1;
-        Ok(())
-    };
-    pair("made by", format!("sheaf {}", run.version))?;
-    pair("time of run", run.run_time.clone())?;
-    pair("recipe", run.recipe_path.clone())?;
-    pair("input file", table.source.file_name.clone())?;
-    pair("input size (bytes)", table.source.size.to_string())?;
-    pair("input SHA-256", table.source.sha256.clone())?;
-    pair("sheet", table.sheet.clone())?;
-    pair("header row", table.header_row.to_string())?;
-    for note in crate::load::reading_notes(table) {
-        pair(note.topic, note.text)?;
     }
-    pair(
+    r = missing_cells(sheet, r + 1, results)?;
+    sheet.write_string_with_format(r + 1, 0, "recipe text", &style::title())?;
+    for (i, line) in run.recipe_text.lines().enumerate() {
+        sheet.write_string(r + 2 + i as u32, 1, style::fit(line))?;
+    }
+    Ok(())
+}
+
+/// The run's provenance as (label, value) rows, in the order shown.
+fn facts(results: &Results, table: &Table, run: &super::RunInfo) -> Vec<(&'static str, String)> {
+    let mut facts = vec![
+        ("made by", format!("sheaf {}", run.version)),
+        ("time of run", run.run_time.clone()),
+        ("recipe", run.recipe_path.clone()),
+        ("input file", table.source.file_name.clone()),
+        ("input size (bytes)", table.source.size.to_string()),
+        ("input SHA-256", table.source.sha256.clone()),
+        ("sheet", table.sheet.clone()),
+        ("header row", table.header_row.to_string()),
+    ];
+    facts.extend(
+        crate::load::reading_notes(table)
+            .into_iter()
+            .map(|n| (n.topic, n.text)),
+    );
+    facts.push((
         "period",
         run.period.as_ref().map_or(
             "none: no date in the file name and no `period` in the recipe".to_string(),
             |p| p.explain(),
         ),
-    )?;
-    pair(
+    ));
+    facts.push((
         "recipe fingerprint",
         format!(
             "{} (SHA-256 of the recipe's canonical text; --compare needs the same)",
             run.fingerprint
         ),
-    )?;
+    ));
     if let Some(previous) = &run.previous {
-        pair(
-            "compared with",
-            format!(
-                "period {}",
-                previous.period.as_deref().unwrap_or("(unknown)")
-            ),
-        )?;
+        let period = previous.period.as_deref().unwrap_or("(unknown)");
+        facts.push(("compared with", format!("period {period}")));
     }
-    pair(
+    facts.push((
         "changes judged by",
         crate::history::rules_in_words(run.drift, run.noise),
-    )?;
-    pair("rows read", results.rows_read.to_string())?;
+    ));
+    facts.push(("rows read", results.rows_read.to_string()));
     for (reason, count) in &results.rows_skipped {
-        pair("rows skipped", format!("{count}: {reason}"))?;
+        facts.push(("rows skipped", format!("{count}: {reason}")));
     }
     for block in &results.blocks {
         if let Block::Panel {
             name, rows_used, ..
         } = block
         {
-            pair("rows in panel", format!("{name}: {rows_used}"))?;
+            facts.push(("rows in panel", format!("{name}: {rows_used}")));
         }
     }
-    pair(
+    facts.push((
         "bootstrap",
         format!(
             "{DEFAULT_RESAMPLES} resamples, seed {DEFAULT_SEED}, 95% percentile intervals, none below {BOOTSTRAP_MIN_VALUES} values; over {} values, medians from directly drawn order statistics and the mean by Cornish-Fisher expansion",
             DRAW_BUDGET / DEFAULT_RESAMPLES
         ),
-    )?;
+    ));
     for (i, c) in CONVENTIONS.iter().enumerate() {
-        pair(if i == 0 { "conventions" } else { "" }, c.to_string())?;
+        facts.push((if i == 0 { "conventions" } else { "" }, c.to_string()));
     }
-    r += 1;
+    facts
+}
+
+/// The list of cells counted as missing, from row `r`; returns the row
+/// after it.
+fn missing_cells(sheet: &mut Worksheet, mut r: u32, results: &Results) -> Result<u32, XlsxError> {
     sheet.write_string_with_format(r, 0, "cells counted as missing", &style::title())?;
     r += 1;
     let header = ["cell", "column", "why", "content"];
@@ -145,12 +161,5 @@ pub fn about(
         )?;
         r += 1;
     }
-    r += 1;
-    sheet.write_string_with_format(r, 0, "recipe text", &style::title())?;
-    r += 1;
-    for line in run.recipe_text.lines() {
-        sheet.write_string(r, 1, style::fit(line))?;
-        r += 1;
-    }
-    Ok(())
+    Ok(r)
 }

@@ -1,6 +1,7 @@
 //! The result workbook: one sheet per panel and figures block, a robustness
 //! sheet per panel, Checks, Charts and About. Saved through [`atomic`], so a
 //! crash never leaves half a workbook and a new target is never replaced.
+#![warn(missing_docs)] // every public item of this module is documented; keep it so
 
 mod about;
 pub mod atomic;
@@ -24,13 +25,17 @@ use crate::load::Table;
 /// What the About sheet records of the run besides the data.
 #[derive(Debug, Clone)]
 pub struct RunInfo {
+    /// The recipe's path as given.
     pub recipe_path: String,
+    /// The recipe's text, copied onto the About sheet.
     pub recipe_text: String,
     /// When the run happened, as written on the About sheet (UTC).
     pub run_time: String,
+    /// sheaf's version.
     pub version: String,
     /// SHA-256 (first 12 bytes) of the recipe's canonical text.
     pub fingerprint: String,
+    /// The period the data covers, if known.
     pub period: Option<crate::history::Period>,
     /// The previous period's record, for the Changes sheet.
     pub previous: Option<crate::history::Record>,
@@ -40,16 +45,27 @@ pub struct RunInfo {
     pub noise: f64,
 }
 
+/// Why a result could not be written.
 #[derive(Debug, thiserror::Error)]
 pub enum WriteError {
+    /// The output exists and --force was not given.
     #[error("{0} exists already; pass --force to replace it")]
     Exists(String),
+    /// The output is the input file.
     #[error("{0} is the input file; choose another --out")]
     WouldOverwriteInput(String),
+    /// The file system refused, with the path and the reason.
     #[error("cannot write {path}: {reason}")]
-    Io { path: String, reason: String },
+    Io {
+        /// The file.
+        path: String,
+        /// What the system said.
+        reason: String,
+    },
+    /// The result does not fit a workbook's limits.
     #[error("the result is too large for a workbook: {0}")]
     TooLarge(String),
+    /// The workbook library failed.
     #[error("cannot build the workbook: {0}")]
     Workbook(#[from] rust_xlsxwriter::XlsxError),
 }

@@ -636,34 +636,58 @@ condition, limit the right side. A check that cannot be evaluated counts as not 
     let mut widths = Widths::default();
     let mut r = top + 1;
     for c in &results.checks {
-        let level = if c.level == crate::recipe::ast::CheckLevel::Warn {
-            "warn"
-        } else {
-            "fail"
-        };
-        let group = group_label(c.group.as_deref().unwrap_or_default());
-        for (col, text) in [
-            (0, c.name.as_str()),
-            (1, level),
-            (2, &group),
-            (3, &c.condition),
-        ] {
-            widths.seen(r, col, style::write_text(sheet, r, col, text)?);
-        }
-        let shown = Shown::unknown_kind;
-        widths.seen(r, 4, write_one(sheet, r, 4, &c.value, shown(&c.value))?);
-        if let Some(limit) = &c.limit {
-            widths.seen(r, 5, write_one(sheet, r, 5, limit, shown(limit))?);
-        }
-        let word = c.outcome.word();
-        sheet.write_string_with_format(r, 6, word, &style::status(word))?;
-        widths.seen(r, 6, word.len());
-        if let Some(n) = &c.note {
-            widths.seen(r, 7, style::write_text(sheet, r, 7, n)?);
-        }
+        write_check(sheet, r, c, &mut widths)?;
         r += 1;
     }
     finish_table(sheet, &labels, 1, &widths, note, r - 1)?;
+    below_checks(sheet, r, results, reading)?;
+    Ok((sheet_name, TABLE_TOP + 1))
+}
+
+/// One check's row of the Checks sheet.
+fn write_check(
+    sheet: &mut Worksheet,
+    r: u32,
+    c: &crate::eval::CheckResult,
+    widths: &mut Widths,
+) -> Result<(), XlsxError> {
+    let level = if c.level == crate::recipe::ast::CheckLevel::Warn {
+        "warn"
+    } else {
+        "fail"
+    };
+    let group = group_label(c.group.as_deref().unwrap_or_default());
+    for (col, text) in [
+        (0, c.name.as_str()),
+        (1, level),
+        (2, &group),
+        (3, &c.condition),
+    ] {
+        widths.seen(r, col, style::write_text(sheet, r, col, text)?);
+    }
+    let shown = Shown::unknown_kind;
+    widths.seen(r, 4, write_one(sheet, r, 4, &c.value, shown(&c.value))?);
+    if let Some(limit) = &c.limit {
+        widths.seen(r, 5, write_one(sheet, r, 5, limit, shown(limit))?);
+    }
+    let word = c.outcome.word();
+    sheet.write_string_with_format(r, 6, word, &style::status(word))?;
+    widths.seen(r, 6, word.len());
+    if let Some(n) = &c.note {
+        widths.seen(r, 7, style::write_text(sheet, r, 7, n)?);
+    }
+    Ok(())
+}
+
+/// The lists under the checks table, from row `r` on: the recipe's
+/// warnings, the reading decisions that need attention and the figures
+/// without a value. Returns the row after the last one written.
+fn below_checks(
+    sheet: &mut Worksheet,
+    mut r: u32,
+    results: &Results,
+    reading: &[crate::load::ReadingNote],
+) -> Result<u32, XlsxError> {
     // Warnings about the recipe, each with its fix.
     if !results.warnings.is_empty() {
         r += 1;
@@ -699,7 +723,7 @@ condition, limit the right side. A check that cannot be evaluated counts as not 
             r += 1;
         }
     }
-    Ok((sheet_name, TABLE_TOP + 1))
+    Ok(r)
 }
 
 /// (where, why) for every figure that has no value.
