@@ -644,18 +644,6 @@ fn largest_moves_rank_by_the_noise_scaled_change() {
     assert!(first["change_in_standard_errors"].as_f64().unwrap().abs() > 5.0);
 }
 
-/// The text of one part of an xlsx (a zip).
-fn xlsx_part(xlsx: &Path, name: &str) -> String {
-    use std::io::Read;
-    let mut zip = zip::ZipArchive::new(std::fs::File::open(xlsx).unwrap()).unwrap();
-    let mut text = String::new();
-    zip.by_name(name)
-        .unwrap()
-        .read_to_string(&mut text)
-        .unwrap();
-    text
-}
-
 #[test]
 fn a_value_outside_its_control_band_is_marked_on_the_trend_sheet_and_chart() {
     let dir = tempfile::tempdir().unwrap();
@@ -708,7 +696,7 @@ fn a_value_outside_its_control_band_is_marked_on_the_trend_sheet_and_chart() {
         .collect();
     assert_eq!(marked, ["", "", "", "12"]);
     // Drawn as markers without a line.
-    let xml = xlsx_part(&trend_path, "xl/charts/chart1.xml");
+    let xml = common::part(&trend_path, "xl/charts/chart1.xml");
     assert!(xml.contains("<c:symbol val=\"diamond\"/>"), "{xml}");
     assert!(xml.contains("<a:ln><a:noFill/></a:ln>"), "{xml}");
 }

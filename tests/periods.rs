@@ -355,35 +355,27 @@ fn names_without_a_date_take_the_period_from_the_data() {
     assert!(changes[1][0].to_string().contains("period 2026-09"));
 }
 
-/// Invented: three deliveries, one of them filed in the month before.
-fn two_months_csv(path: &Path) {
+/// Runs `period from COLUMN` and a panel of `x` on one CSV file `name`
+/// holding `csv`, writing `r.xlsx` (with `-v`, so the period is said).
+fn run_dated_csv(dir: &Path, name: &str, csv: &str, column: &str) -> std::process::Output {
+    std::fs::write(dir.join(name), csv).unwrap();
     std::fs::write(
-        path,
-        "depot,x,shipped\nNorth,1,2026-10-02\nNorth,2,2026-09-30\nNorth,3,2026-10-05\n",
+        dir.join("r.sheaf"),
+        format!("period from {column}\npanel \"P\" of x:\n"),
     )
     .unwrap();
+    sheaf(
+        &["run", "r.sheaf", "--data", name, "--out", "r.xlsx", "-v"],
+        dir,
+    )
 }
 
 #[test]
 fn a_file_of_several_months_is_an_error_naming_file_column_and_months() {
     let dir = tempfile::tempdir().unwrap();
-    two_months_csv(&dir.path().join("depot-2026-10.csv"));
-    std::fs::write(
-        dir.path().join("r.sheaf"),
-        "period from shipped\npanel \"P\" of x:\n",
-    )
-    .unwrap();
-    let o = sheaf(
-        &[
-            "run",
-            "r.sheaf",
-            "--data",
-            "depot-2026-10.csv",
-            "--out",
-            "r.xlsx",
-        ],
-        dir.path(),
-    );
+    // Invented: three deliveries, one of them filed in the month before.
+    let csv = "depot,x,shipped\nNorth,1,2026-10-02\nNorth,2,2026-09-30\nNorth,3,2026-10-05\n";
+    let o = run_dated_csv(dir.path(), "depot-2026-10.csv", csv, "shipped");
     assert_eq!(o.status.code(), Some(2), "{}", text(&o));
     let t = text(&o);
     assert!(
@@ -396,27 +388,8 @@ fn a_file_of_several_months_is_an_error_naming_file_column_and_months() {
 #[test]
 fn the_data_wins_over_a_name_that_disagrees_and_the_run_says_so() {
     let dir = tempfile::tempdir().unwrap();
-    std::fs::write(
-        dir.path().join("depot-2026-11.csv"),
-        "depot,x,shipped\nNorth,1,2026-10-02\nNorth,3,2026-10-05\n",
-    )
-    .unwrap();
-    std::fs::write(
-        dir.path().join("r.sheaf"),
-        "period from shipped\npanel \"P\" of x:\n",
-    )
-    .unwrap();
-    let o = sheaf(
-        &[
-            "run",
-            "r.sheaf",
-            "--data",
-            "depot-2026-11.csv",
-            "--out",
-            "r.xlsx",
-        ],
-        dir.path(),
-    );
+    let csv = "depot,x,shipped\nNorth,1,2026-10-02\nNorth,3,2026-10-05\n";
+    let o = run_dated_csv(dir.path(), "depot-2026-11.csv", csv, "shipped");
     assert_eq!(o.status.code(), Some(0), "{}", text(&o));
     let said = "the file's name says 2026-11 but its data say 2026-10";
     assert!(text(&o).contains(said), "{}", text(&o));
@@ -428,28 +401,8 @@ fn the_data_wins_over_a_name_that_disagrees_and_the_run_says_so() {
 #[test]
 fn a_text_period_column_names_the_period() {
     let dir = tempfile::tempdir().unwrap();
-    std::fs::write(
-        dir.path().join("export.csv"),
-        "depot,x,month\nNorth,1,Oct 2026\nNorth,3,Oct 2026\nRidge,2,\n",
-    )
-    .unwrap();
-    std::fs::write(
-        dir.path().join("r.sheaf"),
-        "period from month\npanel \"P\" of x:\n",
-    )
-    .unwrap();
-    let o = sheaf(
-        &[
-            "run",
-            "r.sheaf",
-            "--data",
-            "export.csv",
-            "--out",
-            "r.xlsx",
-            "-v",
-        ],
-        dir.path(),
-    );
+    let csv = "depot,x,month\nNorth,1,Oct 2026\nNorth,3,Oct 2026\nRidge,2,\n";
+    let o = run_dated_csv(dir.path(), "export.csv", csv, "month");
     assert_eq!(o.status.code(), Some(0), "{}", text(&o));
     assert!(
         text(&o).contains("period: 2026-10 (from the periods in column `month`, 2 rows)"),

@@ -2,13 +2,12 @@
 //! per figure, column widths, header heights, page setup, print titles and
 //! the hidden Record sheet, read from the sheet XML inside the written xlsx.
 
-use std::io::Read;
 use std::path::{Path, PathBuf};
 
 mod common;
 
 use calamine::{Data, DataType, Reader, open_workbook_auto};
-use common::{root, sheaf, text};
+use common::{part, root, sheaf, text};
 
 /// The demo month written to `dir`.
 fn demo(dir: &Path) -> PathBuf {
@@ -28,18 +27,6 @@ fn demo(dir: &Path) -> PathBuf {
     );
     assert!(out.exists(), "{}", text(&o));
     out
-}
-
-/// One part of the xlsx (a zip of XML files), as text.
-fn part(xlsx: &Path, name: &str) -> String {
-    let file = std::fs::File::open(xlsx).unwrap();
-    let mut zip = zip::ZipArchive::new(file).unwrap();
-    let mut text = String::new();
-    zip.by_name(name)
-        .unwrap()
-        .read_to_string(&mut text)
-        .unwrap();
-    text
 }
 
 /// The value of `attribute` in an XML tag's text.
@@ -372,6 +359,7 @@ fn histogram_titles_are_in_words_and_bin_labels_are_clean() {
 
 /// The charts' parts (xl/charts/chartN.xml), in order.
 fn chart_parts(xlsx: &Path) -> Vec<String> {
+    use std::io::Read;
     (1..)
         .map_while(|i| {
             let file = std::fs::File::open(xlsx).unwrap();

@@ -227,6 +227,22 @@ impl Record {
     /// The Record of a result: every numeric (or date) figure of every block, and each compared expression's value.
     pub fn from_results(results: &Results, fingerprint: String, period: Option<String>) -> Record {
         let mut entries = Vec::new();
+        let mut standard_errors = Vec::new();
+        // Each figure of each group, with its standard error where it has one.
+        let mut keep =
+            |block: &str, group: &[String], name: String, value: &One, se: Option<f64>| {
+                let entry = |value: f64| Entry {
+                    block: block.to_string(),
+                    group: group_label(group),
+                    name: name.clone(),
+                    value,
+                };
+                // A date figure is kept as its serial, as before dates were typed.
+                if let One::Number(x) | One::Date(x) = value {
+                    entries.push(entry(*x));
+                }
+                standard_errors.extend(se.map(entry));
+            };
         for block in &results.blocks {
             match block {
                 Block::Panel {
@@ -236,15 +252,9 @@ impl Record {
                 } => {
                     for e in rows {
                         for (figure, value) in PANEL_FIGURES.iter().zip(&e.figures) {
-                            // A date figure is kept as its serial, as before dates were typed.
-                            if let One::Number(x) | One::Date(x) = value {
-                                entries.push(Entry {
-                                    block: name.clone(),
-                                    group: group_label(&e.group),
-                                    name: panel_entry_name(&e.column, figure),
-                                    value: *x,
-                                });
-                            }
+                            let se = e.standard_errors.iter().find(|(k, _)| *k == figure.key);
+                            let entry_name = panel_entry_name(&e.column, figure);
+                            keep(name, &e.group, entry_name, value, se.map(|(_, se)| *se));
                         }
                     }
                 }
@@ -252,49 +262,10 @@ impl Record {
                     name, names, rows, ..
                 } => {
                     for r in rows {
-                        for (figure, value) in names.iter().zip(&r.values) {
-                            // A date figure is kept as its serial, as before dates were typed.
-                            if let One::Number(x) | One::Date(x) = value {
-                                entries.push(Entry {
-                                    block: name.clone(),
-                                    group: group_label(&r.group),
-                                    name: figure.clone(),
-                                    value: *x,
-                                });
-                            }
-                        }
-                    }
-                }
-            }
-        }
-        let mut standard_errors = Vec::new();
-        for block in &results.blocks {
-            match block {
-                Block::Panel { name, entries, .. } => {
-                    for e in entries {
-                        for (label, se) in &e.standard_errors {
-                            standard_errors.push(Entry {
-                                block: name.clone(),
-                                group: group_label(&e.group),
-                                name: format!("{} {label}", e.column),
-                                value: *se,
-                            });
-                        }
-                    }
-                }
-                Block::Figures {
-                    name, names, rows, ..
-                } => {
-                    for r in rows {
-                        for (figure, se) in names.iter().zip(&r.standard_errors) {
-                            if let Some(se) = se {
-                                standard_errors.push(Entry {
-                                    block: name.clone(),
-                                    group: group_label(&r.group),
-                                    name: figure.clone(),
-                                    value: *se,
-                                });
-                            }
+                        for ((figure, value), se) in
+                            names.iter().zip(&r.values).zip(&r.standard_errors)
+                        {
+                            keep(name, &r.group, figure.clone(), value, *se);
                         }
                     }
                 }

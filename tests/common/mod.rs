@@ -66,3 +66,16 @@ pub fn cells(path: &Path, sheet: &str) -> Vec<Vec<Data>> {
         .map(|r| r.to_vec())
         .collect()
 }
+
+/// One part of an xlsx (a zip of XML files), as text.
+pub fn part(xlsx: &Path, name: &str) -> String {
+    use std::io::Read;
+    let file = std::fs::File::open(xlsx).unwrap();
+    let mut zip = zip::ZipArchive::new(file).unwrap();
+    let mut text = String::new();
+    zip.by_name(name)
+        .unwrap()
+        .read_to_string(&mut text)
+        .unwrap();
+    text
+}
