@@ -170,9 +170,9 @@ fn name_from_label(name: String) -> String {
 /// SHA-256 of the canonical text of what the recipe computes: layout and
 /// comments do not count, nor do the lines that say how to read a file
 /// (`input`, `header`: a header renamed this month, a decimal comma), where
-/// its period comes from (`period`), how changes are judged (`noise`) or
-/// how a column is shown (`label`); adding or editing one keeps last month
-/// comparable.
+/// its period comes from (`period`), how changes are judged (`drift`,
+/// `noise`) or how a column is shown (`label`); adding or editing one keeps
+/// last month comparable.
 pub fn fingerprint(recipe: &Recipe) -> String {
     digest(&keeping(recipe, |kind| {
         !matches!(
@@ -182,6 +182,7 @@ pub fn fingerprint(recipe: &Recipe) -> String {
                 | StatementKind::Period(_)
                 | StatementKind::PeriodFrom(_)
                 | StatementKind::Noise(_)
+                | StatementKind::Drift(_)
                 | StatementKind::Label { .. }
         )
     }))
@@ -476,6 +477,25 @@ pub fn made_by_sheaf(path: &Path) -> Option<&'static str> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Lines that say how to read, label or judge leave the fingerprint as
+    /// it is; a line that computes something else changes it.
+    #[test]
+    fn only_what_is_computed_makes_the_fingerprint() {
+        let of = |text: &str| fingerprint(&crate::recipe::parse(text).recipe);
+        let base = "figures \"F\":\n    m = mean(x)\n";
+        for extra in [
+            "input decimal comma\n",
+            "period \"2026-10\"\n",
+            "period from shipped\n",
+            "noise 3 se\n",
+            "drift 5%\n",
+            "label x \"Weight (kg)\"\n",
+        ] {
+            assert_eq!(of(&format!("{extra}{base}")), of(base), "{extra}");
+        }
+        assert_ne!(of("figures \"F\":\n    m = median(x)\n"), of(base));
+    }
 
     /// Entries spread over bands read back whole and in order (bands of 4
     /// rows here; a real band is 1,048,573 rows).
