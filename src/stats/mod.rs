@@ -23,7 +23,7 @@ mod undefined;
 
 pub use bootstrap::{
     BOOTSTRAP_MIN_VALUES, BootstrapIntervals, BootstrapMethod, DEFAULT_RESAMPLES, DEFAULT_SEED,
-    DRAW_BUDGET, Interval, bootstrap_intervals, resampled_in_full,
+    EXACT_UP_TO, Interval, bootstrap_intervals, method_for,
 };
 pub use histogram::{BinRule, Histogram, MAX_BINS, binned_mode, histogram, sturges_bins};
 pub use influence::{
