@@ -77,6 +77,11 @@ pub(super) fn median_distribution(sorted: &[f64]) -> Vec<Atom> {
     }
     let m = n / 2;
     let ln_choose = ln_choose(n, m);
+    // ln P(the n - m upper draws start at j), for every j a pair can reach.
+    let reach = (last + 200).min(n);
+    let ln_above: Vec<f64> = (first..=reach)
+        .map(|j| ln_smallest_of_above_at(n, n - m, j))
+        .collect();
     let mut atoms = Vec::new();
     for i in first..=last {
         atoms.push(Atom {
@@ -85,7 +90,11 @@ pub(super) fn median_distribution(sorted: &[f64]) -> Vec<Atom> {
         });
         let ln_lower = ln_choose + ln_largest_of_below_at(n, m, i);
         for j in i + 1..=n {
-            let probability = (ln_lower + ln_smallest_of_above_at(n, n - m, j)).exp();
+            let ln_upper = match ln_above.get(j - first) {
+                Some(&known) => known,
+                None => ln_smallest_of_above_at(n, n - m, j),
+            };
+            let probability = (ln_lower + ln_upper).exp();
             atoms.push(Atom {
                 value: value(i) / 2.0 + value(j) / 2.0,
                 probability,
@@ -123,16 +132,28 @@ fn middle_at(n: usize, i: usize, m: usize, extra: usize) -> f64 {
         // No draw can fall below the first index.
         return binomial_upper_tail(n, m + extra, at_i);
     }
+    // For a from m - 1 down: P(S(i-1) = a) and, of the n - a draws above,
+    // the chance t that at least k = m + extra - a fall at i. Both step
+    // down by ratios: t(a - 1) = t(a) - (1 - q) P(Bin(n - a, q) = k) and
+    // P(Bin(N + 1, q) = k + 1) = P(Bin(N, q) = k) (N + 1)/(k + 1) q.
+    let mut pmf_below = binomial_pmf(n, m - 1, below);
+    let (mut draws, mut needed) = (n - m + 1, extra + 1);
+    let mut tail = binomial_upper_tail(draws, needed, at_i);
+    let mut pmf_at = binomial_pmf(draws, needed, at_i);
     let mut total = 0.0;
-    let mut pmf = binomial_pmf(n, m - 1, below);
     for a in (0..m).rev() {
-        let tail = binomial_upper_tail(n - a, m + extra - a, at_i);
-        total += pmf * tail;
-        if tail < NEGLIGIBLE {
+        total += pmf_below * tail;
+        // Below 1e-15 the subtractions' rounding (about 1e-16) would take
+        // over, while the true tail falls faster than geometrically (about
+        // 1/k! for k draws at one index): what is left is negligible.
+        if tail < 1e-15 || needed >= draws {
             break;
         }
-        // pmf(a - 1) from pmf(a): times a/(n - a + 1) (1 - p)/p.
-        pmf *= a as f64 / (n - a + 1) as f64 * (1.0 - below) / below;
+        pmf_below *= a as f64 / (n - a + 1) as f64 * (1.0 - below) / below;
+        tail -= (1.0 - at_i) * pmf_at;
+        pmf_at *= (draws + 1) as f64 / (needed + 1) as f64 * at_i;
+        draws += 1;
+        needed += 1;
     }
     total
 }
