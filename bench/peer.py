@@ -64,6 +64,16 @@ def read_duckdb(path):
     ]
 
 
+def at_fences(x):
+    """How many values lie on a 1.5 IQR fence to a relative 1e-12: whether
+    such a value counts as beyond depends on the fence's last digit, which
+    sheaf (from deviations about a middle value) and numpy round differently."""
+    x = x[~np.isnan(x)]
+    q1, q3 = np.percentile(x, [25, 75])
+    on = lambda fence: int((np.abs(x - fence) <= 1e-12 * max(abs(fence), 1.0)).sum())
+    return {"on low fence": on(q1 - 1.5 * (q3 - q1)), "on high fence": on(q3 + 1.5 * (q3 - q1))}
+
+
 READERS = {"polars": read_polars, "duckdb": read_duckdb}
 
 
@@ -82,6 +92,8 @@ def main():
             {"depot": d, "column": c, **dict(zip(FIGURES, (None if v is None else float(v) for v in f)))}
             for d, c, f in rows
         ]
+        for row, (depot, cols) in zip(figures, ((d, cols) for d, cols in groups for _ in COLUMNS)):
+            row.update(at_fences(cols[row["column"]]))
         with open(sys.argv[4], "w") as out:
             json.dump(figures, out)
         return
