@@ -25,7 +25,7 @@ mod undefined;
 
 pub use bootstrap::{
     BOOTSTRAP_MIN_VALUES, BootstrapIntervals, BootstrapMethod, DEFAULT_RESAMPLES, DEFAULT_SEED,
-    DRAW_BUDGET, Interval, bootstrap_intervals, resampled_in_full,
+    EXACT_UP_TO, Interval, bootstrap_intervals, method_for,
 };
 pub use histogram::{
     BinRule, CHART_FENCE_IQR, CHART_MAX_BINS, Histogram, MAX_BINS, binned_mode, fenced_histogram,

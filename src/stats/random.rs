@@ -34,6 +34,7 @@ impl SplitMix64 {
     }
 
     /// As `below`, with the rejection threshold (2^64 mod n) computed once by the caller.
+    #[cfg(test)]
     #[inline]
     pub(crate) fn below_with(&mut self, n: u64, threshold: u64) -> u64 {
         loop {

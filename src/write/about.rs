@@ -6,7 +6,7 @@ use super::sheets::SheetNames;
 use super::style;
 use crate::eval::{Block, Results};
 use crate::load::Table;
-use crate::stats::{BOOTSTRAP_MIN_VALUES, DEFAULT_RESAMPLES, DEFAULT_SEED, DRAW_BUDGET};
+use crate::stats::{BOOTSTRAP_MIN_VALUES, DEFAULT_RESAMPLES, DEFAULT_SEED, EXACT_UP_TO};
 
 pub const DISCLAIMER: &str = "sheaf summarises data. Where a figure feeds a decision that can hurt someone (a safety limit, a product \
 release), it does not replace the rules and the qualified review that apply there.";
@@ -119,8 +119,7 @@ fn facts(results: &Results, table: &Table, run: &super::RunInfo) -> Vec<(&'stati
     facts.push((
         "bootstrap",
         format!(
-            "{DEFAULT_RESAMPLES} resamples, seed {DEFAULT_SEED}, 95% percentile intervals, none below {BOOTSTRAP_MIN_VALUES} values; over {} values, medians from directly drawn order statistics and the mean by Cornish-Fisher expansion",
-            DRAW_BUDGET / DEFAULT_RESAMPLES
+            "95% percentile intervals, none below {BOOTSTRAP_MIN_VALUES} values; up to {EXACT_UP_TO} values, the median's exact bootstrap distribution and the mean's by saddlepoint approximation; over that, {DEFAULT_RESAMPLES} medians from directly drawn order statistics (seed {DEFAULT_SEED}) and the mean by Cornish-Fisher expansion",
         ),
     ));
     for (i, c) in CONVENTIONS.iter().enumerate() {

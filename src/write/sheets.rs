@@ -11,7 +11,7 @@ use crate::eval::{
 };
 use crate::stats::{
     AgainstNoise, BOOTSTRAP_MIN_VALUES, BootstrapIntervals, DEFAULT_RESAMPLES, DEFAULT_SEED,
-    DRAW_BUDGET, SHAPE_NOTE_CUTOFF,
+    EXACT_UP_TO, SHAPE_NOTE_CUTOFF,
 };
 
 /// Sheet names in use, so every new one is unique and at most 31 characters.
@@ -90,15 +90,16 @@ the change is signed (after minus before), and of equal changes the first row's 
 / MAD| above 3.5 (Iglewicz and Hoaglin 1993), in either direction. Skewness G1 and excess kurtosis G2 (adjusted, Joanes and Gill \
 1998) are set against their standard errors for normal samples of the same size, SES = sqrt(6n(n-1)/((n-2)(n+1)(n+3))) and \
 SEK = 2 SES sqrt((n^2-1)/((n-3)(n+5))); 'skewed' when |G1 / SES| is above {cutoff}, 'heavy tails' when G2 / SEK is above \
-{cutoff}. Bootstrap: 95% percentile intervals from {DEFAULT_RESAMPLES} resamples, seed {DEFAULT_SEED}, so reruns agree; none \
-below {BOOTSTRAP_MIN_VALUES} values, where resamples repeat a few values and the interval is too narrow to be 95%. Columns over \
-{full} values are not resampled in full: the median's resamples draw their middle order statistics directly (the same \
-distribution) and the mean's interval is the Cornish-Fisher expansion of its bootstrap distribution (Hall 1992); the 'bootstrap \
+{cutoff}. Bootstrap: 95% percentile intervals of the mean and the median; none below {BOOTSTRAP_MIN_VALUES} values, where \
+resamples repeat a few values and the interval is too narrow to be 95%. Up to {EXACT_UP_TO} values no resamples are drawn: the \
+median's interval is read from its exact bootstrap distribution (binomial probabilities of order statistics, Efron 1979) and the \
+mean's from the saddlepoint approximation of its bootstrap distribution (Davison and Hinkley 1988). Over that, \
+{DEFAULT_RESAMPLES} resampled medians are drawn from their middle order statistics directly (seed {DEFAULT_SEED}, so reruns \
+agree) and the mean's interval is the Cornish-Fisher expansion of its bootstrap distribution (Hall 1992); the 'bootstrap \
 method' column says which. Status: warn for values beyond the 3 IQR fences or a mean-median gap above {GAP_WARN_IQR} IQR; note \
 for a gap above {GAP_NOTE_IQR} IQR, skewed, heavy tails, or fewer than 3 values. 1.5 IQR outliers and |modified z| above 3.5 are \
 listed but raise no status: normal data show them often. Thresholds are common practice, not from a published source.",
         cutoff = SHAPE_NOTE_CUTOFF,
-        full = DRAW_BUDGET / DEFAULT_RESAMPLES
     )
 }
 
