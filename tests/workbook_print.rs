@@ -609,7 +609,8 @@ fn a_group_without_rows_is_listed_with_zero_rows() {
 }
 
 /// With `--compare`, the first sheet lists each figure the Changes sheet
-/// flags as moved, linked to its row there: October against September.
+/// flags as moved, linked to its row there: October against September; and
+/// a comparison with a later period is warned about there.
 #[test]
 fn the_first_sheet_links_every_moved_figure_to_its_changes_row() {
     let dir = tempfile::tempdir().unwrap();
@@ -667,4 +668,14 @@ fn the_first_sheet_links_every_moved_figure_to_its_changes_row() {
         assert!(words.starts_with(&named), "{words} vs {named}");
         assert_eq!(glance[row][0].to_string(), "moved");
     }
+    // Compared the wrong way round: the first sheet says so too.
+    run("depot-2026-09.xlsx", "sep-again.xlsx", Some("oct.xlsx"));
+    let glance = common::cells(&dir.path().join("sep-again.xlsx"), "At a glance");
+    let said = "--compare oct.xlsx is of period 2026-10, a later period than this file (2026-09)";
+    assert!(
+        glance
+            .iter()
+            .any(|row| row[0].to_string() == "warn" && row[2].to_string().starts_with(said)),
+        "{glance:?}"
+    );
 }

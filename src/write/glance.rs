@@ -47,6 +47,7 @@ pub fn glance(
         r += 1;
     }
     r = reading_file(sheet, r, reading)?;
+    r = warnings(sheet, r, &results.warnings)?;
     r = checks(sheet, r + 1, results, &places.checks)?;
     let r = robustness(sheet, r + 1, results, &places.robustness)?;
     if let Some(moved) = &places.moved {
@@ -95,6 +96,34 @@ fn reading_file(
         sheet.write_string_with_format(r, 0, "note", &top(style::status("note")))?;
         sheet.write_string_with_format(r, 1, note.topic, &top(Format::new()))?;
         explanation(sheet, r, &note.text)?;
+    }
+    Ok(r + 1)
+}
+
+/// Most warnings the first sheet lists; the Checks sheet has them all.
+const GLANCE_WARNINGS: usize = 20;
+
+/// The run's warnings, which the Checks sheet also lists: a comparison
+/// with a result of the same or a later period, groups that appeared or
+/// disappeared since it, likely mistakes in the recipe. Written after a
+/// blank row below `r`; returns the last row written (`r` itself when
+/// there is none).
+fn warnings(sheet: &mut Worksheet, r: u32, warnings: &[String]) -> Result<u32, XlsxError> {
+    if warnings.is_empty() {
+        return Ok(r);
+    }
+    let mut r = r + 1;
+    sheet.write_string_with_format(r, 0, "warnings", &style::header())?;
+    for warning in warnings.iter().take(GLANCE_WARNINGS) {
+        r += 1;
+        sheet.write_string_with_format(r, 0, "warn", &top(style::status("warn")))?;
+        let text = warning.strip_prefix("warning: ").unwrap_or(warning);
+        explanation(sheet, r, text)?;
+    }
+    if warnings.len() > GLANCE_WARNINGS {
+        r += 1;
+        let more = warnings.len() - GLANCE_WARNINGS;
+        explanation(sheet, r, &format!("... and {more} more on the Checks sheet"))?;
     }
     Ok(r + 1)
 }
