@@ -593,7 +593,7 @@ fn trend_charts_mark_points_leave_gaps_and_show_shares_as_percentages() {
 /// Every group of a block is listed: Ridge has no parcel of 20 kg or more
 /// this month, so "Heavy parcels" (`where heavy`) shows it with 0 rows, a
 /// count of 0 and "no rows" where a figure has no value, in the order of
-/// the other blocks.
+/// the other blocks; the Checks sheet says "no rows" for it too.
 #[test]
 fn a_group_without_rows_is_listed_with_zero_rows() {
     let dir = tempfile::tempdir().unwrap();
@@ -606,6 +606,13 @@ fn a_group_without_rows_is_listed_with_zero_rows() {
     assert_eq!(under(&heavy[at], ridge, "rows"), 0.0);
     assert_eq!(under(&heavy[at], ridge, "n"), 0.0);
     assert_eq!(ridge[3], Data::String("no rows".into()));
+    // The Checks sheet's list of figures without a value says the same.
+    let checks = common::cells(&out, "Checks");
+    let listed = checks
+        .iter()
+        .find(|r| r[0] == "Heavy parcels / Ridge / centre")
+        .unwrap();
+    assert!(listed[3].to_string().starts_with("no rows"), "{listed:?}");
 }
 
 /// With `--compare`, the first sheet lists each figure the Changes sheet

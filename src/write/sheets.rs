@@ -727,6 +727,9 @@ fn below_checks(
     Ok(r)
 }
 
+/// Why a figure of a group with no rows in its block has no value.
+const NO_ROWS_REASON: &str = "no rows: none of the group's rows passes the block's `where`";
+
 /// (where, why) for every figure that has no value.
 pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
     let mut found = Vec::new();
@@ -760,9 +763,14 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
                 for row in rows {
                     for (label, value) in names.iter().zip(&row.values) {
                         if let One::Undefined(why) = value {
+                            // A group listed only because other blocks have it.
+                            let why = match row.rows {
+                                0 => NO_ROWS_REASON.to_string(),
+                                _ => why.clone(),
+                            };
                             found.push((
                                 format!("{name} / {} / {label}", group_label(&row.group)),
-                                why.clone(),
+                                why,
                             ));
                         }
                     }
