@@ -682,7 +682,7 @@ fn the_first_sheet_links_every_moved_figure_to_its_changes_row() {
     assert!(
         glance
             .iter()
-            .any(|row| row[0].to_string() == "warn" && row[2].to_string().starts_with(said)),
+            .any(|row| row[0] == "warn" && row[2].to_string().starts_with(said)),
         "{glance:?}"
     );
 }

@@ -123,7 +123,11 @@ fn warnings(sheet: &mut Worksheet, r: u32, warnings: &[String]) -> Result<u32, X
     if warnings.len() > GLANCE_WARNINGS {
         r += 1;
         let more = warnings.len() - GLANCE_WARNINGS;
-        explanation(sheet, r, &format!("... and {more} more on the Checks sheet"))?;
+        explanation(
+            sheet,
+            r,
+            &format!("... and {more} more on the Checks sheet"),
+        )?;
     }
     Ok(r + 1)
 }
