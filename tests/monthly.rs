@@ -152,11 +152,8 @@ fn a_corrupt_file_is_named_and_the_rest_complete() {
             "{m}"
         );
     }
-    let trend = cells(&dir.path().join("out/trend.xlsx"), "Trend");
-    let periods: std::collections::BTreeSet<String> =
-        trend.iter().skip(1).map(|r| r[0].to_string()).collect();
     assert_eq!(
-        periods.into_iter().collect::<Vec<_>>(),
+        trend_periods(&dir.path().join("out/trend.xlsx")),
         ["2026-08", "2026-09", "2026-10"]
     );
 }
@@ -317,13 +314,18 @@ fn lock_files_hidden_files_and_earlier_results_are_left_out_and_named() {
             "{file}: {t}"
         );
     }
-    let trend = cells(&months.join("trend.xlsx"), "Trend");
-    let periods: std::collections::BTreeSet<String> =
-        trend.iter().skip(1).map(|r| r[0].to_string()).collect();
     assert_eq!(
-        periods.into_iter().collect::<Vec<_>>(),
+        trend_periods(&months.join("trend.xlsx")),
         ["2026-08", "2026-09", "2026-10"]
     );
+}
+
+/// The periods a trend workbook's Trend sheet holds, in order.
+fn trend_periods(trend: &Path) -> Vec<String> {
+    let rows = cells(trend, "Trend");
+    let periods: std::collections::BTreeSet<String> =
+        rows.iter().skip(1).map(|r| r[0].to_string()).collect();
+    periods.into_iter().collect()
 }
 
 #[test]
