@@ -22,8 +22,8 @@ use crate::stats::{self, BinRule, Histogram};
 
 pub use panel::{
     BoxSummary, CellName, CellPlace, FigureKind, Finding, Flagged, GAP_NOTE_IQR, GAP_WARN_IQR,
-    Influence, OnDates, PANEL_FIGURES, PANEL_LABELS, PanelEntry, PanelFigure, Robustness, Rule,
-    Signals, Status, dates_note, figure_value, findings, panel_figure,
+    Influence, Judged, OnDates, PANEL_FIGURES, PANEL_LABELS, PanelEntry, PanelFigure, Robustness,
+    Rule, Signals, Status, dates_note, figure_value, findings, panel_figure,
 };
 pub use value::{Context, One, Previous, Row, Rows, Scope, Term, Value};
 

@@ -37,14 +37,31 @@ pub struct PanelFigure {
     pub kind: FigureKind,
     /// What it becomes for a date column.
     pub on_dates: OnDates,
-    /// Whether a move beyond the recipe's `drift` flags it on the Changes
-    /// sheet. Shape figures, extremes and counts of odd cells are not
-    /// flagged (sheaf's rule: the robustness sheet judges shape against its
-    /// own noise, and a minimum or maximum is one row, not a level); their
-    /// change is still listed.
-    pub drift_flagged: bool,
+    /// How its change between two periods is judged on the Changes sheet.
+    pub judged: Judged,
     /// Computes it from a group's sample and its fenced outliers.
     pub value: fn(&Sample, &Fenced) -> One,
+}
+
+/// How a panel figure's change between two periods is judged (see
+/// `history::judge`): a level by the recipe's `drift` and noise rule; the
+/// shape figures by their noise verdict on the Robustness sheet; the
+/// extremes by the previous period's far fences (a minimum or maximum is
+/// one row, not a level); the rest listed, never flagged.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Judged {
+    /// By drift and, with standard errors, the noise rule.
+    Level,
+    /// Skewness g1: by its verdict against its standard error.
+    Skewness,
+    /// Kurtosis b2: by its heavy-tails verdict.
+    Kurtosis,
+    /// The minimum: a new extreme beyond the previous low far fence.
+    Minimum,
+    /// The maximum: a new extreme beyond the previous high far fence.
+    Maximum,
+    /// Listed, never flagged.
+    Listed,
 }
 
 /// What a panel figure of a date column is.
@@ -65,7 +82,7 @@ const fn figure(
     label: &'static str,
     kind: FigureKind,
     on_dates: OnDates,
-    drift_flagged: bool,
+    judged: Judged,
     value: fn(&Sample, &Fenced) -> One,
 ) -> PanelFigure {
     PanelFigure {
@@ -73,73 +90,84 @@ const fn figure(
         label,
         kind,
         on_dates,
-        drift_flagged,
+        judged,
         value,
     }
 }
 
 use FigureKind::{Count, Measure, Shape, Words};
+use Judged::{Kurtosis, Level, Listed, Maximum, Minimum, Skewness};
 use OnDates::{Date, DateList, Days, Same};
 
 /// The standard panel's figures, in the order the panel sheet shows them.
 pub const PANEL_FIGURES: [PanelFigure; 18] = [
-    figure("n", "n", Count, Same, true, |s, _| {
+    figure("n", "n", Count, Same, Level, |s, _| {
         One::Number(s.count() as f64)
     }),
-    figure("missing", "missing", Count, Same, false, |s, _| {
+    figure("missing", "missing", Count, Same, Listed, |s, _| {
         One::Number(s.missing() as f64)
     }),
-    figure("mean", "mean", Measure, Date, true, |s, _| {
+    figure("mean", "mean", Measure, Date, Level, |s, _| {
         from_stat(s.mean())
     }),
-    figure("sd", "sd", Measure, Days, true, |s, _| {
+    figure("sd", "sd", Measure, Days, Level, |s, _| {
         from_stat(s.sd(Denominator::Sample))
     }),
-    figure("min", "min", Measure, Date, false, |s, _| {
+    figure("min", "min", Measure, Date, Minimum, |s, _| {
         from_stat(s.min())
     }),
-    figure("q1", "Q1", Measure, Date, true, |s, _| {
+    figure("q1", "Q1", Measure, Date, Level, |s, _| {
         from_stat(stats::quartile(s, 1, QuantileMethod::default()))
     }),
-    figure("median", "median", Measure, Date, true, |s, _| {
+    figure("median", "median", Measure, Date, Level, |s, _| {
         from_stat(stats::median(s))
     }),
-    figure("q3", "Q3", Measure, Date, true, |s, _| {
+    figure("q3", "Q3", Measure, Date, Level, |s, _| {
         from_stat(stats::quartile(s, 3, QuantileMethod::default()))
     }),
-    figure("max", "max", Measure, Date, false, |s, _| {
+    figure("max", "max", Measure, Date, Maximum, |s, _| {
         from_stat(s.max())
     }),
-    figure("range", "range", Measure, Days, false, |s, _| {
+    figure("range", "range", Measure, Days, Listed, |s, _| {
         from_stat(s.range())
     }),
-    figure("iqr", "IQR", Measure, Days, true, |s, _| {
+    figure("iqr", "IQR", Measure, Days, Level, |s, _| {
         from_stat(stats::iqr(s, QuantileMethod::default()))
     }),
-    figure("modes", "modes", Measure, DateList, false, |s, _| modes(s)),
-    figure("mode_basis", "mode basis", Words, Same, false, |s, _| {
+    figure("modes", "modes", Measure, DateList, Listed, |s, _| modes(s)),
+    figure("mode_basis", "mode basis", Words, Same, Listed, |s, _| {
         mode_basis(s)
     }),
-    figure("skewness_g1", "skewness g1", Shape, Same, false, |s, _| {
-        from_stat(moment_skewness(s))
-    }),
+    figure(
+        "skewness_g1",
+        "skewness g1",
+        Shape,
+        Same,
+        Skewness,
+        |s, _| from_stat(moment_skewness(s)),
+    ),
     figure(
         "bowley_skewness",
         "Bowley skewness",
         Shape,
         Same,
-        false,
+        Listed,
         |s, _| from_stat(stats::bowley(s, QuantileMethod::default())),
     ),
-    figure("kurtosis_b2", "kurtosis b2", Shape, Same, false, |s, _| {
-        from_stat(s.kurtosis(false))
-    }),
+    figure(
+        "kurtosis_b2",
+        "kurtosis b2",
+        Shape,
+        Same,
+        Kurtosis,
+        |s, _| from_stat(s.kurtosis(false)),
+    ),
     figure(
         "low_outliers",
         "low outliers",
         Count,
         Same,
-        false,
+        Listed,
         |_, f| outlier_count(f, |o| o.low.len()),
     ),
     figure(
@@ -147,7 +175,7 @@ pub const PANEL_FIGURES: [PanelFigure; 18] = [
         "high outliers",
         Count,
         Same,
-        false,
+        Listed,
         |_, f| outlier_count(f, |o| o.high.len()),
     ),
 ];

@@ -21,6 +21,7 @@
 //!   flagged (no standard error kept, or a count of single rows).
 
 use super::record::Lookup;
+use crate::eval::Judged;
 use crate::stats;
 
 /// How many standard errors of the change a figure must exceed by default.
@@ -71,28 +72,21 @@ impl Flag {
 }
 
 /// How the figure `name` of (block, group) is judged between two records:
-/// a panel figure by its row of `PANEL_FIGURES` (shape figures and extremes
-/// by their own rules, the rest as levels when drift flags them, else
-/// listed); a figures block's figure as a level.
+/// a panel figure by its row of `PANEL_FIGURES` (`Judged`); a figures
+/// block's figure as a level.
 pub fn basis(before: &Lookup, after: &Lookup, block: &str, group: &str, name: &str) -> Basis {
     let Some((column, figure)) = super::panel_figure_of(name) else {
         return Basis::Level;
     };
     let of = |r: &Lookup, key: &str| r.find(block, group, &format!("{column} {key}"));
-    let shape_test: Option<fn(f64, f64) -> Option<bool>> = match figure.key {
-        "skewness_g1" => Some(skew_beyond),
-        "kurtosis_b2" => Some(tails_beyond),
-        _ => None,
-    };
-    if let Some(test) = shape_test {
+    let shape = |test: fn(f64, f64) -> Option<bool>| {
         let verdict = |r: &Lookup| test(r.find(block, group, name)?, of(r, "n")?);
-        return Basis::Shape {
+        Basis::Shape {
             was_beyond: verdict(before),
             now_beyond: verdict(after),
-        };
-    }
-    if let low @ ("min" | "max") = figure.key {
-        let low = low == "min";
+        }
+    };
+    let extreme = |low: bool| {
         let beyond = (|| {
             let (q1, q3) = (of(before, "q1")?, of(before, "q3")?);
             let was = before.find(block, group, name)?;
@@ -105,14 +99,17 @@ pub fn basis(before: &Lookup, after: &Lookup, block: &str, group: &str, name: &s
                 value > q3 + far && value > was
             })
         })();
-        return Basis::Extreme {
+        Basis::Extreme {
             beyond_previous_fences: beyond,
-        };
-    }
-    if figure.drift_flagged {
-        Basis::Level
-    } else {
-        Basis::Listed
+        }
+    };
+    match figure.judged {
+        Judged::Level => Basis::Level,
+        Judged::Skewness => shape(skew_beyond),
+        Judged::Kurtosis => shape(tails_beyond),
+        Judged::Minimum => extreme(true),
+        Judged::Maximum => extreme(false),
+        Judged::Listed => Basis::Listed,
     }
 }
 
