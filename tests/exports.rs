@@ -396,3 +396,18 @@ fn inspect_shows_the_top_rows_and_the_header_it_chose() {
         text(&o)
     );
 }
+
+/// A semicolon export under a title line with no separator, and decimal
+/// commas in its cells: the delimiter comes from the table's rows, not the
+/// title (which once made sheaf split each row at its decimal commas).
+#[test]
+fn a_title_line_does_not_decide_the_delimiter() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(
+        dir.path().join("titled.csv"),
+        "Lab QC export (invented)\n\nline;shipped;weight\nA;2026-10-02;12,5\nA;2026-10-03;13,1\nB;2026-10-04;11,9\nB;2026-10-05;1.012,4\nTotal;;1.049,9\n",
+    )
+    .unwrap();
+    let expected = mean(&[12.5, 13.1, 11.9, 1012.4]);
+    assert!((calc(dir.path(), "mean(weight)", "titled.csv") - expected).abs() < 1e-9);
+}

@@ -25,22 +25,50 @@ pub fn sheet_name(path: &Path) -> String {
         .unwrap_or_else(|| "data".into())
 }
 
-/// The most frequent of `,` `;` tab `|` in the first line, outside quotes.
-fn detect_delimiter(first_line: &str) -> u8 {
-    let mut counts = [(b',', 0), (b';', 0), (b'\t', 0), (b'|', 0)];
+/// How many lines of the head the delimiter is looked for in.
+const DELIMITER_LINES: usize = 20;
+
+/// The delimiter of the table in `head`, under any title lines: of `,` `;`
+/// tab `|`, the one that splits the most of the first non-blank lines into
+/// the same number of fields (a table's rows agree; a title line, or a
+/// decimal comma in some cells, does not), then the one that splits them
+/// into more; a comma when none appears.
+fn detect_delimiter(head: &str) -> u8 {
+    let lines: Vec<&str> = head
+        .lines()
+        .filter(|l| !l.trim().is_empty())
+        .take(DELIMITER_LINES)
+        .collect();
+    // (lines that agree, the count they agree on) for one delimiter.
+    let agreement = |d: u8| {
+        let counts: Vec<usize> = lines.iter().map(|l| count_outside_quotes(l, d)).collect();
+        counts
+            .iter()
+            .filter(|&&c| c > 0)
+            .map(|&c| (counts.iter().filter(|&&x| x == c).count(), c))
+            .max()
+            .unwrap_or((0, 0))
+    };
+    [b',', b';', b'\t', b'|']
+        .into_iter()
+        .map(|d| (agreement(d), d))
+        .filter(|((agreeing, _), _)| *agreeing > 0)
+        .max_by_key(|(score, _)| *score)
+        .map_or(b',', |(_, d)| d)
+}
+
+/// How often `delimiter` stands in `line` outside double quotes.
+fn count_outside_quotes(line: &str, delimiter: u8) -> usize {
     let mut quoted = false;
-    for byte in first_line.bytes() {
+    let mut count = 0;
+    for byte in line.bytes() {
         if byte == b'"' {
             quoted = !quoted;
-        } else if !quoted && let Some(entry) = counts.iter_mut().find(|(d, _)| *d == byte) {
-            entry.1 += 1;
+        } else if !quoted && byte == delimiter {
+            count += 1;
         }
     }
-    counts
-        .iter()
-        .max_by_key(|(_, n)| *n)
-        .filter(|(_, n)| *n > 0)
-        .map_or(b',', |(d, _)| *d)
+    count
 }
 
 /// A `sep=;` first line, as some spreadsheet programs write: its delimiter.
@@ -85,7 +113,7 @@ fn layout(head: &str, options: &LoadOptions, mut notes: ReadNotes) -> Layout {
             (d, true)
         }
         None => {
-            let d = detect_delimiter(first_line);
+            let d = detect_delimiter(head);
             if d != b',' {
                 notes.delimiter = Some(format!("{} (detected)", delimiter_name(d)));
             }
@@ -553,6 +581,15 @@ mod tests {
         assert_eq!(detect_delimiter("a;b;c"), b';');
         assert_eq!(detect_delimiter("a\tb"), b'\t');
         assert_eq!(detect_delimiter("\"x;y\",b"), b',');
+        // Under a title line, with decimal commas in some cells: the table's
+        // semicolons (the first line alone once gave a comma, and the file
+        // read as columns split at each decimal comma).
+        let titled =
+            "Lab QC export (invented)\n\nline;shipped;weight\nA;2026-10-02;12,5\nB;2026-10-04;13\n";
+        assert_eq!(detect_delimiter(titled), b';');
+        let comma_title = "Lab QC, October (invented)\nline;weight\nA;12,5\nB;13,1\nC;9\n";
+        assert_eq!(detect_delimiter(comma_title), b';');
+        assert_eq!(detect_delimiter("x,y\n1,2\n3,4\n"), b',');
         let t = table("\u{feff}depot;weight\nNorth;2,5\nSouth;3\n").unwrap();
         assert_eq!(t.headers(), ["depot", "weight"]);
         let weight = &t.columns[1];
