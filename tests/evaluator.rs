@@ -1053,3 +1053,19 @@ fn a_check_shows_both_sides_of_its_comparison() {
         .collect();
     assert_eq!(shown, ["light 40 35 warn", "both true - pass"]);
 }
+
+/// The names the writers title sheets and charts with: each block's own
+/// name, and a column's `label` where the recipe gives one (its name
+/// where it does not).
+#[test]
+fn blocks_keep_their_names_and_columns_their_labels() {
+    let (_dir, t) = table(DELIVERIES);
+    let source = "label w \"Weight (kg)\"\npanel \"Weights\" of w:\nfigures \"Lateness\" per depot:\n  mean_late = mean(late)\n";
+    let parsed = recipe::parse_and_check(source, Some(&t.headers()));
+    assert!(parsed.is_ok(), "{:?}", parsed.diagnostics);
+    let results = eval::evaluate(&parsed.recipe, &t).unwrap();
+    let names: Vec<&str> = results.blocks.iter().map(Block::name).collect();
+    assert_eq!(names, ["Weights", "Lateness"]);
+    assert_eq!(results.column_label("w"), "Weight (kg)");
+    assert_eq!(results.column_label("late"), "late");
+}

@@ -205,11 +205,6 @@ impl Results {
     pub fn column_label<'a>(&'a self, column: &'a str) -> &'a str {
         self.labels.get(column).map_or(column, String::as_str)
     }
-
-    /// True when a `fail` check did not pass.
-    pub fn failed(&self) -> bool {
-        self.checks.iter().any(|c| c.outcome == Outcome::Fail)
-    }
 }
 
 /// Most groups one block may form; more would make sheets no one can read
