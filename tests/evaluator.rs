@@ -1069,3 +1069,57 @@ fn blocks_keep_their_names_and_columns_their_labels() {
     assert_eq!(results.column_label("w"), "Weight (kg)");
     assert_eq!(results.column_label("late"), "late");
 }
+
+/// The cells the Checks and About sheets list as holding no number: those
+/// of the columns the recipe uses (behind its `let`s too), with the cell,
+/// the column and what the cell held; the unused columns' cells are not
+/// listed.
+#[test]
+fn cells_without_a_number_are_listed_for_the_columns_used() {
+    let (_dir, t) = table(DELIVERIES);
+    let source = "let m2 = m * 2\npanel \"P\" of w, m2:\n";
+    let parsed = recipe::parse_and_check(source, Some(&t.headers()));
+    assert!(parsed.is_ok(), "{:?}", parsed.diagnostics);
+    let results = eval::evaluate(&parsed.recipe, &t).unwrap();
+    let listed: Vec<String> = results
+        .missing_cells
+        .iter()
+        .map(|c| format!("{} {} {:?} '{}'", c.address, c.column, c.kind, c.content))
+        .collect();
+    // In the order the recipe names the columns: m (behind m2) first.
+    assert_eq!(
+        listed,
+        [
+            "deliveries!G3 m TextInNumbers 'n/a'",
+            "deliveries!A4 w Blank ''"
+        ]
+    );
+}
+
+/// An outlier of a `let` names the input cell behind it and the number
+/// as the input has it (a `let` built from one data column, used twice,
+/// is still that column's); 100 is beyond Tukey's (1977) fences of
+/// 1, 2, 3, 4, 100 (hinges 2 and 4).
+#[test]
+fn outliers_of_a_let_name_the_input_cell_behind_it() {
+    let (_dir, t) = table("id,x\na,1\nb,2\nc,3\nd,4\ne,100\n");
+    let source = "let x2 = x * 2\nlet x3 = x2 + x\npanel \"P\" of x2, x3:\n";
+    let parsed = recipe::parse_and_check(source, Some(&t.headers()));
+    assert!(parsed.is_ok(), "{:?}", parsed.diagnostics);
+    let results = eval::evaluate(&parsed.recipe, &t).unwrap();
+    let Block::Panel { entries, .. } = &results.blocks[0] else {
+        panic!("a panel")
+    };
+    let flagged: Vec<String> = entries
+        .iter()
+        .flat_map(|e| &e.robustness.outliers_wide)
+        .map(|f| format!("{} {:?} {}", f.address, f.address.source_value, f.value))
+        .collect();
+    assert_eq!(
+        flagged,
+        [
+            "deliveries!B6 Some(100.0) 200",
+            "deliveries!B6 Some(100.0) 300"
+        ]
+    );
+}
