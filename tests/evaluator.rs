@@ -828,8 +828,7 @@ fn run_recipe(
             c.name,
             eval::group_label(c.group.as_deref().unwrap_or_default()),
             c.outcome.word(),
-            c.note
-                .as_ref()
+            c.note_words()
                 .map(|n| format!(" ({n})"))
                 .unwrap_or_default()
         ));
@@ -1052,4 +1051,250 @@ fn a_check_shows_both_sides_of_its_comparison() {
         })
         .collect();
     assert_eq!(shown, ["light 40 35 warn", "both true - pass"]);
+}
+
+/// How a reason is reached.
+enum Reach {
+    /// By a recipe the checker accepts.
+    Recipe,
+    /// Only past the checker, which refuses the recipe first (the evaluator
+    /// still gives the reason rather than a wrong value or a panic).
+    PastTheChecker,
+}
+
+/// Every reason a value can be missing, each with a recipe over DELIVERIES
+/// that gives it (`change` compares with a previous `mean(w)` of 0).
+/// `Reason::NoRows` is written by the sheets, not the evaluator: see
+/// `tests/workbook_print.rs` (a group with no rows says "no rows").
+const REASONS: &[(&str, &str, Reach)] = &[
+    (
+        "no values",
+        "figures \"R\":\n    v = mean(status)\n",
+        Reach::Recipe,
+    ),
+    (
+        "constant column",
+        "figures \"R\":\n    v = skewness(k)\n",
+        Reach::Recipe,
+    ),
+    (
+        "too few values",
+        "figures \"R\":\n    v = sd(if x > 4 then w else w / 0)\n",
+        Reach::Recipe,
+    ),
+    (
+        "zero iqr",
+        "figures \"R\":\n    v = bowley(k)\n",
+        Reach::Recipe,
+    ),
+    ("zero sd", "panel \"P\" of k:\n", Reach::Recipe),
+    ("zero mad", "panel \"P\" of k:\n", Reach::Recipe),
+    (
+        "beyond double range",
+        "figures \"R\":\n    v = variance(x * 1e300)\n",
+        Reach::Recipe,
+    ),
+    (
+        "bad argument",
+        "figures \"R\":\n    v = trimmed_mean(w, count(w))\n",
+        Reach::Recipe,
+    ),
+    (
+        "not finite",
+        "figures \"R\":\n    v = mean(w) / 0\n",
+        Reach::Recipe,
+    ),
+    (
+        "not true or false",
+        "check \"c\" warn: if mean(w) > 0 then 1 else 2\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "wrong kind",
+        "figures \"R\":\n    v = -modes(w)\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "cannot combine",
+        "figures \"R\":\n    v = modes(w) + 1\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "unknown function",
+        "figures \"R\":\n    v = nonesuch(w)\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "argument not one number",
+        "figures \"R\":\n    v = percentile(w, modes(w))\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "needs date",
+        "figures \"R\":\n    v = year_of(1)\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "needs number",
+        "figures \"R\":\n    v = abs(modes(w))\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "change needs one number",
+        "figures \"R\":\n    v = change(modes(w))\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "no previous",
+        "figures \"R\" per depot:\n    v = change(mean(w))\n",
+        Reach::Recipe,
+    ),
+    (
+        "previous is zero",
+        "figures \"R\":\n    v = change(mean(w))\n",
+        Reach::Recipe,
+    ),
+    (
+        "share needs rows",
+        "figures \"R\":\n    v = share(1 > 0)\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "per row",
+        "check \"c\" warn: w > 1 and 1 > 0\n",
+        Reach::PastTheChecker,
+    ),
+];
+
+/// The name of a reason's variant. The match is exhaustive, so a new
+/// reason does not compile until it is named here, and the test below
+/// then asks for a case in REASONS.
+fn reason_name(reason: &eval::Reason) -> &'static str {
+    use eval::Reason as R;
+    use sheaf::stats::Undefined as U;
+    match reason {
+        R::Stat(U::NoValues) => "no values",
+        R::Stat(U::ConstantColumn) => "constant column",
+        R::Stat(U::TooFewValues { .. }) => "too few values",
+        R::Stat(U::ZeroSd) => "zero sd",
+        R::Stat(U::ZeroIqr) => "zero iqr",
+        R::Stat(U::ZeroMad) => "zero mad",
+        R::Stat(U::BeyondDoubleRange) => "beyond double range",
+        R::Stat(U::BadArgument(_)) => "bad argument",
+        R::NoRows => "no rows",
+        R::NotFinite => "not finite",
+        R::NotTrueOrFalse => "not true or false",
+        R::WrongKind => "wrong kind",
+        R::CannotCombine(_) => "cannot combine",
+        R::UnknownFunction(_) => "unknown function",
+        R::ArgumentNotOneNumber(_) => "argument not one number",
+        R::NeedsDate(_) => "needs date",
+        R::NeedsNumber(_) => "needs number",
+        R::ChangeNeedsOneNumber => "change needs one number",
+        R::NoPrevious => "no previous",
+        R::PreviousIsZero => "previous is zero",
+        R::ShareNeedsRows => "share needs rows",
+        R::PerRow => "per row",
+    }
+}
+
+/// Every variant's name: what `reason_name` gives, listed once more so the
+/// test can ask that each has a case.
+const REASON_NAMES: &[&str] = &[
+    "no values",
+    "constant column",
+    "too few values",
+    "zero sd",
+    "zero iqr",
+    "zero mad",
+    "beyond double range",
+    "bad argument",
+    "no rows",
+    "not finite",
+    "not true or false",
+    "wrong kind",
+    "cannot combine",
+    "unknown function",
+    "argument not one number",
+    "needs date",
+    "needs number",
+    "change needs one number",
+    "no previous",
+    "previous is zero",
+    "share needs rows",
+    "per row",
+];
+
+/// Every reason anywhere in a run's results.
+fn reasons_in(results: &eval::Results) -> Vec<eval::Reason> {
+    let undefined = |v: &One| match v {
+        One::Undefined(why) => Some(why.clone()),
+        _ => None,
+    };
+    let mut found = Vec::new();
+    for block in &results.blocks {
+        match block {
+            Block::Figures { rows, .. } => {
+                found.extend(rows.iter().flat_map(|r| &r.values).filter_map(undefined));
+            }
+            Block::Panel { entries, .. } => {
+                for e in entries {
+                    found.extend(e.figures.iter().filter_map(undefined));
+                    let r = &e.robustness;
+                    let ones = [&r.gap_in_sd, &r.gap_in_iqr, &r.mean_without, &r.sd_change];
+                    found.extend(ones.into_iter().filter_map(undefined));
+                    found.extend(r.fences_undefined.clone());
+                    found.extend(r.modified_z.clone().err());
+                    found.extend(r.mean_influence.clone().err());
+                    found.extend(r.skewness.clone().err());
+                    found.extend(r.bootstrap.clone().err());
+                }
+            }
+        }
+    }
+    found.extend(results.checks.iter().filter_map(|c| c.note.clone()));
+    found
+}
+
+#[test]
+fn every_reason_for_a_missing_value_is_reached() {
+    let (_dir, t) = table(DELIVERIES);
+    let previous: eval::Previous = [(("mean(w)".to_string(), "(all rows)".to_string()), 0.0)]
+        .into_iter()
+        .collect();
+    let mut wrong = Vec::new();
+    for (name, source, reach) in REASONS {
+        let checked = recipe::parse_and_check(source, Some(&t.headers()));
+        let parsed = match reach {
+            Reach::Recipe if !checked.is_ok() => {
+                wrong.push(format!("{name}: refused: {:?}", checked.diagnostics));
+                continue;
+            }
+            Reach::Recipe => checked,
+            Reach::PastTheChecker if checked.is_ok() => {
+                wrong.push(format!(
+                    "{name}: the checker accepts {source:?}; say Recipe"
+                ));
+                continue;
+            }
+            Reach::PastTheChecker => recipe::parse(source),
+        };
+        assert!(
+            parsed.diagnostics.is_empty(),
+            "{name}: {:?}",
+            parsed.diagnostics
+        );
+        let results = eval::evaluate_against(&parsed.recipe, &t, Some(previous.clone())).unwrap();
+        let found = reasons_in(&results);
+        if !found.iter().any(|r| reason_name(r) == *name) {
+            wrong.push(format!("{name}: {source:?} gave {found:?}"));
+        }
+    }
+    let cased: Vec<&str> = REASONS.iter().map(|(name, _, _)| *name).collect();
+    for name in REASON_NAMES {
+        if !cased.contains(name) && *name != "no rows" {
+            wrong.push(format!("no case reaches `{name}`"));
+        }
+    }
+    assert!(wrong.is_empty(), "{}", wrong.join("\n"));
 }

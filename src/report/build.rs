@@ -21,13 +21,14 @@ pub(super) fn value(v: &One) -> Value {
     }
 }
 
-fn reason(why: &str) -> Reason {
+/// A reason in its JSON shape, `{"reason": "..."}`: the words are written here.
+fn reason(why: &impl std::fmt::Display) -> Reason {
     Reason {
         reason: why.to_string(),
     }
 }
 
-fn or_reason<T, U>(r: &Result<T, String>, f: impl FnOnce(&T) -> U) -> OrReason<U> {
+fn or_reason<T, U>(r: &Result<T, eval::Reason>, f: impl FnOnce(&T) -> U) -> OrReason<U> {
     match r {
         Ok(t) => OrReason::Value(f(t)),
         Err(why) => OrReason::NoValue(reason(why)),
@@ -167,7 +168,7 @@ fn cells(flagged: &[eval::Flagged]) -> Vec<CellValue> {
         .collect()
 }
 
-fn influence(i: &Result<eval::Influence, String>) -> OrReason<InfluenceReport> {
+fn influence(i: &Result<eval::Influence, eval::Reason>) -> OrReason<InfluenceReport> {
     or_reason(i, |i| InfluenceReport {
         change: i.change,
         cell: i.cell.address.to_string(),
@@ -175,7 +176,7 @@ fn influence(i: &Result<eval::Influence, String>) -> OrReason<InfluenceReport> {
     })
 }
 
-fn against_noise(n: &Result<crate::stats::AgainstNoise, String>) -> OrReason<NoiseReport> {
+fn against_noise(n: &Result<crate::stats::AgainstNoise, eval::Reason>) -> OrReason<NoiseReport> {
     or_reason(n, |n| NoiseReport {
         estimate: n.estimate,
         standard_error: n.standard_error,
@@ -219,7 +220,7 @@ fn robustness(r: &eval::Robustness) -> RobustnessReport {
         skewness_change_without_outliers: value(&r.skewness_change),
         largest_mean_influence: influence(&r.mean_influence),
         largest_sd_influence: influence(&r.sd_influence),
-        modified_z_above_3_5: or_reason(&r.modified_z, |list| cells(list)),
+        modified_z_above_3_5: or_reason(&r.modified_z, |list: &Vec<eval::Flagged>| cells(list)),
         skewness_against_noise: against_noise(&r.skewness),
         tails_against_noise: against_noise(&r.tails),
         bootstrap: or_reason(&r.bootstrap, |b| BootstrapReport {
@@ -249,7 +250,7 @@ fn check(c: &eval::CheckResult) -> CheckReport {
             eval::Outcome::Warn => OutcomeReport::Warn,
             eval::Outcome::Fail => OutcomeReport::Fail,
         },
-        note: c.note.clone(),
+        note: c.note_words(),
     }
 }
 
@@ -291,7 +292,7 @@ fn chart(c: &Chart) -> ChartReport {
 fn relative(m: &Move) -> OrReason<f64> {
     match m.relative() {
         Some(r) => OrReason::Value(r),
-        None => OrReason::NoValue(reason("previous was 0")),
+        None => OrReason::NoValue(reason(&"previous was 0")),
     }
 }
 

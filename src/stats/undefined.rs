@@ -18,6 +18,9 @@ pub enum Undefined {
         /// How many the sample has.
         have: usize,
     },
+    /// The standard deviation is zero, so a figure scaled by it is undefined.
+    #[error("sd is zero")]
+    ZeroSd,
     /// The quartiles coincide, so a figure scaled by the IQR is undefined.
     #[error("quartiles coincide (IQR is zero)")]
     ZeroIqr,

@@ -7,7 +7,7 @@ use rust_xlsxwriter::{Workbook, Worksheet, XlsxError};
 use super::style::{self, Shown, Widths, write_one};
 use crate::eval::{
     Block, FigureKind, Flagged, GAP_NOTE_IQR, GAP_WARN_IQR, Influence, One, PANEL_FIGURES,
-    PANEL_LABELS, PanelEntry, Results, Robustness, group_label,
+    PANEL_LABELS, PanelEntry, Reason, Results, Robustness, group_label,
 };
 use crate::stats::{
     AgainstNoise, BOOTSTRAP_MIN_VALUES, BootstrapIntervals, DEFAULT_RESAMPLES, DEFAULT_SEED,
@@ -224,14 +224,11 @@ a group none of whose rows pass the block's `where` is listed with 0 rows and 'n
     Ok(BlockSheets { robustness, narrow })
 }
 
-/// What a group without rows shows where a figure has no value: that it
-/// has no rows, not merely "no values" (the notes say why).
-const NO_ROWS: &str = "no rows";
-
-/// `value`, or [`NO_ROWS`] in place of its reason when its group has no rows.
+/// `value`, or [`Reason::NoRows`] in place of its reason when its group
+/// has no rows: that says more than "no values" (the notes say why).
 fn no_rows_said(rows: usize, value: &One) -> One {
     match value {
-        One::Undefined(_) if rows == 0 => One::Undefined(NO_ROWS.into()),
+        One::Undefined(_) if rows == 0 => One::Undefined(Reason::NoRows),
         other => other.clone(),
     }
 }
@@ -494,27 +491,27 @@ fn fenced_cells(b: &Robustness, list: &[Flagged], measure: Shown) -> One {
     }
 }
 
-fn influence(found: &Result<Influence, String>, part: fn(&Influence) -> One) -> One {
+fn influence(found: &Result<Influence, Reason>, part: fn(&Influence) -> One) -> One {
     found
         .as_ref()
         .map_or_else(|why| One::Undefined(why.clone()), part)
 }
 
 /// The cell whose removal moves a figure most, with its value.
-fn influence_cell(found: &Result<Influence, String>, measure: Shown) -> One {
+fn influence_cell(found: &Result<Influence, Reason>, measure: Shown) -> One {
     match found {
         Ok(i) => One::Text(cells(std::slice::from_ref(&i.cell), measure)),
         Err(why) => One::Undefined(why.clone()),
     }
 }
 
-fn shape(found: &Result<AgainstNoise, String>, part: fn(&AgainstNoise) -> f64) -> One {
+fn shape(found: &Result<AgainstNoise, Reason>, part: fn(&AgainstNoise) -> f64) -> One {
     found
         .as_ref()
         .map_or_else(|why| One::Undefined(why.clone()), |k| One::number(part(k)))
 }
 
-fn shape_note(found: &Result<AgainstNoise, String>, yes: &str) -> One {
+fn shape_note(found: &Result<AgainstNoise, Reason>, yes: &str) -> One {
     match found {
         Ok(k) if k.beyond => One::Text(yes.into()),
         Ok(_) => One::Text("no".into()),
@@ -674,8 +671,8 @@ fn write_check(
     let word = c.outcome.word();
     sheet.write_string_with_format(r, 6, word, &style::status(word))?;
     widths.seen(r, 6, word.len());
-    if let Some(n) = &c.note {
-        widths.seen(r, 7, style::write_text(sheet, r, 7, n)?);
+    if let Some(n) = c.note_words() {
+        widths.seen(r, 7, style::write_text(sheet, r, 7, &n)?);
     }
     Ok(())
 }
@@ -720,18 +717,15 @@ fn below_checks(
         r += 1;
         for (place, reason) in undefined {
             sheet.write_string(r, 0, style::fit(&place))?;
-            sheet.write_string_with_format(r, 3, &reason, &style::reason())?;
+            sheet.write_string_with_format(r, 3, reason.explained(), &style::reason())?;
             r += 1;
         }
     }
     Ok(r)
 }
 
-/// Why a figure of a group with no rows in its block has no value.
-const NO_ROWS_REASON: &str = "no rows: none of the group's rows passes the block's `where`";
-
 /// (where, why) for every figure that has no value.
-pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
+pub fn undefined_figures(results: &Results) -> Vec<(String, Reason)> {
     let mut found = Vec::new();
     for block in &results.blocks {
         match block {
@@ -765,7 +759,7 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
                         if let One::Undefined(why) = value {
                             // A group listed only because other blocks have it.
                             let why = match row.rows {
-                                0 => NO_ROWS_REASON.to_string(),
+                                0 => Reason::NoRows,
                                 _ => why.clone(),
                             };
                             found.push((
