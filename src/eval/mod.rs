@@ -9,6 +9,7 @@ mod aggregate;
 mod noise;
 mod panel;
 mod reason;
+mod robustness_figures;
 mod value;
 
 use std::collections::HashMap;
@@ -27,6 +28,7 @@ pub use panel::{
     Rule, Signals, Status, dates_note, figure_value, findings, panel_figure,
 };
 pub use reason::Reason;
+pub use robustness_figures::{ROBUSTNESS_FIGURES, RobustnessFigure, RobustnessShape};
 pub use value::{Context, One, Previous, Row, Rows, Scope, Term, Value};
 
 /// The label of a group whose key cell is blank.

@@ -185,18 +185,39 @@ fn against_noise(n: &Result<crate::stats::AgainstNoise, eval::Reason>) -> OrReas
     })
 }
 
-/// Outliers beyond a pair of fences, or why there are no fences.
-fn outliers(r: &eval::Robustness, flagged: &[eval::Flagged]) -> OrReason<Vec<CellValue>> {
-    match &r.fences_undefined {
-        Some(why) => OrReason::NoValue(reason(why)),
-        None => OrReason::Value(cells(flagged)),
-    }
-}
-
 fn interval(i: &crate::stats::Interval) -> IntervalReport {
     IntervalReport {
         low: i.low,
         high: i.high,
+    }
+}
+
+fn bootstrap(b: &crate::stats::BootstrapIntervals) -> BootstrapReport {
+    BootstrapReport {
+        level: b.level,
+        resamples: b.resamples,
+        seed: b.seed,
+        method: b.method.words().to_string(),
+        mean: interval(&b.mean),
+        median: interval(&b.median),
+    }
+}
+
+/// One robustness figure in its shape's JSON form.
+fn robustness_figure(
+    shape: &eval::RobustnessShape,
+    r: &eval::Robustness,
+) -> RobustnessFigureReport {
+    use eval::RobustnessShape as S;
+    match *shape {
+        S::One(_, one) => RobustnessFigureReport::Value(value(one(r))),
+        S::Cells(list) => RobustnessFigureReport::Cells(match list(r) {
+            Ok(list) => OrReason::Value(cells(list)),
+            Err(why) => OrReason::NoValue(reason(why)),
+        }),
+        S::Influence(found) => RobustnessFigureReport::Influence(influence(found(r))),
+        S::Noise { of, .. } => RobustnessFigureReport::Noise(against_noise(of(r))),
+        S::Bootstrap(found) => RobustnessFigureReport::Bootstrap(or_reason(found(r), bootstrap)),
     }
 }
 
@@ -208,29 +229,10 @@ fn robustness(r: &eval::Robustness) -> RobustnessReport {
             eval::Status::Warn => StatusReport::Warn,
         },
         reason: r.reason.clone(),
-        gap_in_sd: value(&r.gap_in_sd),
-        gap_in_iqr: value(&r.gap_in_iqr),
-        outliers_1_5_iqr: outliers(r, &r.outliers_wide),
-        outliers_3_iqr: outliers(r, &r.outliers_far),
-        mean_without_outliers: value(&r.mean_without),
-        mean_change_without_outliers: value(&r.mean_change),
-        sd_without_outliers: value(&r.sd_without),
-        sd_change_without_outliers: value(&r.sd_change),
-        skewness_without_outliers: value(&r.skewness_without),
-        skewness_change_without_outliers: value(&r.skewness_change),
-        largest_mean_influence: influence(&r.mean_influence),
-        largest_sd_influence: influence(&r.sd_influence),
-        modified_z_above_3_5: or_reason(&r.modified_z, |list: &Vec<eval::Flagged>| cells(list)),
-        skewness_against_noise: against_noise(&r.skewness),
-        tails_against_noise: against_noise(&r.tails),
-        bootstrap: or_reason(&r.bootstrap, |b| BootstrapReport {
-            level: b.level,
-            resamples: b.resamples,
-            seed: b.seed,
-            method: b.method.words().to_string(),
-            mean: interval(&b.mean),
-            median: interval(&b.median),
-        }),
+        figures: eval::ROBUSTNESS_FIGURES
+            .iter()
+            .map(|f| (f.key, robustness_figure(&f.shape, r)))
+            .collect(),
     }
 }
 

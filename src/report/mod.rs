@@ -8,12 +8,14 @@
 
 mod build;
 mod named;
+mod robustness;
 
 use schemars::JsonSchema;
 use serde::Serialize;
 
 pub use build::{result_document, trend_document};
 pub use named::{NamedValues, PanelFigures};
+pub use robustness::{RobustnessFigureReport, RobustnessReport};
 
 /// Raised when a key is renamed or removed, or a value changes shape;
 /// adding a key keeps the version.
@@ -234,36 +236,6 @@ pub enum StatusReport {
     Ok,
     Note,
     Warn,
-}
-
-/// Every figure of the robustness sheet for one (group, column).
-#[derive(Debug, Clone, Serialize, JsonSchema)]
-pub struct RobustnessReport {
-    pub status: StatusReport,
-    pub reason: String,
-    /// (mean - median) / sd.
-    pub gap_in_sd: Value,
-    /// (mean - median) / IQR.
-    pub gap_in_iqr: Value,
-    /// Values beyond the 1.5 IQR fences, with their cells.
-    pub outliers_1_5_iqr: OrReason<Vec<CellValue>>,
-    /// Values beyond the 3 IQR fences, with their cells.
-    pub outliers_3_iqr: OrReason<Vec<CellValue>>,
-    pub mean_without_outliers: Value,
-    pub mean_change_without_outliers: Value,
-    pub sd_without_outliers: Value,
-    pub sd_change_without_outliers: Value,
-    pub skewness_without_outliers: Value,
-    pub skewness_change_without_outliers: Value,
-    pub largest_mean_influence: OrReason<InfluenceReport>,
-    pub largest_sd_influence: OrReason<InfluenceReport>,
-    /// Values whose modified z-score exceeds 3.5 in absolute value (Iglewicz and Hoaglin 1993).
-    pub modified_z_above_3_5: OrReason<Vec<CellValue>>,
-    /// Adjusted skewness G1 against its standard error under normality.
-    pub skewness_against_noise: OrReason<NoiseReport>,
-    /// Adjusted excess kurtosis G2 against its standard error under normality.
-    pub tails_against_noise: OrReason<NoiseReport>,
-    pub bootstrap: OrReason<BootstrapReport>,
 }
 
 /// A shape figure judged against its sampling noise under normality.
