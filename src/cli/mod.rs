@@ -18,7 +18,7 @@ use std::process::ExitCode;
 
 use clap::CommandFactory;
 
-pub use args::Cli;
+pub(crate) use args::Cli;
 use args::Command;
 pub use exit::{Exit, markdown_table as exit_status_table};
 

@@ -54,6 +54,7 @@ const SHEET_FORBIDDEN: &[char] = &['[', ']', ':', '*', '?', '/', '\\'];
 const SHEET_MAX: usize = 31;
 /// The standard errors `noise N se` accepts, both ends included.
 pub const NOISE_RANGE: (f64, f64) = (1.0, 10.0);
+/// The histogram bin rules a recipe may name.
 pub const BIN_RULES: &[&str] = &["sturges", "scott", "freedman_diaconis"];
 
 /// What a data column holds, as far as the checker needs to know.
@@ -72,7 +73,9 @@ pub enum DataKind {
 /// A data column's header and kind.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct DataColumn {
+    /// The header (after the recipe's `header` names are applied).
     pub name: String,
+    /// What it holds.
     pub kind: DataKind,
 }
 

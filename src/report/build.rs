@@ -17,7 +17,7 @@ pub(super) fn value(v: &One) -> Value {
         One::Text(t) => Value::Text(t.clone()),
         One::Date(x) => Value::Date(IsoDate::from_serial(*x)),
         One::List(v) => Value::Numbers(v.clone()),
-        One::Undefined(why) => Value::NoValue(reason(why)),
+        One::Undefined(why) => Value::Missing(reason(why)),
     }
 }
 
@@ -47,7 +47,12 @@ fn iso_time(run_time: &str) -> String {
 }
 
 /// The `result` document of one data file, whose workbook went to `output`.
-pub fn result_document(results: &Results, table: &Table, run: &RunInfo, output: &Path) -> Document {
+pub(crate) fn result_document(
+    results: &Results,
+    table: &Table,
+    run: &RunInfo,
+    output: &Path,
+) -> Document {
     Document::Result(Box::new(ResultReport {
         version: REPORT_VERSION,
         sheaf_version: run.version.clone(),
@@ -329,7 +334,7 @@ fn changes(results: &Results, run: &RunInfo) -> Option<ChangesReport> {
 }
 
 /// The `trend` document of a batch: `records` by period, in order.
-pub fn trend_document(
+pub(crate) fn trend_document(
     records: &[(String, Record)],
     output: Option<&Path>,
     (drift, noise): (f64, f64),

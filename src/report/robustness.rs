@@ -17,7 +17,7 @@ use crate::eval::{ROBUSTNESS_FIGURES, RobustnessShape};
 /// One robustness figure's value, in its shape's JSON form.
 #[derive(Debug, Clone, Serialize)]
 #[serde(untagged)]
-pub enum RobustnessFigureReport {
+pub(crate) enum RobustnessFigureReport {
     /// One number, or `{"reason": "..."}`.
     Value(Value),
     /// Flagged values with their cells.
@@ -32,13 +32,13 @@ pub enum RobustnessFigureReport {
 
 /// Every figure of the robustness sheet for one (group, column).
 #[derive(Debug, Clone)]
-pub struct RobustnessReport {
+pub(crate) struct RobustnessReport {
     /// ok, note or warn.
-    pub status: StatusReport,
+    pub(crate) status: StatusReport,
     /// The status's reason in words.
-    pub reason: String,
+    pub(crate) reason: String,
     /// Each figure of [`ROBUSTNESS_FIGURES`] with its key, in its order.
-    pub figures: Vec<(&'static str, RobustnessFigureReport)>,
+    pub(crate) figures: Vec<(&'static str, RobustnessFigureReport)>,
 }
 
 impl Serialize for RobustnessReport {
