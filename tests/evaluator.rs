@@ -49,6 +49,19 @@ const EXPRESSIONS: &[(&str, &str)] = &[
     ("50%", "0.5"),
     ("\"depot\"", "depot"),
     ("1 / 0", "none(not a finite number (division by zero?))"),
+    // A parameter computed in the recipe is held to its range like a
+    // written one (written, the checker refuses it): quartile 4 would
+    // otherwise be the maximum and 1.6 would be cut to quartile 1.
+    // count(w) is 4; w sorted is 10 20 30 40, Q3 (type 7) = 30 + 0.25 * 10.
+    ("quartile(w, count(w) - 1)", "32.5"),
+    (
+        "quartile(w, count(w))",
+        "none(the `q` of `quartile` must be a whole number from 1 to 3, not 4)",
+    ),
+    (
+        "quartile(w, count(w) / 2.5)",
+        "none(the `q` of `quartile` must be a whole number from 1 to 3, not 1.6)",
+    ),
     ("0 / 0", "none(not a finite number (division by zero?))"),
     (
         "(0 - 8) ^ 0.5",
@@ -346,15 +359,15 @@ const EXPRESSIONS: &[(&str, &str)] = &[
     ("share(status == \"none\" and w > 100)", "0"),
     (
         "percentile(w, count(w) * 30)",
-        "none(quantile level 1.2 is outside 0 to 1)",
+        "none(the `p` of `percentile` must be from 0 to 100, not 120)",
     ),
     (
         "trimmed_mean(y, count(y) / 10)",
-        "none(the share cut from each end must be at least 0 and below 50%, not 50%)",
+        "none(the `a` of `trimmed_mean` must be at least 0 and below 50% (a share such as 10%), not 0.5)",
     ),
     (
         "outliers(x, min(late))",
-        "none(the fence factor must be 0 or more, not -5)",
+        "none(the `k` of `outliers` must be 0 or more, not -5)",
     ),
     (
         "change(mean(w))",
@@ -1096,7 +1109,12 @@ const REASONS: &[(&str, &str, Reach)] = &[
     ),
     (
         "bad argument",
-        "figures \"R\":\n    v = trimmed_mean(w, count(w))\n",
+        "figures \"R\":\n    v = percentile(w, count(w) * 22.5, hinges)\n",
+        Reach::Recipe,
+    ),
+    (
+        "out of range",
+        "figures \"R\":\n    v = quartile(w, count(w))\n",
         Reach::Recipe,
     ),
     (
@@ -1188,6 +1206,7 @@ fn reason_name(reason: &eval::Reason) -> &'static str {
         R::CannotCombine(_) => "cannot combine",
         R::UnknownFunction(_) => "unknown function",
         R::ArgumentNotOneNumber(_) => "argument not one number",
+        R::OutOfRange { .. } => "out of range",
         R::NeedsDate(_) => "needs date",
         R::NeedsNumber(_) => "needs number",
         R::ChangeNeedsOneNumber => "change needs one number",
@@ -1216,6 +1235,7 @@ const REASON_NAMES: &[&str] = &[
     "cannot combine",
     "unknown function",
     "argument not one number",
+    "out of range",
     "needs date",
     "needs number",
     "change needs one number",

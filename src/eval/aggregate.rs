@@ -31,14 +31,25 @@ fn option<'e>(function: &Function, args: &'e [Expr]) -> Option<&'e str> {
     args.iter().skip(1).find_map(|a| option_word(function, a))
 }
 
-/// The numeric parameters (arguments after the first that are not option words).
+/// The numeric parameters (arguments after the first that are not option
+/// words), each within its range: one computed in the recipe is checked
+/// here, as the checker checks one written there, so `quartile(x, n)`
+/// with n = 4 says why instead of giving the maximum.
 fn parameters(scope: &Scope, function: &Function, args: &[Expr]) -> Result<Vec<f64>, Reason> {
     let mut found = Vec::new();
-    for a in args.iter().skip(1) {
-        if option_word(function, a).is_some() {
-            continue;
-        }
+    let values = args
+        .iter()
+        .skip(1)
+        .filter(|a| option_word(function, a).is_none());
+    for (a, parameter) in values.zip(function.parameters) {
         match scope.eval(a) {
+            Value::One(One::Number(x)) if !parameter.allows(x) => {
+                return Err(Reason::OutOfRange {
+                    function: function.name,
+                    parameter,
+                    value: x,
+                });
+            }
             Value::One(One::Number(x)) => found.push(x),
             Value::One(One::Undefined(why)) => return Err(why),
             _ => return Err(Reason::ArgumentNotOneNumber(function.name)),

@@ -4,11 +4,12 @@
 //! turn them into words, through `Display`.
 
 use crate::recipe::ast::BinaryOp;
+use crate::recipe::functions::Parameter;
 use crate::stats::Undefined;
 
 /// The reason a value is missing. The words users see are the `Display`
 /// of each variant, written once here.
-#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum Reason {
     /// A reason from the statistics core: no values, a constant column,
     /// too few values, a zero spread, an argument out of range.
@@ -37,6 +38,23 @@ pub enum Reason {
     /// A numeric parameter (`percentile(x, p)`'s p) that is not one number.
     #[error("an argument of `{0}` is not one number")]
     ArgumentNotOneNumber(&'static str),
+    /// A numeric parameter computed in the recipe (`quartile(x, count(y))`)
+    /// that lies outside its range; a number written there is refused by
+    /// the checker with the same words.
+    #[error(
+        "the `{}` of `{function}` must be {}, not {}",
+        parameter.name,
+        parameter.range_words(),
+        crate::format::shortest(*value)
+    )]
+    OutOfRange {
+        /// The function's name.
+        function: &'static str,
+        /// The parameter, with its range.
+        parameter: &'static Parameter,
+        /// The value computed.
+        value: f64,
+    },
     /// A date function (`month`, `year`, ...) given something else.
     #[error("`{0}` needs a date")]
     NeedsDate(&'static str),
