@@ -1108,7 +1108,7 @@ const REASONS: &[(&str, &str, Reach)] = &[
         Reach::Recipe,
     ),
     (
-        "bad argument",
+        "hinges only quartiles",
         "figures \"R\":\n    v = percentile(w, count(w) * 22.5, hinges)\n",
         Reach::Recipe,
     ),
@@ -1186,7 +1186,10 @@ const REASONS: &[(&str, &str, Reach)] = &[
 
 /// The name of a reason's variant. The match is exhaustive, so a new
 /// reason does not compile until it is named here, and the test below
-/// then asks for a case in REASONS.
+/// then asks for a case in REASONS. The statistics core's guards on an
+/// argument's range share one name outside REASON_NAMES: a recipe never
+/// reaches them, since the evaluator holds each parameter to its range
+/// first (`out of range`); the core's unit tests reach each of them.
 fn reason_name(reason: &eval::Reason) -> &'static str {
     use eval::Reason as R;
     use sheaf::stats::Undefined as U;
@@ -1198,7 +1201,17 @@ fn reason_name(reason: &eval::Reason) -> &'static str {
         R::Stat(U::ZeroIqr) => "zero iqr",
         R::Stat(U::ZeroMad) => "zero mad",
         R::Stat(U::BeyondDoubleRange) => "beyond double range",
-        R::Stat(U::BadArgument(_)) => "bad argument",
+        R::Stat(
+            U::NoSuchQuartile(_)
+            | U::LevelOutside(_)
+            | U::NoSuchQuantileType(_)
+            | U::CutOutside(_)
+            | U::NegativeFenceFactor(_)
+            | U::NoBins
+            | U::ShareOutside(_)
+            | U::TooFewAroundPercentile { .. },
+        ) => "argument out of its range, caught first as out of range",
+        R::Stat(U::HingesOnlyQuartiles) => "hinges only quartiles",
         R::NoRows => "no rows",
         R::NotFinite => "not finite",
         R::NotTrueOrFalse => "not true or false",
@@ -1227,7 +1240,7 @@ const REASON_NAMES: &[&str] = &[
     "zero iqr",
     "zero mad",
     "beyond double range",
-    "bad argument",
+    "hinges only quartiles",
     "no rows",
     "not finite",
     "not true or false",
