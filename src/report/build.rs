@@ -299,7 +299,7 @@ fn chart(c: &Chart) -> ChartReport {
 fn relative(m: &Move) -> OrReason<f64> {
     match m.relative() {
         Some(r) => OrReason::Value(r),
-        None => OrReason::NoValue(reason(&"previous was 0")),
+        None => OrReason::NoValue(reason(&eval::Reason::PreviousIsZero)),
     }
 }
 

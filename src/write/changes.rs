@@ -5,6 +5,7 @@ use rust_xlsxwriter::{Format, Workbook, XlsxError};
 
 use super::sheets::SheetNames;
 use super::{RunInfo, style};
+use crate::eval::Reason;
 use crate::history::{RECORD_SHEET, Record};
 
 /// The figures flagged "moved" on the Changes sheet: its name, and each
@@ -62,7 +63,7 @@ pub fn changes(
         );
         sheet.write_string_with_format(r, 0, &said, &style::reason())?;
     }
-    widths.seen(3, 6, "previous was 0".len());
+    widths.seen(3, 6, Reason::PreviousIsZero.to_string().len());
     style::print_titles(sheet, 3, 3)?;
     style::fit_columns(sheet, 3, &labels, &widths)?;
     style::filter(sheet, 3, r - 1, labels.len())?;
@@ -121,7 +122,8 @@ fn change_row(
             sheet.write_number_with_format(r, 6, relative, percent)?;
         }
         None => {
-            sheet.write_string_with_format(r, 6, "previous was 0", &style::reason())?;
+            let why = Reason::PreviousIsZero.to_string();
+            sheet.write_string_with_format(r, 6, &why, &style::reason())?;
         }
     }
     crate::history::write_noise(sheet, r, 8, m)?;
