@@ -1,5 +1,5 @@
 //! The command line: `run`, `validate`, `inspect`, `calc`, `completions`
-//! and `manual`. The exit statuses are in [`exit`]; a message the user can
+//! and `manual`. The exit statuses are in `exit.rs`; a message the user can
 //! act on names the place and what to do.
 
 mod args;

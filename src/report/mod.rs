@@ -3,7 +3,7 @@
 //! value, and a version. `schema/sheaf-report.schema.json` is generated from
 //! these types (`tests/json_schema.rs` fails when it is stale).
 //!
-//! A run prints one [`Document`] per line (JSON Lines): one `result` per
+//! A run prints one `Document` per line (JSON Lines): one `result` per
 //! data file, and after a batch one `trend`.
 
 mod build;
@@ -416,7 +416,7 @@ pub(crate) struct SkippedFile {
     pub(crate) reason: String,
 }
 
-/// The JSON Schema of a [`Document`], as committed in `schema/`.
+/// The JSON Schema of a `Document`, as committed in `schema/`.
 pub fn schema() -> String {
     let schema = schemars::schema_for!(Document);
     let mut text = serde_json::to_string_pretty(&schema).unwrap_or_default();

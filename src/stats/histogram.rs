@@ -60,7 +60,7 @@ impl BinRule {
 /// Equal-width bins over a sample and the values in each.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Histogram {
-    /// k + 1 edges; bin i is [edges[i], edges[i+1]), the last bin closed.
+    /// k + 1 edges; bin i is `[edges[i], edges[i+1])`, the last bin closed.
     pub edges: Vec<f64>,
     /// The number of values in each bin.
     pub counts: Vec<usize>,
