@@ -49,6 +49,19 @@ const EXPRESSIONS: &[(&str, &str)] = &[
     ("50%", "0.5"),
     ("\"depot\"", "depot"),
     ("1 / 0", "none(not a finite number (division by zero?))"),
+    // A parameter computed in the recipe is held to its range like a
+    // written one (written, the checker refuses it): quartile 4 would
+    // otherwise be the maximum and 1.6 would be cut to quartile 1.
+    // count(w) is 4; w sorted is 10 20 30 40, Q3 (type 7) = 30 + 0.25 * 10.
+    ("quartile(w, count(w) - 1)", "32.5"),
+    (
+        "quartile(w, count(w))",
+        "none(the `q` of `quartile` must be a whole number from 1 to 3, not 4)",
+    ),
+    (
+        "quartile(w, count(w) / 2.5)",
+        "none(the `q` of `quartile` must be a whole number from 1 to 3, not 1.6)",
+    ),
     ("0 / 0", "none(not a finite number (division by zero?))"),
     (
         "(0 - 8) ^ 0.5",
@@ -346,15 +359,15 @@ const EXPRESSIONS: &[(&str, &str)] = &[
     ("share(status == \"none\" and w > 100)", "0"),
     (
         "percentile(w, count(w) * 30)",
-        "none(quantile level 1.2 is outside 0 to 1)",
+        "none(the `p` of `percentile` must be from 0 to 100, not 120)",
     ),
     (
         "trimmed_mean(y, count(y) / 10)",
-        "none(the share cut from each end must be at least 0 and below 50%, not 50%)",
+        "none(the `a` of `trimmed_mean` must be at least 0 and below 50% (a share such as 10%), not 0.5)",
     ),
     (
         "outliers(x, min(late))",
-        "none(the fence factor must be 0 or more, not -5)",
+        "none(the `k` of `outliers` must be 0 or more, not -5)",
     ),
     (
         "change(mean(w))",
@@ -828,8 +841,7 @@ fn run_recipe(
             c.name,
             eval::group_label(c.group.as_deref().unwrap_or_default()),
             c.outcome.word(),
-            c.note
-                .as_ref()
+            c.note_words()
                 .map(|n| format!(" ({n})"))
                 .unwrap_or_default()
         ));
@@ -1122,4 +1134,270 @@ fn outliers_of_a_let_name_the_input_cell_behind_it() {
             "deliveries!B6 Some(100.0) 300"
         ]
     );
+}
+
+/// How a reason is reached.
+enum Reach {
+    /// By a recipe the checker accepts.
+    Recipe,
+    /// Only past the checker, which refuses the recipe first (the evaluator
+    /// still gives the reason rather than a wrong value or a panic).
+    PastTheChecker,
+}
+
+/// Every reason a value can be missing, each with a recipe over DELIVERIES
+/// that gives it (`change` compares with a previous `mean(w)` of 0).
+/// `Reason::NoRows` is written by the sheets, not the evaluator: see
+/// `tests/workbook_print.rs` (a group with no rows says "no rows").
+const REASONS: &[(&str, &str, Reach)] = &[
+    (
+        "no values",
+        "figures \"R\":\n    v = mean(status)\n",
+        Reach::Recipe,
+    ),
+    (
+        "constant column",
+        "figures \"R\":\n    v = skewness(k)\n",
+        Reach::Recipe,
+    ),
+    (
+        "too few values",
+        "figures \"R\":\n    v = sd(if x > 4 then w else w / 0)\n",
+        Reach::Recipe,
+    ),
+    (
+        "zero iqr",
+        "figures \"R\":\n    v = bowley(k)\n",
+        Reach::Recipe,
+    ),
+    ("zero sd", "panel \"P\" of k:\n", Reach::Recipe),
+    ("zero mad", "panel \"P\" of k:\n", Reach::Recipe),
+    (
+        "beyond double range",
+        "figures \"R\":\n    v = variance(x * 1e300)\n",
+        Reach::Recipe,
+    ),
+    (
+        "hinges only quartiles",
+        "figures \"R\":\n    v = percentile(w, count(w) * 22.5, hinges)\n",
+        Reach::Recipe,
+    ),
+    (
+        "out of range",
+        "figures \"R\":\n    v = quartile(w, count(w))\n",
+        Reach::Recipe,
+    ),
+    (
+        "not finite",
+        "figures \"R\":\n    v = mean(w) / 0\n",
+        Reach::Recipe,
+    ),
+    (
+        "not true or false",
+        "check \"c\" warn: if mean(w) > 0 then 1 else 2\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "wrong kind",
+        "figures \"R\":\n    v = -modes(w)\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "cannot combine",
+        "figures \"R\":\n    v = modes(w) + 1\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "unknown function",
+        "figures \"R\":\n    v = nonesuch(w)\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "argument not one number",
+        "figures \"R\":\n    v = percentile(w, modes(w))\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "needs date",
+        "figures \"R\":\n    v = year_of(1)\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "needs number",
+        "figures \"R\":\n    v = abs(modes(w))\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "change needs one number",
+        "figures \"R\":\n    v = change(modes(w))\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "no previous",
+        "figures \"R\" per depot:\n    v = change(mean(w))\n",
+        Reach::Recipe,
+    ),
+    (
+        "previous is zero",
+        "figures \"R\":\n    v = change(mean(w))\n",
+        Reach::Recipe,
+    ),
+    (
+        "share needs rows",
+        "figures \"R\":\n    v = share(1 > 0)\n",
+        Reach::PastTheChecker,
+    ),
+    (
+        "per row",
+        "check \"c\" warn: w > 1 and 1 > 0\n",
+        Reach::PastTheChecker,
+    ),
+];
+
+/// The name of a reason's variant. The match is exhaustive, so a new
+/// reason does not compile until it is named here, and the test below
+/// then asks for a case in REASONS. The statistics core's guards on an
+/// argument's range share one name outside REASON_NAMES: a recipe never
+/// reaches them, since the evaluator holds each parameter to its range
+/// first (`out of range`); the core's unit tests reach each of them.
+fn reason_name(reason: &eval::Reason) -> &'static str {
+    use eval::Reason as R;
+    use sheaf::stats::Undefined as U;
+    match reason {
+        R::Stat(U::NoValues) => "no values",
+        R::Stat(U::ConstantColumn) => "constant column",
+        R::Stat(U::TooFewValues { .. }) => "too few values",
+        R::Stat(U::ZeroSd) => "zero sd",
+        R::Stat(U::ZeroIqr) => "zero iqr",
+        R::Stat(U::ZeroMad) => "zero mad",
+        R::Stat(U::BeyondDoubleRange) => "beyond double range",
+        R::Stat(
+            U::NoSuchQuartile(_)
+            | U::LevelOutside(_)
+            | U::NoSuchQuantileType(_)
+            | U::CutOutside(_)
+            | U::NegativeFenceFactor(_)
+            | U::NoBins
+            | U::ShareOutside(_)
+            | U::TooFewAroundPercentile { .. },
+        ) => "argument out of its range, caught first as out of range",
+        R::Stat(U::HingesOnlyQuartiles) => "hinges only quartiles",
+        R::NoRows => "no rows",
+        R::NotFinite => "not finite",
+        R::NotTrueOrFalse => "not true or false",
+        R::WrongKind => "wrong kind",
+        R::CannotCombine(_) => "cannot combine",
+        R::UnknownFunction(_) => "unknown function",
+        R::ArgumentNotOneNumber(_) => "argument not one number",
+        R::OutOfRange { .. } => "out of range",
+        R::NeedsDate(_) => "needs date",
+        R::NeedsNumber(_) => "needs number",
+        R::ChangeNeedsOneNumber => "change needs one number",
+        R::NoPrevious => "no previous",
+        R::PreviousIsZero => "previous is zero",
+        R::ShareNeedsRows => "share needs rows",
+        R::PerRow => "per row",
+    }
+}
+
+/// Every variant's name: what `reason_name` gives, listed once more so the
+/// test can ask that each has a case.
+const REASON_NAMES: &[&str] = &[
+    "no values",
+    "constant column",
+    "too few values",
+    "zero sd",
+    "zero iqr",
+    "zero mad",
+    "beyond double range",
+    "hinges only quartiles",
+    "no rows",
+    "not finite",
+    "not true or false",
+    "wrong kind",
+    "cannot combine",
+    "unknown function",
+    "argument not one number",
+    "out of range",
+    "needs date",
+    "needs number",
+    "change needs one number",
+    "no previous",
+    "previous is zero",
+    "share needs rows",
+    "per row",
+];
+
+/// Every reason anywhere in a run's results.
+fn reasons_in(results: &eval::Results) -> Vec<eval::Reason> {
+    let undefined = |v: &One| match v {
+        One::Undefined(why) => Some(why.clone()),
+        _ => None,
+    };
+    let mut found = Vec::new();
+    for block in &results.blocks {
+        match block {
+            Block::Figures { rows, .. } => {
+                found.extend(rows.iter().flat_map(|r| &r.values).filter_map(undefined));
+            }
+            Block::Panel { entries, .. } => {
+                for e in entries {
+                    found.extend(e.figures.iter().filter_map(undefined));
+                    let r = &e.robustness;
+                    let ones = [&r.gap_in_sd, &r.gap_in_iqr, &r.mean_without, &r.sd_change];
+                    found.extend(ones.into_iter().filter_map(undefined));
+                    found.extend(r.fences_undefined.clone());
+                    found.extend(r.modified_z.clone().err());
+                    found.extend(r.mean_influence.clone().err());
+                    found.extend(r.skewness.clone().err());
+                    found.extend(r.bootstrap.clone().err());
+                }
+            }
+        }
+    }
+    found.extend(results.checks.iter().filter_map(|c| c.note.clone()));
+    found
+}
+
+#[test]
+fn every_reason_for_a_missing_value_is_reached() {
+    let (_dir, t) = table(DELIVERIES);
+    let previous: eval::Previous = [(("mean(w)".to_string(), "(all rows)".to_string()), 0.0)]
+        .into_iter()
+        .collect();
+    let mut wrong = Vec::new();
+    for (name, source, reach) in REASONS {
+        let checked = recipe::parse_and_check(source, Some(&t.headers()));
+        let parsed = match reach {
+            Reach::Recipe if !checked.is_ok() => {
+                wrong.push(format!("{name}: refused: {:?}", checked.diagnostics));
+                continue;
+            }
+            Reach::Recipe => checked,
+            Reach::PastTheChecker if checked.is_ok() => {
+                wrong.push(format!(
+                    "{name}: the checker accepts {source:?}; say Recipe"
+                ));
+                continue;
+            }
+            Reach::PastTheChecker => recipe::parse(source),
+        };
+        assert!(
+            parsed.diagnostics.is_empty(),
+            "{name}: {:?}",
+            parsed.diagnostics
+        );
+        let results = eval::evaluate_against(&parsed.recipe, &t, Some(previous.clone())).unwrap();
+        let found = reasons_in(&results);
+        if !found.iter().any(|r| reason_name(r) == *name) {
+            wrong.push(format!("{name}: {source:?} gave {found:?}"));
+        }
+    }
+    let cased: Vec<&str> = REASONS.iter().map(|(name, _, _)| *name).collect();
+    for name in REASON_NAMES {
+        if !cased.contains(name) && *name != "no rows" {
+            wrong.push(format!("no case reaches `{name}`"));
+        }
+    }
+    assert!(wrong.is_empty(), "{}", wrong.join("\n"));
 }

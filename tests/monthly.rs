@@ -702,3 +702,15 @@ fn a_value_outside_its_control_band_is_marked_on_the_trend_sheet_and_chart() {
     assert!(xml.contains("<c:symbol val=\"diamond\"/>"), "{xml}");
     assert!(xml.contains("<a:ln><a:noFill/></a:ln>"), "{xml}");
 }
+
+/// A figure that was 0 last period has no relative change, and the
+/// Changes sheet says why in the words every missing value's reason uses.
+#[test]
+fn a_change_from_zero_says_why_it_has_no_relative_size() {
+    let dir = tempfile::tempdir().unwrap();
+    packing_months(dir.path());
+    let changes = packing_changes(dir.path(), "");
+    let row = change_row(&changes, "South", "minutes missing");
+    assert_eq!(number(&row[3]), 0.0);
+    assert_eq!(row[6], Data::String("the previous value is zero".into()));
+}

@@ -138,7 +138,7 @@ pub fn calc(expression: &str, data: &Path, options: LoadOptions) -> Result<Exit,
     let rows: Vec<crate::eval::Row> = (0..table.rows as crate::eval::Row).collect();
     let scope = Scope::new(&table, &lets, &rows);
     let text = match scope.eval(&expr) {
-        Value::One(One::Undefined(why)) => return no_value(&why),
+        Value::One(One::Undefined(why)) => return no_value(&why.to_string()),
         Value::One(v) => one_lines(&v),
         Value::Rows(rows) if rows.is_empty() => return no_value("the data has no rows"),
         Value::Rows(rows) => row_lines(&rows),

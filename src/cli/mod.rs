@@ -1,5 +1,5 @@
 //! The command line: `run`, `validate`, `inspect`, `calc`, `completions`
-//! and `manual`. The exit statuses are in [`exit`]; a message the user can
+//! and `manual`. The exit statuses are in `exit.rs`; a message the user can
 //! act on names the place and what to do.
 
 mod args;
@@ -18,7 +18,7 @@ use std::process::ExitCode;
 
 use clap::CommandFactory;
 
-pub use args::Cli;
+pub(crate) use args::Cli;
 use args::Command;
 pub use exit::{Exit, markdown_table as exit_status_table};
 

@@ -38,21 +38,34 @@ fn stem(path: &Path) -> String {
 /// Settles every file's period; `Err` says what to do and that nothing was read.
 pub fn plan(recipe: &Recipe, files: &[PathBuf]) -> Result<Plan, Failure> {
     if history::period_column(recipe).is_some() {
-        // Each file's period is read from its data; ordered once read.
-        let mut planned: Vec<Planned> = files
-            .iter()
-            .map(|path| Planned {
-                path: path.clone(),
-                period: None,
-                label: stem(path),
-            })
-            .collect();
-        planned.sort_by(|a, b| a.path.cmp(&b.path));
-        return Ok(Plan {
-            files: planned,
-            ordering_note: None,
-        });
+        return Ok(awaiting_data(files));
     }
+    let planned = periods_from_names(recipe, files)?;
+    in_period_order(planned)
+}
+
+/// With a period column, each file's period is read from its data; the
+/// files wait in name order until [`order_read`] orders them.
+fn awaiting_data(files: &[PathBuf]) -> Plan {
+    let mut planned: Vec<Planned> = files
+        .iter()
+        .map(|path| Planned {
+            path: path.clone(),
+            period: None,
+            label: stem(path),
+        })
+        .collect();
+    planned.sort_by(|a, b| a.path.cmp(&b.path));
+    Plan {
+        files: planned,
+        ordering_note: None,
+    }
+}
+
+/// Each file's period from its name (or the recipe's `period`); refused
+/// when a name holds a date that cannot exist, or a fixed period would
+/// label several files alike.
+fn periods_from_names(recipe: &Recipe, files: &[PathBuf]) -> Result<Vec<Planned>, Failure> {
     let mut planned = Vec::new();
     let mut refused = Vec::new();
     for path in files {
@@ -85,6 +98,12 @@ pub fn plan(recipe: &Recipe, files: &[PathBuf]) -> Result<Plan, Failure> {
             refused.join("\n")
         )));
     }
+    Ok(planned)
+}
+
+/// The files in period order; when a name holds no date, all in name
+/// order with a note saying so (each undated file labelled by its stem).
+fn in_period_order(mut planned: Vec<Planned>) -> Result<Plan, Failure> {
     let undated: Vec<String> = planned
         .iter()
         .filter(|p| p.period.is_none())

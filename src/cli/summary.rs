@@ -144,8 +144,7 @@ pub fn render(results: &Results, table: &Table, out: &Path, moved: Option<usize>
             "  {}: \"{}\" {group}{}\n",
             outcome_word(c.outcome),
             c.name,
-            c.note
-                .as_ref()
+            c.note_words()
                 .map(|n| format!(" ({n})"))
                 .unwrap_or_default()
         ));

@@ -6,12 +6,13 @@ use crate::recipe::ast::{Expr, ExprKind};
 use crate::recipe::functions::{self, Aggregate, DatePart, Evaluation, Function, OnDates, RowOp};
 use crate::stats::{self, Denominator, QuantileMethod, Stat};
 
+use super::Reason;
 use super::value::{One, Rows, Scope, Value, truths};
 
 pub fn from_stat(stat: Stat) -> One {
     match stat {
         Ok(x) => One::number(x),
-        Err(why) => One::Undefined(why.to_string()),
+        Err(why) => One::Undefined(why.into()),
     }
 }
 
@@ -30,22 +31,28 @@ fn option<'e>(function: &Function, args: &'e [Expr]) -> Option<&'e str> {
     args.iter().skip(1).find_map(|a| option_word(function, a))
 }
 
-/// The numeric parameters (arguments after the first that are not option words).
-fn parameters(scope: &Scope, function: &Function, args: &[Expr]) -> Result<Vec<f64>, String> {
+/// The numeric parameters (arguments after the first that are not option
+/// words), each within its range: one computed in the recipe is checked
+/// here, as the checker checks one written there, so `quartile(x, n)`
+/// with n = 4 says why instead of giving the maximum.
+fn parameters(scope: &Scope, function: &Function, args: &[Expr]) -> Result<Vec<f64>, Reason> {
     let mut found = Vec::new();
-    for a in args.iter().skip(1) {
-        if option_word(function, a).is_some() {
-            continue;
-        }
+    let values = args
+        .iter()
+        .skip(1)
+        .filter(|a| option_word(function, a).is_none());
+    for (a, parameter) in values.zip(function.parameters) {
         match scope.eval(a) {
+            Value::One(One::Number(x)) if !parameter.allows(x) => {
+                return Err(Reason::OutOfRange {
+                    function: function.name,
+                    parameter,
+                    value: x,
+                });
+            }
             Value::One(One::Number(x)) => found.push(x),
             Value::One(One::Undefined(why)) => return Err(why),
-            _ => {
-                return Err(format!(
-                    "an argument of `{}` is not one number",
-                    function.name
-                ));
-            }
+            _ => return Err(Reason::ArgumentNotOneNumber(function.name)),
         }
     }
     Ok(found)
@@ -57,7 +64,7 @@ fn method(word: Option<&str>) -> QuantileMethod {
 
 pub fn call(scope: &Scope, name: &str, args: &[Expr]) -> Value {
     let Some(function) = functions::lookup(name) else {
-        return Value::One(One::Undefined(format!("unknown function `{name}`")));
+        return Value::One(One::Undefined(Reason::UnknownFunction(name.to_string())));
     };
     let params = match parameters(scope, function, args) {
         Ok(p) => p,
@@ -95,7 +102,7 @@ fn date_part(scope: &Scope, function: &Function, part: DatePart, arg: &Expr) -> 
     match scope.eval(arg) {
         Value::One(One::Date(x)) => Value::One(of(x)),
         Value::One(One::Undefined(why)) => Value::One(One::Undefined(why)),
-        Value::One(_) => Value::One(One::Undefined(format!("`{}` needs a date", function.name))),
+        Value::One(_) => Value::One(One::Undefined(Reason::NeedsDate(function.name))),
         Value::Rows(Rows::Dates(dates)) => {
             let parts = dates.into_iter().map(|d| d.map(of));
             Value::Rows(match part {
@@ -127,10 +134,10 @@ fn change(scope: &Scope, arg: &Expr) -> One {
     let now = match scope.eval(arg) {
         Value::One(One::Number(x)) => x,
         Value::One(One::Undefined(why)) => return One::Undefined(why),
-        _ => return One::Undefined("`change` needs one number per group".into()),
+        _ => return One::Undefined(Reason::ChangeNeedsOneNumber),
     };
     match scope.compare(crate::recipe::pretty::expr(arg), now) {
-        Ok(0.0) => One::Undefined("the previous value is zero".into()),
+        Ok(0.0) => One::Undefined(Reason::PreviousIsZero),
         Ok(before) => One::number((now - before).abs() / before.abs()),
         Err(why) => One::Undefined(why),
     }
@@ -162,10 +169,7 @@ fn row_function(
     match scope.eval(arg) {
         Value::One(One::Number(x)) => Value::One(One::number(f(x))),
         Value::One(One::Undefined(why)) => Value::One(One::Undefined(why)),
-        Value::One(_) => Value::One(One::Undefined(format!(
-            "`{}` needs a number",
-            function.name
-        ))),
+        Value::One(_) => Value::One(One::Undefined(Reason::NeedsNumber(function.name))),
         Value::Rows(rows) => {
             let values = rows
                 .numbers()
@@ -179,11 +183,11 @@ fn row_function(
 /// The share of rows where the condition holds, among those where it is known.
 fn share(scope: &Scope, condition: &Expr) -> One {
     let Value::Rows(rows) = scope.eval(condition) else {
-        return One::Undefined("`share` needs a condition per row".into());
+        return One::Undefined(Reason::ShareNeedsRows);
     };
     let defined: Vec<bool> = truths(&rows).into_iter().flatten().collect();
     if defined.is_empty() {
-        return One::Undefined("no values".into());
+        return One::Undefined(Reason::NO_VALUES);
     }
     One::number(defined.iter().filter(|b| **b).count() as f64 / defined.len() as f64)
 }
@@ -199,7 +203,7 @@ fn aggregate(
     let word = option(function, args);
     let m = method(word);
     let k = params.first().copied();
-    let list = |v: Stat<Vec<f64>>| v.map_or_else(|e| One::Undefined(e.to_string()), One::List);
+    let list = |v: Stat<Vec<f64>>| v.map_or_else(|e| One::Undefined(e.into()), One::List);
     let denominator = if word == Some(functions::POPULATION) {
         Denominator::Population
     } else {
@@ -209,7 +213,7 @@ fn aggregate(
     match a {
         Aggregate::Count => One::Number(s.count() as f64),
         Aggregate::Missing => One::Number(s.missing() as f64),
-        Aggregate::Sum if s.is_empty() => One::Undefined("no values".into()),
+        Aggregate::Sum if s.is_empty() => One::Undefined(Reason::NO_VALUES),
         Aggregate::Sum => One::number(s.sum()),
         Aggregate::Min => from_stat(s.min()),
         Aggregate::Max => from_stat(s.max()),

@@ -8,6 +8,8 @@
 mod aggregate;
 mod noise;
 mod panel;
+mod reason;
+mod robustness_figures;
 mod value;
 
 use std::collections::HashMap;
@@ -25,6 +27,8 @@ pub use panel::{
     Influence, Judged, OnDates, PANEL_FIGURES, PANEL_LABELS, PanelEntry, PanelFigure, Robustness,
     Rule, Signals, Status, dates_note, figure_value, findings, panel_figure,
 };
+pub use reason::Reason;
+pub use robustness_figures::{ROBUSTNESS_FIGURES, RobustnessFigure, RobustnessShape};
 pub use value::{Context, One, Previous, Row, Rows, Scope, Term, Value};
 
 /// The label of a group whose key cell is blank.
@@ -130,7 +134,16 @@ pub struct CheckResult {
     /// Whether it passed.
     pub outcome: Outcome,
     /// Why a check could not be evaluated (it then counts as not passed).
-    pub note: Option<String>,
+    pub note: Option<Reason>,
+}
+
+impl CheckResult {
+    /// The note as the sheets, `--json` and the terminal write it.
+    pub fn note_words(&self) -> Option<String> {
+        self.note
+            .as_ref()
+            .map(|why| format!("could not be evaluated: {why}"))
+    }
 }
 
 /// The data of one chart.
@@ -817,9 +830,9 @@ impl Run<'_> {
                     column.name,
                     group_label(&group),
                     if sample.is_empty() {
-                        "no values"
+                        Reason::NO_VALUES.to_string()
                     } else {
-                        "its quartiles could not be computed"
+                        "its quartiles could not be computed".to_string()
                     }
                 )),
             }
@@ -952,7 +965,7 @@ fn widen(v: Value, kept: &[Row], total: usize) -> Rows {
 fn one(v: Value) -> One {
     match v {
         Value::One(o) => o,
-        Value::Rows(_) => One::Undefined("a value per row, not per group".into()),
+        Value::Rows(_) => One::Undefined(Reason::PerRow),
     }
 }
 
@@ -978,8 +991,8 @@ fn check(
     let (outcome, note) = match verdict {
         One::Truth(true) => (Outcome::Pass, None),
         One::Truth(false) => (failing, None),
-        One::Undefined(why) => (failing, Some(format!("could not be evaluated: {why}"))),
-        _ => (failing, Some("the condition is not true or false".into())),
+        One::Undefined(why) => (failing, Some(why)),
+        _ => (failing, Some(Reason::NotTrueOrFalse)),
     };
     CheckResult {
         name: name.to_string(),

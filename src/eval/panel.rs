@@ -4,6 +4,7 @@ use std::sync::Arc;
 
 use crate::stats::{self, Denominator, QuantileMethod, Sample};
 
+use super::Reason;
 use super::aggregate::from_stat;
 use super::value::One;
 
@@ -298,7 +299,7 @@ pub struct Robustness {
     pub gap_in_iqr: One,
     /// Why there are no fences ("no values"); both outlier lists are then
     /// empty and the sheet says why instead of a count of 0.
-    pub fences_undefined: Option<String>,
+    pub fences_undefined: Option<Reason>,
     /// Values beyond Tukey's 1.5 IQR fences, with their cells.
     pub outliers_wide: Vec<Flagged>,
     /// Values beyond Tukey's 3 IQR fences, with their cells.
@@ -316,17 +317,17 @@ pub struct Robustness {
     /// The skewness without the outliers minus the skewness.
     pub skewness_change: One,
     /// The value whose leaving out moves the mean most, or why there is none.
-    pub mean_influence: Result<Influence, String>,
+    pub mean_influence: Result<Influence, Reason>,
     /// The value whose leaving out moves the sd most, or why there is none.
-    pub sd_influence: Result<Influence, String>,
+    pub sd_influence: Result<Influence, Reason>,
     /// Values whose modified z-score is above 3.5 in absolute value.
-    pub modified_z: Result<Vec<Flagged>, String>,
+    pub modified_z: Result<Vec<Flagged>, Reason>,
     /// Adjusted skewness G1 against its standard error under normality.
-    pub skewness: Result<stats::AgainstNoise, String>,
+    pub skewness: Result<stats::AgainstNoise, Reason>,
     /// Adjusted excess kurtosis G2 against its standard error under normality.
-    pub tails: Result<stats::AgainstNoise, String>,
+    pub tails: Result<stats::AgainstNoise, Reason>,
     /// Bootstrap intervals of the mean and the median, or why there are none.
-    pub bootstrap: Result<stats::BootstrapIntervals, String>,
+    pub bootstrap: Result<stats::BootstrapIntervals, Reason>,
     /// The verdict from `findings`.
     pub status: Status,
     /// The verdict's reason in words.
@@ -394,7 +395,7 @@ pub fn panel_figures(s: &Sample, fenced: &Fenced) -> Vec<One> {
 /// fullest of Sturges' equal bins.
 fn modes(s: &Sample) -> One {
     if s.is_empty() {
-        One::Undefined("no values".into())
+        One::Undefined(Reason::NO_VALUES)
     } else if is_whole(s.values()) {
         list(stats::modes(s))
     } else {
@@ -405,7 +406,7 @@ fn modes(s: &Sample) -> One {
 /// How the modes were found, in words.
 fn mode_basis(s: &Sample) -> One {
     if s.is_empty() {
-        One::Undefined("no values".into())
+        One::Undefined(Reason::NO_VALUES)
     } else if is_whole(s.values()) {
         One::Text("exact values".into())
     } else {
@@ -469,16 +470,12 @@ pub fn figures_of_dates(figures: Vec<One>) -> Vec<One> {
 }
 
 fn list(v: stats::Stat<Vec<f64>>) -> One {
-    v.map_or_else(|e| One::Undefined(e.to_string()), One::List)
+    v.map_or_else(|e| One::Undefined(e.into()), One::List)
 }
 
-fn change(after: &One, before: stats::Stat) -> One {
-    match (after, before) {
-        (One::Number(a), Ok(b)) => One::number(a - b),
-        (One::Undefined(why), _) => One::Undefined(why.clone()),
-        (_, Err(e)) => One::Undefined(e.to_string()),
-        _ => One::Undefined("not a number".into()),
-    }
+/// after - before, or the first reason either has none.
+fn change(after: &stats::Stat, before: stats::Stat) -> One {
+    from_stat(after.clone().and_then(|a| Ok(a - before?)))
 }
 
 /// Moment skewness g1, exactly 0 for two distinct values: they lie
@@ -493,18 +490,18 @@ pub fn moment_skewness(s: &Sample) -> stats::Stat {
 /// its scale is zero.
 fn gaps(s: &Sample) -> (One, One) {
     let gap = stats::mean_minus_median(s);
-    let over = |scale: stats::Stat, zero: &str| -> One {
+    let over = |scale: stats::Stat, zero: stats::Undefined| -> One {
         match (&gap, &scale) {
             (Ok(g), Ok(u)) if *u > 0.0 => One::number(g / u),
             (Ok(_), Ok(_)) => One::Undefined(zero.into()),
-            (Err(e), _) | (_, Err(e)) => One::Undefined(e.to_string()),
+            (Err(e), _) | (_, Err(e)) => One::Undefined(e.clone().into()),
         }
     };
     (
-        over(s.sd(Denominator::Sample), "sd is zero"),
+        over(s.sd(Denominator::Sample), stats::Undefined::ZeroSd),
         over(
             stats::iqr(s, QuantileMethod::default()),
-            "quartiles coincide (IQR is zero)",
+            stats::Undefined::ZeroIqr,
         ),
     )
 }
@@ -514,7 +511,7 @@ fn gaps(s: &Sample) -> (One, One) {
 fn influences(
     s: &Sample,
     address: &dyn Fn(usize) -> CellName,
-) -> (Result<Influence, String>, Result<Influence, String>) {
+) -> (Result<Influence, Reason>, Result<Influence, Reason>) {
     let make = |one: stats::OneLeftOut| Influence {
         change: one.change,
         cell: Flagged {
@@ -524,7 +521,7 @@ fn influences(
     };
     match stats::leave_one_out(s) {
         Ok(l) => (Ok(make(l.mean)), Ok(make(l.sd))),
-        Err(e) => (Err(e.to_string()), Err(e.to_string())),
+        Err(e) => (Err(e.clone().into()), Err(e.into())),
     }
 }
 
@@ -555,20 +552,16 @@ fn without_outliers(s: &Sample, wide: &stats::Stat<stats::Outliers>) -> WithoutO
         kept_values = Sample::from_finite(kept.map(|(x, _)| *x).collect());
         &kept_values
     };
-    let (mean, sd, skewness) = (
-        from_stat(kept.mean()),
-        from_stat(kept.sd(Denominator::Sample)),
-        from_stat(moment_skewness(kept)),
-    );
+    let (sd, skewness) = (kept.sd(Denominator::Sample), moment_skewness(kept));
     WithoutOutliers {
         // The mean's change from deviations about a middle value, so it
         // keeps its digits on data far from zero.
         mean_change: from_stat(stats::mean_change_without(s, &out)),
         sd_change: change(&sd, s.sd(Denominator::Sample)),
         skewness_change: change(&skewness, moment_skewness(s)),
-        mean,
-        sd,
-        skewness,
+        mean: from_stat(kept.mean()),
+        sd: from_stat(sd),
+        skewness: from_stat(skewness),
     }
 }
 
@@ -684,7 +677,7 @@ pub fn findings(signals: &Signals) -> Vec<Finding> {
     }
     if signals.n < 3 {
         let why = match signals.n {
-            0 => "no values".to_string(),
+            0 => Reason::NO_VALUES.to_string(),
             n => format!("only {n} value(s)"),
         };
         raise(Rule::FewValues, Status::Note, why);
@@ -712,11 +705,11 @@ pub fn robustness(s: &Sample, fenced: &Fenced, address: &dyn Fn(usize) -> CellNa
     let without = without_outliers(s, &fenced.wide);
     let (mean_influence, sd_influence) = influences(s, address);
     let modified_z = stats::modified_z_beyond(s, stats::MODIFIED_Z_CUTOFF)
-        .map_err(|e| e.to_string())
+        .map_err(Reason::from)
         .map(|big| flag(&big));
     let bootstrap =
         stats::bootstrap_intervals(s, stats::DEFAULT_RESAMPLES, 0.95, stats::DEFAULT_SEED)
-            .map_err(|e| e.to_string());
+            .map_err(Reason::from);
     let signals = Signals::with_gap(s, fenced, gap_in_iqr);
     let found = findings(&signals);
     let status = found.iter().map(|f| f.status).max().unwrap_or(Status::Ok);
@@ -732,7 +725,7 @@ pub fn robustness(s: &Sample, fenced: &Fenced, address: &dyn Fn(usize) -> CellNa
     Robustness {
         gap_in_sd,
         gap_in_iqr: signals.gap_in_iqr,
-        fences_undefined: fenced.wide.as_ref().err().map(|e| e.to_string()),
+        fences_undefined: fenced.wide.as_ref().err().map(|e| e.clone().into()),
         outliers_wide: flag_all(&fenced.wide),
         outliers_far: flag_all(&fenced.far),
         mean_without: without.mean,
@@ -744,8 +737,8 @@ pub fn robustness(s: &Sample, fenced: &Fenced, address: &dyn Fn(usize) -> CellNa
         mean_influence,
         sd_influence,
         modified_z,
-        skewness: signals.skewness.map_err(|e| e.to_string()),
-        tails: signals.tails.map_err(|e| e.to_string()),
+        skewness: signals.skewness.map_err(Reason::from),
+        tails: signals.tails.map_err(Reason::from),
         bootstrap,
         status,
         reason,
@@ -857,7 +850,7 @@ mod tests {
     fn no_values_and_too_few_values_say_why() {
         let empty = Sample::from_values([]);
         let r = robustness(&empty, &fenced(&empty), &column_c);
-        let no = || "no values".to_string();
+        let no = || Reason::NO_VALUES;
         assert_eq!(r.fences_undefined, Some(no()));
         assert_eq!(r.modified_z, Err(no()));
         assert_eq!(
@@ -871,9 +864,11 @@ mod tests {
 
         let two = Sample::from_values([0.1, 0.7]);
         let r = robustness(&two, &fenced(&two), &column_c);
-        assert_eq!(r.bootstrap, Err("needs at least 10 values, has 2".into()));
-        assert_eq!(r.sd_influence, Err("needs at least 3 values, has 2".into()));
-        assert_eq!(r.skewness, Err("needs at least 3 values, has 2".into()));
+        let too_few = |needed| Reason::Stat(stats::Undefined::TooFewValues { needed, have: 2 });
+        assert_eq!(r.bootstrap, Err(too_few(10)));
+        assert_eq!(r.sd_influence, Err(too_few(3)));
+        assert_eq!(r.skewness, Err(too_few(3)));
+        assert_eq!(too_few(10).to_string(), "needs at least 10 values, has 2");
         // Two values are symmetric about their mean: skewness exactly 0.
         let figures = panel_figures(&two, &fenced(&two));
         assert_eq!(

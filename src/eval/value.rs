@@ -11,6 +11,7 @@ use crate::recipe::ast::{BinaryOp, Expr, ExprKind, UnaryOp};
 use crate::recipe::pretty;
 use crate::stats::Sample;
 
+use super::Reason;
 use super::aggregate;
 
 /// A column's values over the rows being evaluated.
@@ -80,8 +81,8 @@ pub enum One {
     Date(f64),
     /// Several numbers: every tied mode.
     List(Vec<f64>),
-    /// No value, and why ("no values", "constant column", ...).
-    Undefined(String),
+    /// No value, and why.
+    Undefined(Reason),
 }
 
 impl One {
@@ -90,7 +91,7 @@ impl One {
         if x.is_finite() {
             One::Number(x)
         } else {
-            One::Undefined("not a finite number (division by zero?)".into())
+            One::Undefined(Reason::NotFinite)
         }
     }
 }
@@ -173,9 +174,9 @@ impl<'a> Scope<'a> {
 
     /// Records the current value of a `change(...)` argument and returns its
     /// previous value, if the run has one.
-    pub fn compare(&self, expression: String, now: f64) -> Result<f64, String> {
+    pub fn compare(&self, expression: String, now: f64) -> Result<f64, Reason> {
         let Some(context) = self.context else {
-            return Err("no previous period to compare with".into());
+            return Err(Reason::NoPrevious);
         };
         let previous = context
             .previous
@@ -186,7 +187,7 @@ impl<'a> Scope<'a> {
             group: self.group.clone(),
             value: now,
         });
-        previous.ok_or_else(|| "no previous period to compare with".to_string())
+        previous.ok_or(Reason::NoPrevious)
     }
 
     /// The sample of an aggregate's column argument, built once per scope.
@@ -304,7 +305,7 @@ impl<'a> Scope<'a> {
                         One::Truth(true) => t.clone(),
                         One::Truth(false) => o.clone(),
                         One::Undefined(why) => One::Undefined(why.clone()),
-                        _ => One::Undefined("the condition is not true or false".into()),
+                        _ => One::Undefined(Reason::NotTrueOrFalse),
                     });
                 }
                 let (c, t, o) = (spread(c, n), spread(t, n), spread(o, n));
@@ -369,7 +370,7 @@ fn unary(op: UnaryOp, v: Value) -> Value {
         (UnaryOp::Negate, Value::One(One::Number(x))) => Value::One(One::Number(-x)),
         (UnaryOp::Not, Value::One(One::Truth(b))) => Value::One(One::Truth(!b)),
         (_, Value::One(One::Undefined(why))) => Value::One(One::Undefined(why)),
-        (_, Value::One(_)) => Value::One(One::Undefined("wrong kind of value".into())),
+        (_, Value::One(_)) => Value::One(One::Undefined(Reason::WrongKind)),
         (UnaryOp::Negate, Value::Rows(r)) => Value::Rows(Rows::Numbers(
             r.numbers().into_iter().map(|x| x.map(|x| -x)).collect(),
         )),
@@ -440,7 +441,7 @@ fn one_binary(op: BinaryOp, a: &One, b: &One) -> One {
             return One::Undefined(why.clone());
         }
         let (Some(x), Some(y)) = (number_of(a), number_of(b)) else {
-            return One::Undefined(format!("`{}` cannot combine these values", op.symbol()));
+            return One::Undefined(Reason::CannotCombine(op));
         };
         return match kind {
             DateResult::Truth => One::Truth(compare(op, x, y)),
@@ -449,9 +450,7 @@ fn one_binary(op: BinaryOp, a: &One, b: &One) -> One {
                 One::Number(d) => One::Date(d),
                 other => other,
             },
-            DateResult::Meaningless => {
-                One::Undefined(format!("`{}` cannot combine these values", op.symbol()))
-            }
+            DateResult::Meaningless => One::Undefined(Reason::CannotCombine(op)),
         };
     }
     match (op, a, b) {
@@ -475,7 +474,7 @@ fn one_binary(op: BinaryOp, a: &One, b: &One) -> One {
         (One::Truth(x), One::Truth(y)) if op == BinaryOp::NotEqual => One::Truth(x != y),
         (One::Text(x), One::Text(y)) if op == BinaryOp::Equal => One::Truth(x == y),
         (One::Text(x), One::Text(y)) if op == BinaryOp::NotEqual => One::Truth(x != y),
-        _ => One::Undefined(format!("`{}` cannot combine these values", op.symbol())),
+        _ => One::Undefined(Reason::CannotCombine(op)),
     }
 }
 

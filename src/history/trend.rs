@@ -32,7 +32,7 @@ pub struct Move {
     pub after: f64,
     /// The standard error of `after - before`, for figures that have one.
     pub se: Option<f64>,
-    /// What the change is judged by (see [`super::judge`]).
+    /// What the change is judged by (see `history::judge`).
     pub basis: Basis,
 }
 
@@ -198,7 +198,7 @@ fn trend_rows(
 }
 
 /// Each (block, group, figure, period)'s control-band verdict, from the
-/// fourth period on (see [`outside_band`]).
+/// fourth period on (see `outside_band`).
 pub type Bands = HashMap<(String, String, String, String), &'static str>;
 
 fn band_key(e: &super::record::Entry, period: &str) -> (String, String, String, String) {

@@ -54,6 +54,7 @@ const SHEET_FORBIDDEN: &[char] = &['[', ']', ':', '*', '?', '/', '\\'];
 const SHEET_MAX: usize = 31;
 /// The standard errors `noise N se` accepts, both ends included.
 pub const NOISE_RANGE: (f64, f64) = (1.0, 10.0);
+/// The histogram bin rules a recipe may name.
 pub const BIN_RULES: &[&str] = &["sturges", "scott", "freedman_diaconis"];
 
 /// What a data column holds, as far as the checker needs to know.
@@ -72,7 +73,9 @@ pub enum DataKind {
 /// A data column's header and kind.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct DataColumn {
+    /// The header (after the recipe's `header` names are applied).
     pub name: String,
+    /// What it holds.
     pub kind: DataKind,
 }
 
@@ -1117,29 +1120,14 @@ impl<'a> Checker<'a> {
         if !self.percent_slips(function, parameter, arg, value, percent) {
             return false;
         }
-        let too_high = if parameter.max_exclusive {
-            value >= parameter.max
-        } else {
-            value > parameter.max
-        };
-        if value < parameter.min || too_high || (parameter.whole && value.fract() != 0.0) {
-            let range = match (parameter.whole, parameter.max_exclusive) {
-                (true, _) => format!("a whole number from {} to {}", parameter.min, parameter.max),
-                (false, true) => format!(
-                    "at least {} and below {}% (a share such as 10%)",
-                    parameter.min,
-                    parameter.max * 100.0
-                ),
-                (false, false) if parameter.max.is_infinite() => {
-                    format!("{} or more", parameter.min)
-                }
-                (false, false) => format!("from {} to {}", parameter.min, parameter.max),
-            };
+        if !parameter.allows(value) {
             self.report(
                 arg.span,
                 format!(
-                    "the `{}` of `{}` must be {range}",
-                    parameter.name, function.name
+                    "the `{}` of `{}` must be {}",
+                    parameter.name,
+                    function.name,
+                    parameter.range_words()
                 ),
                 (!parameter.help.is_empty()).then(|| parameter.help.to_string()),
             );

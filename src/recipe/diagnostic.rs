@@ -17,12 +17,16 @@ pub enum Severity {
     Warning,
 }
 
+/// A problem in a recipe: where, what, and what to do about it.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Diagnostic {
+    /// The text it is about.
     pub span: Span,
+    /// What is wrong.
     pub message: String,
     /// What to do about it.
     pub help: Option<String>,
+    /// An error refuses the recipe; a warning does not.
     pub severity: Severity,
 }
 
@@ -45,6 +49,7 @@ impl Diagnostic {
         }
     }
 
+    /// The same, with what to do about it.
     pub fn with_help(mut self, help: impl Into<String>) -> Diagnostic {
         self.help = Some(help.into());
         self
@@ -109,6 +114,7 @@ impl Diagnostic {
     }
 }
 
+/// The 1-based line and column (in characters) of a byte offset.
 pub fn line_column(source: &str, offset: usize) -> (usize, usize) {
     let offset = offset.min(source.len());
     let before = &source[..floor_char_boundary(source, offset)];

@@ -168,6 +168,34 @@ pub struct Parameter {
     pub help: &'static str,
 }
 
+impl Parameter {
+    /// Whether a value lies in the parameter's range (and is whole when it
+    /// must be). The checker asks this of a number written in the recipe,
+    /// the evaluator of one computed there (`quartile(x, count(y))`).
+    pub fn allows(&self, value: f64) -> bool {
+        let too_high = if self.max_exclusive {
+            value >= self.max
+        } else {
+            value > self.max
+        };
+        value >= self.min && !too_high && (!self.whole || value.fract() == 0.0)
+    }
+
+    /// The range in words, after "must be".
+    pub fn range_words(&self) -> String {
+        match (self.whole, self.max_exclusive) {
+            (true, _) => format!("a whole number from {} to {}", self.min, self.max),
+            (false, true) => format!(
+                "at least {} and below {}% (a share such as 10%)",
+                self.min,
+                self.max * 100.0
+            ),
+            (false, false) if self.max.is_infinite() => format!("{} or more", self.min),
+            (false, false) => format!("from {} to {}", self.min, self.max),
+        }
+    }
+}
+
 /// One row of the function table.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Function {

@@ -28,6 +28,7 @@ pub use syntax::{KEYWORDS, MAX_CHAIN, MAX_NESTING};
 /// rather than risking the stack in later passes.
 pub const MAX_DEPTH: usize = 256;
 
+/// A parsed recipe with what was found wrong in it.
 #[derive(Debug)]
 pub struct Parsed {
     /// The statements that could be read (a bad line is left out).
@@ -40,6 +41,7 @@ pub struct Parsed {
 }
 
 impl Parsed {
+    /// True when nothing refuses the recipe (warnings may remain).
     pub fn is_ok(&self) -> bool {
         self.diagnostics.is_empty()
     }

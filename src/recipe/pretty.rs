@@ -4,6 +4,8 @@
 
 use super::ast::*;
 
+/// A recipe in canonical text: one statement a line, as the parser reads it
+/// back (the fingerprint is its hash).
 pub fn recipe(r: &Recipe) -> String {
     let mut out = String::new();
     for s in &r.statements {
@@ -38,6 +40,7 @@ fn filter(f: &Option<Expr>) -> String {
         .unwrap_or_default()
 }
 
+/// Text as a double-quoted string, with quotes, backslashes, newlines and tabs escaped.
 pub fn quoted(text: &str) -> String {
     let mut out = String::from("\"");
     for c in text.chars() {
@@ -204,6 +207,7 @@ fn wrapped(e: &Expr, parens: bool) -> String {
     }
 }
 
+/// An expression in canonical text, with only the parentheses it needs.
 pub fn expr(e: &Expr) -> String {
     match &e.kind {
         ExprKind::Number(v) => number(*v),

@@ -495,6 +495,7 @@ fn boxplot_statement(input: &str) -> PResult<'_, StatementKind> {
     Ok((rest, StatementKind::Boxplot { column, per }))
 }
 
+/// The words that begin a statement (`grammar/sheaf.peg` lists the same).
 pub const STATEMENT_WORDS: &[&str] = &[
     "title",
     "input",

@@ -10,6 +10,7 @@ use super::functions::{self, FunctionKind};
 /// A data column the recipe reads, with the first place it does.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Use {
+    /// The column's name.
     pub name: String,
     /// The first line of the recipe (1-based) that reads it this way.
     pub line: usize,

@@ -17,17 +17,18 @@ pub(super) fn value(v: &One) -> Value {
         One::Text(t) => Value::Text(t.clone()),
         One::Date(x) => Value::Date(IsoDate::from_serial(*x)),
         One::List(v) => Value::Numbers(v.clone()),
-        One::Undefined(why) => Value::NoValue(reason(why)),
+        One::Undefined(why) => Value::Missing(reason(why)),
     }
 }
 
-fn reason(why: &str) -> Reason {
+/// A reason in its JSON shape, `{"reason": "..."}`: the words are written here.
+fn reason(why: &impl std::fmt::Display) -> Reason {
     Reason {
         reason: why.to_string(),
     }
 }
 
-fn or_reason<T, U>(r: &Result<T, String>, f: impl FnOnce(&T) -> U) -> OrReason<U> {
+fn or_reason<T, U>(r: &Result<T, eval::Reason>, f: impl FnOnce(&T) -> U) -> OrReason<U> {
     match r {
         Ok(t) => OrReason::Value(f(t)),
         Err(why) => OrReason::NoValue(reason(why)),
@@ -46,7 +47,12 @@ fn iso_time(run_time: &str) -> String {
 }
 
 /// The `result` document of one data file, whose workbook went to `output`.
-pub fn result_document(results: &Results, table: &Table, run: &RunInfo, output: &Path) -> Document {
+pub(crate) fn result_document(
+    results: &Results,
+    table: &Table,
+    run: &RunInfo,
+    output: &Path,
+) -> Document {
     Document::Result(Box::new(ResultReport {
         version: REPORT_VERSION,
         sheaf_version: run.version.clone(),
@@ -167,7 +173,7 @@ fn cells(flagged: &[eval::Flagged]) -> Vec<CellValue> {
         .collect()
 }
 
-fn influence(i: &Result<eval::Influence, String>) -> OrReason<InfluenceReport> {
+fn influence(i: &Result<eval::Influence, eval::Reason>) -> OrReason<InfluenceReport> {
     or_reason(i, |i| InfluenceReport {
         change: i.change,
         cell: i.cell.address.to_string(),
@@ -175,7 +181,7 @@ fn influence(i: &Result<eval::Influence, String>) -> OrReason<InfluenceReport> {
     })
 }
 
-fn against_noise(n: &Result<crate::stats::AgainstNoise, String>) -> OrReason<NoiseReport> {
+fn against_noise(n: &Result<crate::stats::AgainstNoise, eval::Reason>) -> OrReason<NoiseReport> {
     or_reason(n, |n| NoiseReport {
         estimate: n.estimate,
         standard_error: n.standard_error,
@@ -184,18 +190,39 @@ fn against_noise(n: &Result<crate::stats::AgainstNoise, String>) -> OrReason<Noi
     })
 }
 
-/// Outliers beyond a pair of fences, or why there are no fences.
-fn outliers(r: &eval::Robustness, flagged: &[eval::Flagged]) -> OrReason<Vec<CellValue>> {
-    match &r.fences_undefined {
-        Some(why) => OrReason::NoValue(reason(why)),
-        None => OrReason::Value(cells(flagged)),
-    }
-}
-
 fn interval(i: &crate::stats::Interval) -> IntervalReport {
     IntervalReport {
         low: i.low,
         high: i.high,
+    }
+}
+
+fn bootstrap(b: &crate::stats::BootstrapIntervals) -> BootstrapReport {
+    BootstrapReport {
+        level: b.level,
+        resamples: b.resamples,
+        seed: b.seed,
+        method: b.method.words().to_string(),
+        mean: interval(&b.mean),
+        median: interval(&b.median),
+    }
+}
+
+/// One robustness figure in its shape's JSON form.
+fn robustness_figure(
+    shape: &eval::RobustnessShape,
+    r: &eval::Robustness,
+) -> RobustnessFigureReport {
+    use eval::RobustnessShape as S;
+    match *shape {
+        S::One(_, one) => RobustnessFigureReport::Value(value(one(r))),
+        S::Cells(list) => RobustnessFigureReport::Cells(match list(r) {
+            Ok(list) => OrReason::Value(cells(list)),
+            Err(why) => OrReason::NoValue(reason(why)),
+        }),
+        S::Influence(found) => RobustnessFigureReport::Influence(influence(found(r))),
+        S::Noise { of, .. } => RobustnessFigureReport::Noise(against_noise(of(r))),
+        S::Bootstrap(found) => RobustnessFigureReport::Bootstrap(or_reason(found(r), bootstrap)),
     }
 }
 
@@ -207,29 +234,10 @@ fn robustness(r: &eval::Robustness) -> RobustnessReport {
             eval::Status::Warn => StatusReport::Warn,
         },
         reason: r.reason.clone(),
-        gap_in_sd: value(&r.gap_in_sd),
-        gap_in_iqr: value(&r.gap_in_iqr),
-        outliers_1_5_iqr: outliers(r, &r.outliers_wide),
-        outliers_3_iqr: outliers(r, &r.outliers_far),
-        mean_without_outliers: value(&r.mean_without),
-        mean_change_without_outliers: value(&r.mean_change),
-        sd_without_outliers: value(&r.sd_without),
-        sd_change_without_outliers: value(&r.sd_change),
-        skewness_without_outliers: value(&r.skewness_without),
-        skewness_change_without_outliers: value(&r.skewness_change),
-        largest_mean_influence: influence(&r.mean_influence),
-        largest_sd_influence: influence(&r.sd_influence),
-        modified_z_above_3_5: or_reason(&r.modified_z, |list| cells(list)),
-        skewness_against_noise: against_noise(&r.skewness),
-        tails_against_noise: against_noise(&r.tails),
-        bootstrap: or_reason(&r.bootstrap, |b| BootstrapReport {
-            level: b.level,
-            resamples: b.resamples,
-            seed: b.seed,
-            method: b.method.words().to_string(),
-            mean: interval(&b.mean),
-            median: interval(&b.median),
-        }),
+        figures: eval::ROBUSTNESS_FIGURES
+            .iter()
+            .map(|f| (f.key, robustness_figure(&f.shape, r)))
+            .collect(),
     }
 }
 
@@ -249,7 +257,7 @@ fn check(c: &eval::CheckResult) -> CheckReport {
             eval::Outcome::Warn => OutcomeReport::Warn,
             eval::Outcome::Fail => OutcomeReport::Fail,
         },
-        note: c.note.clone(),
+        note: c.note_words(),
     }
 }
 
@@ -291,7 +299,7 @@ fn chart(c: &Chart) -> ChartReport {
 fn relative(m: &Move) -> OrReason<f64> {
     match m.relative() {
         Some(r) => OrReason::Value(r),
-        None => OrReason::NoValue(reason("previous was 0")),
+        None => OrReason::NoValue(reason(&eval::Reason::PreviousIsZero)),
     }
 }
 
@@ -326,7 +334,7 @@ fn changes(results: &Results, run: &RunInfo) -> Option<ChangesReport> {
 }
 
 /// The `trend` document of a batch: `records` by period, in order.
-pub fn trend_document(
+pub(crate) fn trend_document(
     records: &[(String, Record)],
     output: Option<&Path>,
     (drift, noise): (f64, f64),

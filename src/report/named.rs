@@ -11,7 +11,7 @@ use crate::eval::PANEL_FIGURES;
 
 /// Values by name, serialised as one JSON object in their own order.
 #[derive(Debug, Clone, PartialEq, Default)]
-pub struct NamedValues(pub Vec<(String, Value)>);
+pub(crate) struct NamedValues(pub Vec<(String, Value)>);
 
 impl Serialize for NamedValues {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
@@ -41,11 +41,11 @@ impl JsonSchema for NamedValues {
 /// The standard panel's figures, keyed by each figure's stable key in
 /// [`PANEL_FIGURES`] (`n`, `mean`, ..., `bowley_skewness`, ...).
 #[derive(Debug, Clone, PartialEq)]
-pub struct PanelFigures(pub NamedValues);
+pub(crate) struct PanelFigures(pub NamedValues);
 
 impl PanelFigures {
     /// Pairs the panel's figures with their keys; both come from the panel's definition.
-    pub fn new(figures: &[crate::eval::One]) -> PanelFigures {
+    pub(crate) fn new(figures: &[crate::eval::One]) -> PanelFigures {
         PanelFigures(NamedValues(
             PANEL_FIGURES
                 .iter()

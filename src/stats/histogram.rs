@@ -60,7 +60,7 @@ impl BinRule {
 /// Equal-width bins over a sample and the values in each.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Histogram {
-    /// k + 1 edges; bin i is [edges[i], edges[i+1]), the last bin closed.
+    /// k + 1 edges; bin i is `[edges[i], edges[i+1])`, the last bin closed.
     pub edges: Vec<f64>,
     /// The number of values in each bin.
     pub counts: Vec<usize>,
@@ -83,9 +83,7 @@ fn bin_count(sample: &Sample, rule: BinRule, range: f64) -> Stat<usize> {
     let n = sample.count() as f64;
     let width = match rule {
         BinRule::Fixed(0) => {
-            return Err(Undefined::BadArgument(
-                "a histogram needs at least 1 bin".into(),
-            ));
+            return Err(Undefined::NoBins);
         }
         BinRule::Fixed(k) => return Ok(k),
         BinRule::Sturges => return Ok(sturges_bins(sample.count())),
@@ -198,9 +196,7 @@ fn bin_of(x: f64, edges: &[f64]) -> usize {
 /// every tied bin's mean, ascending.
 pub fn binned_mode(sample: &Sample, k: usize) -> Stat<Vec<f64>> {
     if k == 0 {
-        return Err(Undefined::BadArgument(
-            "a histogram needs at least 1 bin".into(),
-        ));
+        return Err(Undefined::NoBins);
     }
     let edges = equal_edges(sample.min()?, sample.max()?, k.min(MAX_BINS));
     // Counts and sums in one pass: each value's bin is found once.

@@ -36,9 +36,7 @@ fn midpoint(a: f64, b: f64) -> f64 {
 /// The k-th quartile (k = 0..4) by the given method.
 pub fn quartile(sample: &Sample, k: u8, method: QuantileMethod) -> Stat {
     if k > 4 {
-        return Err(Undefined::BadArgument(format!(
-            "quartile {k} does not exist; use 1, 2 or 3"
-        )));
+        return Err(Undefined::NoSuchQuartile(k));
     }
     quantile_sorted(sample.sorted(), f64::from(k) / 4.0, method)
 }
@@ -127,10 +125,7 @@ pub(crate) fn median_by_selection(values: &mut [f64]) -> Stat {
 /// exactly 3 in floating point.
 pub(crate) fn cut_count(share: f64, n: usize) -> Stat<usize> {
     if !(0.0..0.5).contains(&share) {
-        return Err(Undefined::BadArgument(format!(
-            "the share cut from each end must be at least 0 and below 50%, not {}%",
-            share * 100.0
-        )));
+        return Err(Undefined::CutOutside(share));
     }
     Ok((share * n as f64 + 1e-9).floor() as usize)
 }
@@ -231,7 +226,7 @@ mod tests {
         assert_eq!(trimmed_mean(&s, 0.0), Ok(14.5));
         assert!(matches!(
             trimmed_mean(&s, 0.5),
-            Err(Undefined::BadArgument(_))
+            Err(Undefined::CutOutside(_))
         ));
         // 10% of 30 is 3 even though 0.1 * 30 = 3.0000000000000004.
         let thirty = Sample::from_values((1..=30).map(f64::from));

@@ -35,9 +35,7 @@ pub fn fences(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<Fences> {
 /// from zero.
 fn fences_about(sample: &Sample, k: f64, method: QuantileMethod) -> Stat<(f64, Fences)> {
     if !(k.is_finite() && k >= 0.0) {
-        return Err(Undefined::BadArgument(format!(
-            "the fence factor must be 0 or more, not {k}"
-        )));
+        return Err(Undefined::NegativeFenceFactor(k));
     }
     let centre = middle_value(sample.sorted())?;
     let q1 = quartile_about(sample, 1, method, centre)?;

@@ -72,9 +72,7 @@ struct Between {
 
 fn between(sorted: &[f64], p: f64, method: QuantileMethod) -> Stat<Between> {
     if !(0.0..=1.0).contains(&p) {
-        return Err(Undefined::BadArgument(format!(
-            "quantile level {p} is outside 0 to 1"
-        )));
+        return Err(Undefined::LevelOutside(p));
     }
     if sorted.is_empty() {
         return Err(Undefined::NoValues);
@@ -98,9 +96,7 @@ fn hyndman_fan(x: &[f64], p: f64, kind: u8) -> Stat<Between> {
         8 => (p + 1.0) / 3.0,
         9 => p / 4.0 + 3.0 / 8.0,
         _ => {
-            return Err(Undefined::BadArgument(format!(
-                "there is no Hyndman-Fan type {kind}; use 1 to 9"
-            )));
+            return Err(Undefined::NoSuchQuantileType(kind));
         }
     };
     let h = snap_to_integer(n * p + m);
@@ -171,9 +167,7 @@ fn hinges(x: &[f64], p: f64) -> Stat<Between> {
         0.5 => Ok(from_low((n + 1) as f64 / 2.0)),
         0.75 => Ok(from_high(hinge_depth)),
         1.0 => Ok(from_high(1.0)),
-        _ => Err(Undefined::BadArgument(
-            "Tukey's hinges give only the quartiles (0, 25, 50, 75, 100); use an hf method for other percentiles".into(),
-        )),
+        _ => Err(Undefined::HingesOnlyQuartiles),
     }
 }
 
@@ -256,7 +250,7 @@ mod tests {
         }
         assert!(matches!(
             quantile_sorted(&[1.0], 0.9, QuantileMethod::Hinges),
-            Err(Undefined::BadArgument(_))
+            Err(Undefined::HingesOnlyQuartiles)
         ));
     }
 

@@ -29,9 +29,7 @@ pub fn mean_se(s: &Sample) -> Stat {
 pub fn share_se(p: f64, n: usize) -> Stat {
     need(n, 1)?;
     if !(0.0..=1.0).contains(&p) {
-        return Err(Undefined::BadArgument(format!(
-            "a share of {p} is not 0 to 1"
-        )));
+        return Err(Undefined::ShareOutside(p));
     }
     Ok((p * (1.0 - p) / n as f64).sqrt())
 }
@@ -94,10 +92,7 @@ pub fn quantile_se(s: &Sample, p: f64) -> Stat {
     need(n, 3)?;
     let m = (p * n as f64 + 0.5).floor() as usize;
     if m < 2 || m + 1 > n {
-        return Err(Undefined::BadArgument(format!(
-            "too few values for a standard error of the {}th percentile ({n} values)",
-            crate::format::shortest(p * 100.0)
-        )));
+        return Err(Undefined::TooFewAroundPercentile { level: p, have: n });
     }
     let weights = BetaCells::new((m - 1) as f64, (n - m) as f64, n);
     Ok(maritz_jarrett(sorted, m, &weights))

@@ -5,6 +5,7 @@ use rust_xlsxwriter::{Format, Workbook, XlsxError};
 
 use super::sheets::SheetNames;
 use super::{RunInfo, style};
+use crate::eval::Reason;
 use crate::history::{RECORD_SHEET, Record};
 
 /// The figures flagged "moved" on the Changes sheet: its name, and each
@@ -37,6 +38,47 @@ pub fn changes(
     ]
     .map(String::from)
     .to_vec();
+    changes_heading(sheet, &labels, run, previous, current)?;
+    let percent = Format::new().set_num_format("0.0%");
+    let mut r = 4;
+    let previous_period = previous.period.as_deref().unwrap_or_default();
+    let now_period = current.period.as_deref().unwrap_or_default();
+    let mut widths = style::Widths::default();
+    let moves = crate::history::moves_between(previous_period, previous, now_period, current);
+    let (moves, unlisted) = listed(
+        moves,
+        |m| m.flag(run.drift, run.noise).is_some(),
+        crate::eval::MAX_SHEET_ENTRIES,
+    );
+    for m in moves {
+        if let Some(flagged) = change_row(sheet, r, &m, run, &mut widths, &percent)? {
+            moved.push(flagged);
+        }
+        r += 1;
+    }
+    if unlisted > 0 {
+        let said = format!(
+            "... and {unlisted} more changes, none flagged, not listed: a sheet holds {} rows (every figure is on the Record sheet and in --json)",
+            crate::load::MAX_SHEET_ROWS
+        );
+        sheet.write_string_with_format(r, 0, &said, &style::reason())?;
+    }
+    widths.seen(3, 6, Reason::PreviousIsZero.to_string().len());
+    style::print_titles(sheet, 3, 3)?;
+    style::fit_columns(sheet, 3, &labels, &widths)?;
+    style::filter(sheet, 3, r - 1, labels.len())?;
+    Ok((sheet_name, moved))
+}
+
+/// The Changes sheet's title, its notes (the period compared with and
+/// the rules; groups that appeared or disappeared) and the table header.
+fn changes_heading(
+    sheet: &mut rust_xlsxwriter::Worksheet,
+    labels: &[String],
+    run: &RunInfo,
+    previous: &Record,
+    current: &Record,
+) -> Result<(), XlsxError> {
     sheet.write_string_with_format(0, 0, "Changes", &style::title())?;
     let note = format!(
         "Each figure against period {}. {}",
@@ -53,56 +95,44 @@ pub fn changes(
         },
     );
     sheet.merge_range(2, 0, 2, 9, &groups, &style::note_format())?;
-    style::table_header(sheet, 3, &labels, 3)?;
-    let percent = Format::new().set_num_format("0.0%");
-    let mut r = 4;
-    let previous_period = previous.period.as_deref().unwrap_or_default();
-    let now_period = current.period.as_deref().unwrap_or_default();
-    let mut widths = style::Widths::default();
-    let moves = crate::history::moves_between(previous_period, previous, now_period, current);
-    let (moves, unlisted) = listed(
-        moves,
-        |m| m.flag(run.drift, run.noise).is_some(),
-        crate::eval::MAX_SHEET_ENTRIES,
-    );
-    for m in moves {
-        let name = crate::history::shown_name(&m.block, &m.name);
-        for (c, text) in [(0, &m.block), (1, &m.group), (2, &name)] {
-            widths.seen(r, c, style::write_text(sheet, r, c, text)?);
-        }
-        for (c, x) in [(3, m.before), (4, m.after), (5, m.after - m.before)] {
-            let value = crate::eval::One::Number(x);
-            let shown = style::Shown::unknown_kind(&value);
-            widths.seen(r, c, style::write_one(sheet, r, c, &value, shown)?);
-        }
-        match m.relative() {
-            Some(relative) => {
-                sheet.write_number_with_format(r, 6, relative, &percent)?;
-            }
-            None => {
-                sheet.write_string_with_format(r, 6, "previous was 0", &style::reason())?;
-            }
-        }
-        if let Some(flag) = m.flag(run.drift, run.noise) {
-            widths.seen(r, 7, flag.word().len());
-            sheet.write_string_with_format(r, 7, flag.word(), &style::status("warn"))?;
-            moved.push((r, moved_in_words(&m, &name, flag.word())));
-        }
-        crate::history::write_noise(sheet, r, 8, &m)?;
-        r += 1;
+    style::table_header(sheet, 3, labels, 3)
+}
+
+/// One figure's change on row `r`; returns the row and the change in
+/// words when it is flagged.
+fn change_row(
+    sheet: &mut rust_xlsxwriter::Worksheet,
+    r: u32,
+    m: &crate::history::Move,
+    run: &RunInfo,
+    widths: &mut style::Widths,
+    percent: &Format,
+) -> Result<Option<(u32, String)>, XlsxError> {
+    let name = crate::history::shown_name(&m.block, &m.name);
+    for (c, text) in [(0, &m.block), (1, &m.group), (2, &name)] {
+        widths.seen(r, c, style::write_text(sheet, r, c, text)?);
     }
-    if unlisted > 0 {
-        let said = format!(
-            "... and {unlisted} more changes, none flagged, not listed: a sheet holds {} rows (every figure is on the Record sheet and in --json)",
-            crate::load::MAX_SHEET_ROWS
-        );
-        sheet.write_string_with_format(r, 0, &said, &style::reason())?;
+    for (c, x) in [(3, m.before), (4, m.after), (5, m.after - m.before)] {
+        let value = crate::eval::One::Number(x);
+        let shown = style::Shown::unknown_kind(&value);
+        widths.seen(r, c, style::write_one(sheet, r, c, &value, shown)?);
     }
-    widths.seen(3, 6, "previous was 0".len());
-    style::print_titles(sheet, 3, 3)?;
-    style::fit_columns(sheet, 3, &labels, &widths)?;
-    style::filter(sheet, 3, r - 1, labels.len())?;
-    Ok((sheet_name, moved))
+    match m.relative() {
+        Some(relative) => {
+            sheet.write_number_with_format(r, 6, relative, percent)?;
+        }
+        None => {
+            let why = Reason::PreviousIsZero.to_string();
+            sheet.write_string_with_format(r, 6, &why, &style::reason())?;
+        }
+    }
+    crate::history::write_noise(sheet, r, 8, m)?;
+    let Some(flag) = m.flag(run.drift, run.noise) else {
+        return Ok(None);
+    };
+    widths.seen(r, 7, flag.word().len());
+    sheet.write_string_with_format(r, 7, flag.word(), &style::status("warn"))?;
+    Ok(Some((r, moved_in_words(m, &name, flag.word()))))
 }
 
 /// A flagged change as the first sheet lists it: where, what, from and to.

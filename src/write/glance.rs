@@ -208,8 +208,8 @@ fn checks(
             (first_row + i as u32, 0),
             &text,
         )?;
-        if let Some(note) = &c.note {
-            explanation(sheet, r, note)?;
+        if let Some(note) = c.note_words() {
+            explanation(sheet, r, &note)?;
         }
         r += 1;
     }

@@ -9,6 +9,7 @@ mod changes;
 mod charts;
 mod glance;
 mod plan;
+mod robustness_cells;
 mod sheets;
 pub(crate) mod style;
 mod trend_charts;

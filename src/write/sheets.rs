@@ -4,14 +4,14 @@ use std::collections::HashSet;
 
 use rust_xlsxwriter::{Workbook, Worksheet, XlsxError};
 
+use super::robustness_cells::{robustness_cells, robustness_labels};
 use super::style::{self, Shown, Widths, write_one};
 use crate::eval::{
-    Block, FigureKind, Flagged, GAP_NOTE_IQR, GAP_WARN_IQR, Influence, One, PANEL_FIGURES,
-    PANEL_LABELS, PanelEntry, Results, Robustness, group_label,
+    Block, FigureKind, GAP_NOTE_IQR, GAP_WARN_IQR, One, PANEL_FIGURES, PANEL_LABELS, PanelEntry,
+    Reason, Results, group_label,
 };
 use crate::stats::{
-    AgainstNoise, BOOTSTRAP_MIN_VALUES, BootstrapIntervals, DEFAULT_RESAMPLES, DEFAULT_SEED,
-    EXACT_UP_TO, SHAPE_NOTE_CUTOFF,
+    BOOTSTRAP_MIN_VALUES, DEFAULT_RESAMPLES, DEFAULT_SEED, EXACT_UP_TO, SHAPE_NOTE_CUTOFF,
 };
 
 /// Sheet names in use, so every new one is unique and at most 31 characters.
@@ -224,14 +224,11 @@ a group none of whose rows pass the block's `where` is listed with 0 rows and 'n
     Ok(BlockSheets { robustness, narrow })
 }
 
-/// What a group without rows shows where a figure has no value: that it
-/// has no rows, not merely "no values" (the notes say why).
-const NO_ROWS: &str = "no rows";
-
-/// `value`, or [`NO_ROWS`] in place of its reason when its group has no rows.
+/// `value`, or [`Reason::NoRows`] in place of its reason when its group
+/// has no rows: that says more than "no values" (the notes say why).
 fn no_rows_said(rows: usize, value: &One) -> One {
     match value {
-        One::Undefined(_) if rows == 0 => One::Undefined(NO_ROWS.into()),
+        One::Undefined(_) if rows == 0 => One::Undefined(Reason::NoRows),
         other => other.clone(),
     }
 }
@@ -346,226 +343,6 @@ fn panel_sheet(
     Ok(())
 }
 
-/// One column of the robustness sheet: its header, how it is shown, and
-/// how its cell is read off an entry's robustness (given how the entry's
-/// measures are shown, for values written inside text).
-struct RobustnessColumn {
-    label: &'static str,
-    kind: FigureKind,
-    value: fn(&Robustness, Shown) -> One,
-}
-
-const fn column(
-    label: &'static str,
-    kind: FigureKind,
-    value: fn(&Robustness, Shown) -> One,
-) -> RobustnessColumn {
-    RobustnessColumn { label, kind, value }
-}
-
-/// The robustness sheet's columns after group, column, status and reason.
-const ROBUSTNESS_COLUMNS: &[RobustnessColumn] = &[
-    column("(mean - median) / sd", FigureKind::Shape, |b, _| {
-        b.gap_in_sd.clone()
-    }),
-    column("(mean - median) / IQR", FigureKind::Shape, |b, _| {
-        b.gap_in_iqr.clone()
-    }),
-    column("outliers 1.5 IQR", FigureKind::Count, |b, _| {
-        fenced_count(b, &b.outliers_wide)
-    }),
-    column("1.5 IQR cells", FigureKind::Words, |b, m| {
-        fenced_cells(b, &b.outliers_wide, m)
-    }),
-    column("outliers 3 IQR", FigureKind::Count, |b, _| {
-        fenced_count(b, &b.outliers_far)
-    }),
-    column("3 IQR cells", FigureKind::Words, |b, m| {
-        fenced_cells(b, &b.outliers_far, m)
-    }),
-    column("mean without", FigureKind::Measure, |b, _| {
-        b.mean_without.clone()
-    }),
-    column("mean change", FigureKind::Measure, |b, _| {
-        b.mean_change.clone()
-    }),
-    column("sd without", FigureKind::Measure, |b, _| {
-        b.sd_without.clone()
-    }),
-    column("sd change", FigureKind::Measure, |b, _| b.sd_change.clone()),
-    column("skewness without", FigureKind::Shape, |b, _| {
-        b.skewness_without.clone()
-    }),
-    column("skewness change", FigureKind::Shape, |b, _| {
-        b.skewness_change.clone()
-    }),
-    column(
-        "leave-one-out mean change (after - before, largest in size)",
-        FigureKind::Measure,
-        |b, _| influence(&b.mean_influence, |i| One::Number(i.change)),
-    ),
-    column("its cell (first row if tied)", FigureKind::Words, |b, m| {
-        influence_cell(&b.mean_influence, m)
-    }),
-    column(
-        "leave-one-out sd change (after - before, largest in size)",
-        FigureKind::Measure,
-        |b, _| influence(&b.sd_influence, |i| One::Number(i.change)),
-    ),
-    column(
-        "its cell, sd (first row if tied)",
-        FigureKind::Words,
-        |b, m| influence_cell(&b.sd_influence, m),
-    ),
-    column(
-        "|modified z| above 3.5",
-        FigureKind::Count,
-        |b, _| match &b.modified_z {
-            Ok(list) => One::Number(list.len() as f64),
-            Err(why) => One::Undefined(why.clone()),
-        },
-    ),
-    column("|modified z| cells", FigureKind::Words, |b, m| {
-        match &b.modified_z {
-            Ok(list) => One::Text(cells(list, m)),
-            Err(why) => One::Undefined(why.clone()),
-        }
-    }),
-    column("skewness G1", FigureKind::Shape, |b, _| {
-        shape(&b.skewness, |k| k.estimate)
-    }),
-    column("SE of G1 if normal", FigureKind::Shape, |b, _| {
-        shape(&b.skewness, |k| k.standard_error)
-    }),
-    column("G1 / SE", FigureKind::Shape, |b, _| {
-        shape(&b.skewness, |k| k.ratio)
-    }),
-    column("skewed", FigureKind::Words, |b, _| {
-        shape_note(
-            &b.skewness,
-            &format!("yes: |G1 / SE| above {SHAPE_NOTE_CUTOFF}"),
-        )
-    }),
-    column("excess kurtosis G2", FigureKind::Shape, |b, _| {
-        shape(&b.tails, |k| k.estimate)
-    }),
-    column("SE of G2 if normal", FigureKind::Shape, |b, _| {
-        shape(&b.tails, |k| k.standard_error)
-    }),
-    column("G2 / SE", FigureKind::Shape, |b, _| {
-        shape(&b.tails, |k| k.ratio)
-    }),
-    column("heavy tails", FigureKind::Words, |b, _| {
-        shape_note(&b.tails, &format!("yes: G2 / SE above {SHAPE_NOTE_CUTOFF}"))
-    }),
-    column("mean 95% low", FigureKind::Measure, |b, _| {
-        bootstrap(b, |i| One::Number(i.mean.low))
-    }),
-    column("mean 95% high", FigureKind::Measure, |b, _| {
-        bootstrap(b, |i| One::Number(i.mean.high))
-    }),
-    column("median 95% low", FigureKind::Measure, |b, _| {
-        bootstrap(b, |i| One::Number(i.median.low))
-    }),
-    column("median 95% high", FigureKind::Measure, |b, _| {
-        bootstrap(b, |i| One::Number(i.median.high))
-    }),
-    column("resamples", FigureKind::Count, |b, _| {
-        bootstrap(b, |i| One::Number(i.resamples as f64))
-    }),
-    column("bootstrap method", FigureKind::Words, |b, _| {
-        bootstrap(b, |i| One::Text(i.method.words().into()))
-    }),
-];
-
-/// The number of outliers, or why there are no fences.
-fn fenced_count(b: &Robustness, list: &[Flagged]) -> One {
-    match &b.fences_undefined {
-        Some(why) => One::Undefined(why.clone()),
-        None => One::Number(list.len() as f64),
-    }
-}
-
-/// The outliers' cells, or why there are no fences.
-fn fenced_cells(b: &Robustness, list: &[Flagged], measure: Shown) -> One {
-    match &b.fences_undefined {
-        Some(why) => One::Undefined(why.clone()),
-        None => One::Text(cells(list, measure)),
-    }
-}
-
-fn influence(found: &Result<Influence, String>, part: fn(&Influence) -> One) -> One {
-    found
-        .as_ref()
-        .map_or_else(|why| One::Undefined(why.clone()), part)
-}
-
-/// The cell whose removal moves a figure most, with its value.
-fn influence_cell(found: &Result<Influence, String>, measure: Shown) -> One {
-    match found {
-        Ok(i) => One::Text(cells(std::slice::from_ref(&i.cell), measure)),
-        Err(why) => One::Undefined(why.clone()),
-    }
-}
-
-fn shape(found: &Result<AgainstNoise, String>, part: fn(&AgainstNoise) -> f64) -> One {
-    found
-        .as_ref()
-        .map_or_else(|why| One::Undefined(why.clone()), |k| One::number(part(k)))
-}
-
-fn shape_note(found: &Result<AgainstNoise, String>, yes: &str) -> One {
-    match found {
-        Ok(k) if k.beyond => One::Text(yes.into()),
-        Ok(_) => One::Text("no".into()),
-        Err(why) => One::Undefined(why.clone()),
-    }
-}
-
-fn bootstrap(b: &Robustness, part: fn(&BootstrapIntervals) -> One) -> One {
-    b.bootstrap
-        .as_ref()
-        .map_or_else(|why| One::Undefined(why.clone()), part)
-}
-
-/// A flagged cell with its value: the number as the input cell holds it,
-/// then the value used when that was derived from it (a `let`), so
-/// "Deliveries!D105 holds 55.8, used as 0.93" rather than a value the
-/// reader cannot find in the cell.
-fn cell_and_value(f: &Flagged, measure: Shown) -> String {
-    match f.address.source_value {
-        Some(source) if source != f.value => format!(
-            "{} holds {}, used as {}",
-            f.address,
-            crate::format::shortest(source),
-            measure.text(f.value)
-        ),
-        _ => format!("{} ({})", f.address, measure.text(f.value)),
-    }
-}
-
-/// Cells listed in one spreadsheet cell; the rest are counted, not listed.
-const LISTED_CELLS: usize = 100;
-
-fn cells(list: &[Flagged], measure: Shown) -> String {
-    if list.is_empty() {
-        return "none".into();
-    }
-    let mut text = list
-        .iter()
-        .take(LISTED_CELLS)
-        .map(|f| cell_and_value(f, measure))
-        .collect::<Vec<_>>()
-        .join("; ");
-    if list.len() > LISTED_CELLS {
-        text.push_str(&format!(
-            " and {} more (see the About sheet's missing cells and the JSON output for all)",
-            list.len() - LISTED_CELLS
-        ));
-    }
-    text
-}
-
 fn robustness_sheet(
     sheet: &mut Worksheet,
     name: &str,
@@ -574,7 +351,7 @@ fn robustness_sheet(
     column_labels: &Labels,
 ) -> Result<(), XlsxError> {
     let mut figures = vec!["status", "reason"];
-    figures.extend(ROBUSTNESS_COLUMNS.iter().map(|c| c.label));
+    figures.extend(robustness_labels());
     let labels = entry_labels(keys, &figures);
     let top = heading(sheet, &format!("{name}: robustness"))?;
     style::table_header(sheet, top, &labels, keys.len() as u16 + 1)?;
@@ -589,10 +366,10 @@ fn robustness_sheet(
         widths.seen(r, c + 1, style::write_text(sheet, r, c + 1, &b.reason)?);
         let decimals = entry_decimals(e);
         let measure = Shown::of(FigureKind::Measure, decimals);
-        for (j, column) in ROBUSTNESS_COLUMNS.iter().enumerate() {
+        for (j, cell) in robustness_cells(b, measure).into_iter().enumerate() {
             let col = c + 2 + j as u16;
-            let value = no_rows_said(entry_rows(e), &(column.value)(b, measure));
-            let shown = Shown::of(column.kind, decimals);
+            let value = no_rows_said(entry_rows(e), &cell.value);
+            let shown = Shown::of(cell.kind, decimals);
             widths.seen(r, col, write_one(sheet, r, col, &value, shown)?);
         }
     }
@@ -674,8 +451,8 @@ fn write_check(
     let word = c.outcome.word();
     sheet.write_string_with_format(r, 6, word, &style::status(word))?;
     widths.seen(r, 6, word.len());
-    if let Some(n) = &c.note {
-        widths.seen(r, 7, style::write_text(sheet, r, 7, n)?);
+    if let Some(n) = c.note_words() {
+        widths.seen(r, 7, style::write_text(sheet, r, 7, &n)?);
     }
     Ok(())
 }
@@ -720,18 +497,15 @@ fn below_checks(
         r += 1;
         for (place, reason) in undefined {
             sheet.write_string(r, 0, style::fit(&place))?;
-            sheet.write_string_with_format(r, 3, &reason, &style::reason())?;
+            sheet.write_string_with_format(r, 3, reason.explained(), &style::reason())?;
             r += 1;
         }
     }
     Ok(r)
 }
 
-/// Why a figure of a group with no rows in its block has no value.
-const NO_ROWS_REASON: &str = "no rows: none of the group's rows passes the block's `where`";
-
 /// (where, why) for every figure that has no value.
-pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
+pub fn undefined_figures(results: &Results) -> Vec<(String, Reason)> {
     let mut found = Vec::new();
     for block in &results.blocks {
         match block {
@@ -750,9 +524,9 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
                         }
                     }
                     let measure = Shown::of(FigureKind::Measure, entry_decimals(e));
-                    for column in ROBUSTNESS_COLUMNS {
-                        if let One::Undefined(why) = (column.value)(&e.robustness, measure) {
-                            found.push((place(&format!("{name} robustness"), column.label), why));
+                    for cell in robustness_cells(&e.robustness, measure) {
+                        if let One::Undefined(why) = cell.value {
+                            found.push((place(&format!("{name} robustness"), cell.label), why));
                         }
                     }
                 }
@@ -765,7 +539,7 @@ pub fn undefined_figures(results: &Results) -> Vec<(String, String)> {
                         if let One::Undefined(why) = value {
                             // A group listed only because other blocks have it.
                             let why = match row.rows {
-                                0 => NO_ROWS_REASON.to_string(),
+                                0 => Reason::NoRows,
                                 _ => why.clone(),
                             };
                             found.push((

@@ -234,11 +234,12 @@ pub fn write_one(
             write_text(sheet, row, col, &text)
         }
         One::Undefined(why) => {
+            let why = why.to_string();
             let mut format = reason();
             if why.chars().count() > WIDEST {
                 format = format.set_text_wrap().set_align(FormatAlign::Top);
             }
-            sheet.write_string_with_format(row, col, why, &format)?;
+            sheet.write_string_with_format(row, col, &why, &format)?;
             Ok(why.chars().count())
         }
     }

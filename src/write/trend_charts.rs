@@ -133,81 +133,21 @@ pub fn trend_charts(
         );
         let title = format!("{}: {}", s.block, s.name);
         let share = shares.contains(&(s.block.clone(), s.name.clone()));
-        let values: Vec<f64> = s
-            .groups
-            .iter()
-            .flat_map(|g| g.1.values().copied())
-            .collect();
-        let shown = match share {
-            true => Shown::Percent,
-            false if values.iter().all(|x| x.fract() == 0.0) => Shown::Count,
-            false => Shown::unknown_kind(&One::List(values)),
-        };
+        let shown = shown_for(&s, share);
         sheet.write_string_with_format(top, 0, fit(&title), &bold)?;
         sheet.write_string_with_format(top + 1, 0, "period", &style::header())?;
         for (i, p) in periods.iter().enumerate() {
             sheet.write_string(top + 2 + i as u32, 0, fit(p))?;
         }
-        let last = top + 1 + periods.len() as u32;
+        let at = Placed {
+            top,
+            last: top + 1 + periods.len() as u32,
+            periods: &periods,
+            shown: &shown,
+        };
         let mut chart = Chart::new(ChartType::Line);
-        for (j, (group, by_period)) in s.groups.iter().enumerate() {
-            let c = 1 + j as u16;
-            sheet.write_string_with_format(top + 1, c, fit(group), &style::header())?;
-            sheet.set_column_width(c, 12)?;
-            for (i, p) in periods.iter().enumerate() {
-                if let Some(v) = by_period.get(p) {
-                    sheet.write_number_with_format(top + 2 + i as u32, c, *v, &shown.format())?;
-                }
-            }
-            let colour = palette::SERIES[j % palette::SERIES.len()];
-            let marker = MARKERS[j % MARKERS.len()];
-            chart
-                .add_series()
-                .set_name((sheet_name, top + 1, c))
-                .set_categories((sheet_name, top + 2, 0, last, 0))
-                .set_values((sheet_name, top + 2, c, last, c))
-                .set_format(ChartLine::new().set_color(colour).set_width(2))
-                .set_marker(ChartMarker::new().set_type(marker).set_size(7).set_format(
-                    ChartFormat::new().set_solid_fill(ChartSolidFill::new().set_color(colour)),
-                ));
-        }
-        let mut c = s.groups.len() as u16;
-        for (group, by_period) in &s.groups {
-            let outside = |p: &String| {
-                let key = (s.block.clone(), group.clone(), s.name.clone(), p.clone());
-                matches!(bands.get(&key), Some(&"above" | &"below"))
-            };
-            if !periods
-                .iter()
-                .any(|p| by_period.contains_key(p) && outside(p))
-            {
-                continue;
-            }
-            c += 1;
-            let label = format!("{group} outside band");
-            sheet.write_string_with_format(top + 1, c, fit(&label), &style::header())?;
-            sheet.set_column_width(c, 12)?;
-            for (i, p) in periods.iter().enumerate() {
-                if let Some(v) = by_period.get(p).filter(|_| outside(p)) {
-                    sheet.write_number_with_format(top + 2 + i as u32, c, *v, &shown.format())?;
-                }
-            }
-            chart
-                .add_series()
-                .set_name((sheet_name, top + 1, c))
-                .set_categories((sheet_name, top + 2, 0, last, 0))
-                .set_values((sheet_name, top + 2, c, last, c))
-                .set_format(ChartFormat::new().set_no_line())
-                .set_marker(
-                    ChartMarker::new()
-                        .set_type(ChartMarkerType::Diamond)
-                        .set_size(10)
-                        .set_format(
-                            ChartFormat::new()
-                                .set_solid_fill(ChartSolidFill::new().set_color(palette::INK)),
-                        ),
-                );
-        }
+        group_lines(sheet, &mut chart, &s, &at)?;
+        let c = outside_band_markers(sheet, &mut chart, &s, &at, bands)?;
         style_trend_chart(&mut chart, &title, &s.name, &shown, share);
         chart.set_height(CHART_HEIGHT);
         sheet.insert_chart(top, c + 2, &chart)?;
@@ -218,6 +158,114 @@ pub fn trend_charts(
         _ => String::new(),
     };
     style::paper(sheet, "Trend charts", Some(&span))
+}
+
+/// How a figure's values are shown: shares as percentages, whole numbers
+/// as counts, else to the digits the values need.
+fn shown_for(s: &Series, share: bool) -> Shown {
+    let values: Vec<f64> = s
+        .groups
+        .iter()
+        .flat_map(|g| g.1.values().copied())
+        .collect();
+    match share {
+        true => Shown::Percent,
+        false if values.iter().all(|x| x.fract() == 0.0) => Shown::Count,
+        false => Shown::unknown_kind(&One::List(values)),
+    }
+}
+
+/// Where one figure's table sits on the sheet: its header row, its last
+/// row, the periods down its first column and how its values are shown.
+struct Placed<'a> {
+    top: u32,
+    last: u32,
+    periods: &'a [String],
+    shown: &'a Shown,
+}
+
+/// A column and a line per group, each in its colour and marker.
+fn group_lines(
+    sheet: &mut rust_xlsxwriter::Worksheet,
+    chart: &mut Chart,
+    s: &Series,
+    at: &Placed,
+) -> Result<(), XlsxError> {
+    let (sheet_name, top, last) = (TREND_CHARTS_SHEET, at.top, at.last);
+    for (j, (group, by_period)) in s.groups.iter().enumerate() {
+        let c = 1 + j as u16;
+        sheet.write_string_with_format(top + 1, c, fit(group), &style::header())?;
+        sheet.set_column_width(c, 12)?;
+        for (i, p) in at.periods.iter().enumerate() {
+            if let Some(v) = by_period.get(p) {
+                sheet.write_number_with_format(top + 2 + i as u32, c, *v, &at.shown.format())?;
+            }
+        }
+        let colour = palette::SERIES[j % palette::SERIES.len()];
+        let marker = MARKERS[j % MARKERS.len()];
+        chart
+            .add_series()
+            .set_name((sheet_name, top + 1, c))
+            .set_categories((sheet_name, top + 2, 0, last, 0))
+            .set_values((sheet_name, top + 2, c, last, c))
+            .set_format(ChartLine::new().set_color(colour).set_width(2))
+            .set_marker(ChartMarker::new().set_type(marker).set_size(7).set_format(
+                ChartFormat::new().set_solid_fill(ChartSolidFill::new().set_color(colour)),
+            ));
+    }
+    Ok(())
+}
+
+/// For each group with a value outside its control band, a column of
+/// those values and a series of diamonds, markers only. Returns the last
+/// column used.
+fn outside_band_markers(
+    sheet: &mut rust_xlsxwriter::Worksheet,
+    chart: &mut Chart,
+    s: &Series,
+    at: &Placed,
+    bands: &Bands,
+) -> Result<u16, XlsxError> {
+    let (sheet_name, top, last) = (TREND_CHARTS_SHEET, at.top, at.last);
+    let mut c = s.groups.len() as u16;
+    for (group, by_period) in &s.groups {
+        let outside = |p: &String| {
+            let key = (s.block.clone(), group.clone(), s.name.clone(), p.clone());
+            matches!(bands.get(&key), Some(&"above" | &"below"))
+        };
+        if !at
+            .periods
+            .iter()
+            .any(|p| by_period.contains_key(p) && outside(p))
+        {
+            continue;
+        }
+        c += 1;
+        let label = format!("{group} outside band");
+        sheet.write_string_with_format(top + 1, c, fit(&label), &style::header())?;
+        sheet.set_column_width(c, 12)?;
+        for (i, p) in at.periods.iter().enumerate() {
+            if let Some(v) = by_period.get(p).filter(|_| outside(p)) {
+                sheet.write_number_with_format(top + 2 + i as u32, c, *v, &at.shown.format())?;
+            }
+        }
+        chart
+            .add_series()
+            .set_name((sheet_name, top + 1, c))
+            .set_categories((sheet_name, top + 2, 0, last, 0))
+            .set_values((sheet_name, top + 2, c, last, c))
+            .set_format(ChartFormat::new().set_no_line())
+            .set_marker(
+                ChartMarker::new()
+                    .set_type(ChartMarkerType::Diamond)
+                    .set_size(10)
+                    .set_format(
+                        ChartFormat::new()
+                            .set_solid_fill(ChartSolidFill::new().set_color(palette::INK)),
+                    ),
+            );
+    }
+    Ok(c)
 }
 
 /// Title, axis titles and number format, gaps for missing periods, the
