@@ -111,11 +111,13 @@ pub fn quantile_se(s: &Sample, p: f64) -> Stat {
     Ok(maritz_jarrett(sorted, m, weights.iter().copied()))
 }
 
+/// Each cell's (index of the sorted value, weight).
+type Cells = Vec<(usize, f64)>;
+
 thread_local! {
     /// The last cells' weights made, by (n, m): Q1, the median and Q3 of a
     /// group's columns.
-    static WEIGHTS: RefCell<Memo<(usize, usize), Vec<(usize, f64)>>> =
-        const { RefCell::new(Memo::new(6)) };
+    static WEIGHTS: RefCell<Memo<(usize, usize), Cells>> = const { RefCell::new(Memo::new(6)) };
 }
 
 /// sqrt(C2 - C1^2) over the cells' (index, weight).
