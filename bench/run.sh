@@ -97,12 +97,7 @@ done
 
 echo "== scaling: sheaf's panel, one CPU / two CPUs"
 if $quick; then
-    sizes="10000:10 100000:10 100000:1000"
+    bash bench/scaling.sh --quick --runs "$runs"
 else
-    sizes="10000:10 100000:10 1000000:10 10000000:10 1000000:1 1000000:100 1000000:1000 1000000:10000 1000000:100000"
+    bash bench/scaling.sh --runs "$runs"
 fi
-for size in $sizes; do
-    file=$(make_data "${size%:*}" "${size#*:}")
-    echo "-- ${size%:*} rows in ${size#*:} groups"
-    pair one-cpu "taskset -c 0 $(panel "$file")" two-cpus "$(panel "$file")"
-done

@@ -519,9 +519,25 @@ pub fn evaluate_against(
             labels: Default::default(),
             shares: Default::default(),
         },
+        check_rows: 0,
+        charts: 0,
     };
+    // First walk: `let` and `rows where`, and the groups of every block,
+    // check and chart, so a result too large for its sheet stops here, in
+    // seconds, before any figure is computed.
+    let mut planned = Vec::new();
     for statement in &recipe.statements {
-        run.statement(&statement.kind)?;
+        planned.extend(run.plan(&statement.kind)?);
+    }
+    // Second walk: the figures, over the rows and groups found above.
+    for (kind, planned) in recipe
+        .statements
+        .iter()
+        .map(|s| &s.kind)
+        .filter(|kind| makes_output(kind))
+        .zip(planned)
+    {
+        run.output(kind, planned)?;
     }
     let mut terms = run.context.terms.into_inner();
     let mut seen = std::collections::HashSet::new();
@@ -559,11 +575,141 @@ struct Run<'a> {
     sources: HashMap<String, Vec<String>>,
     kept: Vec<Row>,
     results: Results,
+    /// Rows the Checks sheet will hold, counted by the first walk.
+    check_rows: usize,
+    /// Charts the result will hold, counted by the first walk.
+    charts: usize,
+}
+
+/// Whether a statement makes output (a block, a check or a chart): the
+/// statements the second walk evaluates.
+fn makes_output(kind: &StatementKind) -> bool {
+    matches!(
+        kind,
+        StatementKind::Panel { .. }
+            | StatementKind::Figures { .. }
+            | StatementKind::Check { .. }
+            | StatementKind::Histogram { .. }
+            | StatementKind::Boxplot { .. }
+    )
+}
+
+/// What the first walk finds for an output statement: the rows `rows
+/// where` had kept above it, the rows of its block, and its groups.
+struct Planned {
+    kept: Vec<Row>,
+    rows_used: usize,
+    groups: Groups,
 }
 
 impl Run<'_> {
-    /// Evaluates one statement; every statement kind is listed here.
-    fn statement(&mut self, kind: &StatementKind) -> Result<(), EvalError> {
+    /// The first walk: evaluates a `let` or `rows where`; for an output
+    /// statement, finds its groups and refuses it when its sheet (or the
+    /// Checks sheet, or the charts) would overflow.
+    fn plan(&mut self, kind: &StatementKind) -> Result<Option<Planned>, EvalError> {
+        let (block_filter, per) = match kind {
+            StatementKind::Panel { per, filter, .. }
+            | StatementKind::Figures { per, filter, .. } => (filter.as_ref(), per),
+            StatementKind::Check { per, .. }
+            | StatementKind::Histogram { per, .. }
+            | StatementKind::Boxplot { per, .. } => (None, per),
+            other => {
+                self.statement(other);
+                return Ok(None);
+            }
+        };
+        let rows = block_rows(self.table, &self.lets, &self.kept, block_filter);
+        let scope = Scope::new(self.table, &self.lets, &rows);
+        let groups = match kind {
+            StatementKind::Panel { .. } | StatementKind::Figures { .. } => {
+                block_groups(self.table, &self.lets, &self.kept, &scope, per)?
+            }
+            _ => groups(&scope, per)?,
+        };
+        let rows_used = rows.len();
+        drop(rows);
+        self.size(kind, groups.len())?;
+        Ok(Some(Planned {
+            kept: self.kept.clone(),
+            rows_used,
+            groups,
+        }))
+    }
+
+    /// Refuses an output statement of `groups` groups whose rows or charts
+    /// would not fit; counts its Checks rows and charts.
+    fn size(&mut self, kind: &StatementKind, groups: usize) -> Result<(), EvalError> {
+        match kind {
+            StatementKind::Panel { name, columns, .. } => {
+                // The panel and robustness sheets hold a row per pair.
+                let pairs = groups * columns.len();
+                if pairs > MAX_SHEET_ENTRIES {
+                    return Err(EvalError::PanelTooLarge {
+                        block: name.value.clone(),
+                        pairs,
+                    });
+                }
+            }
+            StatementKind::Check { name, per, .. } => {
+                // The overall result, then one per group.
+                self.check_rows += 1 + if per.is_empty() { 0 } else { groups };
+                if self.check_rows > MAX_SHEET_ENTRIES {
+                    return Err(EvalError::TooManyChecks {
+                        check: name.value.clone(),
+                        rows: self.check_rows,
+                    });
+                }
+            }
+            StatementKind::Histogram { column, .. } => {
+                self.charts += groups;
+                if self.charts > MAX_CHARTS {
+                    return Err(EvalError::TooManyCharts {
+                        column: column.name.clone(),
+                        charts: self.charts,
+                    });
+                }
+            }
+            // One chart of a box per group.
+            StatementKind::Boxplot { .. } => self.charts += 1,
+            // A figures block's groups (at most MAX_GROUPS) always fit.
+            _ => {}
+        }
+        Ok(())
+    }
+
+    /// The second walk: an output statement's figures over the rows and
+    /// groups the first walk found.
+    fn output(&mut self, kind: &StatementKind, planned: Planned) -> Result<(), EvalError> {
+        let Planned {
+            kept,
+            rows_used,
+            groups,
+        } = planned;
+        self.kept = kept;
+        match kind {
+            StatementKind::Panel {
+                name, columns, per, ..
+            } => self.panel(&name.value, columns, per, groups, rows_used),
+            StatementKind::Figures {
+                name, per, figures, ..
+            } => self.figures(&name.value, per, figures, groups),
+            StatementKind::Check {
+                name,
+                level,
+                per,
+                condition,
+            } => self.check(&name.value, *level, per, condition, groups),
+            StatementKind::Histogram { column, bins, .. } => {
+                self.histogram(column, bins.as_ref().map(|b| &b.value), groups)
+            }
+            StatementKind::Boxplot { column, .. } => self.boxplot(column, groups),
+            _ => {}
+        }
+        Ok(())
+    }
+
+    /// Evaluates a statement that makes no output.
+    fn statement(&mut self, kind: &StatementKind) {
         match kind {
             StatementKind::Title(t) => self.results.title = Some(t.value.clone()),
             StatementKind::Input { .. }
@@ -579,30 +725,14 @@ impl Run<'_> {
             }
             StatementKind::Let { name, value } => self.let_column(&name.value, value),
             StatementKind::RowsWhere(condition) => self.rows_where(condition),
-            StatementKind::Panel {
-                name,
-                columns,
-                per,
-                filter,
-            } => self.panel(&name.value, columns, per, filter.as_ref())?,
-            StatementKind::Figures {
-                name,
-                per,
-                filter,
-                figures,
-            } => self.figures(&name.value, per, filter.as_ref(), figures)?,
-            StatementKind::Check {
-                name,
-                level,
-                per,
-                condition,
-            } => self.check(&name.value, *level, per, condition)?,
-            StatementKind::Histogram { column, per, bins } => {
-                self.histogram(column, per, bins.as_ref().map(|b| &b.value))?
+            StatementKind::Panel { .. }
+            | StatementKind::Figures { .. }
+            | StatementKind::Check { .. }
+            | StatementKind::Histogram { .. }
+            | StatementKind::Boxplot { .. } => {
+                unreachable!("output statements are planned, then evaluated by `output`")
             }
-            StatementKind::Boxplot { column, per } => self.boxplot(column, per)?,
         }
-        Ok(())
     }
 
     /// The scope of the rows kept so far.
@@ -654,19 +784,10 @@ impl Run<'_> {
         name: &str,
         columns: &[ColumnRef],
         per: &[ColumnRef],
-        block_filter: Option<&Expr>,
-    ) -> Result<(), EvalError> {
-        let rows = block_rows(self.table, &self.lets, &self.kept, block_filter);
-        let scope = Scope::new(self.table, &self.lets, &rows);
-        let all_groups = block_groups(self.table, &self.lets, &self.kept, &scope, per)?;
-        // Known before the work: the panel sheet must hold a row per job.
-        let pairs = all_groups.len() * columns.len();
-        if pairs > MAX_SHEET_ENTRIES {
-            return Err(EvalError::PanelTooLarge {
-                block: name.to_string(),
-                pairs,
-            });
-        }
+        all_groups: Groups,
+        rows_used: usize,
+    ) {
+        let scope = self.scope();
         let jobs: Vec<(usize, &ColumnRef)> = (0..all_groups.len())
             .flat_map(|g| columns.iter().map(move |c| (g, c)))
             .collect();
@@ -693,22 +814,13 @@ impl Run<'_> {
             name: name.to_string(),
             keys: per.iter().map(|k| k.name.clone()).collect(),
             entries,
-            rows_used: rows.len(),
+            rows_used,
         });
-        Ok(())
     }
 
-    fn figures(
-        &mut self,
-        name: &str,
-        per: &[ColumnRef],
-        block_filter: Option<&Expr>,
-        figures: &[Figure],
-    ) -> Result<(), EvalError> {
-        let rows = block_rows(self.table, &self.lets, &self.kept, block_filter);
-        let scope = Scope::new(self.table, &self.lets, &rows);
+    fn figures(&mut self, name: &str, per: &[ColumnRef], figures: &[Figure], groups: Groups) {
         let mut out = Vec::new();
-        for (group, group_rows) in block_groups(self.table, &self.lets, &self.kept, &scope, per)? {
+        for (group, group_rows) in groups {
             let group_scope = self.group_scope(&group, &group_rows);
             let values = figures
                 .iter()
@@ -736,7 +848,6 @@ impl Run<'_> {
             names: figures.iter().map(|f| f.name.value.clone()).collect(),
             rows: out,
         });
-        Ok(())
     }
 
     /// A check over all kept rows, then, with `per`, over each group.
@@ -746,20 +857,12 @@ impl Run<'_> {
         level: CheckLevel,
         per: &[ColumnRef],
         condition: &Expr,
-    ) -> Result<(), EvalError> {
+        check_groups: Groups,
+    ) {
         let scope = self.group_scope(&[], &self.kept);
         let overall = check(&scope, name, level, condition, None);
         let mut found = vec![overall];
         if !per.is_empty() {
-            let check_groups = groups(&scope, per)?;
-            // Known before the work: the Checks sheet holds a row per result.
-            let rows = self.results.checks.len() + 1 + check_groups.len();
-            if rows > MAX_SHEET_ENTRIES {
-                return Err(EvalError::TooManyChecks {
-                    check: name.to_string(),
-                    rows,
-                });
-            }
             for (group, group_rows) in check_groups {
                 let group_scope = self.group_scope(&group, &group_rows);
                 found.push(check(
@@ -772,29 +875,14 @@ impl Run<'_> {
             }
         }
         self.results.checks.extend(found);
-        Ok(())
     }
 
-    fn histogram(
-        &mut self,
-        column: &ColumnRef,
-        per: &[ColumnRef],
-        bins: Option<&Bins>,
-    ) -> Result<(), EvalError> {
+    fn histogram(&mut self, column: &ColumnRef, bins: Option<&Bins>, chart_groups: Groups) {
         let rule = match bins {
             Some(Bins::Count(k)) => BinRule::Fixed(*k as usize),
             Some(Bins::Rule(word)) => BinRule::from_word(word).unwrap_or(BinRule::Sturges),
             None => BinRule::Sturges,
         };
-        let chart_groups = groups(&self.scope(), per)?;
-        // Known before the work: one chart per group, each a block of rows.
-        let charts = self.results.charts.len() + chart_groups.len();
-        if charts > MAX_CHARTS {
-            return Err(EvalError::TooManyCharts {
-                column: column.name.clone(),
-                charts,
-            });
-        }
         for (group, group_rows) in chart_groups {
             let sample = self
                 .group_scope(&group, &group_rows)
@@ -814,12 +902,11 @@ impl Run<'_> {
                 )),
             }
         }
-        Ok(())
     }
 
-    fn boxplot(&mut self, column: &ColumnRef, per: &[ColumnRef]) -> Result<(), EvalError> {
+    fn boxplot(&mut self, column: &ColumnRef, box_groups: Groups) {
         let mut boxes = Vec::new();
-        for (group, group_rows) in groups(&self.scope(), per)? {
+        for (group, group_rows) in box_groups {
             let sample = self
                 .group_scope(&group, &group_rows)
                 .sample(&column_expr(column));
@@ -841,7 +928,6 @@ impl Run<'_> {
             column: column.name.clone(),
             boxes,
         });
-        Ok(())
     }
 }
 

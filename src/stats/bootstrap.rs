@@ -30,6 +30,9 @@
 mod exact_median;
 mod saddlepoint;
 
+use std::cell::RefCell;
+
+use super::memo::{Memo, remembered};
 use super::normal::normal_quantile;
 use super::quantile::{QuantileMethod, quantile_sorted};
 use super::random::SplitMix64;
@@ -138,10 +141,15 @@ pub fn bootstrap_intervals(
             exact_median::exact_median_interval(sorted, level),
         ),
         BootstrapMethod::Direct => {
-            let mut rng = SplitMix64(seed);
-            let medians = (0..resamples)
-                .map(|_| direct_median(sorted, &mut rng))
-                .collect();
+            // The drawn ranks depend on n and the seed alone: the columns
+            // of a group share them.
+            let ranks = remembered!(DRAWN_RANKS, (sorted.len(), resamples, seed), || {
+                let mut rng = SplitMix64(seed);
+                (0..resamples)
+                    .map(|_| MiddleRanks::draw(sorted.len(), &mut rng))
+                    .collect::<Vec<_>>()
+            });
+            let medians = ranks.iter().map(|r| r.median(sorted)).collect();
             (
                 mean_by_expansion(sample, level)?,
                 percentiles(medians, level)?,
@@ -193,22 +201,55 @@ fn full_resamples(sorted: &[f64], resamples: usize, rng: &mut SplitMix64) -> (Ve
     (means, medians)
 }
 
-/// The median of one resample of `sorted`, from its middle order
-/// statistics drawn directly (see the module comment).
-fn direct_median(sorted: &[f64], rng: &mut SplitMix64) -> f64 {
-    let n = sorted.len();
-    let pick = |u: f64| sorted[((u * n as f64) as usize).min(n - 1)];
-    // 1-based rank of the lower middle value of a resample.
-    let k = (n - 1) / 2 + 1;
-    let u_lower = rng.beta(k as f64, (n - k + 1) as f64);
-    let lower = pick(u_lower);
-    if n % 2 == 1 {
-        return lower;
+thread_local! {
+    /// The last drawn ranks made, by (n, resamples, seed).
+    static DRAWN_RANKS: RefCell<Memo<(usize, usize, u64), Vec<MiddleRanks>>> =
+        const { RefCell::new(Memo::new(2)) };
+}
+
+/// The 0-based indexes into the sorted values of one resample's middle
+/// value (odd n) or two middle values (even n).
+#[derive(Debug, Clone, Copy)]
+struct MiddleRanks {
+    lower: usize,
+    upper: Option<usize>,
+}
+
+impl MiddleRanks {
+    /// Draws the middle order statistics of one resample of n values
+    /// directly (see the module comment).
+    fn draw(n: usize, rng: &mut SplitMix64) -> MiddleRanks {
+        let index = |u: f64| ((u * n as f64) as usize).min(n - 1);
+        // 1-based rank of the lower middle value of a resample.
+        let k = (n - 1) / 2 + 1;
+        let u_lower = rng.beta(k as f64, (n - k + 1) as f64);
+        let lower = index(u_lower);
+        if n % 2 == 1 {
+            return MiddleRanks { lower, upper: None };
+        }
+        // The smallest of the n - k uniforms above u_lower.
+        let w = 1.0 - rng.uniform();
+        let u_upper = u_lower + (1.0 - u_lower) * -(w.ln() / (n - k) as f64).exp_m1();
+        MiddleRanks {
+            lower,
+            upper: Some(index(u_upper)),
+        }
     }
-    // The smallest of the n - k uniforms above u_lower.
-    let w = 1.0 - rng.uniform();
-    let u_upper = u_lower + (1.0 - u_lower) * -(w.ln() / (n - k) as f64).exp_m1();
-    lower / 2.0 + pick(u_upper) / 2.0
+
+    /// The resample's median.
+    fn median(self, sorted: &[f64]) -> f64 {
+        match self.upper {
+            None => sorted[self.lower],
+            Some(upper) => sorted[self.lower] / 2.0 + sorted[upper] / 2.0,
+        }
+    }
+}
+
+/// The median of one resample of `sorted`, from its middle order
+/// statistics drawn directly.
+#[cfg(test)]
+fn direct_median(sorted: &[f64], rng: &mut SplitMix64) -> f64 {
+    MiddleRanks::draw(sorted.len(), rng).median(sorted)
 }
 
 /// The percentile interval of the bootstrap distribution of the mean from

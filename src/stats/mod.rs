@@ -11,6 +11,7 @@
 mod bootstrap;
 mod histogram;
 mod influence;
+mod memo;
 mod moments;
 mod normal;
 mod order;

@@ -51,6 +51,20 @@ fn times_power_of_two(x: f64, exponent: i32) -> f64 {
     libm::scalbn(x, exponent)
 }
 
+/// The function x -> x times 2^`exponent`, bit for bit `times_power_of_two`.
+/// When 2^`exponent` is a normal double, scalbn is one multiplication by
+/// it; made here once, the per-value passes multiply inline (a call per
+/// value was a fifth of the moments' time) and fall back to scalbn otherwise.
+fn power_of_two_scaler(exponent: i32) -> impl Fn(f64) -> f64 {
+    let factor = (-1022..=1023)
+        .contains(&exponent)
+        .then(|| f64::from_bits(((1023 + exponent) as u64) << 52));
+    move |x| match factor {
+        Some(f) => x * f,
+        None => times_power_of_two(x, exponent),
+    }
+}
+
 /// The exponent e with 2^e <= |x| < 2^(e+1), for a finite non-zero x.
 fn binary_exponent(x: f64) -> i32 {
     libm::ilogb(x)
@@ -67,7 +81,7 @@ impl Moments {
         } else {
             0
         };
-        let scaled = |x: f64| times_power_of_two(x, -value_exponent);
+        let scaled = power_of_two_scaler(-value_exponent);
         let (mut sum, mut size) = (Neumaier::default(), 0.0);
         for &x in values {
             sum.add(scaled(x));
@@ -84,7 +98,7 @@ impl Moments {
         } else {
             0
         };
-        let unit = |d: f64| times_power_of_two(d, -deviation_exponent);
+        let unit = power_of_two_scaler(-deviation_exponent);
         let [s2, s3, s4] = power_sums(values, |x| unit(scaled(x) - rough_mean), n);
         // Move the moments from the rough mean to the corrected one (c is tiny).
         let c = unit(correction);
@@ -291,6 +305,31 @@ mod tests {
 
     fn close(a: f64, b: f64) -> bool {
         (a - b).abs() <= 1e-12 * b.abs().max(1.0)
+    }
+
+    #[test]
+    fn the_inline_scaler_is_scalbn_bit_for_bit() {
+        let values = [
+            1.0,
+            -3.75,
+            0.1,
+            1e300,
+            -1e-300,
+            f64::MIN_POSITIVE,
+            5e-324,
+            f64::MAX,
+            0.0,
+            -0.0,
+        ];
+        for exponent in [
+            -1100, -1075, -1023, -1022, -60, -7, 0, 7, 60, 1023, 1024, 1100,
+        ] {
+            let scale = power_of_two_scaler(exponent);
+            for x in values {
+                let (fast, slow) = (scale(x), times_power_of_two(x, exponent));
+                assert_eq!(fast.to_bits(), slow.to_bits(), "{x} * 2^{exponent}");
+            }
+        }
     }
 
     // Hand-checkable from the definitions: x = 1, 2, 3, 4, 10 has mean 4,

@@ -14,6 +14,9 @@
 //! None needs resampling: each costs at most a pass over part of the
 //! sorted values the sample already holds.
 
+use std::cell::RefCell;
+
+use super::memo::{Memo, remembered};
 use super::order::cut_count;
 use super::sample::Sample;
 use super::undefined::{Stat, Undefined, need};
@@ -94,16 +97,30 @@ pub fn quantile_se(s: &Sample, p: f64) -> Stat {
     if m < 2 || m + 1 > n {
         return Err(Undefined::TooFewAroundPercentile { level: p, have: n });
     }
-    let weights = BetaCells::new((m - 1) as f64, (n - m) as f64, n);
-    Ok(maritz_jarrett(sorted, m, &weights))
+    // The weights depend on n and m alone: the columns of a group share them.
+    let weights = remembered!(WEIGHTS, (n, m), || {
+        BetaCells::new((m - 1) as f64, (n - m) as f64, n)
+            .cells()
+            .collect::<Vec<_>>()
+    });
+    Ok(maritz_jarrett(sorted, m, weights.iter().copied()))
 }
 
-/// sqrt(C2 - C1^2) over the cells' weights.
-fn maritz_jarrett(sorted: &[f64], m: usize, weights: &BetaCells) -> f64 {
+/// Each cell's (index of the sorted value, weight).
+type Cells = Vec<(usize, f64)>;
+
+thread_local! {
+    /// The last cells' weights made, by (n, m): Q1, the median and Q3 of a
+    /// group's columns.
+    static WEIGHTS: RefCell<Memo<(usize, usize), Cells>> = const { RefCell::new(Memo::new(6)) };
+}
+
+/// sqrt(C2 - C1^2) over the cells' (index, weight).
+fn maritz_jarrett(sorted: &[f64], m: usize, cells: impl Iterator<Item = (usize, f64)>) -> f64 {
     // Moments about the m-th value, so data far from zero keep their digits.
     let centre = sorted[m - 1];
     let (mut total, mut c1, mut c2) = (0.0, 0.0, 0.0);
-    for (i, w) in weights.cells() {
+    for (i, w) in cells {
         let d = sorted[i] - centre;
         total += w;
         c1 += w * d;
@@ -310,8 +327,8 @@ mod tests {
             for &p in ps {
                 let m = (p * n as f64 + 0.5).floor() as usize;
                 let (a, b) = ((m - 1) as f64, (n - m) as f64);
-                let fast = maritz_jarrett(sorted, m, &BetaCells::new(a, b, n));
-                let slow = maritz_jarrett(sorted, m, &BetaCells::exhaustive(a, b, n));
+                let fast = maritz_jarrett(sorted, m, BetaCells::new(a, b, n).cells());
+                let slow = maritz_jarrett(sorted, m, BetaCells::exhaustive(a, b, n).cells());
                 assert!(
                     (fast / slow - 1.0).abs() < 1e-6,
                     "n {n} p {p}: {fast} vs {slow}"

@@ -184,8 +184,11 @@ pub fn record(
     names: &mut SheetNames,
     record: &Record,
 ) -> Result<(), XlsxError> {
+    // The largest sheet (every figure of every group), written row by row:
+    // each row goes to a temporary file once the next one starts, so the
+    // memory it takes is one row and the distinct words, whatever its length.
     let sheet = workbook
-        .add_worksheet()
+        .add_worksheet_with_low_memory()?
         .set_name(names.claim_reserved(RECORD_SHEET))?;
     record.write_sheet(sheet)
 }

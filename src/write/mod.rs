@@ -146,6 +146,11 @@ pub fn workbook_bytes(
             sheet.set_print_fit_to_pages(style::WIDE_TABLE_PAGES, 0);
         }
     }
+    // Deflate at level 3, not the library's 6: on 1,000 groups' workbook
+    // (7 MB) about a fifth less writing time for a file 9% larger; level 1
+    // saved little more and made it 60% larger (measured on the loaded
+    // development machine, 2026-12-03).
+    workbook.set_zip_compression_level(3);
     Ok(workbook.save_to_buffer()?)
 }
 

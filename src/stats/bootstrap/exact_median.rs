@@ -24,7 +24,10 @@
 //! The cost is about 9 sqrt(n) indexes, with some 70 partners each for an
 //! even n, whatever the number of resamples.
 
+use std::cell::RefCell;
+
 use super::Interval;
+use crate::stats::memo::{Memo, remembered};
 
 /// Atoms of probability below this are not kept.
 const NEGLIGIBLE: f64 = 1e-18;
@@ -63,14 +66,45 @@ fn point_reaching(atoms: &[Atom], p: f64) -> f64 {
 /// The atoms of the bootstrap distribution of the median of `sorted`, in
 /// no particular order; values may repeat.
 pub(super) fn median_distribution(sorted: &[f64]) -> Vec<Atom> {
-    let n = sorted.len();
     let value = |i: usize| sorted[i - 1];
+    // The probabilities depend on n alone: the columns of a group share them.
+    let places = remembered!(PLACES, sorted.len(), || median_places(sorted.len()));
+    places
+        .iter()
+        .map(|p| Atom {
+            value: match p.i == p.j {
+                true => value(p.i),
+                false => value(p.i) / 2.0 + value(p.j) / 2.0,
+            },
+            probability: p.probability,
+        })
+        .collect()
+}
+
+thread_local! {
+    /// The last places made, by n.
+    static PLACES: RefCell<Memo<usize, Vec<Place>>> = const { RefCell::new(Memo::new(2)) };
+}
+
+/// One possible place of the resampled median: the midpoint of the
+/// 1-based indexes i and j of the sorted values (the value at i when they
+/// are the same), and its probability.
+struct Place {
+    i: usize,
+    j: usize,
+    probability: f64,
+}
+
+/// Every place of the resampled median of n values with probability that
+/// is not negligible.
+fn median_places(n: usize) -> Vec<Place> {
     let (first, last) = middle_window(n);
     if n % 2 == 1 {
         let m = n.div_ceil(2);
         return (first..=last)
-            .map(|i| Atom {
-                value: value(i),
+            .map(|i| Place {
+                i,
+                j: i,
                 probability: middle_at(n, i, m, 0),
             })
             .collect();
@@ -82,10 +116,11 @@ pub(super) fn median_distribution(sorted: &[f64]) -> Vec<Atom> {
     let ln_above: Vec<f64> = (first..=reach)
         .map(|j| ln_smallest_of_above_at(n, n - m, j))
         .collect();
-    let mut atoms = Vec::new();
+    let mut places = Vec::new();
     for i in first..=last {
-        atoms.push(Atom {
-            value: value(i),
+        places.push(Place {
+            i,
+            j: i,
             probability: middle_at(n, i, m, 1),
         });
         let ln_lower = ln_choose + ln_largest_of_below_at(n, m, i);
@@ -95,17 +130,14 @@ pub(super) fn median_distribution(sorted: &[f64]) -> Vec<Atom> {
                 None => ln_smallest_of_above_at(n, n - m, j),
             };
             let probability = (ln_lower + ln_upper).exp();
-            atoms.push(Atom {
-                value: value(i) / 2.0 + value(j) / 2.0,
-                probability,
-            });
+            places.push(Place { i, j, probability });
             // The chance falls by about e^(-1/2) with each step of j.
             if probability < NEGLIGIBLE && j > i + 2 {
                 break;
             }
         }
     }
-    atoms
+    places
 }
 
 /// 1-based indexes within which the middle order statistics of a resample
