@@ -1401,3 +1401,34 @@ fn every_reason_for_a_missing_value_is_reached() {
     }
     assert!(wrong.is_empty(), "{}", wrong.join("\n"));
 }
+
+/// The largest panel a sheet holds is accepted, one (group, column) more
+/// is not: 87,380 groups of 12 columns are exactly the sheet's entries
+/// (MAX_SHEET_ENTRIES). A histogram per group after the panel makes the
+/// accepted recipe stop in the sizing walk too, before any figure.
+#[test]
+fn a_panel_of_exactly_a_sheet_is_accepted_and_one_more_column_is_not() {
+    let groups = 87_380;
+    assert_eq!(groups * 12, eval::MAX_SHEET_ENTRIES);
+    let mut csv = String::from("id,x\n");
+    for i in 0..groups {
+        csv.push_str(&format!("{i},{}\n", i % 7));
+    }
+    let (_dir, t) = table(&csv);
+    let lets: String = (0..12).map(|i| format!("let x{i} = x + {i}\n")).collect();
+    let panel = |n: usize| {
+        let columns: Vec<String> = (0..n).map(|i| format!("x{i}")).collect();
+        format!(
+            "{lets}panel \"P\" of {} per id:\nhistogram x per id\n",
+            columns.join(", ")
+        )
+    };
+    let fits = run_recipe(&panel(12), &t, None).unwrap_err();
+    assert!(fits.contains("the charts to 87380"), "{fits}");
+    let source = panel(12).replace("of x0,", "of x, x0,");
+    let too_many = run_recipe(&source, &t, None).unwrap_err();
+    assert!(
+        too_many.contains("would have 1135940 (group, column) rows"),
+        "{too_many}"
+    );
+}
