@@ -1432,3 +1432,50 @@ fn a_panel_of_exactly_a_sheet_is_accepted_and_one_more_column_is_not() {
         "{too_many}"
     );
 }
+
+/// The Checks sheet's rows are counted as the recipe goes (each check's
+/// overall result, then one per group), and the count is held to the
+/// sheet: 240 checks per 4,368 groups fill it exactly (240 x 4,369 =
+/// MAX_SHEET_ENTRIES) and are accepted; one more check (one more row) is
+/// refused. A histogram per group after the checks stops the accepted
+/// recipe in the sizing walk, before any figure.
+#[test]
+fn checks_fill_a_sheet_exactly_and_one_more_row_is_refused() {
+    let groups = 4_368;
+    assert_eq!(240 * (groups + 1), eval::MAX_SHEET_ENTRIES);
+    let mut csv = String::from("id,x\n");
+    for i in 0..groups {
+        csv.push_str(&format!("{i},{}\n", i % 7));
+    }
+    let (_dir, t) = table(&csv);
+    let checks: String = (0..240)
+        .map(|i| format!("check \"c{i}\" warn per id: min(x) >= 0\n"))
+        .collect();
+    let fits = run_recipe(&format!("{checks}histogram x per id\n"), &t, None).unwrap_err();
+    assert!(fits.contains("the charts to 4368"), "{fits}");
+    let one_more = format!("{checks}check \"overall\" warn: min(x) >= 0\nhistogram x per id\n");
+    let refused = run_recipe(&one_more, &t, None).unwrap_err();
+    assert!(
+        refused.contains("check \"overall\" brings the checks to 1048561 results"),
+        "{refused}"
+    );
+}
+
+/// At most MAX_CHARTS charts: a box plot and a histogram per group of 499
+/// make 500 and are drawn; one histogram more is refused, naming it.
+#[test]
+fn charts_fill_their_limit_exactly_and_one_more_is_refused() {
+    assert_eq!(eval::MAX_CHARTS, 500);
+    let mut csv = String::from("id,x\n");
+    for i in 0..499 {
+        csv.push_str(&format!("{i},{}\n", i % 7));
+    }
+    let (_dir, t) = table(&csv);
+    let charts = "boxplot x per id\nhistogram x per id\n";
+    assert!(run_recipe(charts, &t, None).is_ok());
+    let refused = run_recipe(&format!("{charts}histogram x\n"), &t, None).unwrap_err();
+    assert!(
+        refused.contains("the histogram of x brings the charts to 501"),
+        "{refused}"
+    );
+}
