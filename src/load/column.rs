@@ -351,7 +351,10 @@ impl Column {
 struct OtherCells {
     texts: Vec<(u32, u32)>,
     words: Vec<String>,
-    word_index: HashMap<String, u32>,
+    /// foldhash rather than the standard SipHash: a key column looks up one
+    /// word per row, and foldhash is several times faster on short keys
+    /// (still seeded at random per process).
+    word_index: HashMap<String, u32, foldhash::fast::RandomState>,
     bools: Vec<(u32, bool)>,
     blanks: Vec<u32>,
     errors: Vec<(u32, String)>,

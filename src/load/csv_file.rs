@@ -156,19 +156,50 @@ fn layout(head: &str, options: &LoadOptions, mut notes: ReadNotes) -> Layout {
 /// style (infinities and NaN do not count), a date if it is a day written
 /// YYYY-MM-DD (ISO 8601, the one date form that cannot be misread),
 /// otherwise text, blank or a spreadsheet error code.
-fn push_field(column: &mut ColumnBuilder, field: &str, style: &NumberStyle) {
+pub(crate) fn push_field(column: &mut ColumnBuilder, field: &str, style: &NumberStyle) {
+    let trimmed = trim_spaces(field);
     let number = if *style == NumberStyle::POINT {
-        field.trim().parse::<f64>().ok().filter(|x| x.is_finite())
+        parse_point(trimmed)
     } else {
         style.parse(field)
     };
     match number {
         Some(x) => column.push(Cell::Number(x)),
-        None => match crate::format::serial_from_calendar(field.trim()) {
+        None if could_be_a_day(trimmed) => match crate::format::serial_from_calendar(trimmed) {
             Ok(serial) => column.push(Cell::Date(serial)),
             Err(_) => column.push_text(field),
         },
+        None => column.push_text(field),
     }
+}
+
+/// `field.trim()`, without looking for Unicode spaces when the first and
+/// last bytes are plain ASCII characters (the usual case).
+fn trim_spaces(field: &str) -> &str {
+    let plain = |b: &u8| b.is_ascii() && !char::from(*b).is_whitespace();
+    let bytes = field.as_bytes();
+    match (bytes.first(), bytes.last()) {
+        (Some(first), Some(last)) if plain(first) && plain(last) => field,
+        _ => field.trim(),
+    }
+}
+
+/// A number written with a decimal point, finite only. fast-float2 reads
+/// the same texts as the standard library's `str::parse` and gives the same
+/// double (both round correctly; tested on 400,000 random texts), in less
+/// time.
+fn parse_point(text: &str) -> Option<f64> {
+    match fast_float2::parse::<f64, _>(text) {
+        Ok(x) if x.is_finite() => Some(x),
+        _ => None,
+    }
+}
+
+/// Whether `text` has the shape of YYYY-MM-DD (ten bytes, dashes at 4 and 7):
+/// the only texts `format::serial_from_calendar` can accept.
+fn could_be_a_day(text: &str) -> bool {
+    let b = text.as_bytes();
+    b.len() == 10 && b[4] == b'-' && b[7] == b'-'
 }
 
 /// The first bytes of the file: enough to see its encoding, delimiter and style.
@@ -486,7 +517,7 @@ fn read_records(
         // It stands on the line after this record now, so the record began
         // that many lines back, less the line breaks inside its fields.
         let after = reader.position().line();
-        let inner_breaks: usize = record.iter().map(|f| f.matches('\n').count()).sum();
+        let inner_breaks = memchr::memchr_iter(b'\n', record.as_slice().as_bytes()).count();
         let line = after.saturating_sub(1 + inner_breaks as u64);
         row += line.saturating_sub(next_line) as u32;
         next_line = after;
@@ -574,6 +605,78 @@ mod tests {
 
     fn table(text: &str) -> Result<Table, LoadError> {
         table_with(text.as_bytes(), &LoadOptions::default())
+    }
+
+    /// What `push_field` read before fast-float2: the standard library.
+    fn std_point(text: &str) -> Option<f64> {
+        text.parse::<f64>().ok().filter(|x| x.is_finite())
+    }
+
+    #[test]
+    fn the_fast_float_parser_reads_every_text_as_the_standard_library_does() {
+        let mut rng = crate::stats::SplitMix64(2026);
+        let mut pick = |n: usize| (rng.uniform() * n as f64) as usize;
+        // Decimal numbers of every length, and texts near the number syntax.
+        let alphabet = [
+            "0", "1", "5", "9", ".", "e", "E", "-", "+", "_", " ", "i", "n", "f", "a", ",",
+        ];
+        let mut checked = 0;
+        for case in 0..400_000 {
+            let text = if case % 2 == 0 {
+                let digits: String = (0..1 + pick(20))
+                    .map(|_| char::from(b'0' + pick(10) as u8))
+                    .collect();
+                let at = pick(digits.len() + 1);
+                let mut t = format!(
+                    "{}{}.{}",
+                    ["", "-", "+"][pick(3)],
+                    &digits[..at],
+                    &digits[at..]
+                );
+                if pick(4) == 0 {
+                    t.push_str(&format!("e{}{}", ["", "-", "+"][pick(3)], pick(400)));
+                }
+                t
+            } else {
+                (0..pick(8))
+                    .map(|_| alphabet[pick(alphabet.len())])
+                    .collect()
+            };
+            let (ours, reference) = (parse_point(&text), std_point(&text));
+            assert_eq!(
+                ours.map(f64::to_bits),
+                reference.map(f64::to_bits),
+                "{text:?}"
+            );
+            checked += usize::from(reference.is_some());
+        }
+        assert!(checked > 200_000, "mostly numbers: {checked}");
+        for text in [
+            "1.e5",
+            ".5",
+            "5.",
+            "+.5",
+            "-0",
+            "inf",
+            "NaN",
+            "1e",
+            "e5",
+            ".",
+            "",
+            "0x10",
+            "1_0",
+            "4.9e-324",
+            "1.7976931348623157e308",
+            "2.2250738585072011e-308",
+            "9007199254740993",
+            "0.1e-400",
+        ] {
+            assert_eq!(
+                parse_point(text).map(f64::to_bits),
+                std_point(text).map(f64::to_bits),
+                "{text:?}"
+            );
+        }
     }
 
     #[test]

@@ -11,6 +11,7 @@ mod header;
 mod limits;
 pub mod numbers;
 mod ods_check;
+mod quote_scan;
 mod report;
 pub mod rows;
 mod sheet_cells;
