@@ -438,6 +438,38 @@ impl ColumnBuilder {
         self.numbers.push(value);
     }
 
+    /// Makes room for `rows` more cells at once: growing a large column
+    /// step by step may copy it (and room never filled is never touched).
+    pub(crate) fn reserve(&mut self, rows: usize) {
+        self.numbers.reserve(rows);
+    }
+
+    /// Adds the cells of `later` after this column's, as if they had been
+    /// pushed here one by one (words new to this column get the next codes,
+    /// in the order `later` first saw them). The chunked CSV reader builds
+    /// each chunk's columns apart and joins them with this.
+    /// `later` is left empty, its room kept for the next chunk.
+    pub(crate) fn append(&mut self, later: &mut ColumnBuilder) {
+        let offset = self.numbers.len() as u32;
+        self.numbers.extend_from_slice(&later.numbers);
+        self.dates.extend(later.dates.iter().map(|r| r + offset));
+        later.numbers.clear();
+        later.dates.clear();
+        let Some(theirs) = later.other.take() else {
+            return;
+        };
+        let ours = self.other.get_or_insert_with(Box::default);
+        let codes: Vec<u32> = theirs.words.iter().map(|w| ours.word(w)).collect();
+        let moved = |&(row, code): &(u32, u32)| (row + offset, codes[code as usize]);
+        ours.texts.extend(theirs.texts.iter().map(moved));
+        ours.bools
+            .extend(theirs.bools.iter().map(|&(row, b)| (row + offset, b)));
+        ours.blanks
+            .extend(theirs.blanks.iter().map(|row| row + offset));
+        ours.errors
+            .extend(theirs.errors.into_iter().map(|(row, e)| (row + offset, e)));
+    }
+
     /// Adds a text cell (blank, a spreadsheet error code, or text) without
     /// copying text the column has seen before.
     pub fn push_text(&mut self, text: &str) {

@@ -5,6 +5,7 @@
 
 mod assemble;
 mod column;
+mod csv_chunks;
 mod csv_file;
 mod fit;
 mod header;
@@ -25,6 +26,7 @@ use std::path::Path;
 pub use column::{
     CellIssue, Column, ColumnBuilder, ColumnKind, Converted, IssueKind, MAX_ROWS, NearDuplicate,
 };
+pub use csv_chunks::compare_csv_readers;
 pub use fit::{Wanted, load_for};
 pub use limits::{MAX_SHEET_COLUMNS, MAX_SHEET_ROWS};
 pub use numbers::{NumberStyle, StyleSetting};
