@@ -45,7 +45,8 @@ pub fn load_as(bytes: &[u8], ending: &str) {
 pub fn csv_readers_agree(bytes: &[u8]) {
     let path = input_file(bytes, "csv");
     let chunk_bytes = 1 + bytes.len() % 64;
-    if let Err(difference) = load::compare_csv_readers(&path, &LoadOptions::default(), chunk_bytes) {
+    if let Err(difference) = load::compare_csv_readers(&path, &LoadOptions::default(), chunk_bytes)
+    {
         panic!("{difference}");
     }
 }

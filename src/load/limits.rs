@@ -23,6 +23,7 @@ use super::table::cell_address;
 /// rows by 16,384 columns, XFD): cells beyond them cannot be real, and a
 /// result sheet cannot be longer.
 pub const MAX_SHEET_ROWS: u32 = 1 << 20;
+/// The most columns a sheet may have, as in xlsx (16,384).
 pub const MAX_SHEET_COLUMNS: u32 = 1 << 14;
 
 /// Longest line of a CSV file, in bytes, unless `SHEAF_MAX_LINE_BYTES` says otherwise.
