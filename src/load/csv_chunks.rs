@@ -289,7 +289,7 @@ mod tests {
     fn chunks_read_the_test_corpus_exactly_as_the_reference_reader() {
         let root = Path::new(env!("CARGO_MANIFEST_DIR"));
         let mut files = Vec::new();
-        for dir in ["tests", "workbooks", "examples"] {
+        for dir in ["tests", "workbooks", "examples", "fuzz/seeds"] {
             text_files(&root.join(dir), &mut files);
         }
         assert!(files.len() >= 20, "the corpus: {files:?}");
