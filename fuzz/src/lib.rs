@@ -39,6 +39,18 @@ pub fn load_as(bytes: &[u8], ending: &str) {
     }
 }
 
+/// Reads the bytes as a CSV file with the reference reader and with the
+/// chunked one (chunks of 1 to 64 bytes, chosen by the input's length so
+/// the fuzzer explores cuts everywhere); a difference is a crash.
+pub fn csv_readers_agree(bytes: &[u8]) {
+    let path = input_file(bytes, "csv");
+    let chunk_bytes = 1 + bytes.len() % 64;
+    if let Err(difference) = load::compare_csv_readers(&path, &LoadOptions::default(), chunk_bytes)
+    {
+        panic!("{difference}");
+    }
+}
+
 /// The demo recipe, used when an input holds no recipe of its own.
 const DEMO_RECIPE: &str = include_str!("../../workbooks/depot-monthly.sheaf");
 

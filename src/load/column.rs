@@ -15,17 +15,23 @@ pub const MAX_ROWS: usize = u32::MAX as usize - 1;
 /// A text column's code for a blank or error cell.
 const NO_TEXT: u32 = u32::MAX;
 
+/// What a column holds, decided from all its cells.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum ColumnKind {
+    /// Numbers (dates and true/false cells may be among them).
     Number,
+    /// Dates, as spreadsheet serial days.
     Date,
+    /// Text: group keys and labels.
     Text,
+    /// True/false cells.
     Bool,
     /// No cell holds anything.
     Empty,
 }
 
 impl ColumnKind {
+    /// The kind in a word, for messages and `inspect`.
     pub fn word(self) -> &'static str {
         match self {
             ColumnKind::Number => "number",
@@ -36,6 +42,7 @@ impl ColumnKind {
         }
     }
 
+    /// Whether the column has a numeric view (numbers, dates, true/false).
     pub fn is_numeric(self) -> bool {
         matches!(
             self,
@@ -61,14 +68,19 @@ impl ColumnKind {
     }
 }
 
+/// Why a cell counts as missing.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
 pub enum IssueKind {
+    /// The cell is empty or only spaces.
     Blank,
+    /// Text (or true/false) in a column read as numbers.
     TextInNumbers,
+    /// A spreadsheet error code such as `#N/A`.
     FormulaError,
 }
 
 impl IssueKind {
+    /// The reason in words, for the About sheet and the terminal.
     pub fn words(self) -> &'static str {
         match self {
             IssueKind::Blank => "blank cell",
@@ -81,7 +93,9 @@ impl IssueKind {
 /// A cell that counts as missing, and why.
 #[derive(Debug, Clone, PartialEq)]
 pub struct CellIssue {
+    /// The 0-based data row.
     pub row: usize,
+    /// Why the cell counts as missing.
     pub kind: IssueKind,
     /// What the cell held (text or error), for the About sheet.
     pub content: String,
@@ -100,11 +114,15 @@ enum Values {
     Texts { codes: Vec<u32>, words: Vec<String> },
 }
 
+/// One loaded column: its header, place and kind, its cells stored by type,
+/// and the cells that count as missing.
 #[derive(Debug, Clone)]
 pub struct Column {
+    /// The header text (or the recipe's name, when it accepts several).
     pub name: String,
     /// 0-based position in the sheet, for addresses.
     pub sheet_column: u32,
+    /// What the column holds.
     pub kind: ColumnKind,
     values: Values,
     /// Cells that count as missing in this column's numeric view, in row order.
@@ -119,6 +137,7 @@ pub struct Column {
 /// first few rows, for the terminal and the About sheet.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct Converted {
+    /// How many text cells were read as numbers.
     pub count: usize,
     /// The first rows (0-based data rows), at most [`Converted::SHOWN`].
     pub first_rows: Vec<u32>,
@@ -141,7 +160,9 @@ impl Converted {
 /// recipe merges them, `merged_into` is the spelling kept.
 #[derive(Debug, Clone, PartialEq)]
 pub struct NearDuplicate {
+    /// Each spelling with the 0-based data row of its first cell.
     pub spellings: Vec<(String, u32)>,
+    /// The spelling kept when the recipe merges them.
     pub merged_into: Option<String>,
 }
 
@@ -351,7 +372,10 @@ impl Column {
 struct OtherCells {
     texts: Vec<(u32, u32)>,
     words: Vec<String>,
-    word_index: HashMap<String, u32>,
+    /// foldhash rather than the standard SipHash: a key column looks up one
+    /// word per row, and foldhash is several times faster on short keys
+    /// (still seeded at random per process).
+    word_index: HashMap<String, u32, foldhash::fast::RandomState>,
     bools: Vec<(u32, bool)>,
     blanks: Vec<u32>,
     errors: Vec<(u32, String)>,
@@ -405,10 +429,12 @@ impl ColumnBuilder {
         builder
     }
 
+    /// How many cells the column holds so far.
     pub fn rows(&self) -> usize {
         self.numbers.len()
     }
 
+    /// Adds the next row's cell.
     pub fn push(&mut self, cell: Cell) {
         let row = self.numbers.len() as u32;
         let value = match cell {
@@ -433,6 +459,38 @@ impl ColumnBuilder {
             }
         };
         self.numbers.push(value);
+    }
+
+    /// Makes room for `rows` more cells at once: growing a large column
+    /// step by step may copy it (and room never filled is never touched).
+    pub(crate) fn reserve(&mut self, rows: usize) {
+        self.numbers.reserve(rows);
+    }
+
+    /// Adds the cells of `later` after this column's, as if they had been
+    /// pushed here one by one (words new to this column get the next codes,
+    /// in the order `later` first saw them). The chunked CSV reader builds
+    /// each chunk's columns apart and joins them with this.
+    /// `later` is left empty, its room kept for the next chunk.
+    pub(crate) fn append(&mut self, later: &mut ColumnBuilder) {
+        let offset = self.numbers.len() as u32;
+        self.numbers.extend_from_slice(&later.numbers);
+        self.dates.extend(later.dates.iter().map(|r| r + offset));
+        later.numbers.clear();
+        later.dates.clear();
+        let Some(theirs) = later.other.take() else {
+            return;
+        };
+        let ours = self.other.get_or_insert_with(Box::default);
+        let codes: Vec<u32> = theirs.words.iter().map(|w| ours.word(w)).collect();
+        let moved = |&(row, code): &(u32, u32)| (row + offset, codes[code as usize]);
+        ours.texts.extend(theirs.texts.iter().map(moved));
+        ours.bools
+            .extend(theirs.bools.iter().map(|&(row, b)| (row + offset, b)));
+        ours.blanks
+            .extend(theirs.blanks.iter().map(|row| row + offset));
+        ours.errors
+            .extend(theirs.errors.into_iter().map(|(row, e)| (row + offset, e)));
     }
 
     /// Adds a text cell (blank, a spreadsheet error code, or text) without

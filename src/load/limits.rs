@@ -16,12 +16,14 @@ use std::time::Duration;
 use calamine::{DataRef, Xlsx};
 
 use super::LoadError;
+use super::quote_scan::{Quote, QuoteScan};
 use super::table::cell_address;
 
 /// The rows and columns a spreadsheet sheet holds (xlsx and ods: 1,048,576
 /// rows by 16,384 columns, XFD): cells beyond them cannot be real, and a
 /// result sheet cannot be longer.
 pub const MAX_SHEET_ROWS: u32 = 1 << 20;
+/// The most columns a sheet may have, as in xlsx (16,384).
 pub const MAX_SHEET_COLUMNS: u32 = 1 << 14;
 
 /// Longest line of a CSV file, in bytes, unless `SHEAF_MAX_LINE_BYTES` says otherwise.
@@ -121,43 +123,19 @@ pub fn check_spreadsheet(path: &Path) -> Result<(), LoadError> {
 pub struct Bounded<R> {
     inner: R,
     path: String,
+    /// The 1-based line the next byte is on.
     line: u64,
     line_bytes: u64,
     total: u64,
     max_line: u64,
     max_total: u64,
-    delimiter: u8,
-    quote: Quote,
-}
-
-/// Where the reader is in the CSV quoting rules (RFC 4180).
-#[derive(Debug, Clone, Copy, PartialEq)]
-enum Quote {
-    FieldStart,
-    Unquoted,
-    /// Inside a quoted field opened on this line.
-    Quoted(u64),
-    /// A quote inside a quoted field: its end, or the first of a doubled quote.
-    ClosingOrDoubled(u64),
-}
-
-impl Quote {
-    fn next(self, byte: u8, delimiter: u8, line: u64) -> Quote {
-        let ends_field = byte == delimiter || byte == b'\n';
-        match self {
-            Quote::FieldStart | Quote::Unquoted if ends_field => Quote::FieldStart,
-            Quote::FieldStart if byte == b'"' => Quote::Quoted(line),
-            Quote::FieldStart | Quote::Unquoted => Quote::Unquoted,
-            Quote::Quoted(at) if byte == b'"' => Quote::ClosingOrDoubled(at),
-            Quote::Quoted(at) => Quote::Quoted(at),
-            Quote::ClosingOrDoubled(at) if byte == b'"' => Quote::Quoted(at),
-            Quote::ClosingOrDoubled(_) if ends_field => Quote::FieldStart,
-            Quote::ClosingOrDoubled(_) => Quote::Unquoted,
-        }
-    }
+    quotes: QuoteScan,
+    /// The line of the quote that opened the quoted field the text is in.
+    opened_line: u64,
 }
 
 impl<R: Read> Bounded<R> {
+    /// Wraps `inner`, a CSV text with fields split by `delimiter`, read as `path`.
     pub fn new(inner: R, path: &str, delimiter: u8) -> Self {
         Bounded {
             inner,
@@ -167,11 +145,12 @@ impl<R: Read> Bounded<R> {
             total: 0,
             max_line: limit("SHEAF_MAX_LINE_BYTES", MAX_LINE_BYTES),
             max_total: limit("SHEAF_MAX_FILE_BYTES", MAX_FILE_BYTES),
-            delimiter,
-            quote: Quote::FieldStart,
+            quotes: QuoteScan::new(delimiter, false),
+            opened_line: 0,
         }
     }
 
+    /// The reader wrapped.
     pub fn into_inner(self) -> R {
         self.inner
     }
@@ -179,34 +158,50 @@ impl<R: Read> Bounded<R> {
     fn error(&self, reason: String) -> std::io::Error {
         std::io::Error::other(format!("{}: {reason}", self.path))
     }
-}
 
-impl<R: Read> Read for Bounded<R> {
-    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
-        let n = self.inner.read(buf)?;
-        if n == 0
-            && !buf.is_empty()
-            && let Quote::Quoted(at) = self.quote
-        {
-            return Err(self.error(format!(
-                "the quoted field opened on line {at} is never closed (a \" is missing); the rest of the file would be read as that one field"
-            )));
+    /// Follows lines and quotes through `bytes`, the next bytes read;
+    /// an error at a line over the limit.
+    fn follow(&mut self, bytes: &[u8]) -> std::io::Result<()> {
+        // The line of each quote that opens a field, counted from the last one.
+        let (mut counted_to, mut counted_line) = (0, self.line);
+        let mut opened_line = None;
+        self.quotes.scan(bytes, |at| {
+            counted_line += memchr::memchr_iter(b'\n', &bytes[counted_to..at]).count() as u64;
+            counted_to = at;
+            opened_line = Some(counted_line);
+        });
+        if let Some(line) = opened_line {
+            self.opened_line = line;
         }
-        for &byte in &buf[..n] {
-            self.quote = self.quote.next(byte, self.delimiter, self.line);
-            if byte == b'\n' {
-                self.line += 1;
-                self.line_bytes = 0;
-            } else {
-                self.line_bytes += 1;
-            }
+        let mut line_start = 0;
+        for end in memchr::memchr_iter(b'\n', bytes).chain([bytes.len()]) {
+            self.line_bytes += (end - line_start) as u64;
             if self.line_bytes > self.max_line {
                 return Err(self.error(format!(
                     "line {} is longer than {} bytes; the file is not line-based text (or set SHEAF_MAX_LINE_BYTES to a larger number of bytes)",
                     self.line, self.max_line
                 )));
             }
+            if end < bytes.len() {
+                self.line += 1;
+                self.line_bytes = 0;
+            }
+            line_start = end + 1;
         }
+        Ok(())
+    }
+}
+
+impl<R: Read> Read for Bounded<R> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        let n = self.inner.read(buf)?;
+        if n == 0 && !buf.is_empty() && self.quotes.state() == Quote::Quoted {
+            return Err(self.error(format!(
+                "the quoted field opened on line {} is never closed (a \" is missing); the rest of the file would be read as that one field",
+                self.opened_line
+            )));
+        }
+        self.follow(&buf[..n])?;
         self.total += n as u64;
         if self.total > self.max_total {
             return Err(self.error(format!(

@@ -3,14 +3,17 @@
 //! through the csv crate. Nothing is skipped silently: every blank, text
 //! cell in a numeric column and formula error is counted and addressed.
 
+#![warn(missing_docs)] // every public item of this module is documented; keep it so
 mod assemble;
 mod column;
+mod csv_chunks;
 mod csv_file;
 mod fit;
 mod header;
 mod limits;
 pub mod numbers;
 mod ods_check;
+mod quote_scan;
 mod report;
 pub mod rows;
 mod sheet_cells;
@@ -24,6 +27,7 @@ use std::path::Path;
 pub use column::{
     CellIssue, Column, ColumnBuilder, ColumnKind, Converted, IssueKind, MAX_ROWS, NearDuplicate,
 };
+pub use csv_chunks::compare_csv_readers;
 pub use fit::{Wanted, load_for};
 pub use limits::{MAX_SHEET_COLUMNS, MAX_SHEET_ROWS};
 pub use numbers::{NumberStyle, StyleSetting};
@@ -34,41 +38,80 @@ pub use table::{
     quote_sheet as table_sheet_ref,
 };
 
+/// Why a file could not be loaded; every message names the file (`path`,
+/// as the user wrote it) and says what to do.
 #[derive(Debug, thiserror::Error)]
 pub enum LoadError {
+    /// The file could not be opened or read.
     #[error("{path}: cannot read the file: {reason}")]
-    Unreadable { path: String, reason: String },
+    Unreadable {
+        /// The file.
+        path: String,
+        /// The system's or the reader's words.
+        reason: String,
+    },
+    /// The recipe names a sheet the file does not have.
     #[error("{path}: no sheet named \"{sheet}\"; the sheets are: {available}")]
     NoSuchSheet {
+        /// The file.
         path: String,
+        /// The sheet asked for.
         sheet: String,
+        /// The sheets there are, listed.
         available: String,
     },
+    /// The sheet has no cells.
     #[error("{path}: sheet \"{sheet}\" is empty")]
-    EmptySheet { path: String, sheet: String },
+    EmptySheet {
+        /// The file.
+        path: String,
+        /// The sheet.
+        sheet: String,
+    },
+    /// The header row the recipe names lies below the sheet's last row.
     #[error(
         "{path}: sheet \"{sheet}\" has fewer than {row} rows, so row {row} cannot be the header row"
     )]
     NoHeaderRow {
+        /// The file.
         path: String,
+        /// The sheet.
         sheet: String,
+        /// The 1-based header row asked for.
         row: u32,
     },
+    /// A column with data has no header.
     #[error(
         "{path}: the header {address} is blank but its column holds data; give the column a name"
     )]
-    BlankHeader { path: String, address: String },
+    BlankHeader {
+        /// The file.
+        path: String,
+        /// The header cell, such as `B1`.
+        address: String,
+    },
+    /// Two columns have the same header.
     #[error(
         "{path}: the header \"{name}\" appears twice, at {first} and {second}; rename one of them"
     )]
     DuplicateHeader {
+        /// The file.
         path: String,
+        /// The header text.
         name: String,
+        /// The first header cell.
         first: String,
+        /// The second header cell.
         second: String,
     },
+    /// The file's content breaks a rule or a limit.
     #[error("{path}: {reason}")]
-    Malformed { path: String, reason: String },
+    Malformed {
+        /// The file.
+        path: String,
+        /// What is wrong, where, and what to do.
+        reason: String,
+    },
 }
 
 /// How to read a file (from the recipe's `input` and `header` lines).

@@ -230,6 +230,7 @@ pub struct StyleSetting {
 }
 
 impl StyleSetting {
+    /// Whether the recipe fixes either mark.
     pub fn is_set(&self) -> bool {
         self.decimal.is_some() || self.thousands.is_some()
     }
@@ -248,6 +249,7 @@ pub struct StyleEvidence {
 /// The decided style and how sure the reading is.
 #[derive(Debug, Clone, PartialEq)]
 pub struct DetectedStyle {
+    /// The style the file's numbers are read in.
     pub style: NumberStyle,
     /// Set when the file's texts could be read two ways, with what to write
     /// in the recipe if sheaf's choice is wrong.

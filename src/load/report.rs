@@ -8,6 +8,7 @@ use super::table::Table;
 pub struct ReadingNote {
     /// A short label: `encoding`, `header row`, `summary rows`, ...
     pub topic: &'static str,
+    /// The decision in a sentence.
     pub text: String,
     /// Worth the reader's attention (a guess, or data left out or merged).
     pub attention: bool,

@@ -9,9 +9,13 @@ use sha2::{Digest, Sha256};
 /// What the About sheet says about the input file.
 #[derive(Debug, Clone)]
 pub struct SourceInfo {
+    /// The path as given.
     pub path: String,
+    /// The file's name without its folder.
     pub file_name: String,
+    /// Bytes.
     pub size: u64,
+    /// The SHA-256 of the file's bytes, in hexadecimal.
     pub sha256: String,
 }
 

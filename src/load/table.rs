@@ -6,11 +6,15 @@ use super::source::SourceInfo;
 /// One cell as a loader reads it, before its column is stored by type.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Cell {
+    /// A number.
     Number(f64),
     /// A date or time, as a spreadsheet serial number (days since 1899-12-30).
     Date(f64),
+    /// A true/false cell.
     Bool(bool),
+    /// Text, as written.
     Text(String),
+    /// Nothing, or only spaces.
     Blank,
     /// A formula error such as #DIV/0!, as written.
     Error(String),
@@ -45,13 +49,17 @@ impl Cell {
     }
 }
 
+/// A loaded sheet: its columns, which rows of the sheet they hold, and
+/// what the loader decided.
 #[derive(Debug, Clone)]
 pub struct Table {
+    /// The input file, as the About sheet names it.
     pub source: SourceInfo,
     /// The sheet read (for CSV, the file name without its ending).
     pub sheet: String,
     /// 1-based row of the headers.
     pub header_row: u32,
+    /// The columns, in sheet order.
     pub columns: Vec<Column>,
     /// Data rows kept (blank and summary rows below the header are left out).
     pub rows: usize,
@@ -67,6 +75,7 @@ pub struct Table {
 pub struct SummaryRow {
     /// 1-based sheet row.
     pub sheet_row: usize,
+    /// Why it counts as a summary (the word that marks it).
     pub reason: String,
 }
 
@@ -99,10 +108,12 @@ pub struct ReadNotes {
 }
 
 impl Table {
+    /// The column with this header.
     pub fn column(&self, name: &str) -> Option<&Column> {
         self.columns.iter().find(|c| c.name == name)
     }
 
+    /// The headers, in sheet order.
     pub fn headers(&self) -> Vec<String> {
         self.columns.iter().map(|c| c.name.clone()).collect()
     }
