@@ -11,9 +11,6 @@ pub mod cli;
 pub mod eval;
 pub mod format;
 pub mod history;
-// The loader's items are being documented by its owner; until then its
-// missing docs are allowed here, so the rest of the crate stays warned.
-#[allow(missing_docs)]
 pub mod load;
 pub mod recipe;
 pub mod report;

