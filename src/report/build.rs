@@ -162,6 +162,7 @@ fn cells(flagged: &[eval::Flagged]) -> Vec<CellValue> {
         .iter()
         .map(|f| CellValue {
             cell: f.address.to_string(),
+            input_value: f.address.source_value,
             value: f.value,
         })
         .collect()
@@ -171,6 +172,7 @@ fn influence(i: &Result<eval::Influence, String>) -> OrReason<InfluenceReport> {
     or_reason(i, |i| InfluenceReport {
         change: i.change,
         cell: i.cell.address.to_string(),
+        input_value: i.cell.address.source_value,
         value: i.cell.value,
     })
 }

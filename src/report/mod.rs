@@ -200,6 +200,10 @@ pub struct PanelEntryReport {
 pub struct CellValue {
     /// `Deliveries!E41`.
     pub cell: String,
+    /// The number as it stands in that input cell (900 minutes), null when
+    /// the value is made from several columns and `cell` names a row.
+    pub input_value: Option<f64>,
+    /// The value used (15 hours, from a `let`; the input value otherwise).
     pub value: f64,
 }
 
@@ -208,6 +212,8 @@ pub struct CellValue {
 pub struct InfluenceReport {
     pub change: f64,
     pub cell: String,
+    /// The number as it stands in the input cell (see [`CellValue`]).
+    pub input_value: Option<f64>,
     pub value: f64,
 }
 

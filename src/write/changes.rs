@@ -1,7 +1,7 @@
 //! The Changes sheet (this period against the previous one) and the Record
 //! sheet that lets the next period compare with this one.
 
-use rust_xlsxwriter::{Format, Workbook, XlsxError};
+use rust_xlsxwriter::{Workbook, XlsxError};
 
 use super::sheets::SheetNames;
 use super::{RunInfo, style};
@@ -54,7 +54,7 @@ pub fn changes(
     );
     sheet.merge_range(2, 0, 2, 9, &groups, &style::note_format())?;
     style::table_header(sheet, 3, &labels, 3)?;
-    let percent = Format::new().set_num_format("0.0%");
+    let percent = style::cell().set_num_format("0.0%");
     let mut r = 4;
     let previous_period = previous.period.as_deref().unwrap_or_default();
     let now_period = current.period.as_deref().unwrap_or_default();

@@ -115,7 +115,7 @@ fn heading(sheet: &mut Worksheet, title: &str) -> Result<u32, XlsxError> {
 
 /// Finishes a table written under [`heading`]: columns sized to their
 /// content, the note as a block above it, filter buttons over it. Returns
-/// the table's width in characters.
+/// each column's printed width in characters.
 fn finish_table(
     sheet: &mut Worksheet,
     labels: &[String],
@@ -123,13 +123,13 @@ fn finish_table(
     widths: &Widths,
     note: &str,
     last_row: u32,
-) -> Result<usize, XlsxError> {
+) -> Result<Vec<usize>, XlsxError> {
     style::print_titles(sheet, TABLE_TOP, label_columns)?;
     let chosen = style::fit_columns(sheet, TABLE_TOP, labels, widths)?;
     style::note_block(sheet, 1, note, &chosen)?;
     style::filter(sheet, TABLE_TOP, last_row, labels.len())?;
     // Each column is set 1.5 characters wider than its content.
-    Ok(chosen.iter().map(|w| w + 2).sum())
+    Ok(chosen.iter().map(|w| w + 2).collect())
 }
 
 /// The sheets written by [`blocks`] that links and page setup need.
@@ -139,6 +139,8 @@ pub struct BlockSheets {
     pub robustness: Vec<(String, u32)>,
     /// Sheets narrow enough to print portrait.
     pub narrow: Vec<String>,
+    /// Sheets too wide for one page, and the bands they print in.
+    pub banded: Vec<(String, style::Bands)>,
 }
 
 /// Writes every block's sheets.
@@ -149,6 +151,7 @@ pub fn blocks(
 ) -> Result<BlockSheets, XlsxError> {
     let mut robustness = Vec::new();
     let mut narrow = Vec::new();
+    let mut banded = Vec::new();
     for block in &results.blocks {
         match block {
             Block::Panel {
@@ -165,13 +168,14 @@ pub fn blocks(
                     &results.labels,
                 )?;
                 let sheet_name = names.claim(&format!("{name} robustness"));
-                robustness_sheet(
+                let bands = robustness_sheet(
                     workbook.add_worksheet().set_name(&sheet_name)?,
                     name,
                     keys,
                     entries,
                     &results.labels,
                 )?;
+                banded.push((sheet_name.clone(), bands));
                 robustness.push((sheet_name, TABLE_TOP + 1));
             }
             Block::Figures {
@@ -207,7 +211,7 @@ a group none of whose rows pass the block's `where` is listed with 0 rows and 'n
                         widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
                     }
                 }
-                let width = finish_table(
+                let widths = finish_table(
                     sheet,
                     &labels,
                     keys.len() as u16,
@@ -215,13 +219,17 @@ a group none of whose rows pass the block's `where` is listed with 0 rows and 'n
                     note,
                     top + rows.len() as u32,
                 )?;
-                if width <= style::PORTRAIT_CHARS {
+                if widths.iter().sum::<usize>() <= style::PORTRAIT_CHARS {
                     narrow.push(sheet_name);
                 }
             }
         }
     }
-    Ok(BlockSheets { robustness, narrow })
+    Ok(BlockSheets {
+        robustness,
+        narrow,
+        banded,
+    })
 }
 
 /// What a group without rows shows where a figure has no value: that it
@@ -332,7 +340,8 @@ fn panel_sheet(
             let c = first + j as u16;
             let shown = Shown::of(figure.kind, decimals);
             let value = &no_rows_said(entry_rows(e), value);
-            widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
+            let chars = write_one(sheet, r, c, value, shown)?;
+            widths.seen_figure(r, c, chars, figure.kind);
         }
     }
     finish_table(
@@ -350,74 +359,130 @@ fn panel_sheet(
 /// how its cell is read off an entry's robustness (given how the entry's
 /// measures are shown, for values written inside text).
 struct RobustnessColumn {
+    topic: Topic,
     label: &'static str,
     kind: FigureKind,
     value: fn(&Robustness, Shown) -> One,
 }
 
 const fn column(
+    topic: Topic,
     label: &'static str,
     kind: FigureKind,
     value: fn(&Robustness, Shown) -> One,
 ) -> RobustnessColumn {
-    RobustnessColumn { label, kind, value }
+    RobustnessColumn {
+        topic,
+        label,
+        kind,
+        value,
+    }
+}
+
+/// What a robustness column is about. The sheet prints in bands of whole
+/// topics, so a printed page never splits one.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Topic {
+    /// The mean-median gap and the outliers by the fences.
+    Centre,
+    /// Mean, sd and skewness without the outliers.
+    Without,
+    /// Single values: leave-one-out and modified z-scores.
+    SingleValues,
+    /// Skewness and kurtosis against their standard errors.
+    Shape,
+    /// Bootstrap intervals.
+    Intervals,
 }
 
 /// The robustness sheet's columns after group, column, status and reason.
 const ROBUSTNESS_COLUMNS: &[RobustnessColumn] = &[
-    column("(mean - median) / sd", FigureKind::Shape, |b, _| {
-        b.gap_in_sd.clone()
-    }),
-    column("(mean - median) / IQR", FigureKind::Shape, |b, _| {
-        b.gap_in_iqr.clone()
-    }),
-    column("outliers 1.5 IQR", FigureKind::Count, |b, _| {
-        fenced_count(b, &b.outliers_wide)
-    }),
-    column("1.5 IQR cells", FigureKind::Words, |b, m| {
+    column(
+        Topic::Centre,
+        "(mean - median) / sd",
+        FigureKind::Shape,
+        |b, _| b.gap_in_sd.clone(),
+    ),
+    column(
+        Topic::Centre,
+        "(mean - median) / IQR",
+        FigureKind::Shape,
+        |b, _| b.gap_in_iqr.clone(),
+    ),
+    column(
+        Topic::Centre,
+        "outliers 1.5 IQR",
+        FigureKind::Count,
+        |b, _| fenced_count(b, &b.outliers_wide),
+    ),
+    column(Topic::Centre, "1.5 IQR cells", FigureKind::Words, |b, m| {
         fenced_cells(b, &b.outliers_wide, m)
     }),
-    column("outliers 3 IQR", FigureKind::Count, |b, _| {
-        fenced_count(b, &b.outliers_far)
-    }),
-    column("3 IQR cells", FigureKind::Words, |b, m| {
+    column(
+        Topic::Centre,
+        "outliers 3 IQR",
+        FigureKind::Count,
+        |b, _| fenced_count(b, &b.outliers_far),
+    ),
+    column(Topic::Centre, "3 IQR cells", FigureKind::Words, |b, m| {
         fenced_cells(b, &b.outliers_far, m)
     }),
-    column("mean without", FigureKind::Measure, |b, _| {
-        b.mean_without.clone()
-    }),
-    column("mean change", FigureKind::Measure, |b, _| {
-        b.mean_change.clone()
-    }),
-    column("sd without", FigureKind::Measure, |b, _| {
+    column(
+        Topic::Without,
+        "mean without",
+        FigureKind::Measure,
+        |b, _| b.mean_without.clone(),
+    ),
+    column(
+        Topic::Without,
+        "mean change",
+        FigureKind::Measure,
+        |b, _| b.mean_change.clone(),
+    ),
+    column(Topic::Without, "sd without", FigureKind::Measure, |b, _| {
         b.sd_without.clone()
     }),
-    column("sd change", FigureKind::Measure, |b, _| b.sd_change.clone()),
-    column("skewness without", FigureKind::Shape, |b, _| {
-        b.skewness_without.clone()
-    }),
-    column("skewness change", FigureKind::Shape, |b, _| {
-        b.skewness_change.clone()
+    column(Topic::Without, "sd change", FigureKind::Measure, |b, _| {
+        b.sd_change.clone()
     }),
     column(
+        Topic::Without,
+        "skewness without",
+        FigureKind::Shape,
+        |b, _| b.skewness_without.clone(),
+    ),
+    column(
+        Topic::Without,
+        "skewness change",
+        FigureKind::Shape,
+        |b, _| b.skewness_change.clone(),
+    ),
+    column(
+        Topic::SingleValues,
         "leave-one-out mean change (after - before, largest in size)",
         FigureKind::Measure,
         |b, _| influence(&b.mean_influence, |i| One::Number(i.change)),
     ),
-    column("its cell (first row if tied)", FigureKind::Words, |b, m| {
-        influence_cell(&b.mean_influence, m)
-    }),
     column(
+        Topic::SingleValues,
+        "its cell (first row if tied)",
+        FigureKind::Words,
+        |b, m| influence_cell(&b.mean_influence, m),
+    ),
+    column(
+        Topic::SingleValues,
         "leave-one-out sd change (after - before, largest in size)",
         FigureKind::Measure,
         |b, _| influence(&b.sd_influence, |i| One::Number(i.change)),
     ),
     column(
+        Topic::SingleValues,
         "its cell, sd (first row if tied)",
         FigureKind::Words,
         |b, m| influence_cell(&b.sd_influence, m),
     ),
     column(
+        Topic::SingleValues,
         "|modified z| above 3.5",
         FigureKind::Count,
         |b, _| match &b.modified_z {
@@ -425,57 +490,84 @@ const ROBUSTNESS_COLUMNS: &[RobustnessColumn] = &[
             Err(why) => One::Undefined(why.clone()),
         },
     ),
-    column("|modified z| cells", FigureKind::Words, |b, m| {
-        match &b.modified_z {
+    column(
+        Topic::SingleValues,
+        "|modified z| cells",
+        FigureKind::Words,
+        |b, m| match &b.modified_z {
             Ok(list) => One::Text(cells(list, m)),
             Err(why) => One::Undefined(why.clone()),
-        }
-    }),
-    column("skewness G1", FigureKind::Shape, |b, _| {
+        },
+    ),
+    column(Topic::Shape, "skewness G1", FigureKind::Shape, |b, _| {
         shape(&b.skewness, |k| k.estimate)
     }),
-    column("SE of G1 if normal", FigureKind::Shape, |b, _| {
-        shape(&b.skewness, |k| k.standard_error)
-    }),
-    column("G1 / SE", FigureKind::Shape, |b, _| {
+    column(
+        Topic::Shape,
+        "SE of G1 if normal",
+        FigureKind::Shape,
+        |b, _| shape(&b.skewness, |k| k.standard_error),
+    ),
+    column(Topic::Shape, "G1 / SE", FigureKind::Shape, |b, _| {
         shape(&b.skewness, |k| k.ratio)
     }),
-    column("skewed", FigureKind::Words, |b, _| {
+    column(Topic::Shape, "skewed", FigureKind::Words, |b, _| {
         shape_note(
             &b.skewness,
             &format!("yes: |G1 / SE| above {SHAPE_NOTE_CUTOFF}"),
         )
     }),
-    column("excess kurtosis G2", FigureKind::Shape, |b, _| {
-        shape(&b.tails, |k| k.estimate)
-    }),
-    column("SE of G2 if normal", FigureKind::Shape, |b, _| {
-        shape(&b.tails, |k| k.standard_error)
-    }),
-    column("G2 / SE", FigureKind::Shape, |b, _| {
+    column(
+        Topic::Shape,
+        "excess kurtosis G2",
+        FigureKind::Shape,
+        |b, _| shape(&b.tails, |k| k.estimate),
+    ),
+    column(
+        Topic::Shape,
+        "SE of G2 if normal",
+        FigureKind::Shape,
+        |b, _| shape(&b.tails, |k| k.standard_error),
+    ),
+    column(Topic::Shape, "G2 / SE", FigureKind::Shape, |b, _| {
         shape(&b.tails, |k| k.ratio)
     }),
-    column("heavy tails", FigureKind::Words, |b, _| {
+    column(Topic::Shape, "heavy tails", FigureKind::Words, |b, _| {
         shape_note(&b.tails, &format!("yes: G2 / SE above {SHAPE_NOTE_CUTOFF}"))
     }),
-    column("mean 95% low", FigureKind::Measure, |b, _| {
-        bootstrap(b, |i| One::Number(i.mean.low))
-    }),
-    column("mean 95% high", FigureKind::Measure, |b, _| {
-        bootstrap(b, |i| One::Number(i.mean.high))
-    }),
-    column("median 95% low", FigureKind::Measure, |b, _| {
-        bootstrap(b, |i| One::Number(i.median.low))
-    }),
-    column("median 95% high", FigureKind::Measure, |b, _| {
-        bootstrap(b, |i| One::Number(i.median.high))
-    }),
-    column("resamples", FigureKind::Count, |b, _| {
+    column(
+        Topic::Intervals,
+        "mean 95% low",
+        FigureKind::Measure,
+        |b, _| bootstrap(b, |i| One::Number(i.mean.low)),
+    ),
+    column(
+        Topic::Intervals,
+        "mean 95% high",
+        FigureKind::Measure,
+        |b, _| bootstrap(b, |i| One::Number(i.mean.high)),
+    ),
+    column(
+        Topic::Intervals,
+        "median 95% low",
+        FigureKind::Measure,
+        |b, _| bootstrap(b, |i| One::Number(i.median.low)),
+    ),
+    column(
+        Topic::Intervals,
+        "median 95% high",
+        FigureKind::Measure,
+        |b, _| bootstrap(b, |i| One::Number(i.median.high)),
+    ),
+    column(Topic::Intervals, "resamples", FigureKind::Count, |b, _| {
         bootstrap(b, |i| One::Number(i.resamples as f64))
     }),
-    column("bootstrap method", FigureKind::Words, |b, _| {
-        bootstrap(b, |i| One::Text(i.method.words().into()))
-    }),
+    column(
+        Topic::Intervals,
+        "bootstrap method",
+        FigureKind::Words,
+        |b, _| bootstrap(b, |i| One::Text(i.method.words().into())),
+    ),
 ];
 
 /// The number of outliers, or why there are no fences.
@@ -529,7 +621,7 @@ fn bootstrap(b: &Robustness, part: fn(&BootstrapIntervals) -> One) -> One {
 }
 
 /// A flagged cell with its value: the number as the input cell holds it,
-/// then the value used when that was derived from it (a `let`), so
+/// then the value used when that differs (derived by a `let`), so
 /// "Deliveries!D105 holds 55.8, used as 0.93" rather than a value the
 /// reader cannot find in the cell.
 fn cell_and_value(f: &Flagged, measure: Shown) -> String {
@@ -572,12 +664,14 @@ fn robustness_sheet(
     keys: &[String],
     entries: &[PanelEntry],
     column_labels: &Labels,
-) -> Result<(), XlsxError> {
+) -> Result<style::Bands, XlsxError> {
     let mut figures = vec!["status", "reason"];
     figures.extend(ROBUSTNESS_COLUMNS.iter().map(|c| c.label));
     let labels = entry_labels(keys, &figures);
     let top = heading(sheet, &format!("{name}: robustness"))?;
-    style::table_header(sheet, top, &labels, keys.len() as u16 + 1)?;
+    // The group, the column and the status label every printed band.
+    let label_columns = keys.len() as u16 + 2;
+    style::table_header(sheet, top, &labels, label_columns - 1)?;
     let mut widths = Widths::default();
     for (i, e) in entries.iter().enumerate() {
         let r = top + 1 + i as u32;
@@ -593,19 +687,55 @@ fn robustness_sheet(
             let col = c + 2 + j as u16;
             let value = no_rows_said(entry_rows(e), &(column.value)(b, measure));
             let shown = Shown::of(column.kind, decimals);
-            widths.seen(r, col, write_one(sheet, r, col, &value, shown)?);
+            let chars = write_one(sheet, r, col, &value, shown)?;
+            widths.seen_figure(r, col, chars, column.kind);
         }
     }
     let last = top + entries.len() as u32;
-    finish_table(
-        sheet,
-        &labels,
-        keys.len() as u16 + 1,
-        &widths,
-        &robustness_note(),
-        last,
-    )?;
-    Ok(())
+    style::print_titles(sheet, top, label_columns)?;
+    let chosen = style::fit_columns(sheet, top, &labels, &widths)?;
+    let printed: Vec<usize> = chosen.iter().map(|w| w + 2).collect();
+    // The title, the note (about as tall as it will be) and the table.
+    // The note is about as wide as the first band's page allows.
+    let note_lines = style::wrapped_lines(&robustness_note(), ROBUSTNESS_NOTE_WIDTH * 9 / 10);
+    let height = style::LINE_HEIGHT * (3 + note_lines) as f64
+        + widths.height(&chosen, top + 1, last)
+        + style::LINE_HEIGHT * style::header_lines(&labels, &chosen) as f64;
+    let bands = print_bands(&printed, label_columns, height);
+    // The note beside the labels, over the first band only, so the other
+    // bands' pages do not show a strip of it.
+    let end = bands.starts.first().map_or(labels.len() as u16, |&c| c) - 1;
+    let wide = printed[label_columns as usize..=end as usize].iter().sum();
+    let over = (label_columns, end);
+    style::note_block_over(sheet, 1, &robustness_note(), over, wide)?;
+    style::filter(sheet, top, last, labels.len())?;
+    Ok(bands)
+}
+
+/// Width of the robustness sheet's note, in characters, for its height:
+/// about its first band's width, so the long note takes fewer lines.
+const ROBUSTNESS_NOTE_WIDTH: usize = 150;
+
+/// The bands a robustness sheet prints in: pieces of columns kept
+/// together (a count with the cells it counts, a figure with its cell or
+/// note, a topic without such words whole), beside the repeated labels.
+fn print_bands(printed: &[usize], label_columns: u16, height: f64) -> style::Bands {
+    let labels: usize = printed[..label_columns as usize].iter().sum();
+    // The reason (words), then each robustness column.
+    let first = label_columns as usize;
+    let mut pieces: Vec<(u16, usize)> = vec![(first as u16, printed[first])];
+    let mut previous: Option<&RobustnessColumn> = None;
+    for (j, column) in ROBUSTNESS_COLUMNS.iter().enumerate() {
+        let at = first + 1 + j;
+        let joins =
+            previous.is_some_and(|p| p.topic == column.topic && p.kind != FigureKind::Words);
+        match pieces.last_mut() {
+            Some(piece) if joins => piece.1 += printed[at],
+            _ => pieces.push((at as u16, printed[at])),
+        }
+        previous = Some(column);
+    }
+    style::Bands::pack(labels, &pieces, height)
 }
 
 /// Writes the Checks sheet. Returns its name and the 0-based row of its
