@@ -108,6 +108,33 @@ fn a_single_run_prints_one_valid_document_with_everything_the_workbook_holds() {
     for key in ["outliers_1_5_iqr", "largest_mean_influence", "bootstrap"] {
         assert!(!robustness[key].is_null(), "{key}: {robustness}");
     }
+    // An outlier names its cell with the number as the input holds it and
+    // the value used: Harbour's typed-in 900 minutes, used as 15 hours by
+    // `late_h = {Minutes late} / 60`. A column read as it is (weight_kg)
+    // has the same number in both.
+    let entry_of = |group: &str, column: &str| {
+        panel["entries"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|e| e["group"][0] == group && e["column"] == column)
+            .unwrap_or_else(|| panic!("no entry {group} {column}"))
+            .clone()
+    };
+    let harbour = entry_of("Harbour", "late_h");
+    let far = &harbour["robustness"]["outliers_3_iqr"][0];
+    assert_eq!(far["cell"], "Deliveries!D18", "{far}");
+    assert_eq!(far["input_value"], 900.0, "{far}");
+    assert_eq!(far["value"], 15.0, "{far}");
+    let influence = &harbour["robustness"]["largest_mean_influence"];
+    assert_eq!(influence["input_value"], 900.0, "{influence}");
+    let north = entry_of("North", "weight_kg");
+    let far = &north["robustness"]["outliers_3_iqr"][0];
+    assert_eq!(far["cell"], "Deliveries!E41", "{far}");
+    assert_eq!(
+        (&far["input_value"], &far["value"]),
+        (&250.0.into(), &250.0.into())
+    );
     // Checks carry their level; a check that could not be evaluated says why.
     let checks = doc["checks"].as_array().unwrap();
     assert!(checks.iter().any(|c| c["level"] == "fail"));

@@ -19,7 +19,10 @@ else
         "$here/workbooks/depot-monthly.sheaf" \
         --data "$here/workbooks/depot-2026-10.xlsx" --out "$result" --force
 fi
-soffice --headless --convert-to pdf --outdir "$out_dir" "$result" >/dev/null
+# A profile of its own, so a LibreOffice already running (or another
+# render at the same time) does not make this one wait or fail.
+soffice -env:UserInstallation="file://$out_dir/profile" --headless \
+    --convert-to pdf --outdir "$out_dir" "$result" >/dev/null
 pdf=$out_dir/$(basename "${result%.*}").pdf
 rm -f "$out_dir"/page-*.png
 pdftoppm -png -r "$dpi" "$pdf" "$out_dir/page"

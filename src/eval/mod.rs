@@ -27,7 +27,7 @@ pub use panel::{
     Rule, Signals, Status, dates_note, figure_value, findings, panel_figure,
 };
 pub use reason::Reason;
-pub use robustness_figures::{ROBUSTNESS_FIGURES, RobustnessFigure, RobustnessShape};
+pub use robustness_figures::{ROBUSTNESS_FIGURES, RobustnessFigure, RobustnessShape, Topic};
 pub use value::{Context, One, Previous, Row, Rows, Scope, Term, Value};
 
 /// The label of a group whose key cell is blank.
@@ -977,9 +977,10 @@ fn column_expr(column: &ColumnRef) -> Expr {
 struct CellNamer<'a> {
     table: &'a Table,
     place: std::sync::Arc<CellPlace>,
-    /// The data column behind a `let` of one data column, whose cell holds
-    /// the number as the input has it.
-    derived_from: Option<&'a crate::load::Column>,
+    /// The data column whose cell is named (the column itself, or the one
+    /// behind a `let` of one data column), whose cell holds the number as
+    /// the input has it; none for a `let` of several columns.
+    input: Option<&'a crate::load::Column>,
 }
 
 impl<'a> CellNamer<'a> {
@@ -1004,7 +1005,7 @@ impl<'a> CellNamer<'a> {
         CellNamer {
             table,
             place: std::sync::Arc::new(place),
-            derived_from: (behind != column).then(|| table.column(behind)).flatten(),
+            input: table.column(behind),
         }
     }
 
@@ -1012,7 +1013,7 @@ impl<'a> CellNamer<'a> {
         CellName {
             place: std::sync::Arc::clone(&self.place),
             sheet_row: self.table.sheet_row(row) as u32,
-            source_value: self.derived_from.and_then(|c| c.number(row)),
+            source_value: self.input.and_then(|c| c.number(row)),
         }
     }
 }

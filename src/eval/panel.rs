@@ -231,8 +231,9 @@ pub struct CellName {
     pub place: Arc<CellPlace>,
     /// 1-based sheet row.
     pub sheet_row: u32,
-    /// The number in the input cell, when the flagged value was derived
-    /// from it (a `let` of one data column): 55.8 minutes behind 0.93 hours.
+    /// The number in the named input cell: the value itself for a data
+    /// column, 55.8 minutes behind 0.93 hours for a `let` of one data
+    /// column; none for a `let` of several columns (a row is named).
     pub source_value: Option<f64>,
 }
 

@@ -55,11 +55,29 @@ impl RobustnessShape {
     }
 }
 
+/// What a robustness figure is about. The robustness sheet prints in
+/// bands of whole topics, so a printed page never splits one.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Topic {
+    /// The mean-median gap and the outliers by the fences.
+    Centre,
+    /// Mean, sd and skewness without the outliers.
+    Without,
+    /// Single values: leave-one-out and modified z-scores.
+    SingleValues,
+    /// Skewness and kurtosis against their standard errors.
+    Shape,
+    /// Bootstrap intervals.
+    Intervals,
+}
+
 /// One figure of the robustness checks.
 #[derive(Debug, Clone, Copy)]
 pub struct RobustnessFigure {
     /// Stable key: the `--json` key. Never renamed, since readers hold it.
     pub key: &'static str,
+    /// What it is about, for printing in bands.
+    pub topic: Topic,
     /// What it is, for the JSON schema.
     pub about: &'static str,
     /// The robustness sheet's column headers, one per [`RobustnessShape::kinds`].
@@ -70,12 +88,14 @@ pub struct RobustnessFigure {
 
 const fn figure(
     key: &'static str,
+    topic: Topic,
     about: &'static str,
     labels: &'static [&'static str],
     shape: RobustnessShape,
 ) -> RobustnessFigure {
     RobustnessFigure {
         key,
+        topic,
         about,
         labels,
         shape,
@@ -90,66 +110,77 @@ use RobustnessShape as S;
 pub const ROBUSTNESS_FIGURES: &[RobustnessFigure] = &[
     figure(
         "gap_in_sd",
+        Topic::Centre,
         "(mean - median) / sd.",
         &["(mean - median) / sd"],
         S::One(Shape, |r| &r.gap_in_sd),
     ),
     figure(
         "gap_in_iqr",
+        Topic::Centre,
         "(mean - median) / IQR.",
         &["(mean - median) / IQR"],
         S::One(Shape, |r| &r.gap_in_iqr),
     ),
     figure(
         "outliers_1_5_iqr",
+        Topic::Centre,
         "Values beyond the 1.5 IQR fences, with their cells.",
         &["outliers 1.5 IQR", "1.5 IQR cells"],
         S::Cells(|r| fenced(r, &r.outliers_wide)),
     ),
     figure(
         "outliers_3_iqr",
+        Topic::Centre,
         "Values beyond the 3 IQR fences, with their cells.",
         &["outliers 3 IQR", "3 IQR cells"],
         S::Cells(|r| fenced(r, &r.outliers_far)),
     ),
     figure(
         "mean_without_outliers",
+        Topic::Without,
         "The mean without the 1.5 IQR outliers.",
         &["mean without"],
         S::One(Measure, |r| &r.mean_without),
     ),
     figure(
         "mean_change_without_outliers",
+        Topic::Without,
         "The mean without the outliers minus the mean.",
         &["mean change"],
         S::One(Measure, |r| &r.mean_change),
     ),
     figure(
         "sd_without_outliers",
+        Topic::Without,
         "The sample sd without the 1.5 IQR outliers.",
         &["sd without"],
         S::One(Measure, |r| &r.sd_without),
     ),
     figure(
         "sd_change_without_outliers",
+        Topic::Without,
         "The sd without the outliers minus the sd.",
         &["sd change"],
         S::One(Measure, |r| &r.sd_change),
     ),
     figure(
         "skewness_without_outliers",
+        Topic::Without,
         "Skewness g1 without the 1.5 IQR outliers.",
         &["skewness without"],
         S::One(Shape, |r| &r.skewness_without),
     ),
     figure(
         "skewness_change_without_outliers",
+        Topic::Without,
         "Skewness g1 without the outliers minus g1.",
         &["skewness change"],
         S::One(Shape, |r| &r.skewness_change),
     ),
     figure(
         "largest_mean_influence",
+        Topic::SingleValues,
         "The value whose leaving out changes the mean most in size (after minus before).",
         &[
             "leave-one-out mean change (after - before, largest in size)",
@@ -159,6 +190,7 @@ pub const ROBUSTNESS_FIGURES: &[RobustnessFigure] = &[
     ),
     figure(
         "largest_sd_influence",
+        Topic::SingleValues,
         "The value whose leaving out changes the sd most in size (after minus before).",
         &[
             "leave-one-out sd change (after - before, largest in size)",
@@ -168,12 +200,14 @@ pub const ROBUSTNESS_FIGURES: &[RobustnessFigure] = &[
     ),
     figure(
         "modified_z_above_3_5",
+        Topic::SingleValues,
         "Values whose modified z-score exceeds 3.5 in absolute value (Iglewicz and Hoaglin 1993).",
         &["|modified z| above 3.5", "|modified z| cells"],
         S::Cells(|r| r.modified_z.as_deref()),
     ),
     figure(
         "skewness_against_noise",
+        Topic::Shape,
         "Adjusted skewness G1 against its standard error under normality.",
         &["skewness G1", "SE of G1 if normal", "G1 / SE", "skewed"],
         S::Noise {
@@ -183,6 +217,7 @@ pub const ROBUSTNESS_FIGURES: &[RobustnessFigure] = &[
     ),
     figure(
         "tails_against_noise",
+        Topic::Shape,
         "Adjusted excess kurtosis G2 against its standard error under normality.",
         &[
             "excess kurtosis G2",
@@ -197,6 +232,7 @@ pub const ROBUSTNESS_FIGURES: &[RobustnessFigure] = &[
     ),
     figure(
         "bootstrap",
+        Topic::Intervals,
         "95% intervals of the mean and the median (fixed seed, so reruns agree).",
         &[
             "mean 95% low",

@@ -6,7 +6,7 @@ use std::collections::HashMap;
 use std::path::Path;
 
 use calamine::{Data, Reader, open_workbook_auto};
-use rust_xlsxwriter::{Format, Worksheet, XlsxError};
+use rust_xlsxwriter::{Worksheet, XlsxError};
 use sha2::{Digest, Sha256};
 
 use crate::eval::{Block, One, PANEL_FIGURES, PanelFigure, Results, group_label};
@@ -412,7 +412,7 @@ impl Record {
     /// for reading) in the layout [`Record::read_accepting`] reads.
     pub fn write_sheet(&self, sheet: &mut Worksheet) -> Result<(), XlsxError> {
         sheet.set_hidden(true);
-        let bold = Format::new().set_bold();
+        let bold = style::cell().set_bold();
         sheet.write_string_with_format(FINGERPRINT_ROW, 0, "recipe fingerprint", &bold)?;
         sheet.write_string(FINGERPRINT_ROW, 1, &self.fingerprint)?;
         sheet.write_string_with_format(PERIOD_ROW, 0, "period", &bold)?;

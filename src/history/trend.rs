@@ -3,11 +3,11 @@
 
 use std::collections::HashMap;
 
-use rust_xlsxwriter::{Format, Workbook, XlsxError};
+use rust_xlsxwriter::XlsxError;
 
 use super::judge::{self, Basis, Flag};
 use super::record::{Record, TERM_BLOCK};
-use crate::write::style::fit;
+use crate::write::style::{self, fit};
 
 /// The sheets that mark a trend workbook, so a later batch leaves it out.
 pub const TREND_SHEET: &str = "Trend";
@@ -148,7 +148,7 @@ pub fn write_noise(
     match (m.se, m.noise_scaled()) {
         (Some(se), Some(z)) => {
             sheet.write_number(r, col, se)?;
-            sheet.write_number_with_format(r, col + 1, z, &Format::new().set_num_format("0.00"))?;
+            sheet.write_number_with_format(r, col + 1, z, &style::cell().set_num_format("0.00"))?;
         }
         _ => {
             sheet.write_string(r, col, "no standard error")?;
@@ -301,8 +301,8 @@ pub fn trend_workbook(
     panel_blocks: &[String],
     shares: &std::collections::BTreeSet<(String, String)>,
 ) -> Result<Vec<u8>, XlsxError> {
-    let mut workbook = Workbook::new();
-    let bold = Format::new().set_bold();
+    let mut workbook = style::workbook()?;
+    let bold = style::cell().set_bold();
     let header =
         |sheet: &mut rust_xlsxwriter::Worksheet, labels: &[&str]| -> Result<(), XlsxError> {
             for (c, l) in labels.iter().enumerate() {
@@ -364,7 +364,7 @@ pub fn trend_workbook(
         sheet.write_number(r, 7, m.after - m.before)?;
         match m.relative() {
             Some(x) => {
-                sheet.write_number_with_format(r, 8, x, &Format::new().set_num_format("0.0%"))?
+                sheet.write_number_with_format(r, 8, x, &style::cell().set_num_format("0.0%"))?
             }
             None => sheet.write_string(r, 8, "before was 0")?,
         };

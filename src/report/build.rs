@@ -168,6 +168,7 @@ fn cells(flagged: &[eval::Flagged]) -> Vec<CellValue> {
         .iter()
         .map(|f| CellValue {
             cell: f.address.to_string(),
+            input_value: f.address.source_value,
             value: f.value,
         })
         .collect()
@@ -177,6 +178,7 @@ fn influence(i: &Result<eval::Influence, eval::Reason>) -> OrReason<InfluenceRep
     or_reason(i, |i| InfluenceReport {
         change: i.change,
         cell: i.cell.address.to_string(),
+        input_value: i.cell.address.source_value,
         value: i.cell.value,
     })
 }

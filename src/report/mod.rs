@@ -202,6 +202,10 @@ pub(crate) struct PanelEntryReport {
 pub(crate) struct CellValue {
     /// `Deliveries!E41`.
     pub(crate) cell: String,
+    /// The number as it stands in that input cell (900 minutes), null when
+    /// the value is made from several columns and `cell` names a row.
+    pub(crate) input_value: Option<f64>,
+    /// The value used (15 hours, from a `let`; the input value otherwise).
     pub(crate) value: f64,
 }
 
@@ -210,6 +214,8 @@ pub(crate) struct CellValue {
 pub(crate) struct InfluenceReport {
     pub(crate) change: f64,
     pub(crate) cell: String,
+    /// The number as it stands in the input cell (see [`CellValue`]).
+    pub(crate) input_value: Option<f64>,
     pub(crate) value: f64,
 }
 

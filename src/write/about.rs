@@ -31,17 +31,19 @@ pub const CONVENTIONS: &[&str] = &[
 pub const MISSING_LISTED: usize = 100_000;
 
 /// The About sheet: what was run on what (the provenance facts), the cells
-/// counted as missing, and the recipe's text.
+/// counted as missing, and the recipe's text. Returns its name and how many
+/// pages tall it prints portrait (see [`style::portrait_pages_tall`]).
 pub fn about(
     workbook: &mut Workbook,
     names: &mut SheetNames,
     results: &Results,
     table: &Table,
     run: &super::RunInfo,
-) -> Result<(), XlsxError> {
-    let sheet = workbook.add_worksheet().set_name(names.claim("About"))?;
-    sheet.set_column_width(0, 30)?;
-    sheet.set_column_width(1, 90)?;
+) -> Result<(String, u16), XlsxError> {
+    let name = names.claim("About");
+    let sheet = workbook.add_worksheet().set_name(&name)?;
+    sheet.set_column_width(0, LABEL_WIDTH as f64)?;
+    sheet.set_column_width(1, VALUE_WIDTH as f64)?;
     sheet.write_string_with_format(
         0,
         0,
@@ -49,21 +51,40 @@ pub fn about(
         &style::title(),
     )?;
     sheet.merge_range(1, 0, 1, 3, DISCLAIMER, &style::note_format())?;
-    sheet.set_row_height(1, 45)?;
+    sheet.set_row_height(1, 3.0 * style::LINE_HEIGHT)?;
     let mut r = 3;
-    let bold = rust_xlsxwriter::Format::new().set_bold();
+    // Lines of text down the sheet besides one per row, for its height.
+    let mut extra_lines = 2;
+    let bold = style::cell().set_bold();
     for (label, value) in facts(results, table, run) {
         sheet.write_string_with_format(r, 0, label, &bold)?;
-        sheet.write_string(r, 1, style::fit(&value))?;
+        // A long value wraps in its column rather than run off the page
+        // (which would shrink the printed sheet to fit it).
+        extra_lines += style::text_block(sheet, r, 1, &value, VALUE_WIDTH)? - 1;
         r += 1;
     }
     r = missing_cells(sheet, r + 1, results)?;
     sheet.write_string_with_format(r + 1, 0, "recipe text", &style::title())?;
     for (i, line) in run.recipe_text.lines().enumerate() {
-        sheet.write_string(r + 2 + i as u32, 1, style::fit(line))?;
+        let row = r + 2 + i as u32;
+        match line.chars().count() > VALUE_WIDTH {
+            true => extra_lines += style::text_block(sheet, row, 1, line, VALUE_WIDTH)? - 1,
+            false => {
+                sheet.write_string(row, 1, style::fit(line))?;
+            }
+        }
     }
-    Ok(())
+    let rows = r + 2 + run.recipe_text.lines().count() as u32;
+    let height = style::LINE_HEIGHT * (rows as usize + extra_lines) as f64;
+    // The columns of the missing cells' table beyond the value column.
+    let wide = LABEL_WIDTH + VALUE_WIDTH + 2 * 9;
+    Ok((name, style::portrait_pages_tall(wide, height)))
 }
+
+/// Widths of the About sheet's columns of labels and of values, in
+/// characters.
+const LABEL_WIDTH: usize = 24;
+const VALUE_WIDTH: usize = 90;
 
 /// The run's provenance as (label, value) rows, in the order shown.
 fn facts(results: &Results, table: &Table, run: &super::RunInfo) -> Vec<(&'static str, String)> {

@@ -39,7 +39,7 @@ pub fn changes(
     .map(String::from)
     .to_vec();
     changes_heading(sheet, &labels, run, previous, current)?;
-    let percent = Format::new().set_num_format("0.0%");
+    let percent = style::cell().set_num_format("0.0%");
     let mut r = 4;
     let previous_period = previous.period.as_deref().unwrap_or_default();
     let now_period = current.period.as_deref().unwrap_or_default();

@@ -6,8 +6,8 @@
 //! same way.) Each chart's numbers stand in a table beside it.
 
 use rust_xlsxwriter::{
-    Chart, ChartEmptyCells, ChartFont, ChartFormat, ChartLine, ChartMarker, ChartMarkerType,
-    ChartPoint, ChartSolidFill, ChartType, Workbook, Worksheet, XlsxError,
+    Chart, ChartEmptyCells, ChartFormat, ChartLine, ChartMarker, ChartMarkerType, ChartPoint,
+    ChartSolidFill, ChartType, Workbook, Worksheet, XlsxError,
 };
 
 use super::sheets::SheetNames;
@@ -15,16 +15,15 @@ use super::style::{self, Shown};
 use crate::eval::{BoxSummary, Chart as ChartData, One, Results, group_label};
 use crate::stats::{BinRule, CHART_FENCE_IQR, CHART_MAX_BINS, Histogram};
 
-/// Rows a chart takes on the sheet, and its height in pixels (13 rows of
-/// 20 pixels, so two charts and their gaps fit on a printed page).
-pub(super) const ROWS_PER_CHART: u32 = 14;
-pub(super) const CHART_HEIGHT: u32 = 260;
+/// A chart's height in pixels, and the rows it covers on the sheet: two
+/// charts with their gaps and the sheet's note fit on a printed page.
+pub(super) const CHART_HEIGHT: u32 = 240;
+pub(super) const ROWS_PER_CHART: u32 = CHART_HEIGHT.div_ceil(style::ROW_PIXELS);
 
-/// Rows of 15 points on one printed page of the Charts sheet at full size:
-/// landscape A4 less its margins holds about 509 points. The sheet prints
-/// one page wide, so at most this size; a page break goes before a chart
-/// that would not fit, so no chart is cut.
-const ROWS_PER_PAGE: u32 = 33;
+/// Rows of the default height on one printed page of the Charts sheet at
+/// full size. The sheet prints one page wide, so at most this size; a page
+/// break goes before a chart that would not fit, so no chart is cut.
+const ROWS_PER_PAGE: u32 = (style::LANDSCAPE_POINTS / style::LINE_HEIGHT) as u32;
 
 /// Most outliers of one group drawn as points; the rest are listed in the
 /// table and counted in the title.
@@ -36,7 +35,7 @@ pub(super) struct Layout<'a> {
     pub sheet_name: &'a str,
     /// The next free row.
     top: u32,
-    /// Rows of 15 points used on the current page.
+    /// Rows of the default height used on the current page.
     used: u32,
     pub breaks: Vec<u32>,
 }
@@ -84,7 +83,7 @@ from Q1 to Q3, a mark at the median, whiskers to the last values inside the 1.5 
 }
 
 /// Widths of the Charts sheet's columns, in characters.
-const CHART_COLUMNS: [usize; 8] = [22, 11, 11, 11, 11, 11, 11, 11];
+const CHART_COLUMNS: [usize; 8] = [22, 15, 11, 11, 11, 11, 11, 11];
 
 pub fn charts(
     workbook: &mut Workbook,
@@ -118,21 +117,6 @@ pub fn charts(
     }
     sheet.set_page_breaks(&layout.breaks)?;
     Ok(())
-}
-
-/// A chart title in sheaf's chart font: small enough for one or two lines.
-fn titled(chart: &mut Chart, title: &str) {
-    chart
-        .title()
-        .set_name(title)
-        .set_font(ChartFont::new().set_size(11).set_bold());
-}
-
-/// Names both axes.
-fn axes(chart: &mut Chart, x: &str, y: &str) {
-    let font = ChartFont::new().set_size(9).set_bold().clone();
-    chart.x_axis().set_name(x).set_name_font(&font);
-    chart.y_axis().set_name(y).set_name_font(&font);
 }
 
 /// A solid fill in one of sheaf's colours.
@@ -216,7 +200,12 @@ fn histogram_chart(
     let last = top + rows.len() as u32;
     let name = layout.sheet_name;
     let mut c = Chart::new(ChartType::Column);
-    titled(&mut c, &histogram_title(heading, h, rule));
+    style::chart_text(
+        &mut c,
+        &histogram_title(heading, h, rule),
+        axis,
+        "number of values",
+    );
     c.legend().set_hidden();
     c.add_series()
         .set_categories((name, top + 1, 0, last, 0))
@@ -224,7 +213,6 @@ fn histogram_chart(
         .set_gap(0)
         .set_format(&mut filled(style::palette::BARS))
         .set_points(&points);
-    axes(&mut c, axis, "number of values");
     c.set_height(CHART_HEIGHT);
     sheet.insert_chart(top, 3, &c)?;
     Ok(())
@@ -275,7 +263,7 @@ fn box_chart(
     // wide), whose header is three lines tall.
     let table_rows = boxes.len() as u32 + 2;
     let top = layout.place(table_rows + ROWS_PER_CHART, table_rows + 2 + ROWS_PER_CHART);
-    sheet.set_row_height(top, 45)?;
+    sheet.set_row_height(top, 3.0 * style::LINE_HEIGHT)?;
     for (j, l) in BOX_LABELS.iter().enumerate() {
         sheet.write_string_with_format(top, j as u16, *l, &style::header())?;
     }
@@ -333,7 +321,7 @@ fn box_plot(name: &str, first: u32, last: u32, outliers: u16, title: &str, axis:
     // upper whisker, the lower whisker and Q3. Its up-down bars are the
     // boxes and its high-low lines the whiskers.
     let mut c = Chart::new(ChartType::Stock);
-    titled(&mut c, title);
+    style::chart_text(&mut c, title, "group", axis);
     c.legend().set_hidden();
     for col in [Q1, UPPER, LOWER, Q3] {
         c.add_series()
@@ -380,6 +368,5 @@ fn box_plot(name: &str, first: u32, last: u32, outliers: u16, title: &str, axis:
     }
     c.show_empty_cells_as(ChartEmptyCells::Gaps);
     c.combine(&marks);
-    axes(&mut c, "group", axis);
     c
 }

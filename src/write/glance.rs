@@ -3,7 +3,7 @@
 //! failed and which did not pass, and the robustness warnings, each with a
 //! link to its sheet and cell.
 
-use rust_xlsxwriter::{Color, Format, FormatAlign, FormatUnderline, Url, Worksheet, XlsxError};
+use rust_xlsxwriter::{Color, FormatUnderline, Url, Worksheet, XlsxError};
 
 use super::style;
 use crate::eval::{Block, Outcome, Results, Status, group_label};
@@ -36,7 +36,7 @@ pub fn glance(
     sheet.set_column_width(2, EXPLANATION_WIDTH as f64)?;
     let title = results.title.as_deref().unwrap_or("sheaf result");
     sheet.write_string_with_format(0, 0, style::fit(title), &style::title())?;
-    let bold = Format::new().set_bold();
+    let bold = style::cell().set_bold();
     let mut r = 2;
     for (label, value) in [
         ("period", period.unwrap_or("(none given)")),
@@ -66,7 +66,7 @@ fn figures_moved(
     sheet.write_string_with_format(r, 0, "moved", &style::header())?;
     for (row, words) in rows {
         r += 1;
-        sheet.write_string_with_format(r, 0, "moved", &top(style::status("warn")))?;
+        sheet.write_string_with_format(r, 0, "moved", &style::status("warn"))?;
         link(sheet, (r, 1), target, (*row, 0), words)?;
     }
     if rows.is_empty() {
@@ -93,8 +93,8 @@ fn reading_file(
     sheet.write_string_with_format(r, 0, "reading the file", &style::header())?;
     for note in notable {
         r += 1;
-        sheet.write_string_with_format(r, 0, "note", &top(style::status("note")))?;
-        sheet.write_string_with_format(r, 1, note.topic, &top(Format::new()))?;
+        sheet.write_string_with_format(r, 0, "note", &style::status("note"))?;
+        sheet.write_string_with_format(r, 1, note.topic, &style::cell())?;
         explanation(sheet, r, &note.text)?;
     }
     Ok(r + 1)
@@ -116,7 +116,7 @@ fn warnings(sheet: &mut Worksheet, r: u32, warnings: &[String]) -> Result<u32, X
     sheet.write_string_with_format(r, 0, "warnings", &style::header())?;
     for warning in warnings.iter().take(GLANCE_WARNINGS) {
         r += 1;
-        sheet.write_string_with_format(r, 0, "warn", &top(style::status("warn")))?;
+        sheet.write_string_with_format(r, 0, "warn", &style::status("warn"))?;
         let text = warning.strip_prefix("warning: ").unwrap_or(warning);
         explanation(sheet, r, text)?;
     }
@@ -141,9 +141,7 @@ const EXPLANATION_WIDTH: usize = 70;
 /// Writes a reason or note in the third column, wrapped, its row tall
 /// enough for it.
 fn explanation(sheet: &mut Worksheet, row: u32, text: &str) -> Result<(), XlsxError> {
-    sheet.write_string_with_format(row, 2, style::fit(text), &style::wrapped())?;
-    let lines = style::wrapped_lines(text, EXPLANATION_WIDTH * 9 / 10);
-    sheet.set_row_height(row, (15.0 * lines as f64).min(409.0))?;
+    style::text_block(sheet, row, 2, text, EXPLANATION_WIDTH)?;
     Ok(())
 }
 
@@ -161,9 +159,9 @@ fn link(
         target.replace('\'', "''")
     ))
     .set_text(style::fit(text));
-    let format = top(Format::new()
+    let format = style::cell()
         .set_underline(FormatUnderline::Single)
-        .set_font_color(Color::RGB(LINK_COLOUR)));
+        .set_font_color(Color::RGB(LINK_COLOUR));
     sheet.write_url_with_format(at.0, at.1, url, &format)?;
     Ok(())
 }
@@ -199,7 +197,7 @@ fn checks(
         }
         let group = group_label(c.group.as_deref().unwrap_or_default());
         let word = c.outcome.word();
-        sheet.write_string_with_format(r, 0, word, &top(style::status(word)))?;
+        sheet.write_string_with_format(r, 0, word, &style::status(word))?;
         let text = format!("{}, {group}", c.name);
         link(
             sheet,
@@ -236,7 +234,7 @@ fn robustness(
             }
             warnings += 1;
             r += 1;
-            sheet.write_string_with_format(r, 0, "warn", &top(style::status("warn")))?;
+            sheet.write_string_with_format(r, 0, "warn", &style::status("warn"))?;
             let text = format!("{}, {}", e.column, group_label(&e.group));
             link(sheet, (r, 1), target, (first_row + i as u32, 0), &text)?;
             explanation(sheet, r, &e.robustness.reason)?;
@@ -246,9 +244,4 @@ fn robustness(
         sheet.write_string(r, 1, "no warnings")?;
     }
     Ok(r + 1)
-}
-
-/// `format` aligned to the top of its cell, level with wrapped text beside it.
-fn top(format: Format) -> Format {
-    format.set_align(FormatAlign::Top)
 }

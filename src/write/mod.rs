@@ -17,7 +17,7 @@ pub use trend_charts::trend_charts;
 
 use std::path::Path;
 
-use rust_xlsxwriter::{DocProperties, Workbook};
+use rust_xlsxwriter::DocProperties;
 
 use crate::eval::Results;
 use crate::load::Table;
@@ -77,7 +77,7 @@ pub fn workbook_bytes(
     run: &RunInfo,
 ) -> Result<Vec<u8>, WriteError> {
     plan::check(results)?;
-    let mut workbook = Workbook::new();
+    let mut workbook = style::workbook()?;
     let mut properties = DocProperties::new().set_title(
         results
             .title
@@ -100,8 +100,11 @@ pub fn workbook_bytes(
     // are known.
     let glance_name = names.claim(glance::GLANCE_SHEET);
     workbook.add_worksheet().set_name(&glance_name)?;
-    let sheets::BlockSheets { robustness, narrow } =
-        sheets::blocks(&mut workbook, &mut names, results)?;
+    let sheets::BlockSheets {
+        robustness,
+        narrow,
+        banded,
+    } = sheets::blocks(&mut workbook, &mut names, results)?;
     let reading = crate::load::reading_notes(table);
     let checks = sheets::checks(&mut workbook, &mut names, results, &reading)?;
     charts::charts(&mut workbook, &mut names, results)?;
@@ -121,11 +124,10 @@ pub fn workbook_bytes(
         )?),
         None => None,
     };
-    about::about(&mut workbook, &mut names, results, table, run)?;
+    let (about_name, about_tall) = about::about(&mut workbook, &mut names, results, table, run)?;
     changes::record(&mut workbook, &mut names, &current)?;
     let title = results.title.as_deref().unwrap_or("sheaf result");
     let period = run.period.as_ref().map(|p| p.label.as_str());
-    let wide: Vec<String> = robustness.iter().map(|(name, _)| name.clone()).collect();
     let places = glance::Places {
         checks,
         robustness,
@@ -139,10 +141,15 @@ pub fn workbook_bytes(
         if narrow.contains(&sheet.name()) {
             sheet.set_portrait();
         }
-        if wide.contains(&sheet.name()) {
+        if sheet.name() == about_name {
+            // Two columns of text: portrait, on one page when still readable.
+            sheet.set_portrait();
+            sheet.set_print_fit_to_pages(1, about_tall);
+        }
+        if let Some((_, bands)) = banded.iter().find(|(name, _)| *name == sheet.name()) {
             // Some 40 columns on one page's width would print too small to
-            // read; its label columns repeat on each page.
-            sheet.set_print_fit_to_pages(style::WIDE_TABLE_PAGES, 0);
+            // read: bands of them, each with the label columns repeated.
+            bands.apply(sheet)?;
         }
     }
     // Deflate at level 3, not the library's 6: on 1,000 groups' workbook

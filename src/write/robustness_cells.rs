@@ -3,7 +3,7 @@
 
 use super::style::Shown;
 use crate::eval::{
-    FigureKind, Flagged, One, ROBUSTNESS_FIGURES, Reason, Robustness, RobustnessShape,
+    FigureKind, Flagged, One, ROBUSTNESS_FIGURES, Reason, Robustness, RobustnessShape, Topic,
 };
 use crate::stats::{AgainstNoise, BootstrapIntervals, SHAPE_NOTE_CUTOFF};
 
@@ -22,6 +22,14 @@ pub(super) fn robustness_labels() -> impl Iterator<Item = &'static str> {
     ROBUSTNESS_FIGURES
         .iter()
         .flat_map(|f| f.labels.iter().copied())
+}
+
+/// What each of those columns is about and how it is shown, in the same
+/// order: the print bands keep a topic's columns together.
+pub(super) fn robustness_topics() -> impl Iterator<Item = (Topic, FigureKind)> {
+    ROBUSTNESS_FIGURES
+        .iter()
+        .flat_map(|f| f.shape.kinds().iter().map(move |kind| (f.topic, *kind)))
 }
 
 /// An entry's robustness cells, in [`robustness_labels`]' order. `measure`
@@ -100,7 +108,7 @@ fn bootstrap(found: &Result<BootstrapIntervals, Reason>) -> Vec<One> {
 }
 
 /// A flagged cell with its value: the number as the input cell holds it,
-/// then the value used when that was derived from it (a `let`), so
+/// then the value used when that differs (derived by a `let`), so
 /// "Deliveries!D105 holds 55.8, used as 0.93" rather than a value the
 /// reader cannot find in the cell.
 fn cell_and_value(f: &Flagged, measure: Shown) -> String {

@@ -4,11 +4,11 @@ use std::collections::HashSet;
 
 use rust_xlsxwriter::{Workbook, Worksheet, XlsxError};
 
-use super::robustness_cells::{robustness_cells, robustness_labels};
+use super::robustness_cells::{robustness_cells, robustness_labels, robustness_topics};
 use super::style::{self, Shown, Widths, write_one};
 use crate::eval::{
     Block, FigureKind, GAP_NOTE_IQR, GAP_WARN_IQR, One, PANEL_FIGURES, PANEL_LABELS, PanelEntry,
-    Reason, Results, group_label,
+    Reason, Results, Topic, group_label,
 };
 use crate::stats::{
     BOOTSTRAP_MIN_VALUES, DEFAULT_RESAMPLES, DEFAULT_SEED, EXACT_UP_TO, SHAPE_NOTE_CUTOFF,
@@ -115,7 +115,7 @@ fn heading(sheet: &mut Worksheet, title: &str) -> Result<u32, XlsxError> {
 
 /// Finishes a table written under [`heading`]: columns sized to their
 /// content, the note as a block above it, filter buttons over it. Returns
-/// the table's width in characters.
+/// each column's printed width in characters.
 fn finish_table(
     sheet: &mut Worksheet,
     labels: &[String],
@@ -123,13 +123,13 @@ fn finish_table(
     widths: &Widths,
     note: &str,
     last_row: u32,
-) -> Result<usize, XlsxError> {
+) -> Result<Vec<usize>, XlsxError> {
     style::print_titles(sheet, TABLE_TOP, label_columns)?;
     let chosen = style::fit_columns(sheet, TABLE_TOP, labels, widths)?;
     style::note_block(sheet, 1, note, &chosen)?;
     style::filter(sheet, TABLE_TOP, last_row, labels.len())?;
     // Each column is set 1.5 characters wider than its content.
-    Ok(chosen.iter().map(|w| w + 2).sum())
+    Ok(chosen.iter().map(|w| w + 2).collect())
 }
 
 /// The sheets written by [`blocks`] that links and page setup need.
@@ -139,6 +139,8 @@ pub struct BlockSheets {
     pub robustness: Vec<(String, u32)>,
     /// Sheets narrow enough to print portrait.
     pub narrow: Vec<String>,
+    /// Sheets too wide for one page, and the bands they print in.
+    pub banded: Vec<(String, style::Bands)>,
 }
 
 /// Writes every block's sheets.
@@ -149,6 +151,7 @@ pub fn blocks(
 ) -> Result<BlockSheets, XlsxError> {
     let mut robustness = Vec::new();
     let mut narrow = Vec::new();
+    let mut banded = Vec::new();
     for block in &results.blocks {
         match block {
             Block::Panel {
@@ -165,13 +168,14 @@ pub fn blocks(
                     &results.labels,
                 )?;
                 let sheet_name = names.claim(&format!("{name} robustness"));
-                robustness_sheet(
+                let bands = robustness_sheet(
                     workbook.add_worksheet().set_name(&sheet_name)?,
                     name,
                     keys,
                     entries,
                     &results.labels,
                 )?;
+                banded.push((sheet_name.clone(), bands));
                 robustness.push((sheet_name, TABLE_TOP + 1));
             }
             Block::Figures {
@@ -207,7 +211,7 @@ a group none of whose rows pass the block's `where` is listed with 0 rows and 'n
                         widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
                     }
                 }
-                let width = finish_table(
+                let widths = finish_table(
                     sheet,
                     &labels,
                     keys.len() as u16,
@@ -215,13 +219,17 @@ a group none of whose rows pass the block's `where` is listed with 0 rows and 'n
                     note,
                     top + rows.len() as u32,
                 )?;
-                if width <= style::PORTRAIT_CHARS {
+                if widths.iter().sum::<usize>() <= style::PORTRAIT_CHARS {
                     narrow.push(sheet_name);
                 }
             }
         }
     }
-    Ok(BlockSheets { robustness, narrow })
+    Ok(BlockSheets {
+        robustness,
+        narrow,
+        banded,
+    })
 }
 
 /// `value`, or [`Reason::NoRows`] in place of its reason when its group
@@ -329,7 +337,8 @@ fn panel_sheet(
             let c = first + j as u16;
             let shown = Shown::of(figure.kind, decimals);
             let value = &no_rows_said(entry_rows(e), value);
-            widths.seen(r, c, write_one(sheet, r, c, value, shown)?);
+            let chars = write_one(sheet, r, c, value, shown)?;
+            widths.seen_figure(r, c, chars, figure.kind);
         }
     }
     finish_table(
@@ -349,12 +358,14 @@ fn robustness_sheet(
     keys: &[String],
     entries: &[PanelEntry],
     column_labels: &Labels,
-) -> Result<(), XlsxError> {
+) -> Result<style::Bands, XlsxError> {
     let mut figures = vec!["status", "reason"];
     figures.extend(robustness_labels());
     let labels = entry_labels(keys, &figures);
     let top = heading(sheet, &format!("{name}: robustness"))?;
-    style::table_header(sheet, top, &labels, keys.len() as u16 + 1)?;
+    // The group, the column and the status label every printed band.
+    let label_columns = keys.len() as u16 + 2;
+    style::table_header(sheet, top, &labels, label_columns - 1)?;
     let mut widths = Widths::default();
     for (i, e) in entries.iter().enumerate() {
         let r = top + 1 + i as u32;
@@ -370,19 +381,54 @@ fn robustness_sheet(
             let col = c + 2 + j as u16;
             let value = no_rows_said(entry_rows(e), &cell.value);
             let shown = Shown::of(cell.kind, decimals);
-            widths.seen(r, col, write_one(sheet, r, col, &value, shown)?);
+            let chars = write_one(sheet, r, col, &value, shown)?;
+            widths.seen_figure(r, col, chars, cell.kind);
         }
     }
     let last = top + entries.len() as u32;
-    finish_table(
-        sheet,
-        &labels,
-        keys.len() as u16 + 1,
-        &widths,
-        &robustness_note(),
-        last,
-    )?;
-    Ok(())
+    style::print_titles(sheet, top, label_columns)?;
+    let chosen = style::fit_columns(sheet, top, &labels, &widths)?;
+    let printed: Vec<usize> = chosen.iter().map(|w| w + 2).collect();
+    // The title, the note (about as tall as it will be) and the table.
+    // The note is about as wide as the first band's page allows.
+    let note_lines = style::wrapped_lines(&robustness_note(), ROBUSTNESS_NOTE_WIDTH * 9 / 10);
+    let height = style::LINE_HEIGHT * (3 + note_lines) as f64
+        + widths.height(&chosen, top + 1, last)
+        + style::LINE_HEIGHT * style::header_lines(&labels, &chosen) as f64;
+    let bands = print_bands(&printed, label_columns, height);
+    // The note beside the labels, over the first band only, so the other
+    // bands' pages do not show a strip of it.
+    let end = bands.starts.first().map_or(labels.len() as u16, |&c| c) - 1;
+    let wide = printed[label_columns as usize..=end as usize].iter().sum();
+    let over = (label_columns, end);
+    style::note_block_over(sheet, 1, &robustness_note(), over, wide)?;
+    style::filter(sheet, top, last, labels.len())?;
+    Ok(bands)
+}
+
+/// Width of the robustness sheet's note, in characters, for its height:
+/// about its first band's width, so the long note takes fewer lines.
+const ROBUSTNESS_NOTE_WIDTH: usize = 150;
+
+/// The bands a robustness sheet prints in: pieces of columns kept
+/// together (a count with the cells it counts, a figure with its cell or
+/// note, a topic without such words whole), beside the repeated labels.
+fn print_bands(printed: &[usize], label_columns: u16, height: f64) -> style::Bands {
+    let labels: usize = printed[..label_columns as usize].iter().sum();
+    // The reason (words), then each robustness column.
+    let first = label_columns as usize;
+    let mut pieces: Vec<(u16, usize)> = vec![(first as u16, printed[first])];
+    let mut previous: Option<(Topic, FigureKind)> = None;
+    for (j, (topic, kind)) in robustness_topics().enumerate() {
+        let at = first + 1 + j;
+        let joins = previous.is_some_and(|(t, k)| t == topic && k != FigureKind::Words);
+        match pieces.last_mut() {
+            Some(piece) if joins => piece.1 += printed[at],
+            _ => pieces.push((at as u16, printed[at])),
+        }
+        previous = Some((topic, kind));
+    }
+    style::Bands::pack(labels, &pieces, height)
 }
 
 /// Writes the Checks sheet. Returns its name and the 0-based row of its

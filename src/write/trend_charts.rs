@@ -7,8 +7,8 @@
 use std::collections::{BTreeSet, HashMap};
 
 use rust_xlsxwriter::{
-    Chart, ChartEmptyCells, ChartFont, ChartFormat, ChartLine, ChartMarker, ChartMarkerType,
-    ChartSolidFill, ChartType, Format, Workbook, XlsxError,
+    Chart, ChartEmptyCells, ChartFormat, ChartLine, ChartMarker, ChartMarkerType, ChartSolidFill,
+    ChartType, Workbook, XlsxError,
 };
 
 use super::style::{self, Shown, fit, palette};
@@ -120,7 +120,7 @@ pub fn trend_charts(
 ) -> Result<(), XlsxError> {
     let sheet_name = TREND_CHARTS_SHEET;
     let sheet = workbook.add_worksheet().set_name(sheet_name)?;
-    let bold = Format::new().set_bold();
+    let bold = style::cell().set_bold();
     let read: Vec<String> = records.iter().map(|(p, _)| p.clone()).collect();
     let periods = axis_periods(&read);
     sheet.set_column_width(0, 12)?;
@@ -271,14 +271,8 @@ fn outside_band_markers(
 /// Title, axis titles and number format, gaps for missing periods, the
 /// legend below.
 fn style_trend_chart(chart: &mut Chart, title: &str, figure: &str, shown: &Shown, share: bool) {
-    let font = ChartFont::new().set_size(9).set_bold().clone();
-    chart
-        .title()
-        .set_name(title)
-        .set_font(ChartFont::new().set_size(11).set_bold());
-    chart.x_axis().set_name("period").set_name_font(&font);
+    style::chart_text(chart, title, "period", figure);
     let y = chart.y_axis();
-    y.set_name(figure).set_name_font(&font);
     y.set_num_format(shown.code());
     if share {
         // A share lies between 0% and 100%: the axis ends there.
