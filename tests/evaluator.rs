@@ -62,6 +62,11 @@ const EXPRESSIONS: &[(&str, &str)] = &[
         "quartile(w, count(w) / 2.5)",
         "none(the `q` of `quartile` must be a whole number from 1 to 3, not 1.6)",
     ),
+    // A computed parameter with no value passes its own reason on.
+    (
+        "quartile(w, 1 / (count(w) - 4))",
+        "none(not a finite number (division by zero?))",
+    ),
     ("0 / 0", "none(not a finite number (division by zero?))"),
     (
         "(0 - 8) ^ 0.5",

@@ -396,6 +396,15 @@ const CASES: &[(&str, bool, &str, usize, usize)] = &[
         1,
         31,
     ),
+    // A `let` is a column even when its expression is one value: the
+    // evaluator spreads it over the rows, so it is no parameter.
+    (
+        "let q = 3\nlet x = quartile(weight_kg, q)\n",
+        false,
+        "must be one number",
+        2,
+        29,
+    ),
     (
         "let x = mean(mean(weight_kg))\n",
         false,

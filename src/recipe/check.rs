@@ -511,7 +511,14 @@ impl<'a> Checker<'a> {
             if t.value == Value::List {
                 self.list_misused(value);
             }
-            self.lets.insert(name.value.clone(), t);
+            // A `let` is a column: one value per row even when its
+            // expression is one value (the evaluator spreads it), so a
+            // later `quartile(w, q)` is refused here, not "no value" later.
+            let column = Typed {
+                shape: Shape::Rows,
+                ..t
+            };
+            self.lets.insert(name.value.clone(), column);
         } else {
             // Known to exist, so later uses are not reported again.
             self.lets.insert(name.value.clone(), UNKNOWN_ROWS);
