@@ -738,6 +738,15 @@ fn date_table() -> (tempfile::TempDir, Table) {
     (dir, table)
 }
 
+/// A table of `n` rows, each its own `id` (0, 1, ...), with `x` = id mod 7.
+fn ids(n: usize) -> String {
+    let mut csv = String::from("id,x\n");
+    for i in 0..n {
+        csv.push_str(&format!("{i},{}\n", i % 7));
+    }
+    csv
+}
+
 fn table(csv: &str) -> (tempfile::TempDir, Table) {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("deliveries.csv");
@@ -1026,11 +1035,7 @@ fn the_table_is_large_enough_and_its_matcher_can_fail() {
 /// before any figure is computed: 100,000 groups of 11 columns.
 #[test]
 fn a_panel_larger_than_a_sheet_is_refused_before_the_work() {
-    let mut csv = String::from("id,x\n");
-    for i in 0..100_000 {
-        csv.push_str(&format!("{i},{}\n", i % 7));
-    }
-    let (_dir, t) = table(&csv);
+    let (_dir, t) = table(&ids(100_000));
     let lets: String = (0..10).map(|i| format!("let x{i} = x + {i}\n")).collect();
     let columns: Vec<String> = (0..10).map(|i| format!("x{i}")).collect();
     let source = format!("{lets}panel \"P\" of x, {} per id:\n", columns.join(", "));
@@ -1415,11 +1420,7 @@ fn every_reason_for_a_missing_value_is_reached() {
 fn a_panel_of_exactly_a_sheet_is_accepted_and_one_more_column_is_not() {
     let groups = 87_380;
     assert_eq!(groups * 12, eval::MAX_SHEET_ENTRIES);
-    let mut csv = String::from("id,x\n");
-    for i in 0..groups {
-        csv.push_str(&format!("{i},{}\n", i % 7));
-    }
-    let (_dir, t) = table(&csv);
+    let (_dir, t) = table(&ids(groups));
     let lets: String = (0..12).map(|i| format!("let x{i} = x + {i}\n")).collect();
     let panel = |n: usize| {
         let columns: Vec<String> = (0..n).map(|i| format!("x{i}")).collect();
@@ -1448,11 +1449,7 @@ fn a_panel_of_exactly_a_sheet_is_accepted_and_one_more_column_is_not() {
 fn checks_fill_a_sheet_exactly_and_one_more_row_is_refused() {
     let groups = 4_368;
     assert_eq!(240 * (groups + 1), eval::MAX_SHEET_ENTRIES);
-    let mut csv = String::from("id,x\n");
-    for i in 0..groups {
-        csv.push_str(&format!("{i},{}\n", i % 7));
-    }
-    let (_dir, t) = table(&csv);
+    let (_dir, t) = table(&ids(groups));
     let checks: String = (0..240)
         .map(|i| format!("check \"c{i}\" warn per id: min(x) >= 0\n"))
         .collect();
@@ -1471,11 +1468,7 @@ fn checks_fill_a_sheet_exactly_and_one_more_row_is_refused() {
 #[test]
 fn charts_fill_their_limit_exactly_and_one_more_is_refused() {
     assert_eq!(eval::MAX_CHARTS, 500);
-    let mut csv = String::from("id,x\n");
-    for i in 0..499 {
-        csv.push_str(&format!("{i},{}\n", i % 7));
-    }
-    let (_dir, t) = table(&csv);
+    let (_dir, t) = table(&ids(499));
     let charts = "boxplot x per id\nhistogram x per id\n";
     assert!(run_recipe(charts, &t, None).is_ok());
     let refused = run_recipe(&format!("{charts}histogram x\n"), &t, None).unwrap_err();
